@@ -1,0 +1,34 @@
+import type { Metadata } from "next";
+import { notFound } from "next/navigation";
+import { getDb } from "@/db/client";
+import { getSite } from "@/db/queries/sites";
+import { EquipmentTable } from "@/components/sites/equipment-table";
+import { requirePageViewer } from "../../../(auth)/auth";
+
+export const dynamic = "force-dynamic";
+
+type Props = { params: Promise<{ siteId: string }> };
+
+export async function generateMetadata({ params }: Props): Promise<Metadata> {
+  const viewer = await requirePageViewer();
+  const site = getSite(getDb(), viewer, (await params).siteId);
+  return { title: site?.name ?? "Not found" };
+}
+
+export default async function SitePage({ params }: Props) {
+  const viewer = await requirePageViewer();
+  const site = getSite(getDb(), viewer, (await params).siteId);
+  // A site the viewer may not see looks exactly like one that does not exist.
+  if (!site) notFound();
+  return (
+    <article>
+      <header className="mb-4">
+        <h1 className="text-2xl font-semibold">{site.name}</h1>
+        <p className="text-muted">
+          {site.customer.name} · {site.address} · {site.timeZone}
+        </p>
+      </header>
+      <EquipmentTable equipment={site.equipment} unitSystem={viewer.unitSystem} />
+    </article>
+  );
+}

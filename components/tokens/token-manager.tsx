@@ -1,0 +1,86 @@
+"use client";
+
+import { zodResolver } from "@hookform/resolvers/zod";
+import { useState } from "react";
+import { useForm } from "react-hook-form";
+import useSWR from "swr";
+import { createTokenSchema, type CreateTokenInput } from "@/app/api/tokens/schema";
+import type { ApiTokenDto } from "@/db/queries/tokens";
+import { Button } from "@/components/ui/button";
+import { Field } from "@/components/ui/field";
+import { fetchJson } from "@/lib/client/fetcher";
+
+const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString() : "never");
+
+export function TokenManager() {
+  const { data, mutate, error } = useSWR<{ tokens: ApiTokenDto[] }>("/api/tokens", fetchJson);
+  const [created, setCreated] = useState<string | null>(null);
+  const [actionError, setActionError] = useState<string | null>(null);
+  const {
+    register,
+    handleSubmit,
+    reset,
+    formState: { errors, isSubmitting },
+  } = useForm<CreateTokenInput>({ resolver: zodResolver(createTokenSchema) });
+
+  async function onCreate(values: CreateTokenInput) {
+    setActionError(null);
+    try {
+      const res = await fetchJson<{ token: string }>("/api/tokens", { method: "POST", body: JSON.stringify(values) });
+      setCreated(res.token);
+      reset();
+      await mutate();
+    } catch (err) {
+      setActionError((err as Error).message);
+    }
+  }
+
+  async function onRevoke(id: string) {
+    setActionError(null);
+    try {
+      await fetchJson(`/api/tokens/${id}`, { method: "DELETE" });
+      await mutate();
+    } catch (err) {
+      setActionError((err as Error).message);
+    }
+  }
+
+  return (
+    <div className="flex flex-col gap-6">
+      <form onSubmit={handleSubmit(onCreate)} noValidate className="flex flex-col gap-3 rounded-lg border border-line bg-panel p-4 sm:flex-row sm:items-end">
+        <div className="grow">
+          <Field id="token-name" label="New token name" placeholder="e.g. reporting script" error={errors.name?.message} {...register("name")} />
+        </div>
+        <Button type="submit" disabled={isSubmitting}>
+          Create token
+        </Button>
+      </form>
+      {created ? (
+        <div role="status" className="rounded-lg border border-advisory/40 bg-advisory/5 p-4">
+          <p className="text-sm font-semibold">Copy this token now. It will not be shown again.</p>
+          <code className="mt-2 block break-all rounded bg-panel p-2 text-sm" data-testid="new-token">
+            {created}
+          </code>
+        </div>
+      ) : null}
+      {actionError || error ? <p className="text-alarm">{actionError ?? error?.message}</p> : null}
+      <ul className="flex flex-col gap-2">
+        {(data?.tokens ?? []).map((t) => (
+          <li key={t.id} className="flex flex-wrap items-center gap-x-4 gap-y-1 rounded-lg border border-line bg-panel px-4 py-3">
+            <span className="font-semibold">{t.name}</span>
+            <code className="text-sm text-muted">{t.prefix}…</code>
+            <span className="text-sm text-muted">created {when(t.createdAt)} · last used {when(t.lastUsedAt)}</span>
+            {t.revokedAt ? (
+              <span className="ml-auto text-sm text-muted">revoked {when(t.revokedAt)}</span>
+            ) : (
+              <Button variant="danger" className="ml-auto" onClick={() => onRevoke(t.id)}>
+                Revoke
+              </Button>
+            )}
+          </li>
+        ))}
+        {data && data.tokens.length === 0 ? <li className="text-muted">No tokens yet.</li> : null}
+      </ul>
+    </div>
+  );
+}

@@ -1,0 +1,98 @@
+import { createHash, randomBytes, randomUUID } from "node:crypto";
+import { and, desc, eq, isNull } from "drizzle-orm";
+import type { Db } from "../client";
+import { apiTokens, users } from "../schema";
+import type { Viewer } from "@/lib/auth/viewer";
+
+export const TOKEN_PREFIX = "llt_";
+
+export interface ApiTokenDto {
+  id: string;
+  name: string;
+  prefix: string;
+  createdAt: string;
+  lastUsedAt: string | null;
+  revokedAt: string | null;
+}
+
+// Tokens carry 256 random bits, so a fast hash is enough: there is nothing to brute-force.
+export function hashToken(secret: string): string {
+  return createHash("sha256").update(secret).digest("hex");
+}
+
+const dtoColumns = {
+  id: apiTokens.id,
+  name: apiTokens.name,
+  prefix: apiTokens.prefix,
+  createdAt: apiTokens.createdAt,
+  lastUsedAt: apiTokens.lastUsedAt,
+  revokedAt: apiTokens.revokedAt,
+};
+
+type DtoRow = { id: string; name: string; prefix: string; createdAt: Date; lastUsedAt: Date | null; revokedAt: Date | null };
+
+function toDto(row: DtoRow): ApiTokenDto {
+  return {
+    id: row.id,
+    name: row.name,
+    prefix: row.prefix,
+    createdAt: row.createdAt.toISOString(),
+    lastUsedAt: row.lastUsedAt?.toISOString() ?? null,
+    revokedAt: row.revokedAt?.toISOString() ?? null,
+  };
+}
+
+export function listTokens(db: Db, viewer: Viewer): ApiTokenDto[] {
+  return db
+    .select(dtoColumns)
+    .from(apiTokens)
+    .where(eq(apiTokens.userId, viewer.userId))
+    .orderBy(desc(apiTokens.createdAt))
+    .all()
+    .map(toDto);
+}
+
+/** Returns the secret exactly once; only its hash is stored. */
+export function createToken(db: Db, viewer: Viewer, name: string): { token: string; apiToken: ApiTokenDto } {
+  const token = TOKEN_PREFIX + randomBytes(32).toString("base64url");
+  const id = randomUUID();
+  db.insert(apiTokens)
+    .values({ id, userId: viewer.userId, name, tokenHash: hashToken(token), prefix: token.slice(0, 10) })
+    .run();
+  const row = db.select(dtoColumns).from(apiTokens).where(eq(apiTokens.id, id)).get()!;
+  return { token, apiToken: toDto(row) };
+}
+
+/** Revokes one of the viewer's own tokens; false when there is no such token of theirs. */
+export function revokeToken(db: Db, viewer: Viewer, id: string): boolean {
+  const result = db
+    .update(apiTokens)
+    .set({ revokedAt: new Date() })
+    .where(and(eq(apiTokens.id, id), eq(apiTokens.userId, viewer.userId), isNull(apiTokens.revokedAt)))
+    .run();
+  return result.changes > 0;
+}
+
+/** The viewer a bearer token acts as, with the same scope as its owner; records its use. */
+export function viewerForToken(db: Db, token: string): Viewer | null {
+  if (!token.startsWith(TOKEN_PREFIX)) return null;
+  const row = db
+    .select({
+      tokenId: apiTokens.id,
+      userId: users.id,
+      role: users.role,
+      organizationId: users.organizationId,
+      name: users.name,
+      email: users.email,
+      unitSystem: users.unitSystem,
+      disabled: users.disabled,
+    })
+    .from(apiTokens)
+    .innerJoin(users, eq(users.id, apiTokens.userId))
+    .where(and(eq(apiTokens.tokenHash, hashToken(token)), isNull(apiTokens.revokedAt)))
+    .get();
+  if (!row || row.disabled) return null;
+  db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.tokenId)).run();
+  const { tokenId: _t, disabled: _d, ...viewer } = row;
+  return viewer;
+}

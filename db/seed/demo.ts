@@ -1,0 +1,160 @@
+import bcrypt from "bcryptjs";
+import type { Db } from "../client";
+import { equipment, organizations, points, sites, users, type NewEquipment } from "../schema";
+import { canonicalUnitOf, pointsByKind, quantities, type EquipmentKind } from "@/lib/quantities";
+
+// An invented service company and three invented customers. Ids are fixed so the seed is
+// idempotent (re-running inserts nothing) and demo URLs stay stable.
+
+export const SERVICE_ORG = { id: "org-tallgrass", name: "Tallgrass Mechanical Service", kind: "service" as const };
+
+interface DemoEquipment {
+  tag: string;
+  name: string;
+  kind: EquipmentKind;
+  capacityTons?: number;
+  designFlowLps?: number;
+  refrigerant?: string;
+  serves?: string;
+}
+
+interface DemoSite {
+  id: string;
+  name: string;
+  kind: string;
+  address: string;
+  timeZone: string;
+  customer: { id: string; name: string; userEmail: string; userName: string };
+  equipment: DemoEquipment[];
+}
+
+// 2.4 gpm/ton chilled water and 3 gpm/ton condenser water (AHRI 550/590 rating flows), in L/s.
+const GPM_TO_LPS = 0.0630902;
+const chwFlow = (tons: number) => Math.round(tons * 2.4 * GPM_TO_LPS * 10) / 10;
+const cwFlow = (tons: number) => Math.round(tons * 3 * GPM_TO_LPS * 10) / 10;
+
+function plant(chillers: Array<{ tons: number; refrigerant: string }>, airHandlers: number, towerTons: number): DemoEquipment[] {
+  const list: DemoEquipment[] = [];
+  chillers.forEach((c, i) => {
+    const n = i + 1;
+    list.push({ tag: `CH-${n}`, name: `Chiller ${n}`, kind: "chiller", capacityTons: c.tons, refrigerant: c.refrigerant, designFlowLps: chwFlow(c.tons) });
+    list.push({ tag: `CHWP-${n}`, name: `Chilled water pump ${n}`, kind: "pump", designFlowLps: chwFlow(c.tons), serves: `CH-${n}` });
+    list.push({ tag: `CWP-${n}`, name: `Condenser water pump ${n}`, kind: "pump", designFlowLps: cwFlow(c.tons), serves: `CH-${n}` });
+  });
+  list.push({ tag: "CT-1", name: "Cooling tower 1", kind: "cooling_tower", capacityTons: towerTons });
+  for (let i = 1; i <= airHandlers; i++) list.push({ tag: `AHU-${i}`, name: `Air handler ${i}`, kind: "air_handler" });
+  list.push({ tag: "WS-1", name: "Weather station", kind: "weather_station" });
+  return list;
+}
+
+export const DEMO_SITES: DemoSite[] = [
+  {
+    id: "harborview-mob",
+    name: "Harborview Medical Office Building",
+    kind: "Medical office",
+    address: "1450 Larkspur Avenue, Riverton",
+    timeZone: "America/Chicago",
+    customer: { id: "org-harborview", name: "Harborview Medical Partners", userEmail: "facilities@harborview.example", userName: "Morgan Ellis" },
+    equipment: plant([{ tons: 300, refrigerant: "R-134a" }], 4, 400),
+  },
+  {
+    id: "quarry-ridge-dh2",
+    name: "Quarry Ridge Data Hall 2",
+    kind: "Data hall",
+    address: "88 Flint Quarry Road, Ashbury",
+    timeZone: "America/Chicago",
+    customer: { id: "org-quarry-ridge", name: "Quarry Ridge Data Centers", userEmail: "ops@quarryridge.example", userName: "Sam Achebe" },
+    equipment: plant(
+      [
+        { tons: 500, refrigerant: "R-1234ze(E)" },
+        { tons: 500, refrigerant: "R-1234ze(E)" },
+      ],
+      6,
+      1200,
+    ),
+  },
+  {
+    id: "millbrook-high",
+    name: "Millbrook High School",
+    kind: "School",
+    address: "300 Schoolhouse Lane, Millbrook",
+    timeZone: "America/New_York",
+    customer: { id: "org-millbrook", name: "Millbrook Unified School District", userEmail: "facilities@millbrook.example", userName: "Jordan Whitfield" },
+    equipment: plant(
+      [
+        { tons: 250, refrigerant: "R-134a" },
+        { tons: 250, refrigerant: "R-134a" },
+      ],
+      5,
+      600,
+    ),
+  },
+];
+
+export const DEMO_STAFF = [
+  { id: "user-admin", email: "admin@tallgrass.example", name: "Dana Okafor", role: "admin" as const },
+  { id: "user-tech-1", email: "luis@tallgrass.example", name: "Luis Ferreira", role: "technician" as const },
+  { id: "user-tech-2", email: "priya@tallgrass.example", name: "Priya Raman", role: "technician" as const },
+];
+
+export interface DemoAccount {
+  role: "admin" | "technician" | "customer";
+  email: string;
+  name: string;
+  organization: string;
+}
+
+export function demoAccounts(): DemoAccount[] {
+  return [
+    ...DEMO_STAFF.map((s) => ({ role: s.role, email: s.email, name: s.name, organization: SERVICE_ORG.name })),
+    ...DEMO_SITES.map((s) => ({ role: "customer" as const, email: s.customer.userEmail, name: s.customer.userName, organization: s.customer.name })),
+  ];
+}
+
+/** Seeds the demo scenario; safe to run on every start (existing rows are left alone). */
+export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
+  // One hash for every demo account: they share the documented demo password.
+  const passwordHash = bcrypt.hashSync(demoPassword, 10);
+  let inserted = 0;
+  const count = (r: { changes: number }) => (inserted += r.changes);
+
+  db.transaction((tx) => {
+    count(tx.insert(organizations).values(SERVICE_ORG).onConflictDoNothing().run());
+    for (const staff of DEMO_STAFF) {
+      count(tx.insert(users).values({ ...staff, organizationId: SERVICE_ORG.id, passwordHash }).onConflictDoNothing().run());
+    }
+    for (const site of DEMO_SITES) {
+      const { customer } = site;
+      count(tx.insert(organizations).values({ id: customer.id, name: customer.name, kind: "customer" }).onConflictDoNothing().run());
+      count(
+        tx
+          .insert(users)
+          .values({ id: `user-${customer.id}`, email: customer.userEmail, name: customer.userName, role: "customer", organizationId: customer.id, passwordHash })
+          .onConflictDoNothing()
+          .run(),
+      );
+      count(
+        tx
+          .insert(sites)
+          .values({ id: site.id, name: site.name, kind: site.kind, address: site.address, timeZone: site.timeZone, organizationId: customer.id })
+          .onConflictDoNothing()
+          .run(),
+      );
+      for (const e of site.equipment) {
+        const equipmentId = `${site.id}:${e.tag}`;
+        const row: NewEquipment = { id: equipmentId, siteId: site.id, ...e };
+        count(tx.insert(equipment).values(row).onConflictDoNothing().run());
+        for (const key of pointsByKind[e.kind]) {
+          count(
+            tx
+              .insert(points)
+              .values({ equipmentId, key, quantity: key, unit: canonicalUnitOf(key), brickClass: quantities[key].brickClass, expectedIntervalS: 5 })
+              .onConflictDoNothing()
+              .run(),
+          );
+        }
+      }
+    }
+  });
+  return { inserted };
+}

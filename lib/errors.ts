@@ -1,0 +1,37 @@
+// One error type for the whole server: a code the client can branch on, the HTTP status
+// it maps to, and a message safe to show. Causes are logged, never sent.
+export const errorStatus = {
+  bad_request: 400,
+  unauthorized: 401,
+  forbidden: 403,
+  not_found: 404,
+  conflict: 409,
+  payload_too_large: 413,
+  rate_limited: 429,
+  internal: 500,
+} as const;
+
+export type ErrorCode = keyof typeof errorStatus;
+
+export interface ErrorBody {
+  error: { code: ErrorCode; message: string; details?: unknown };
+}
+
+export class AppError extends Error {
+  readonly status: number;
+  constructor(
+    readonly code: ErrorCode,
+    message: string,
+    readonly details?: unknown,
+  ) {
+    super(message);
+    this.name = "AppError";
+    this.status = errorStatus[code];
+  }
+
+  toBody(): ErrorBody {
+    return { error: { code: this.code, message: this.message, ...(this.details === undefined ? {} : { details: this.details }) } };
+  }
+}
+
+export const notFound = (what = "Not found") => new AppError("not_found", what);

@@ -1,0 +1,36 @@
+import { z } from "zod";
+
+// The one socket.io contract, imported by the server (lib/realtime/server.ts) and the
+// browser (components/realtime). Event names are `entity:verb`; acks are { data } | { error }.
+
+export type Ack<T> = { data: T } | { error: { code: string; message: string } };
+
+export const joinSiteSchema = z.object({ siteId: z.string().min(1).max(100) });
+export type JoinSite = z.infer<typeof joinSiteSchema>;
+
+/** Latest values of one site's points, coalesced; values in canonical SI units. */
+export interface SiteValues {
+  siteId: string;
+  values: Array<{ pointId: number; tsMs: number; value: number | boolean | string; quality: "good" | "uncertain" | "bad" }>;
+}
+
+/** One site's status as the board shows it. */
+export interface SiteStatus {
+  siteId: string;
+  data: "live" | "stale" | "no_gateway" | "offline";
+  worst: { priority: number; title: string } | null;
+  unacknowledged: number;
+}
+
+export interface ServerToClientEvents {
+  "site:values": (payload: SiteValues) => void;
+  "site:status": (payload: SiteStatus) => void;
+}
+
+export interface ClientToServerEvents {
+  "site:join": (payload: JoinSite, ack: (res: Ack<{ siteId: string }>) => void) => void;
+  "site:leave": (payload: JoinSite, ack: (res: Ack<{ siteId: string }>) => void) => void;
+  "board:join": (ack: (res: Ack<{ siteIds: string[] }>) => void) => void;
+}
+
+export const siteRoom = (siteId: string) => `site:${siteId}`;

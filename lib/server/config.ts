@@ -1,0 +1,44 @@
+import { z } from "zod";
+
+// Every setting the server reads, validated once at start-up so a typo fails loudly
+// instead of surfacing as a strange runtime error later.
+const flag = (fallback: boolean) =>
+  z
+    .enum(["0", "1", "true", "false", "yes", "no", "on", "off"])
+    .optional()
+    .transform((v) => (v === undefined ? fallback : ["1", "true", "yes", "on"].includes(v)));
+
+const port = (fallback: number) => z.coerce.number().int().min(0).max(65535).default(fallback);
+
+export const configSchema = z.object({
+  NODE_ENV: z.enum(["development", "production", "test"]).default("production"),
+  HOST: z.string().min(1).default("0.0.0.0"),
+  PORT: port(3000),
+  MQTT_PORT: port(1883),
+  MQTT_URL: z.url({ protocol: /^mqtts?$/ }).optional(),
+  DATABASE_PATH: z.string().min(1).default("data/liftline.db"),
+  AUTH_SECRET: z.string().min(32, "AUTH_SECRET must be at least 32 characters").optional(),
+  NEXTAUTH_URL: z.url().optional(),
+  LIFTLINE_DEMO: flag(true),
+  LIFTLINE_DEMO_PASSWORD: z.string().min(8, "LIFTLINE_DEMO_PASSWORD must be at least 8 characters").default("liftline-demo"),
+  LIFTLINE_SIMULATOR: flag(true),
+  LIFTLINE_BUILD_IF_NEEDED: flag(true),
+  SMTP_URL: z.url({ protocol: /^smtps?$/ }).optional(),
+  SMTP_PORT: port(2525),
+  MAIL_FROM: z.string().default("Liftline <alerts@liftline.invalid>"),
+  SIGNIN_WINDOW_S: z.coerce.number().int().min(1).default(900),
+  SIGNIN_MAX_PER_ACCOUNT: z.coerce.number().int().min(1).default(5),
+  SIGNIN_MAX_PER_ADDRESS: z.coerce.number().int().min(1).default(20),
+  RAW_RETENTION_DAYS: z.coerce.number().int().min(1).max(3650).default(14),
+});
+
+export type Config = z.infer<typeof configSchema>;
+
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const parsed = configSchema.safeParse(env);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`);
+    throw new Error(`Invalid configuration:\n${lines.join("\n")}`);
+  }
+  return parsed.data;
+}

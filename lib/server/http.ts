@@ -1,0 +1,33 @@
+import { ZodError, type z } from "zod";
+import { AppError } from "@/lib/errors";
+
+// Every route handler goes through `route()`: one place turns thrown errors into
+// the shared error body, so no handler can leak a stack trace or forget a status.
+type Handler<C> = (request: Request, context: C) => Promise<Response>;
+
+export function route<C>(handler: Handler<C>): Handler<C> {
+  return async (request, context) => {
+    try {
+      return await handler(request, context);
+    } catch (err) {
+      if (err instanceof AppError) return Response.json(err.toBody(), { status: err.status });
+      if (err instanceof ZodError) {
+        const e = new AppError("bad_request", "The request is not valid.", err.issues.map((i) => ({ path: i.path.join("."), message: i.message })));
+        return Response.json(e.toBody(), { status: 400 });
+      }
+      console.error(`[api] ${request.method} ${new URL(request.url).pathname}:`, err);
+      return Response.json(new AppError("internal", "Something went wrong on our side.").toBody(), { status: 500 });
+    }
+  };
+}
+
+/** Reads and validates a JSON body; a malformed body is a 400, not a 500. */
+export async function readJson<S extends z.ZodType>(request: Request, schema: S): Promise<z.infer<S>> {
+  let body: unknown;
+  try {
+    body = await request.json();
+  } catch {
+    throw new AppError("bad_request", "The request body must be JSON.");
+  }
+  return schema.parse(body);
+}

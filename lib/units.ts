@@ -1,0 +1,145 @@
+import convert from "convert-units";
+import { canonicalUnits, quantities, type Measure, type QuantityKey } from "./quantities";
+
+// Unit handling at the two edges of the product: gateways send whatever their controllers
+// use (converted to canonical SI on ingest), and screens show IP or SI per user preference.
+// Factors come from convert-units; tests check them against NIST SP 811.
+
+/** Standard atmosphere, 101.325 kPa (NIST SP 811 B.8), for gauge ↔ absolute. */
+export const STANDARD_ATMOSPHERE_KPA = 101.325;
+
+interface WireUnit {
+  measure: Measure;
+  /** convert-units abbreviation, when a factor is involved. */
+  lib?: convert.Unit;
+  /** Gauge pressure: add one atmosphere after converting. */
+  gauge?: boolean;
+}
+
+/** Unit codes a point map may declare. */
+export const wireUnits = {
+  degC: { measure: "temperature", lib: "C" },
+  degF: { measure: "temperature", lib: "F" },
+  K: { measure: "temperature", lib: "K" },
+  kPa: { measure: "pressure", lib: "kPa" },
+  kPag: { measure: "pressure", lib: "kPa", gauge: true },
+  psia: { measure: "pressure", lib: "psi" },
+  psig: { measure: "pressure", lib: "psi", gauge: true },
+  bar: { measure: "pressure", lib: "bar" },
+  barg: { measure: "pressure", lib: "bar", gauge: true },
+  kPad: { measure: "differential_pressure", lib: "kPa" },
+  psid: { measure: "differential_pressure", lib: "psi" },
+  "L/s": { measure: "flow", lib: "l/s" },
+  gpm: { measure: "flow", lib: "gal/min" },
+  "m3/h": { measure: "flow", lib: "m3/h" },
+  kW: { measure: "power", lib: "kW" },
+  W: { measure: "power", lib: "W" },
+  "%": { measure: "percent" },
+  Hz: { measure: "frequency", lib: "Hz" },
+  s: { measure: "duration", lib: "s" },
+  min: { measure: "duration", lib: "min" },
+  bool: { measure: "boolean" },
+  state: { measure: "state" },
+  text: { measure: "text" },
+} as const satisfies Record<string, WireUnit>;
+
+export type WireUnitCode = keyof typeof wireUnits;
+export const wireUnitCodes = Object.keys(wireUnits) as WireUnitCode[];
+
+export function isWireUnit(code: string): code is WireUnitCode {
+  return Object.prototype.hasOwnProperty.call(wireUnits, code);
+}
+
+/** Whether a gateway unit can feed a quantity (degF can feed a temperature, not a pressure). */
+export function unitFits(code: WireUnitCode, quantity: QuantityKey): boolean {
+  const measure = quantities[quantity].measure;
+  const unit: WireUnit = wireUnits[code];
+  return unit.measure === measure;
+}
+
+const canonicalLib: Partial<Record<Measure, convert.Unit>> = {
+  temperature: "C",
+  pressure: "kPa",
+  differential_pressure: "kPa",
+  flow: "l/s",
+  power: "kW",
+  frequency: "Hz",
+  duration: "s",
+};
+
+/** A numeric reading in a wire unit, in its measure's canonical unit. */
+export function toCanonical(value: number, code: WireUnitCode): number {
+  const unit: WireUnit = wireUnits[code];
+  const target = canonicalLib[unit.measure];
+  if (!unit.lib || !target) return value;
+  const converted = unit.lib === target ? value : convert(value).from(unit.lib).to(target);
+  return unit.gauge ? converted + STANDARD_ATMOSPHERE_KPA : converted;
+}
+
+export type UnitSystem = "ip" | "si";
+
+interface DisplayUnit {
+  label: string;
+  lib?: convert.Unit;
+  gauge?: boolean;
+  digits: number;
+}
+
+// Technicians read refrigerant pressures as gauge psig in IP; SI shows absolute kPa.
+const displayUnits: Record<UnitSystem, Record<Measure, DisplayUnit>> = {
+  ip: {
+    temperature: { label: "°F", lib: "F", digits: 1 },
+    pressure: { label: "psig", lib: "psi", gauge: true, digits: 1 },
+    differential_pressure: { label: "psi", lib: "psi", digits: 2 },
+    flow: { label: "gpm", lib: "gal/min", digits: 0 },
+    power: { label: "kW", digits: 0 },
+    percent: { label: "%", digits: 0 },
+    frequency: { label: "Hz", digits: 1 },
+    duration: { label: "s", digits: 0 },
+    boolean: { label: "", digits: 0 },
+    state: { label: "", digits: 0 },
+    text: { label: "", digits: 0 },
+  },
+  si: {
+    temperature: { label: "°C", digits: 1 },
+    pressure: { label: "kPa", digits: 0 },
+    differential_pressure: { label: "kPa", digits: 1 },
+    flow: { label: "L/s", digits: 1 },
+    power: { label: "kW", digits: 0 },
+    percent: { label: "%", digits: 0 },
+    frequency: { label: "Hz", digits: 1 },
+    duration: { label: "s", digits: 0 },
+    boolean: { label: "", digits: 0 },
+    state: { label: "", digits: 0 },
+    text: { label: "", digits: 0 },
+  },
+};
+
+export function displayUnit(measure: Measure, system: UnitSystem): string {
+  return displayUnits[system][measure].label;
+}
+
+/** A canonical value in the viewer's unit system (numbers only). */
+export function fromCanonical(value: number, measure: Measure, system: UnitSystem): number {
+  const unit = displayUnits[system][measure];
+  const source = canonicalLib[measure];
+  if (!unit.lib || !source) return value;
+  const absolute = unit.gauge ? value - STANDARD_ATMOSPHERE_KPA : value;
+  return unit.lib === source ? absolute : convert(absolute).from(source).to(unit.lib);
+}
+
+/** A temperature difference (ΔT, approach, margin) in the viewer's units: scale only, no offset. */
+export function deltaFromCanonical(deltaC: number, system: UnitSystem): number {
+  return system === "ip" ? deltaC * 1.8 : deltaC;
+}
+
+export function formatValue(value: number | boolean | string | null | undefined, measure: Measure, system: UnitSystem): string {
+  if (value === null || value === undefined) return "—";
+  if (typeof value === "boolean") return value ? "On" : "Off";
+  if (typeof value === "string") return value;
+  const unit = displayUnits[system][measure];
+  const shown = fromCanonical(value, measure, system).toFixed(unit.digits);
+  return unit.label ? `${shown} ${unit.label}` : shown;
+}
+
+export { canonicalUnits };

@@ -1,0 +1,125 @@
+// Liftline's one process: the web app (Next), live updates (socket.io) and the MQTT broker
+// the site gateways publish to, on one machine. This file only wires parts together.
+import { randomBytes } from "node:crypto";
+import { createServer, type IncomingMessage } from "node:http";
+import path from "node:path";
+import next from "next";
+import { migrateDb, openDb, setDb } from "./db/client";
+import { demoAccounts, seedDemo } from "./db/seed/demo";
+import { startEmbeddedBroker, type BrokerAuth, type EmbeddedBroker } from "./gateway/broker";
+import { createRealtimeServer } from "./lib/realtime/server";
+import { buildIfNeeded } from "./lib/server/build";
+import { loadConfig } from "./lib/server/config";
+import { setRuntime } from "./lib/server/runtime";
+import { resolveAuthSecret } from "./lib/server/secret";
+
+process.env.NEXT_TELEMETRY_DISABLED = "1";
+
+const CLIENT_ADDRESS_HEADER = "x-liftline-client-address";
+const log = (line: string) => console.log(line);
+
+const config = (() => {
+  try {
+    return loadConfig();
+  } catch (err) {
+    console.error(err instanceof Error ? err.message : err);
+    process.exit(1);
+  }
+})();
+
+const dir = process.cwd();
+const dev = config.NODE_ENV === "development";
+const databasePath = path.resolve(config.DATABASE_PATH);
+const publicUrl = config.NEXTAUTH_URL ?? `http://localhost:${config.PORT}`;
+const authSecret = resolveAuthSecret(config.AUTH_SECRET, path.dirname(databasePath));
+
+// Route handlers run inside Next in this same process and read these.
+process.env.DATABASE_PATH = databasePath;
+process.env.NEXTAUTH_SECRET = authSecret;
+process.env.NEXTAUTH_URL = publicUrl;
+
+const db = openDb(databasePath);
+migrateDb(db);
+setDb(db);
+if (config.LIFTLINE_DEMO) seedDemo(db, config.LIFTLINE_DEMO_PASSWORD);
+
+if (!dev && config.LIFTLINE_BUILD_IF_NEEDED) buildIfNeeded(dir, log);
+
+const app = next({ dev, dir, hostname: "localhost", port: config.PORT });
+await app.prepare();
+const handle = app.getRequestHandler();
+const handleUpgrade = app.getUpgradeHandler();
+
+function stampClientAddress(req: IncomingMessage) {
+  // Sign-in rate limits key on this; a value sent by the client is never trusted.
+  req.headers[CLIENT_ADDRESS_HEADER] = req.socket.remoteAddress ?? "unknown";
+}
+
+const httpServer = createServer((req, res) => {
+  stampClientAddress(req);
+  void handle(req, res);
+});
+httpServer.on("upgrade", (req, socket, head) => {
+  if (req.url?.startsWith("/socket.io/")) return; // socket.io's own listener takes these
+  void handleUpgrade(req, socket, head);
+});
+
+const io = createRealtimeServer(httpServer, { db, secret: authSecret });
+
+// The server's own components connect to the broker with this credential; it is never
+// written anywhere and changes on every start.
+const internalCredential = { username: "liftline-internal", password: randomBytes(24).toString("base64url") };
+const brokerAuth: BrokerAuth = {
+  async authenticate(username, password) {
+    if (username === internalCredential.username && password === internalCredential.password) return { kind: "internal" };
+    return "bad_credentials";
+  },
+  canPublish: (identity) => identity.kind === "internal",
+  canSubscribe: (identity) => identity.kind === "internal",
+};
+
+let broker: EmbeddedBroker | undefined;
+try {
+  broker = await startEmbeddedBroker({ host: config.HOST, port: config.MQTT_PORT, auth: brokerAuth, log });
+} catch (err) {
+  console.error(`Could not start the MQTT broker on port ${config.MQTT_PORT}: ${err instanceof Error ? err.message : err}`);
+  process.exit(1);
+}
+
+setRuntime({
+  status: () => ({ broker: { mode: "embedded", up: broker !== undefined, clients: broker?.connectedClients() ?? 0 } }),
+});
+
+await new Promise<void>((resolve, reject) => {
+  httpServer.once("error", reject);
+  httpServer.listen(config.PORT, config.HOST, () => resolve());
+});
+const address = httpServer.address();
+const httpPort = typeof address === "object" && address ? address.port : config.PORT;
+
+log(`Liftline is running at ${publicUrl} (${dev ? "development" : "production"}; HTTP port ${httpPort}, MQTT port ${broker.port})`);
+if (config.LIFTLINE_DEMO) {
+  log(`Demo sign-ins (demo data only; password: ${config.LIFTLINE_DEMO_PASSWORD}):`);
+  for (const a of demoAccounts()) log(`  ${a.role.padEnd(10)} ${a.email.padEnd(32)} ${a.organization}`);
+}
+
+let stopping = false;
+async function shutdown(signal: string) {
+  if (stopping) return;
+  stopping = true;
+  log(`${signal}: shutting down`);
+  const force = setTimeout(() => process.exit(1), 10_000);
+  force.unref();
+  try {
+    await broker?.close();
+    io.close();
+    await new Promise<void>((resolve) => httpServer.close(() => resolve()));
+    await app.close?.();
+  } finally {
+    setDb(undefined);
+    db.$client.close();
+    process.exit(0);
+  }
+}
+process.on("SIGINT", () => void shutdown("SIGINT"));
+process.on("SIGTERM", () => void shutdown("SIGTERM"));
