@@ -94,6 +94,13 @@ export function canSeeSite(db: Db, viewer: Viewer, siteId: string): boolean {
   return db.select({ id: sites.id }).from(sites).where(and(eq(sites.id, siteId), siteScope(viewer))).get() !== undefined;
 }
 
+// The order a technician walks a plant in: the chillers, heat rejection, pumps, then the load.
+const KIND_ORDER = ["chiller", "cooling_tower", "pump", "air_handler", "weather_station"];
+const kindOrder = (kind: string) => {
+  const i = KIND_ORDER.indexOf(kind);
+  return i === -1 ? KIND_ORDER.length : i;
+};
+
 export function getSite(db: Db, viewer: Viewer, siteId: string): SiteDetailDto | null {
   const row = db
     .select(summaryColumns)
@@ -141,6 +148,8 @@ export function getSite(db: Db, viewer: Viewer, siteId: string): SiteDetailDto |
     list.push(p);
     byEquipment.set(equipmentId, list);
   }
-  const equipmentDtos = equipmentRows.map((e) => ({ ...e, points: byEquipment.get(e.id) ?? [] }));
+  const equipmentDtos = equipmentRows
+    .map((e) => ({ ...e, points: byEquipment.get(e.id) ?? [] }))
+    .sort((a, b) => kindOrder(a.kind) - kindOrder(b.kind) || a.tag.localeCompare(b.tag, "en", { numeric: true }));
   return { ...toSummary(row, equipmentDtos.length), equipment: equipmentDtos };
 }

@@ -1,0 +1,436 @@
+import { randomBytes } from "node:crypto";
+import bcrypt from "bcryptjs";
+import { and, asc, desc, eq, inArray, isNull, max, sql } from "drizzle-orm";
+import type { Db } from "../client";
+import { equipment, gatewayPointMaps, gatewayRejections, gateways, gatewayUnmappedPoints, points, sites, type GatewayProtocol, type GatewayState } from "../schema";
+import { canSeeSite } from "./sites";
+import { isAdmin, canAct, type Viewer } from "@/lib/auth/viewer";
+import { AppError, notFound } from "@/lib/errors";
+import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
+import type { WireUnitCode } from "@/lib/units";
+import type { LineError, PointMapRow } from "@/gateway/point-map-csv";
+import { isOnline, silenceMs } from "@/gateway/status";
+
+// Gateways as the API sees them (viewer-scoped, DTOs only) and as the ingest side needs them
+// (system functions at the bottom, no viewer: the broker has no user). The password hash
+// never leaves this module: credentials are checked here.
+
+/** bcrypt cost 10 (~70 ms here): paid once per MQTT CONNECT, not per message. */
+const GATEWAY_BCRYPT_COST = 10;
+const DUMMY_HASH = bcrypt.hashSync("not-a-gateway-password", GATEWAY_BCRYPT_COST);
+
+export interface GatewayDto {
+  id: string;
+  siteId: string;
+  name: string;
+  protocol: GatewayProtocol;
+  groupId: string | null;
+  edgeNodeId: string | null;
+  username: string;
+  createdAt: string;
+  passwordRotatedAt: string | null;
+  revokedAt: string | null;
+  /** Topics this gateway publishes on (JSON) or its Sparkplug B node topic. */
+  topics: { publish: string[]; subscribe: string[] };
+  status: {
+    state: GatewayState;
+    stateChangedAt: string | null;
+    online: boolean;
+    lastMessageAt: string | null;
+  };
+  counters: {
+    messages: number;
+    readingsAccepted: number;
+    readingsDuplicate: number;
+    rejected: Record<string, number>;
+    rejectedTotal: number;
+  };
+  unmapped: Array<{ point: string; count: number; lastSeenAt: string }>;
+  pointMapSize: number;
+}
+
+export interface GatewayCredentials {
+  gateway: GatewayDto;
+  username: string;
+  /** Shown once; only its bcrypt hash is stored. */
+  password: string;
+}
+
+export interface CreateGatewayInput {
+  siteId: string;
+  name: string;
+  protocol: GatewayProtocol;
+  groupId?: string;
+  edgeNodeId?: string;
+}
+
+const iso = (d: Date | null) => (d ? d.toISOString() : null);
+const newPassword = () => randomBytes(24).toString("base64url");
+const newGatewayId = () => `gw-${randomBytes(6).toString("hex")}`;
+
+function topicsOf(g: { id: string; protocol: GatewayProtocol; groupId: string | null; edgeNodeId: string | null }) {
+  if (g.protocol === "json") {
+    return { publish: [`liftline/${g.id}/readings`, `liftline/${g.id}/status`], subscribe: [`liftline/${g.id}/commands`] };
+  }
+  const node = `${g.groupId}/+/${g.edgeNodeId}`;
+  return { publish: [`spBv1.0/${node}`, `spBv1.0/${node}/+`], subscribe: [`spBv1.0/${g.groupId}/NCMD/${g.edgeNodeId}`, `spBv1.0/${g.groupId}/DCMD/${g.edgeNodeId}/+`] };
+}
+
+type GatewayRow = typeof gateways.$inferSelect;
+
+/** The slowest expected interval among a gateway's mapped points (for its silence timeout). */
+function maxIntervals(db: Db, ids: string[]): Map<string, number> {
+  if (ids.length === 0) return new Map();
+  return new Map(
+    db
+      .select({ id: gatewayPointMaps.gatewayId, s: max(points.expectedIntervalS) })
+      .from(gatewayPointMaps)
+      .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
+      .where(inArray(gatewayPointMaps.gatewayId, ids))
+      .groupBy(gatewayPointMaps.gatewayId)
+      .all()
+      .map((r) => [r.id, r.s ?? 0]),
+  );
+}
+
+function toDtos(db: Db, rows: GatewayRow[], nowMs = Date.now()): GatewayDto[] {
+  if (rows.length === 0) return [];
+  const ids = rows.map((r) => r.id);
+  const rejected = new Map<string, Record<string, number>>();
+  for (const r of db.select().from(gatewayRejections).where(inArray(gatewayRejections.gatewayId, ids)).all()) {
+    const m = rejected.get(r.gatewayId) ?? {};
+    m[r.reason] = r.count;
+    rejected.set(r.gatewayId, m);
+  }
+  const unmapped = new Map<string, GatewayDto["unmapped"]>();
+  for (const r of db
+    .select()
+    .from(gatewayUnmappedPoints)
+    .where(inArray(gatewayUnmappedPoints.gatewayId, ids))
+    .orderBy(desc(gatewayUnmappedPoints.count), asc(gatewayUnmappedPoints.pointName))
+    .all()) {
+    const list = unmapped.get(r.gatewayId) ?? [];
+    if (list.length < 200) list.push({ point: r.pointName, count: r.count, lastSeenAt: r.lastSeenAt.toISOString() });
+    unmapped.set(r.gatewayId, list);
+  }
+  const mapSizes = new Map(
+    db
+      .select({ id: gatewayPointMaps.gatewayId, n: sql<number>`count(*)` })
+      .from(gatewayPointMaps)
+      .where(inArray(gatewayPointMaps.gatewayId, ids))
+      .groupBy(gatewayPointMaps.gatewayId)
+      .all()
+      .map((r) => [r.id, r.n]),
+  );
+  const intervals = maxIntervals(db, ids);
+  return rows.map((g) => {
+    const rej = rejected.get(g.id) ?? {};
+    return {
+      id: g.id,
+      siteId: g.siteId,
+      name: g.name,
+      protocol: g.protocol,
+      groupId: g.groupId,
+      edgeNodeId: g.edgeNodeId,
+      username: g.username,
+      createdAt: g.createdAt.toISOString(),
+      passwordRotatedAt: iso(g.passwordRotatedAt),
+      revokedAt: iso(g.revokedAt),
+      topics: topicsOf(g),
+      status: {
+        state: g.state,
+        stateChangedAt: iso(g.stateChangedAt),
+        online: isOnline(
+          {
+            state: g.state,
+            stateChangedAtMs: g.stateChangedAt?.getTime() ?? null,
+            lastMessageAtMs: g.lastMessageAt?.getTime() ?? null,
+            revoked: g.revokedAt !== null,
+            silenceMs: silenceMs(intervals.get(g.id)),
+          },
+          nowMs,
+        ),
+        lastMessageAt: iso(g.lastMessageAt),
+      },
+      counters: {
+        messages: g.messages,
+        readingsAccepted: g.readingsAccepted,
+        readingsDuplicate: g.readingsDuplicate,
+        rejected: rej,
+        rejectedTotal: Object.values(rej).reduce((a, b) => a + b, 0),
+      },
+      unmapped: unmapped.get(g.id) ?? [],
+      pointMapSize: mapSizes.get(g.id) ?? 0,
+    };
+  });
+}
+
+/** The gateway row when the viewer may see its site; null (→ 404) otherwise. */
+function visibleGateway(db: Db, viewer: Viewer, id: string): GatewayRow | null {
+  const row = db.select().from(gateways).where(eq(gateways.id, id)).get();
+  if (!row || !canSeeSite(db, viewer, row.siteId)) return null;
+  return row;
+}
+
+function requireAdmin(viewer: Viewer) {
+  if (!isAdmin(viewer)) throw new AppError("forbidden", "Only an administrator can manage gateways.");
+}
+
+export function listGateways(db: Db, viewer: Viewer, siteId?: string): GatewayDto[] {
+  if (siteId !== undefined && !canSeeSite(db, viewer, siteId)) throw notFound("No such site.");
+  const rows = db
+    .select({ g: gateways })
+    .from(gateways)
+    .innerJoin(sites, eq(sites.id, gateways.siteId))
+    .where(and(siteId ? eq(gateways.siteId, siteId) : undefined, canAct(viewer) ? undefined : eq(sites.organizationId, viewer.organizationId)))
+    .orderBy(asc(gateways.siteId), asc(gateways.name))
+    .all()
+    .map((r) => r.g);
+  return toDtos(db, rows);
+}
+
+export function getGateway(db: Db, viewer: Viewer, id: string): GatewayDto | null {
+  const row = visibleGateway(db, viewer, id);
+  return row ? toDtos(db, [row])[0] : null;
+}
+
+export async function createGateway(db: Db, viewer: Viewer, input: CreateGatewayInput): Promise<GatewayCredentials> {
+  if (!canSeeSite(db, viewer, input.siteId)) throw notFound("No such site.");
+  requireAdmin(viewer);
+  const id = newGatewayId();
+  const password = newPassword();
+  const passwordHash = await bcrypt.hash(password, GATEWAY_BCRYPT_COST);
+  const sparkplug = input.protocol === "sparkplug";
+  const groupId = sparkplug ? (input.groupId ?? input.siteId) : null;
+  const edgeNodeId = sparkplug ? (input.edgeNodeId ?? id) : null;
+  if (sparkplug) {
+    const clash = db
+      .select({ id: gateways.id })
+      .from(gateways)
+      .where(and(eq(gateways.groupId, groupId!), eq(gateways.edgeNodeId, edgeNodeId!)))
+      .get();
+    if (clash) throw new AppError("conflict", "Another gateway already uses this Sparkplug group and edge node id.");
+  }
+  db.insert(gateways).values({ id, siteId: input.siteId, name: input.name, protocol: input.protocol, groupId, edgeNodeId, username: id, passwordHash }).run();
+  const row = db.select().from(gateways).where(eq(gateways.id, id)).get()!;
+  return { gateway: toDtos(db, [row])[0], username: id, password };
+}
+
+export async function rotateGatewayPassword(db: Db, viewer: Viewer, id: string): Promise<GatewayCredentials> {
+  const row = visibleGateway(db, viewer, id);
+  if (!row) throw notFound("No such gateway.");
+  requireAdmin(viewer);
+  if (row.revokedAt) throw new AppError("conflict", "This gateway is revoked; provision a new one.");
+  const password = newPassword();
+  const passwordHash = await bcrypt.hash(password, GATEWAY_BCRYPT_COST);
+  db.update(gateways).set({ passwordHash, passwordRotatedAt: new Date() }).where(eq(gateways.id, id)).run();
+  const updated = db.select().from(gateways).where(eq(gateways.id, id)).get()!;
+  return { gateway: toDtos(db, [updated])[0], username: updated.username, password };
+}
+
+export function revokeGateway(db: Db, viewer: Viewer, id: string): GatewayDto {
+  const row = visibleGateway(db, viewer, id);
+  if (!row) throw notFound("No such gateway.");
+  requireAdmin(viewer);
+  if (!row.revokedAt) {
+    db.update(gateways).set({ revokedAt: new Date(), state: "offline", stateChangedAt: new Date() }).where(eq(gateways.id, id)).run();
+  }
+  return toDtos(db, [db.select().from(gateways).where(eq(gateways.id, id)).get()!])[0];
+}
+
+export interface PointMapEntryDto {
+  gatewayPoint: string;
+  pointId: number;
+  equipmentTag: string;
+  quantity: string;
+  unit: string;
+}
+
+export function getPointMap(db: Db, viewer: Viewer, id: string): PointMapEntryDto[] {
+  if (!visibleGateway(db, viewer, id)) throw notFound("No such gateway.");
+  return db
+    .select({ gatewayPoint: gatewayPointMaps.gatewayPoint, pointId: points.id, equipmentTag: equipment.tag, quantity: points.quantity, unit: gatewayPointMaps.unit })
+    .from(gatewayPointMaps)
+    .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
+    .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+    .where(eq(gatewayPointMaps.gatewayId, id))
+    .orderBy(asc(gatewayPointMaps.gatewayPoint))
+    .all();
+}
+
+/**
+ * Replaces a gateway's whole point map, or changes nothing: any row error (including rows
+ * naming equipment or points the site does not have) leaves the old map in place.
+ */
+export function replacePointMap(db: Db, viewer: Viewer, id: string, rows: PointMapRow[], parseErrors: LineError[]): { accepted: number; errors: LineError[] } {
+  const gw = visibleGateway(db, viewer, id);
+  if (!gw) throw notFound("No such gateway.");
+  if (!canAct(viewer)) throw new AppError("forbidden", "Only service staff can change a point map.");
+  if (gw.revokedAt) throw new AppError("conflict", "This gateway is revoked.");
+  const sitePoints = new Map(
+    db
+      .select({ id: points.id, tag: equipment.tag, key: points.key })
+      .from(points)
+      .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+      .where(eq(equipment.siteId, gw.siteId))
+      .all()
+      .map((p) => [`${p.tag}\u0000${p.key}`, p.id]),
+  );
+  const tags = new Set([...sitePoints.keys()].map((k) => k.split("\u0000")[0]));
+  const errors = [...parseErrors];
+  const resolved: Array<{ gatewayPoint: string; pointId: number; unit: WireUnitCode }> = [];
+  const targets = new Map<number, number>();
+  for (const r of rows) {
+    const pointId = sitePoints.get(`${r.equipmentTag}\u0000${r.quantity}`);
+    if (!tags.has(r.equipmentTag)) {
+      errors.push({ line: r.line, message: `equipment "${r.equipmentTag}" is not at this site` });
+    } else if (pointId === undefined) {
+      errors.push({ line: r.line, message: `${r.equipmentTag} has no ${r.quantity} point` });
+    } else if (targets.has(pointId)) {
+      errors.push({ line: r.line, message: `${r.equipmentTag} ${r.quantity} is already fed by line ${targets.get(pointId)}` });
+    } else {
+      targets.set(pointId, r.line);
+      resolved.push({ gatewayPoint: r.gatewayPoint, pointId, unit: r.unit });
+    }
+  }
+  errors.sort((a, b) => a.line - b.line);
+  if (errors.length > 0) return { accepted: 0, errors };
+  db.transaction((tx) => {
+    tx.delete(gatewayPointMaps).where(eq(gatewayPointMaps.gatewayId, id)).run();
+    for (let i = 0; i < resolved.length; i += 500) {
+      tx.insert(gatewayPointMaps)
+        .values(resolved.slice(i, i + 500).map((r) => ({ gatewayId: id, ...r })))
+        .run();
+    }
+    // Names now mapped are no longer "unmapped".
+    tx.delete(gatewayUnmappedPoints).where(eq(gatewayUnmappedPoints.gatewayId, id)).run();
+  });
+  return { accepted: resolved.length, errors: [] };
+}
+
+// ---- System functions for the broker and ingest (no viewer) ----
+
+export interface GatewayIdentityRecord {
+  gatewayId: string;
+  siteId: string;
+  protocol: GatewayProtocol;
+  groupId: string | null;
+  edgeNodeId: string | null;
+}
+
+/** MQTT CONNECT: user name and password → the gateway, or why not. */
+export async function verifyGatewayCredentials(
+  db: Db,
+  username: string | undefined,
+  password: string | undefined,
+): Promise<GatewayIdentityRecord | "bad_credentials" | "revoked"> {
+  const row = username ? db.select().from(gateways).where(eq(gateways.username, username)).get() : undefined;
+  // Compare even without a row so an unknown user name costs the same time as a wrong password.
+  const ok = await bcrypt.compare(password ?? "", row?.passwordHash ?? DUMMY_HASH);
+  if (!row || !ok || password === undefined) return "bad_credentials";
+  if (row.revokedAt) return "revoked";
+  return { gatewayId: row.id, siteId: row.siteId, protocol: row.protocol, groupId: row.groupId, edgeNodeId: row.edgeNodeId };
+}
+
+export interface IngestPoint {
+  pointId: number;
+  siteId: string;
+  unit: WireUnitCode;
+  measure: Measure;
+  states: readonly string[] | null;
+  expectedIntervalS: number;
+}
+
+export interface IngestGateway extends GatewayIdentityRecord {
+  revoked: boolean;
+  /** gateway point name → point */
+  map: Map<string, IngestPoint>;
+  silenceMs: number;
+}
+
+export function loadIngestGateway(db: Db, gatewayId: string): IngestGateway | null {
+  const g = db.select().from(gateways).where(eq(gateways.id, gatewayId)).get();
+  if (!g) return null;
+  const rows = db
+    .select({ name: gatewayPointMaps.gatewayPoint, unit: gatewayPointMaps.unit, pointId: points.id, quantity: points.quantity, expectedIntervalS: points.expectedIntervalS })
+    .from(gatewayPointMaps)
+    .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
+    .where(eq(gatewayPointMaps.gatewayId, gatewayId))
+    .all();
+  const map = new Map<string, IngestPoint>();
+  let slowest = 0;
+  for (const r of rows) {
+    const q = quantities[r.quantity as QuantityKey];
+    if (!q) continue;
+    slowest = Math.max(slowest, r.expectedIntervalS);
+    map.set(r.name, {
+      pointId: r.pointId,
+      siteId: g.siteId,
+      unit: r.unit as WireUnitCode,
+      measure: q.measure,
+      states: "states" in q ? q.states : null,
+      expectedIntervalS: r.expectedIntervalS,
+    });
+  }
+  return {
+    gatewayId: g.id,
+    siteId: g.siteId,
+    protocol: g.protocol,
+    groupId: g.groupId,
+    edgeNodeId: g.edgeNodeId,
+    revoked: g.revokedAt !== null,
+    map,
+    silenceMs: silenceMs(slowest),
+  };
+}
+
+/** External broker mode: which gateway a Sparkplug node topic belongs to. */
+export function findSparkplugGatewayId(db: Db, groupId: string, edgeNodeId: string): string | null {
+  return (
+    db
+      .select({ id: gateways.id })
+      .from(gateways)
+      .where(and(eq(gateways.groupId, groupId), eq(gateways.edgeNodeId, edgeNodeId), eq(gateways.protocol, "sparkplug")))
+      .get()?.id ?? null
+  );
+}
+
+export function setGatewayState(db: Db, gatewayId: string, state: GatewayState, at: Date): void {
+  db.update(gateways).set({ state, stateChangedAt: at }).where(eq(gateways.id, gatewayId)).run();
+}
+
+/** At start with the embedded broker nobody is connected yet, whatever the rows say. */
+export function markAllGatewaysOffline(db: Db, at: Date): void {
+  db.update(gateways).set({ state: "offline", stateChangedAt: at }).where(and(isNull(gateways.revokedAt), eq(gateways.state, "online"))).run();
+}
+
+export interface PresenceRow {
+  gatewayId: string;
+  siteId: string;
+  state: GatewayState;
+  stateChangedAtMs: number | null;
+  lastMessageAtMs: number | null;
+  revoked: boolean;
+}
+
+export function listGatewayPresence(db: Db): PresenceRow[] {
+  return db
+    .select({
+      gatewayId: gateways.id,
+      siteId: gateways.siteId,
+      state: gateways.state,
+      stateChangedAt: gateways.stateChangedAt,
+      lastMessageAt: gateways.lastMessageAt,
+      revokedAt: gateways.revokedAt,
+    })
+    .from(gateways)
+    .all()
+    .map((g) => ({
+      gatewayId: g.gatewayId,
+      siteId: g.siteId,
+      state: g.state,
+      stateChangedAtMs: g.stateChangedAt?.getTime() ?? null,
+      lastMessageAtMs: g.lastMessageAt?.getTime() ?? null,
+      revoked: g.revokedAt !== null,
+    }));
+}

@@ -1,0 +1,48 @@
+import fs from "node:fs";
+import path from "node:path";
+import { chromium, type Browser, type Page } from "playwright-core";
+import { DEMO_PASSWORD, ROOT } from "./server";
+
+// Browser tests drive Debian's Chromium through playwright-core (no browser download).
+export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
+export const hasChromium = fs.existsSync(CHROMIUM_PATH);
+if (!hasChromium) {
+  console.warn(`\n!!! Browser tests SKIPPED: no Chromium at ${CHROMIUM_PATH}. Install it (apt-get install -y chromium) — CI does. !!!\n`);
+}
+
+export const SCREENSHOT_DIR = path.join(ROOT, "test-results", "screenshots");
+export const viewports = { desktop: { width: 1280, height: 800 }, phone: { width: 390, height: 844 } } as const;
+
+export async function launchBrowser(): Promise<Browser> {
+  return chromium.launch({
+    executablePath: CHROMIUM_PATH,
+    headless: true,
+    // This machine has no outside network: keep Chromium from trying to reach it.
+    args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
+  });
+}
+
+/** Collects console errors and failed requests so a test can assert a clean page. */
+export function watchConsole(page: Page): string[] {
+  const problems: string[] = [];
+  page.on("console", (msg) => {
+    if (msg.type() === "error") problems.push(`console: ${msg.text()}`);
+  });
+  page.on("pageerror", (err) => problems.push(`pageerror: ${err.message}`));
+  return problems;
+}
+
+export async function signInAs(page: Page, baseUrl: string, email: string, password = DEMO_PASSWORD): Promise<void> {
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(password);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await page.waitForURL(`${baseUrl}/`);
+}
+
+export async function screenshot(page: Page, name: string): Promise<string> {
+  fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
+  const file = path.join(SCREENSHOT_DIR, `${name}.png`);
+  await page.screenshot({ path: file, fullPage: true });
+  return file;
+}

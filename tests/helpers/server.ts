@@ -1,0 +1,139 @@
+import { spawn, type ChildProcess } from "node:child_process";
+import fs from "node:fs";
+import net from "node:net";
+import os from "node:os";
+import path from "node:path";
+
+// Starts the real server.ts on ephemeral ports with a temporary database, the way
+// integration and browser tests need it. Production mode when a build exists (the test
+// runner builds first), development mode otherwise.
+
+export const ROOT = path.resolve(import.meta.dirname, "..", "..");
+export const DEMO_PASSWORD = "test-demo-password";
+
+export async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const srv = net.createServer();
+    srv.once("error", reject);
+    srv.listen(0, "127.0.0.1", () => {
+      const { port } = srv.address() as net.AddressInfo;
+      srv.close(() => resolve(port));
+    });
+  });
+}
+
+export interface TestServer {
+  url: string;
+  port: number;
+  mqttPort: number;
+  mqttUrl: string;
+  dataDir: string;
+  databasePath: string;
+  output: () => string;
+  /** Stops the process; `signal` lets a test kill it hard. */
+  stop(signal?: NodeJS.Signals): Promise<void>;
+  process: ChildProcess;
+}
+
+export interface StartOptions {
+  env?: Record<string, string>;
+  /** Reuse a data directory (restart tests). */
+  dataDir?: string;
+  timeoutMs?: number;
+}
+
+export function serverMode(): "production" | "development" {
+  if (process.env.LIFTLINE_TEST_SERVER_MODE === "development") return "development";
+  return fs.existsSync(path.join(ROOT, ".next", "BUILD_ID")) ? "production" : "development";
+}
+
+export async function startServer(opts: StartOptions = {}): Promise<TestServer> {
+  const dataDir = opts.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), "liftline-test-"));
+  const port = await freePort();
+  const mqttPort = await freePort();
+  const databasePath = path.join(dataDir, "liftline.db");
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    NODE_ENV: serverMode(),
+    HOST: "127.0.0.1",
+    PORT: String(port),
+    MQTT_PORT: String(mqttPort),
+    DATABASE_PATH: databasePath,
+    NEXTAUTH_URL: `http://localhost:${port}`,
+    LIFTLINE_DEMO: "1",
+    LIFTLINE_DEMO_PASSWORD: DEMO_PASSWORD,
+    LIFTLINE_SIMULATOR: "0",
+    LIFTLINE_BUILD_IF_NEEDED: "0",
+    NEXT_TELEMETRY_DISABLED: "1",
+    ...opts.env,
+  };
+  if (env.NODE_ENV === "development") env.LIFTLINE_DIST_DIR = `.next-test/${path.basename(dataDir)}`;
+  delete env.VITEST;
+  delete env.VITEST_WORKER_ID;
+  delete env.VITEST_POOL_ID;
+  const child = spawn(process.execPath, ["--import", "tsx", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe"] });
+  let out = "";
+  child.stdout.on("data", (d) => (out += d));
+  child.stderr.on("data", (d) => (out += d));
+
+  await new Promise<void>((resolve, reject) => {
+    const timer = setTimeout(() => reject(new Error(`server did not start in time:\n${out}`)), opts.timeoutMs ?? 120_000);
+    const onData = () => {
+      if (/Liftline is running at/.test(out)) {
+        clearTimeout(timer);
+        resolve();
+      }
+    };
+    child.stdout.on("data", onData);
+    child.once("exit", (code) => {
+      clearTimeout(timer);
+      reject(new Error(`server exited with ${code}:\n${out}`));
+    });
+  });
+
+  const url = `http://localhost:${port}`;
+  return {
+    url,
+    port,
+    mqttPort,
+    mqttUrl: `mqtt://127.0.0.1:${mqttPort}`,
+    dataDir,
+    databasePath,
+    output: () => out,
+    process: child,
+    async stop(signal: NodeJS.Signals = "SIGTERM") {
+      if (child.exitCode !== null || child.signalCode !== null) return;
+      const exited = new Promise<void>((resolve) => child.once("exit", () => resolve()));
+      child.kill(signal);
+      await exited;
+      if (env.LIFTLINE_DIST_DIR) fs.rmSync(path.join(ROOT, env.LIFTLINE_DIST_DIR), { recursive: true, force: true });
+    },
+  };
+}
+
+/** Signs in through next-auth's credentials endpoint; returns the session cookie header. */
+export async function signIn(baseUrl: string, email: string, password = DEMO_PASSWORD): Promise<{ status: number; cookie: string | null; error: string | null }> {
+  const csrfRes = await fetch(`${baseUrl}/api/auth/csrf`);
+  const jar = cookieJar(csrfRes.headers.getSetCookie());
+  const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
+  const res = await fetch(`${baseUrl}/api/auth/callback/credentials`, {
+    method: "POST",
+    redirect: "manual",
+    headers: { "content-type": "application/x-www-form-urlencoded", cookie: jar },
+    body: new URLSearchParams({ csrfToken, email, password, json: "true" }),
+  });
+  const set = res.headers.getSetCookie();
+  const session = set.find((c) => c.startsWith("next-auth.session-token="));
+  let error: string | null = null;
+  const location = res.headers.get("location");
+  if (location) error = new URL(location, baseUrl).searchParams.get("error");
+  else if (res.headers.get("content-type")?.includes("json")) {
+    const body = (await res.json()) as { url?: string };
+    if (body.url) error = new URL(body.url, baseUrl).searchParams.get("error");
+  }
+  return { status: res.status, cookie: session ? session.split(";")[0] : null, error };
+}
+
+function cookieJar(setCookies: string[]): string {
+  return setCookies.map((c) => c.split(";")[0]).join("; ");
+}

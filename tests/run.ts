@@ -1,0 +1,68 @@
+// `npm test`: type-check, lint, make sure a production build exists, run every vitest
+// suite, and end with one plain summary line (`N passed, N failed, N skipped`) computed
+// from vitest's JSON results, which CI reads. Exit code is non-zero on any failure.
+import { spawnSync } from "node:child_process";
+import fs from "node:fs";
+import path from "node:path";
+import { buildIfNeeded } from "../lib/server/build";
+
+const root = path.resolve(import.meta.dirname, "..");
+const bin = (name: string) => path.join(root, "node_modules", ".bin", name);
+const env = { ...process.env, NEXT_TELEMETRY_DISABLED: "1" };
+
+function step(title: string, cmd: string, args: string[]): boolean {
+  console.log(`\n== ${title}`);
+  const started = Date.now();
+  const res = spawnSync(cmd, args, { cwd: root, stdio: "inherit", env });
+  const ok = res.status === 0;
+  console.log(`== ${title}: ${ok ? "ok" : "FAILED"} (${Math.round((Date.now() - started) / 1000)} s)`);
+  return ok;
+}
+
+let failedChecks = 0;
+let passedChecks = 0;
+const count = (ok: boolean) => (ok ? passedChecks++ : failedChecks++);
+
+count(step("type-check (tsc --noEmit)", bin("tsc"), ["--noEmit"]));
+count(step("lint (eslint)", bin("eslint"), ["--max-warnings", "0", "."]));
+
+console.log("\n== production build (only when missing or stale)");
+let built = true;
+try {
+  buildIfNeeded(root, (line) => console.log(line));
+} catch (err) {
+  built = false;
+  console.error(err instanceof Error ? err.message : err);
+}
+count(built);
+
+const resultsFile = path.join(root, "test-results", "vitest.json");
+fs.rmSync(resultsFile, { force: true });
+fs.mkdirSync(path.dirname(resultsFile), { recursive: true });
+const extra = process.argv.slice(2);
+step("vitest", bin("vitest"), ["run", "--reporter=default", "--reporter=json", `--outputFile.json=${resultsFile}`, ...extra]);
+
+let passed = 0;
+let failed: number;
+let skipped = 0;
+try {
+  const results = JSON.parse(fs.readFileSync(resultsFile, "utf8")) as {
+    numPassedTests: number;
+    numFailedTests: number;
+    numPendingTests: number;
+    numTodoTests: number;
+    numFailedTestSuites: number;
+  };
+  passed = results.numPassedTests;
+  // A suite that fails to load has no failed tests of its own; count it so it cannot pass silently.
+  failed = results.numFailedTests + results.numFailedTestSuites;
+  skipped = results.numPendingTests + results.numTodoTests;
+} catch {
+  console.error("vitest wrote no results: counting the run as failed");
+  failed = 1;
+}
+
+if (failedChecks) console.log(`\n${failedChecks} of the type-check / lint / build steps failed (counted as failures below).`);
+console.log(`\n(${passedChecks} checks and ${passed} tests passed)`);
+console.log(`${passed + passedChecks} passed, ${failed + failedChecks} failed, ${skipped} skipped`);
+process.exit(failed + failedChecks > 0 ? 1 : 0);
