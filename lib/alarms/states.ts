@@ -1,0 +1,25 @@
+// ANSI/ISA-18.2 (IEC 62682) alarm states, plant-reference §7.
+
+export const alarmStates = [
+  "normal",
+  "unacknowledged", // active, not yet acknowledged
+  "acknowledged", // active, acknowledged
+  "returned_unacknowledged", // condition cleared before anyone acknowledged
+  "latched", // condition cleared, alarm held until someone resets it
+  "shelved", // hidden by a person for a limited time, with a reason
+  "suppressed_by_design", // hidden by plant state (e.g. low evaporator pressure while the chiller is off)
+  "out_of_service", // taken out of service for maintenance
+] as const;
+export type AlarmState = (typeof alarmStates)[number];
+
+/** States in which the alarm is shown to the on-call technician. */
+export const annunciatedStates: readonly AlarmState[] = ["unacknowledged", "acknowledged", "returned_unacknowledged", "latched"];
+
+export function isAnnunciated(s: AlarmState): boolean {
+  return annunciatedStates.includes(s);
+}
+
+/** Needs someone's attention: unacknowledged, returned unacknowledged or latched. */
+export function needsAcknowledgement(s: AlarmState): boolean {
+  return s === "unacknowledged" || s === "returned_unacknowledged" || s === "latched";
+}

@@ -1,0 +1,85 @@
+// Evaluates every rule for one site at one event time. Pure given the history view.
+
+import { computeSiteSnapshot, type ChillerHistoryInputs, type SiteSnapshot } from "@/lib/plant/snapshot";
+import type { Site } from "@/lib/plant/site";
+import { chillerTripped } from "./chiller-trip";
+import { commLost } from "./comm-lost";
+import type { Condition, RuleId } from "./condition";
+import { marginSeries, type CommStatus, type Rule, type RuleContext } from "./context";
+import { crossoverRisk, loopsCrossed, restartRace } from "./crossover-rules";
+import { driveTempTowardTrip } from "./drive-temperature";
+import { efficiencyDrift } from "./efficiency-drift";
+import { headPressureNearTrip } from "./head-pressure";
+import { lastEdgeMs, type HistoryView } from "./history";
+import { lowEvaporatorPressure } from "./low-evaporator-pressure";
+import { powerEventSuspected } from "./power-event";
+import type { RuleSettings } from "./settings";
+import { towerFanNotRunning } from "./tower-fan";
+
+export const rules: Record<RuleId, Rule> = {
+  crossover_risk: crossoverRisk,
+  restart_race: restartRace,
+  loops_crossed: loopsCrossed,
+  tower_fan_not_running: towerFanNotRunning,
+  head_pressure_near_trip: headPressureNearTrip,
+  drive_temp_toward_trip: driveTempTowardTrip,
+  power_event_suspected: powerEventSuspected,
+  chiller_tripped: chillerTripped,
+  comm_lost: commLost,
+  efficiency_drift: efficiencyDrift,
+  low_evaporator_pressure: lowEvaporatorPressure,
+};
+
+/** The site's derived numbers at `nowMs`, including time to crossover and lockout from history. */
+export function snapshotFromHistory(site: Site, history: HistoryView, settings: RuleSettings, nowMs: number): SiteSnapshot {
+  const c = settings.crossoverRisk;
+  const perChiller: Record<string, ChillerHistoryInputs> = {};
+  const probe: RuleContext = { site, history, settings, nowMs, comms: {}, snapshot: { atMs: nowMs, chillers: [], towers: [], wetBulbC: null }, wasActive: () => false };
+  for (const chiller of site.filter((e) => e.kind === "chiller")) {
+    const edges = history.edges(chiller.tag, "run_status", nowMs);
+    const lastStartMs = lastEdgeMs(edges.rises);
+    const lastStopMs = lastEdgeMs(edges.falls);
+    // A start or stop changes how the loops move; fit only the margin since then.
+    const lastChangeMs = Math.max(lastStartMs ?? -Infinity, lastStopMs ?? -Infinity);
+    const sinceChangeS = Math.max(0, (nowMs - lastChangeMs) / 1000);
+    perChiller[chiller.tag] = {
+      marginSamples: marginSeries(probe, chiller, Math.min(c.fitWindowS, sinceChangeS)),
+      slowMarginSamples: marginSeries(probe, chiller, Math.min(c.slowFitWindowS, sinceChangeS)),
+      lastStartMs,
+      lastStopMs,
+    };
+  }
+  return computeSiteSnapshot(site, history.latestValuesAt(nowMs), nowMs, {
+    history: perChiller,
+    timeToCrossover: { windowS: c.fitWindowS, minSamples: c.minSamples, minSpanS: c.minSpanS, minClosingRateKPerS: c.minClosingRateKPerMin / 60 },
+    slowTimeToCrossover: { windowS: c.slowFitWindowS, minSamples: c.minSamples, minSpanS: c.slowMinSpanS, minClosingRateKPerS: c.slowMinClosingRateKPerMin / 60 },
+    fallbackStartToStartS: settings.timers.fallbackStartToStartS,
+    fallbackStopToStartS: settings.timers.fallbackStopToStartS,
+  });
+}
+
+export interface EvaluateArgs {
+  site: Site;
+  history: HistoryView;
+  settings: RuleSettings;
+  nowMs: number;
+  comms?: CommStatus;
+  /** Raw conditions of the previous evaluation, for dead bands; empty on the first. */
+  previous?: readonly Condition[];
+}
+
+/** Raw conditions of every rule (before on/off delays), plus the snapshot they were drawn from. */
+export function evaluateRules(args: EvaluateArgs): { conditions: Condition[]; snapshot: SiteSnapshot } {
+  const snapshot = snapshotFromHistory(args.site, args.history, args.settings, args.nowMs);
+  const prevActive = new Set((args.previous ?? []).filter((c) => c.active).map((c) => `${c.ruleId}:${c.equipment}`));
+  const ctx: RuleContext = {
+    site: args.site,
+    history: args.history,
+    settings: args.settings,
+    nowMs: args.nowMs,
+    snapshot,
+    comms: args.comms ?? {},
+    wasActive: (ruleId, tag) => prevActive.has(`${ruleId}:${tag}`),
+  };
+  return { conditions: Object.values(rules).flatMap((rule) => rule(ctx)), snapshot };
+}

@@ -1,0 +1,14 @@
+// Numbers as technicians read them: °F beside °C, minutes rather than seconds.
+
+import { cToF, deltaKToDeltaF, kpaAbsToPsig } from "@/lib/plant/units";
+
+export const fmtTemp = (c: number): string => `${c.toFixed(1)} °C (${cToF(c).toFixed(0)} °F)`;
+export const fmtDelta = (k: number): string => `${k.toFixed(1)} K (${deltaKToDeltaF(k).toFixed(1)} °F)`;
+export const fmtPressure = (kpa: number): string => `${kpa.toFixed(0)} kPa (${kpaAbsToPsig(kpa).toFixed(0)} psig)`;
+
+export function fmtDuration(s: number): string {
+  if (!Number.isFinite(s)) return "—";
+  if (s < 90) return `${Math.round(s)} s`;
+  if (s < 3 * 3600) return `${Math.round(s / 60)} min`;
+  return `${(s / 3600).toFixed(1)} h`;
+}

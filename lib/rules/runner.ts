@@ -1,0 +1,81 @@
+// Ties history, rules, on/off delays and the alarm book together for one site. Everything
+// runs on event time: feed readings in time order, call `evaluate(nowMs)` as often as wanted
+// (each gateway message, or every few seconds of event time), store the transitions.
+
+import { applyConditions, emptyAlarmBook, type AlarmBook } from "@/lib/alarms/book";
+import { stepDelay, type DelayState } from "@/lib/alarms/delay";
+import type { TransitionRecord } from "@/lib/alarms/state-machine";
+import type { Reading, Site } from "@/lib/plant/site";
+import type { SiteSnapshot } from "@/lib/plant/snapshot";
+import type { Condition } from "./condition";
+import type { CommStatus } from "./context";
+import { evaluateRules } from "./evaluate";
+import { ReadingHistory } from "./history";
+import { defaultRuleSettings, type RuleSettings } from "./settings";
+
+const ruleSettingKey: Record<Condition["ruleId"], keyof RuleSettings> = {
+  crossover_risk: "crossoverRisk",
+  restart_race: "restartRace",
+  loops_crossed: "loopsCrossed",
+  tower_fan_not_running: "towerFan",
+  head_pressure_near_trip: "headPressure",
+  drive_temp_toward_trip: "driveTemperature",
+  power_event_suspected: "powerEvent",
+  chiller_tripped: "chillerTrip",
+  comm_lost: "commLost",
+  efficiency_drift: "efficiencyDrift",
+  low_evaporator_pressure: "lowEvaporatorPressure",
+};
+
+export function delaysFor(settings: RuleSettings, ruleId: Condition["ruleId"]): { onDelayS: number; offDelayS: number } {
+  const s = settings[ruleSettingKey[ruleId]] as { onDelayS?: number; offDelayS?: number };
+  return { onDelayS: s.onDelayS ?? 0, offDelayS: s.offDelayS ?? 0 };
+}
+
+export interface SiteEvaluation {
+  atMs: number;
+  /** Conditions after on/off delays: `active` is what the alarm follows; `rawActive` what the rule saw. */
+  conditions: (Condition & { rawActive: boolean })[];
+  transitions: TransitionRecord[];
+  alarms: AlarmBook;
+  snapshot: SiteSnapshot;
+}
+
+export interface SiteMonitor {
+  readonly history: ReadingHistory;
+  ingest(readings: Iterable<Reading>): void;
+  evaluate(nowMs: number, comms?: CommStatus): SiteEvaluation;
+  /** The alarm book, for commands (acknowledge, shelve…) — then hand the new book back with `setAlarms`. */
+  alarms(): AlarmBook;
+  setAlarms(book: AlarmBook): void;
+}
+
+export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; retentionS?: number; alarms?: AlarmBook }): SiteMonitor {
+  const settings = args.settings ?? defaultRuleSettings;
+  const history = new ReadingHistory(args.retentionS ?? Math.max(2 * 3600, settings.efficiencyDrift.averagingWindowS + 600));
+  let previous: Condition[] = [];
+  const delays = new Map<string, DelayState>();
+  let book: AlarmBook = args.alarms ?? emptyAlarmBook();
+
+  return {
+    history,
+    ingest: (readings) => history.addAll(readings),
+    evaluate(nowMs, comms) {
+      const { conditions, snapshot } = evaluateRules({ site: args.site, history, settings, nowMs, comms, previous });
+      previous = conditions;
+      const delayed = conditions.map((c) => {
+        const key = `${c.ruleId}:${c.equipment}`;
+        const d = stepDelay(delays.get(key), c.active, nowMs, delaysFor(settings, c.ruleId));
+        delays.set(key, d);
+        return { ...c, rawActive: c.active, active: d.active };
+      });
+      const applied = applyConditions(book, delayed, nowMs);
+      book = applied.book;
+      return { atMs: nowMs, conditions: delayed, transitions: applied.transitions, alarms: book, snapshot };
+    },
+    alarms: () => book,
+    setAlarms: (b) => {
+      book = b;
+    },
+  };
+}

@@ -1,0 +1,164 @@
+// Per-site rule settings with their defaults, validated with zod. Temperatures °C, temperature
+// differences K, pressures kPa absolute, times s — the canonical units of lib/quantities.ts.
+// Each default says where it comes from; see README.md for the reasoning.
+
+import { z } from "zod";
+
+const priority = z.union([z.literal(1), z.literal(2), z.literal(3), z.literal(4)]);
+const seconds = z.number().min(0);
+const positive = z.number().positive();
+
+/** On/off delays every rule carries (ISA-18.2 alarm attributes). */
+const delays = (onDelayS: number, offDelayS: number) => ({
+  onDelayS: seconds.default(onDelayS),
+  offDelayS: seconds.default(offDelayS),
+});
+
+const common = (p: 1 | 2 | 3 | 4, onDelayS: number, offDelayS: number) => ({
+  enabled: z.boolean().default(true),
+  priority: priority.default(p),
+  ...delays(onDelayS, offDelayS),
+});
+
+export const ruleSettingsSchema = z.object({
+  crossoverRisk: z
+    .object({
+      ...common(2, 30, 120),
+      /** Warn when the projected time to crossover is under this. */
+      warnTimeToCrossoverS: positive.default(30 * 60),
+      /** …and the margin is under this (K): beyond it the loops are far apart whatever the trend. */
+      warnMarginK: positive.default(30),
+      /** Dead bands: once raised, clear only past warn + these. */
+      timeDeadBandS: seconds.default(10 * 60),
+      marginDeadBandK: seconds.default(1),
+      /** Least-squares fit over this sliding event-time window. */
+      fitWindowS: positive.default(10 * 60),
+      minSamples: z.number().int().min(3).default(6),
+      minSpanS: positive.default(60),
+      /** Slower closing than this (K/min) counts as steady: sensor noise, not a trend. */
+      minClosingRateKPerMin: positive.default(0.05),
+      /** A second, long fit for slow drifts (a cold day over-cooling the condenser water). */
+      slowFitWindowS: positive.default(60 * 60),
+      slowMinSpanS: positive.default(15 * 60),
+      slowMinClosingRateKPerMin: positive.default(0.005),
+      /** A margin this small that is closing at all (either fit) is a risk whatever the projected time (K). */
+      smallMarginK: positive.default(3),
+    })
+    .prefault({}),
+  restartRace: z
+    .object({
+      ...common(1, 0, 120),
+      /** Time a compressor needs from start until it carries load (common practice: a few minutes). */
+      compressorLoadS: seconds.default(5 * 60),
+      /** Time for someone to see the warning and act. */
+      reactionAllowanceS: seconds.default(5 * 60),
+      deadBandS: seconds.default(5 * 60),
+    })
+    .prefault({}),
+  loopsCrossed: z
+    .object({
+      ...common(1, 30, 60),
+      /** Margin at or below which the loops count as crossed (K). */
+      crossedAtMarginK: z.number().default(0),
+      deadBandK: seconds.default(0.5),
+    })
+    .prefault({}),
+  towerFan: z
+    .object({
+      ...common(2, 60, 60),
+      /** Condenser water this far above its setpoint counts as "above" (K). */
+      aboveSetpointK: seconds.default(0.5),
+      deadBandK: seconds.default(0.5),
+      /** Window the rise is judged over. */
+      riseWindowS: positive.default(5 * 60),
+      /** Fan speed command at or above this means "commanded to run" (%). */
+      commandedAtPct: z.number().min(0).max(100).default(5),
+    })
+    .prefault({}),
+  headPressure: z
+    .object({
+      ...common(2, 15, 60),
+      /** High condenser pressure trip (kPa abs). Default 160 psig (1204.5 kPa abs) for R-134a, recalled, not verified: set it from the chiller's controller. */
+      tripKPa: positive.default(1204.5),
+      tripKPaByTag: z.record(z.string(), positive).default({}),
+      warnWithinKPa: positive.default(150),
+      deadBandKPa: seconds.default(25),
+      riseWindowS: positive.default(3 * 60),
+      minRiseKPaPerMin: positive.default(2),
+    })
+    .prefault({}),
+  driveTemperature: z
+    .object({
+      ...common(2, 15, 60),
+      /** Drive over-temperature trip (°C). Default 150 °F (65.6 °C), common practice, recalled, not verified: set it from the drive's manual. */
+      tripC: positive.default(65.6),
+      tripCByTag: z.record(z.string(), positive).default({}),
+      warnWithinK: positive.default(10),
+      warnTimeToTripS: positive.default(15 * 60),
+      /** Projections count only above this (°C): a drive warming to its cooled temperature after a start (≈ 105 °F, common practice) is not heading for a trip. */
+      watchAboveC: z.number().default(45),
+      fitWindowS: positive.default(5 * 60),
+      minRiseKPerMin: positive.default(0.2),
+      deadBandK: seconds.default(1),
+    })
+    .prefault({}),
+  powerEvent: z
+    .object({
+      ...common(3, 0, 0),
+      /** Drive faults this close together count as one event. */
+      windowS: positive.default(30),
+      minDrives: z.number().int().min(2).default(2),
+      /** How long the hint stays up after the last correlated fault. */
+      holdS: positive.default(30 * 60),
+    })
+    .prefault({}),
+  chillerTrip: z.object({ ...common(2, 0, 0), latching: z.boolean().default(true) }).prefault({}),
+  commLost: z
+    .object({
+      ...common(3, 0, 60),
+      /** A point older than this (event time) is stale. */
+      staleAfterS: positive.default(5 * 60),
+    })
+    .prefault({}),
+  efficiencyDrift: z
+    .object({
+      ...common(4, 30 * 60, 30 * 60),
+      /** The equipment's own baseline, by chiller tag. */
+      baselines: z.record(z.string(), z.object({ kwPerTon: positive.optional(), condenserApproachK: z.number().optional() })).default({}),
+      kwPerTonDriftFraction: positive.default(0.15),
+      approachDriftK: positive.default(1.5),
+      averagingWindowS: positive.default(60 * 60),
+      sampleStepS: positive.default(60),
+      /** Only compare at loads where the baseline applies. */
+      minLoadFraction: z.number().min(0).max(1).default(0.3),
+      minCoverage: z.number().min(0).max(1).default(0.5),
+    })
+    .prefault({}),
+  lowEvaporatorPressure: z
+    .object({
+      ...common(2, 15, 60),
+      /** Saturated evaporating temperature at or below which freezing is a risk (°C; common practice ≈ 34 °F). */
+      limitC: z.number().default(1.1),
+      deadBandK: seconds.default(0.5),
+      /** Suppressed by design while off and this long after a start, when evaporator pressure dips. */
+      startupGraceS: seconds.default(5 * 60),
+    })
+    .prefault({}),
+  timers: z
+    .object({
+      /** Anti-recycle timers assumed when the controller reports neither countdown nor settings (common practice). */
+      fallbackStartToStartS: seconds.default(20 * 60),
+      fallbackStopToStartS: seconds.default(5 * 60),
+    })
+    .prefault({}),
+});
+
+export type RuleSettings = z.infer<typeof ruleSettingsSchema>;
+export type RuleSettingsInput = z.input<typeof ruleSettingsSchema>;
+
+export const defaultRuleSettings: RuleSettings = ruleSettingsSchema.parse({});
+
+/** Validates stored or admin-edited settings, filling defaults. Throws a ZodError when invalid. */
+export function parseRuleSettings(input: unknown): RuleSettings {
+  return ruleSettingsSchema.parse(input ?? {});
+}

@@ -1,0 +1,283 @@
+// Rule checks on synthetic event-time streams (tests/unit/rules/synthetic.ts). Thresholds are
+// the documented defaults of lib/rules/settings.ts unless a test says otherwise.
+import { describe, expect, it } from "vitest";
+import { runFrames, secondsOf, type Frame } from "./synthetic";
+
+/** Chiller tripped and off while the building still calls for cooling; margin closes 0.3 K/min from 11.8 K → crosses at ≈ 39.3 min. */
+const closingOff = (inhibitLeftAt: (tS: number) => number | null = () => null) => (tS: number): Partial<Frame> => ({
+  running: false,
+  chwInC: 12.2 + (0.15 / 60) * tS,
+  chwOutC: 12.2 + (0.15 / 60) * tS,
+  cwInC: 24 - (0.15 / 60) * tS,
+  cwOutC: 24 - (0.15 / 60) * tS,
+  inhibitLeftS: inhibitLeftAt(tS),
+});
+const crossingS = 11.8 / (0.3 / 60);
+
+describe("crossover risk (rule 1)", () => {
+  it("warns when the projected crossover is under 30 min, well before the loops cross", () => {
+    const r = runFrames({ durationS: 3000, frame: closingOff() });
+    const first = secondsOf(r.firstActivation("crossover_risk:CH-1"));
+    expect(first).not.toBeNull();
+    // ttc ≤ 1800 s from t ≈ 560 s; plus the 30 s on-delay.
+    expect(first!).toBeGreaterThanOrEqual(crossingS - 1800);
+    expect(first!).toBeLessThanOrEqual(crossingS - 1800 + 60);
+    expect(crossingS - first!).toBeGreaterThanOrEqual(600);
+    expect(r.activations("crossover_risk:CH-1")).toBe(1);
+  });
+
+  it("carries the derived numbers it rests on: margin, time to crossover with its band, closing rate", () => {
+    const r = runFrames({ durationS: 900, frame: closingOff(), keep: true });
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "crossover_risk")!;
+    expect(c.active).toBe(true);
+    expect(c.numbers.marginK).toBeCloseTo(11.8 - 0.3 * 15, 1);
+    expect(c.numbers.timeToCrossoverS).toBeCloseTo(crossingS - 900, -1);
+    expect(c.numbers.closingRateKPerMin).toBeCloseTo(0.3, 2);
+    expect(c.caution).toMatch(/qualified technicians/);
+    expect(c.technicianMessage).toMatch(/CH-1/);
+    expect(c.ownerMessage).not.toMatch(/K\/min/);
+  });
+
+  it("sees a slow drift with the long fit: a small margin closing 1 K/h warns once under 3 K", () => {
+    // Running chiller, condenser water drifting down on a cold day: margin 4.5 K → 0 over 4.5 h.
+    const r = runFrames({ durationS: 3 * 3600, stepS: 20, frame: (tS) => ({ cwInC: 12.2 + 4.5 - tS / 3600 }) });
+    const first = secondsOf(r.firstActivation("crossover_risk:CH-1"));
+    expect(first).not.toBeNull();
+    // Under 3 K from 1.5 h; the short fit alone sees 0.017 K/min as noise.
+    expect(first!).toBeGreaterThanOrEqual(1.5 * 3600);
+    expect(first!).toBeLessThanOrEqual(1.5 * 3600 + 120);
+    const short = runFrames({ durationS: 3 * 3600, stepS: 20, frame: (tS) => ({ cwInC: 12.2 + 4.5 - tS / 3600 }), settings: { crossoverRisk: { slowFitWindowS: 600 } } });
+    expect(short.firstActivation("crossover_risk:CH-1")).toBeNull();
+  });
+
+  it("stays quiet on an opening margin", () => {
+    const r = runFrames({ durationS: 3000, frame: (tS) => ({ ...closingOff()(tS), chwInC: 12.2 - (0.1 / 60) * tS, cwInC: 20 }) });
+    expect(r.firstActivation("crossover_risk:CH-1")).toBeNull();
+  });
+
+  it("stays quiet when the plant is switched off (no call for cooling)", () => {
+    const r = runFrames({ durationS: 3000, frame: (tS) => ({ ...closingOff()(tS), enabled: false }) });
+    expect(r.firstActivation("crossover_risk:CH-1")).toBeNull();
+    expect(r.firstActivation("loops_crossed:CH-1")).toBeNull();
+  });
+});
+
+describe("restart race (rule 2)", () => {
+  it("fires while the anti-recycle timer still runs when the loops will cross before a restart can be on load", () => {
+    // 30-min lockout counting down from t = 0: needs 1800 + 300 + 300 s; crossover in 2360 s.
+    const r = runFrames({ durationS: 1200, frame: closingOff((tS) => Math.max(0, 1800 - tS)), keep: true });
+    const first = secondsOf(r.firstActivation("restart_race:CH-1"));
+    expect(first).not.toBeNull();
+    const e = r.evaluations.find((x) => x.atMs === r.firstActivation("restart_race:CH-1"))!;
+    const c = e.conditions.find((x) => x.ruleId === "restart_race")!;
+    expect(c.numbers.lockoutLeftS).toBeGreaterThan(0);
+    expect(c.advice.join(" ")).toMatch(/heat rejection/);
+    expect(c.advice.join(" ")).toMatch(/air-handler load/);
+    expect(c.advice.join(" ")).toMatch(/only as far as the manufacturer allows.*supervision/);
+    expect(c.advice.join(" ")).toMatch(/before the loops cross/);
+    expect(c.caution).toMatch(/manufacturer's procedures and local codes/);
+  });
+
+  it("does not fire when the lockout ends early enough, until the crossover itself gets close", () => {
+    // Lockout 60 s: the race is on only once ttc < 60 + 600 s.
+    const r = runFrames({ durationS: 3000, frame: closingOff((tS) => Math.max(0, 60 - tS)) });
+    const first = secondsOf(r.firstActivation("restart_race:CH-1"));
+    expect(first).not.toBeNull();
+    expect(first!).toBeGreaterThan(crossingS - 700);
+  });
+
+  it("a latched alarm holds the restart until someone resets it: the race is on as soon as the margin closes", () => {
+    const r = runFrames({ durationS: 600, frame: (tS) => ({ ...closingOff(() => 0)(tS), chillerAlarm: true, faultText: "High discharge pressure trip at 160.1 psig" }), keep: true });
+    const first = secondsOf(r.firstActivation("restart_race:CH-1"));
+    expect(first).not.toBeNull();
+    expect(first!).toBeLessThanOrEqual(90);
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "restart_race")!;
+    expect(c.technicianMessage).toMatch(/latched alarm.*until someone resets it/);
+  });
+
+  it("does not fire while the chiller runs", () => {
+    const r = runFrames({ durationS: 1500, frame: (tS) => ({ ...closingOff(() => 1800)(tS), running: true }) });
+    expect(r.firstActivation("restart_race:CH-1")).toBeNull();
+  });
+
+  it("falls back to the timer settings and the last stop when no countdown is reported", () => {
+    // Stopped at t = 60 s after running; default stop-to-start 300 s, start-to-start 1200 s from… no start seen → stop-to-start only.
+    const r = runFrames({
+      durationS: 600,
+      frame: (tS) => (tS < 60 ? { inhibitLeftS: null } : { ...closingOff(() => null)(tS), chwInC: 12.2 + (1 / 60) * tS, cwInC: 20 - (1 / 60) * tS }),
+      keep: true,
+    });
+    const c = r.evaluations.find((x) => x.atMs === r.evaluations[0].atMs + 120_000)!.conditions.find((x) => x.ruleId === "restart_race")!;
+    expect(c.numbers.lockoutLeftS).toBeCloseTo(240, 0);
+  });
+});
+
+describe("loops crossed (rule 3)", () => {
+  it("alarms once the margin reaches zero, after its 30 s on-delay", () => {
+    const r = runFrames({ durationS: 3000, frame: closingOff() });
+    const first = secondsOf(r.firstActivation("loops_crossed:CH-1"))!;
+    expect(first).toBeGreaterThanOrEqual(crossingS + 30);
+    expect(first).toBeLessThanOrEqual(crossingS + 50);
+  });
+
+  it("alarms on condenser pressure at or below evaporator pressure while running", () => {
+    const r = runFrames({ durationS: 120, frame: () => ({ condKPa: 400, evapKPa: 410 }) });
+    expect(r.firstActivation("loops_crossed:CH-1")).not.toBeNull();
+  });
+});
+
+describe("tower fan not running when needed (rule 4)", () => {
+  const rising = (tS: number) => 29.4 + (0.2 / 60) * tS;
+  it("drive in off while condenser water rises above setpoint", () => {
+    const r = runFrames({ durationS: 600, frame: (tS) => ({ towerMode: "off", fanRunning: false, fanSpeedPct: 0, cwInC: rising(tS) }), keep: true });
+    const first = secondsOf(r.firstActivation("tower_fan_not_running:CT-1"))!;
+    // Above setpoint + 0.5 K from t = 150 s, then the 60 s on-delay.
+    expect(first).toBeGreaterThanOrEqual(210);
+    expect(first).toBeLessThanOrEqual(230);
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "tower_fan_not_running")!;
+    expect(c.technicianMessage).toMatch(/in off/);
+    expect(c.advice[0]).toMatch(/auto/);
+  });
+
+  it("commanded but not running, and a faulted drive", () => {
+    expect(runFrames({ durationS: 600, frame: (tS) => ({ fanSpeedPct: 80, fanRunning: false, cwInC: rising(tS) }) }).firstActivation("tower_fan_not_running:CT-1")).not.toBeNull();
+    expect(runFrames({ durationS: 600, frame: (tS) => ({ towerFault: true, fanRunning: false, cwInC: rising(tS) }) }).firstActivation("tower_fan_not_running:CT-1")).not.toBeNull();
+  });
+
+  it("quiet when the fan is off because the water is already cold enough", () => {
+    const r = runFrames({ durationS: 600, frame: () => ({ fanSpeedPct: 0, fanRunning: false, cwInC: 27 }) });
+    expect(r.firstActivation("tower_fan_not_running:CT-1")).toBeNull();
+    const off = runFrames({ durationS: 600, frame: () => ({ towerMode: "off", fanRunning: false, cwInC: 28 }) });
+    expect(off.firstActivation("tower_fan_not_running:CT-1")).toBeNull();
+  });
+});
+
+describe("head pressure nearing trip (rule 5)", () => {
+  it("warns within 150 kPa of the 1204.5 kPa trip while rising, with a projected time to trip", () => {
+    const r = runFrames({ durationS: 900, frame: (tS) => ({ condKPa: 950 + (10 / 60) * tS }), keep: true });
+    const first = secondsOf(r.firstActivation("head_pressure_near_trip:CH-1"))!;
+    // 1055 kPa reached at 630 s; 15 s on-delay.
+    expect(first).toBeGreaterThanOrEqual(640);
+    expect(first).toBeLessThanOrEqual(660);
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "head_pressure_near_trip")!;
+    expect(c.numbers.timeToTripS).toBeCloseTo((1204.5 - 1100) / (10 / 60), -1);
+  });
+
+  it("quiet when high but steady", () => {
+    expect(runFrames({ durationS: 900, frame: () => ({ condKPa: 1100 }) }).firstActivation("head_pressure_near_trip:CH-1")).toBeNull();
+  });
+});
+
+describe("drive temperature toward trip (rule 6)", () => {
+  it("warns when the projected time to the 65.6 °C trip falls under 15 min", () => {
+    const r = runFrames({ durationS: 900, frame: (tS) => ({ driveC: 40 + (1 / 60) * tS }), keep: true });
+    const first = secondsOf(r.firstActivation("drive_temp_toward_trip:CH-1"))!;
+    // ttc ≤ 900 s once 40 + t/60 ≥ 50.6 → t ≈ 636 s; 15 s on-delay.
+    expect(first).toBeGreaterThanOrEqual(640);
+    expect(first).toBeLessThanOrEqual(670);
+    const c = r.evaluations.find((e) => e.atMs === r.firstActivation("drive_temp_toward_trip:CH-1"))!.conditions.find((x) => x.ruleId === "drive_temp_toward_trip")!;
+    expect(c.numbers.timeToTripS).toBeGreaterThan(800);
+    expect(c.numbers.timeToTripS).toBeLessThan(900);
+  });
+
+  it("quiet when warm but steady", () => {
+    expect(runFrames({ durationS: 900, frame: () => ({ driveC: 50 }) }).firstActivation("drive_temp_toward_trip:CH-1")).toBeNull();
+  });
+});
+
+describe("utility power event suspected (rule 7)", () => {
+  it("two drives faulting within 30 s: names both correlated faults", () => {
+    const r = runFrames({
+      durationS: 300,
+      frame: (tS) => ({ driveFault: tS >= 100 && tS < 200, faultText: tS >= 100 ? "Drive DC bus undervoltage" : "", towerFault: tS >= 110 && tS < 150 }),
+      keep: true,
+    });
+    expect(secondsOf(r.firstActivation("power_event_suspected:site"))).toBe(110);
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "power_event_suspected")!;
+    expect(c.active).toBe(true);
+    expect(c.related).toHaveLength(2);
+    expect(c.related.join(" ")).toMatch(/CH-1 compressor drive fault.*DC bus undervoltage/);
+    expect(c.related.join(" ")).toMatch(/CT-1 fan drive fault/);
+  });
+
+  it("a fan drive that comes back in off counts as the second drive", () => {
+    const r = runFrames({ durationS: 300, frame: (tS) => ({ driveFault: tS >= 100 && tS < 110, towerMode: tS >= 100 ? "off" : "auto" }), keep: true });
+    expect(secondsOf(r.firstActivation("power_event_suspected:site"))).toBe(100);
+    expect(r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "power_event_suspected")!.related.join(" ")).toMatch(/CT-1 fan drive changed to off/);
+  });
+
+  it("one drive, or two far apart, is not a power event", () => {
+    expect(runFrames({ durationS: 300, frame: (tS) => ({ driveFault: tS >= 100 }) }).firstActivation("power_event_suspected:site")).toBeNull();
+    expect(
+      runFrames({ durationS: 600, frame: (tS) => ({ driveFault: tS >= 100, towerFault: tS >= 400 }) }).firstActivation("power_event_suspected:site"),
+    ).toBeNull();
+  });
+});
+
+describe("chiller tripped / latched alarm (rule 8)", () => {
+  it("raises from the latched alarm point with the fault text, and latches until acknowledged", () => {
+    const r = runFrames({
+      durationS: 300,
+      frame: (tS) => ({ chillerAlarm: tS >= 60 && tS < 120, running: tS < 60, faultText: tS >= 60 ? "High discharge pressure trip at 160.2 psig" : "" }),
+      keep: true,
+    });
+    expect(secondsOf(r.firstActivation("chiller_tripped:CH-1"))).toBe(60);
+    const c = r.evaluations.find((e) => e.atMs === r.firstActivation("chiller_tripped:CH-1"))!.conditions.find((x) => x.ruleId === "chiller_tripped")!;
+    expect(c.technicianMessage).toMatch(/High discharge pressure trip at 160.2 psig/);
+    expect(r.evaluations.at(-1)!.alarms.get("chiller_tripped:CH-1")!.state).toBe("latched");
+  });
+});
+
+describe("communication lost (rule 9)", () => {
+  it("gateway offline from the server's link status", () => {
+    const r = runFrames({ durationS: 120, frame: () => ({}), comms: (tS) => ({ gatewayOnline: tS < 60 }) });
+    expect(secondsOf(r.firstActivation("comm_lost:site"))).toBe(60);
+  });
+
+  it("equipment stale by event time after 5 min without readings", () => {
+    const r = runFrames({ durationS: 900, frame: (tS) => ({ silent: tS >= 100 ? ["CT-1"] : [] }) });
+    const first = secondsOf(r.firstActivation("comm_lost:CT-1"))!;
+    expect(first).toBeGreaterThan(90 + 300);
+    expect(first).toBeLessThanOrEqual(90 + 310);
+    expect(r.firstActivation("comm_lost:CH-1")).toBeNull();
+  });
+});
+
+describe("efficiency drift (rule 10)", () => {
+  // 60.6 L/s × 4.186 × 5.5 K = 1395 kW = 396.7 tons (plant-reference §2 form).
+  const settings = { efficiencyDrift: { baselines: { "CH-1": { kwPerTon: 0.55, condenserApproachK: 1.1 } }, averagingWindowS: 600, onDelayS: 60, offDelayS: 60 } };
+  it("maintenance priority when kW/ton runs 15 % over the equipment's own baseline", () => {
+    const r = runFrames({ durationS: 900, stepS: 30, frame: () => ({ powerKw: 0.7 * 396.7 }), settings, keep: true });
+    expect(r.firstActivation("efficiency_drift:CH-1")).not.toBeNull();
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "efficiency_drift")!;
+    expect(c.priority).toBe(4);
+    expect(c.numbers.kwPerTon).toBeCloseTo(0.7, 2);
+  });
+
+  it("condenser approach above baseline", () => {
+    const r = runFrames({ durationS: 900, stepS: 30, frame: () => ({ powerKw: 0.55 * 396.7, condSatC: 34.6 + 3.5 }), settings });
+    expect(r.firstActivation("efficiency_drift:CH-1")).not.toBeNull();
+  });
+
+  it("quiet at baseline", () => {
+    const r = runFrames({ durationS: 900, stepS: 30, frame: () => ({ powerKw: 0.56 * 396.7 }), settings });
+    expect(r.firstActivation("efficiency_drift:CH-1")).toBeNull();
+  });
+});
+
+describe("low evaporator pressure: suppressed by design while the chiller is off", () => {
+  it("is suppressed while off and annunciates when running", () => {
+    const off = runFrames({ durationS: 300, frame: () => ({ running: false, evapSatC: 0 }), keep: true });
+    expect(off.firstActivation("low_evaporator_pressure:CH-1")).toBeNull();
+    expect(off.evaluations.at(-1)!.alarms.get("low_evaporator_pressure:CH-1")!.state).toBe("suppressed_by_design");
+    const on = runFrames({ durationS: 300, frame: () => ({ running: true, evapSatC: 0 }) });
+    expect(on.firstActivation("low_evaporator_pressure:CH-1")).not.toBeNull();
+  });
+});
+
+describe("a normal running plant", () => {
+  it("raises nothing in two hours", () => {
+    const r = runFrames({ durationS: 7200, stepS: 15, frame: (tS) => ({ chwInC: 12.2 + 0.2 * Math.sin(tS / 300), condKPa: 900 + 10 * Math.sin(tS / 200) }) });
+    expect(r.transitions.filter((t) => t.to === "unacknowledged")).toEqual([]);
+  });
+});

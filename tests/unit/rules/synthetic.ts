@@ -1,0 +1,150 @@
+// Synthetic reading streams for rule tests: a one-chiller plant whose points are functions of
+// event time, so each test states exactly the physics it wants.
+import type { Reading, Site } from "@/lib/plant";
+import type { QuantityKey } from "@/lib/quantities";
+import { createSiteMonitor, parseRuleSettings, type RuleSettingsInput, type SiteEvaluation } from "@/lib/rules";
+import type { CommStatus } from "@/lib/rules";
+import type { TransitionRecord } from "@/lib/alarms";
+
+export const T0 = Date.UTC(2025, 6, 1, 14, 0, 0);
+
+export const site: Site = [
+  { tag: "CH-1", kind: "chiller", capacityTons: 400, designFlowLps: 60.6, refrigerant: "R-134a" },
+  { tag: "CT-1", kind: "cooling_tower" },
+  { tag: "CHWP-1", kind: "pump", serves: "CH-1" },
+  { tag: "CWP-1", kind: "pump", serves: "CH-1" },
+  { tag: "AHU-1", kind: "air_handler" },
+  { tag: "WS-1", kind: "weather_station" },
+];
+
+export interface Frame {
+  chwInC: number;
+  chwOutC: number;
+  cwInC: number;
+  cwOutC: number;
+  running: boolean;
+  enabled: boolean;
+  condKPa: number;
+  evapKPa: number;
+  evapSatC: number;
+  condSatC: number;
+  powerKw: number;
+  driveC: number;
+  driveFault: boolean;
+  chillerAlarm: boolean;
+  faultText: string;
+  inhibitLeftS: number | null;
+  towerMode: "auto" | "off" | "hand";
+  towerFault: boolean;
+  fanSpeedPct: number;
+  fanRunning: boolean;
+  towerSetpointC: number;
+  /** Tower entering water (from the chiller); the tower's leaving water is cwInC. */
+  towerInC: number;
+  wetBulbC: number;
+  /** Equipment that sends nothing this step. */
+  silent: string[];
+}
+
+/** A chiller running at AHRI-like conditions: 54 → 44 °F, 85 °F condenser water entering. */
+export const normalFrame: Frame = {
+  chwInC: 12.2,
+  chwOutC: 6.7,
+  cwInC: 29.4,
+  cwOutC: 34.6,
+  running: true,
+  enabled: true,
+  condKPa: 900,
+  evapKPa: 350,
+  evapSatC: 5.9,
+  condSatC: 35.7,
+  powerKw: 210,
+  driveC: 40,
+  driveFault: false,
+  chillerAlarm: false,
+  faultText: "",
+  inhibitLeftS: 0,
+  towerMode: "auto",
+  towerFault: false,
+  fanSpeedPct: 60,
+  fanRunning: true,
+  towerSetpointC: 29.4,
+  towerInC: 34.6,
+  wetBulbC: 25.5,
+  silent: [],
+};
+
+export function readingsOf(tsMs: number, f: Frame): Reading[] {
+  const out: Reading[] = [];
+  const add = (equipment: string, quantity: QuantityKey, value: number | boolean | string | null) => {
+    if (value !== null && !f.silent.includes(equipment)) out.push({ tsMs, equipment, quantity, value });
+  };
+  add("CH-1", "chilled_water_entering_temp", f.chwInC);
+  add("CH-1", "chilled_water_leaving_temp", f.chwOutC);
+  add("CH-1", "condenser_water_entering_temp", f.cwInC);
+  add("CH-1", "condenser_water_leaving_temp", f.cwOutC);
+  add("CH-1", "run_status", f.running);
+  add("CH-1", "run_enable_command", f.enabled);
+  add("CH-1", "condenser_refrigerant_pressure", f.condKPa);
+  add("CH-1", "evaporator_refrigerant_pressure", f.evapKPa);
+  add("CH-1", "evaporator_saturated_temp", f.evapSatC);
+  add("CH-1", "condenser_saturated_temp", f.condSatC);
+  add("CH-1", "compressor_power", f.running ? f.powerKw : 0);
+  add("CH-1", "drive_temp", f.driveC);
+  add("CH-1", "drive_fault", f.driveFault);
+  add("CH-1", "chiller_alarm", f.chillerAlarm);
+  add("CH-1", "fault_text", f.faultText);
+  add("CH-1", "restart_inhibit_time_left", f.inhibitLeftS);
+  add("CT-1", "condenser_water_entering_temp", f.towerInC);
+  add("CT-1", "condenser_water_leaving_temp", f.cwInC);
+  add("CT-1", "condenser_water_temp_setpoint", f.towerSetpointC);
+  add("CT-1", "fan_drive_mode", f.towerMode);
+  add("CT-1", "fan_drive_fault", f.towerFault);
+  add("CT-1", "fan_speed", f.fanSpeedPct);
+  add("CT-1", "fan_status", f.fanRunning);
+  add("CHWP-1", "pump_status", true);
+  add("CWP-1", "pump_status", true);
+  add("AHU-1", "run_status", true);
+  add("WS-1", "outdoor_wet_bulb_temp", f.wetBulbC);
+  return out;
+}
+
+export interface RunResult {
+  transitions: TransitionRecord[];
+  evaluations: SiteEvaluation[];
+  /** Event times at which each alarm key first went to unacknowledged. */
+  firstActivation(key: string): number | null;
+  activations(key: string): number;
+}
+
+/** Feeds frames every stepS and evaluates after each; the same clock for readings and rules. */
+export function runFrames(args: {
+  durationS: number;
+  stepS?: number;
+  frame: (tS: number) => Partial<Frame>;
+  settings?: RuleSettingsInput;
+  comms?: (tS: number) => CommStatus;
+  keep?: boolean;
+}): RunResult {
+  const stepS = args.stepS ?? 10;
+  const monitor = createSiteMonitor({ site, settings: parseRuleSettings(args.settings ?? {}) });
+  const transitions: TransitionRecord[] = [];
+  const evaluations: SiteEvaluation[] = [];
+  for (let tS = 0; tS <= args.durationS; tS += stepS) {
+    const tsMs = T0 + tS * 1000;
+    monitor.ingest(readingsOf(tsMs, { ...normalFrame, ...args.frame(tS) }));
+    const e = monitor.evaluate(tsMs, args.comms?.(tS));
+    transitions.push(...e.transitions);
+    if (args.keep) evaluations.push(e);
+  }
+  const acts = (key: string) => transitions.filter((t) => t.alarmKey === key && t.cause === "condition_active" && t.to === "unacknowledged");
+  return {
+    transitions,
+    evaluations,
+    firstActivation: (key) => acts(key)[0]?.atMs ?? null,
+    activations: (key) => acts(key).length,
+  };
+}
+
+/** Seconds after T0. */
+export const secondsOf = (ms: number | null): number | null => (ms === null ? null : (ms - T0) / 1000);
