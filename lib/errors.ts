@@ -9,6 +9,7 @@ export const errorStatus = {
   payload_too_large: 413,
   rate_limited: 429,
   internal: 500,
+  unavailable: 503,
 } as const;
 
 export type ErrorCode = keyof typeof errorStatus;

@@ -1,2 +1,3 @@
 export * from "./core";
 export * from "./gateways";
+export * from "./alarms";

@@ -24,7 +24,9 @@ export const configSchema = z.object({
   LIFTLINE_SIMULATOR: flag(true),
   LIFTLINE_BUILD_IF_NEEDED: flag(true),
   SMTP_URL: z.url({ protocol: /^smtps?$/ }).optional(),
-  SMTP_PORT: port(2525),
+  /** The local SMTP sink's port when SMTP_URL is unset; 0 picks a free one. */
+  SMTP_PORT: port(0),
+  ESCALATION_DELAY_MIN: z.coerce.number().min(0.05).max(240).default(10),
   MAIL_FROM: z.string().default("Liftline <alerts@liftline.invalid>"),
   SIGNIN_WINDOW_S: z.coerce.number().int().min(1).default(900),
   SIGNIN_MAX_PER_ACCOUNT: z.coerce.number().int().min(1).default(5),

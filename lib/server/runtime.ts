@@ -1,3 +1,5 @@
+import { AppError } from "@/lib/errors";
+
 // What server.ts started, visible to route handlers. Next bundles route code apart from
 // server.ts, so the handle lives on globalThis rather than in module state.
 export interface RuntimeStatus {
@@ -6,6 +8,17 @@ export interface RuntimeStatus {
 
 export interface Runtime {
   status(): RuntimeStatus;
+  /** Rule checks and alarm commands (absent in a process that runs no alarm service). */
+  alarms?: import("./alarms/service").AlarmService;
+  /** Sends due alarm e-mails now. */
+  escalator?: import("./alarms/escalation").Escalator;
+}
+
+/** The running alarm service, or a 503 for a process started without one. */
+export function requireAlarmService(): import("./alarms/service").AlarmService {
+  const service = getRuntime()?.alarms;
+  if (!service) throw new AppError("unavailable", "The alarm service is not running in this process.");
+  return service;
 }
 
 const g = globalThis as unknown as { __liftlineRuntime?: Runtime };

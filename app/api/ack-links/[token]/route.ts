@@ -1,0 +1,34 @@
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { consumeAckLink } from "@/db/queries/oncall";
+import { getViewerById } from "@/db/queries/users";
+import { AppError } from "@/lib/errors";
+import { route } from "@/lib/server/http";
+import { requireAlarmService } from "@/lib/server/runtime";
+
+const tokenSchema = z.string().regex(/^[A-Za-z0-9_-]{20,100}$/);
+
+const refusal = {
+  unknown: "This acknowledge link is not valid.",
+  expired: "This acknowledge link has expired. Open the alarm in Liftline instead.",
+  used: "This acknowledge link was already used.",
+} as const;
+
+// The e-mailed link is the credential: it names one alarm and one person, works once, and
+// expires. GET never acts (mail scanners prefetch links); the page POSTs here.
+export const POST = route<{ params: Promise<{ token: string }> }>(async (_request, { params }) => {
+  const parsed = tokenSchema.safeParse((await params).token);
+  if (!parsed.success) throw new AppError("not_found", refusal.unknown);
+  const db = getDb();
+  const link = consumeAckLink(db, parsed.data, Date.now());
+  if (!link.ok) throw new AppError(link.reason === "unknown" ? "not_found" : "conflict", refusal[link.reason]);
+  const viewer = getViewerById(db, link.userId);
+  if (!viewer) throw new AppError("not_found", refusal.unknown);
+  try {
+    return Response.json(requireAlarmService().command(viewer, link.alarmId, { type: "acknowledge", note: "Acknowledged from the e-mailed link" }));
+  } catch (err) {
+    // Someone acknowledged it in the app already: the link did its job.
+    if (err instanceof AppError && err.code === "conflict") return Response.json({ alarmId: link.alarmId, state: "already acknowledged" });
+    throw err;
+  }
+});

@@ -1,0 +1,321 @@
+import { randomUUID } from "node:crypto";
+import { and, asc, desc, eq, inArray, ne, sql, type SQL } from "drizzle-orm";
+import type { Db } from "../client";
+import { alarmEvents, alarmNotes, alarms, organizations, sites, users } from "../schema";
+import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
+import type { Alarm, AlarmState, TransitionRecord } from "@/lib/alarms";
+
+// Alarms as stored: one row per rule × equipment × site with its current ISA-18.2 state,
+// an append-only event history, and notes. Customers read their own sites' alarms and the
+// notes shared with them; nothing here lets them change anything.
+
+export interface AlarmDetail {
+  technicianMessage: string;
+  ownerMessage: string;
+  advice: string[];
+  caution: string | null;
+  numbers: Record<string, number | null>;
+  related: string[];
+  /** Event time of the evaluation these words come from. */
+  atMs: number;
+}
+
+export interface AlarmDto {
+  id: string;
+  siteId: string;
+  siteName: string;
+  ruleId: string;
+  equipment: string;
+  priority: number;
+  state: AlarmState;
+  conditionActive: boolean;
+  activeSinceMs: number | null;
+  lastTransitionMs: number | null;
+  activations: number;
+  shelvedUntilMs: number | null;
+  shelveReason: string | null;
+  detail: AlarmDetail;
+}
+
+export interface AlarmEventDto {
+  id: number;
+  from: string;
+  to: string;
+  cause: string;
+  eventAtMs: number;
+  wallAtMs: number;
+  actor: string | null;
+  /** Event notes are the technicians' words; customers do not see them. */
+  note: string | null;
+}
+
+export interface AlarmNoteDto {
+  id: number;
+  author: string;
+  text: string;
+  visibility: "internal" | "customer";
+  createdAt: number;
+}
+
+export interface AlarmWithHistoryDto extends AlarmDto {
+  events: AlarmEventDto[];
+  notes: AlarmNoteDto[];
+}
+
+function siteScope(viewer: Viewer): SQL | undefined {
+  return seesAllSites(viewer) ? undefined : eq(sites.organizationId, viewer.organizationId);
+}
+
+const dtoColumns = {
+  id: alarms.id,
+  siteId: alarms.siteId,
+  siteName: sites.name,
+  ruleId: alarms.ruleId,
+  equipment: alarms.equipment,
+  priority: alarms.priority,
+  state: alarms.state,
+  conditionActive: alarms.conditionActive,
+  activeSinceMs: alarms.activeSinceMs,
+  lastTransitionMs: alarms.lastTransitionMs,
+  activations: alarms.activations,
+  machineJson: alarms.machineJson,
+  detailJson: alarms.detailJson,
+};
+
+type DtoRow = Omit<AlarmDto, "state" | "shelvedUntilMs" | "shelveReason" | "detail"> & { state: string; machineJson: string; detailJson: string };
+
+function toDto(row: DtoRow): AlarmDto {
+  const { machineJson, detailJson, ...rest } = row;
+  const machine = JSON.parse(machineJson) as Alarm;
+  return {
+    ...rest,
+    state: rest.state as AlarmState,
+    shelvedUntilMs: machine.shelf?.untilMs ?? null,
+    shelveReason: machine.shelf?.reason ?? null,
+    detail: JSON.parse(detailJson) as AlarmDetail,
+  };
+}
+
+export interface AlarmFilter {
+  siteId?: string;
+  states?: AlarmState[];
+  priority?: number;
+  /** Include alarms in `normal` (the full configured list). Default: only those not normal. */
+  includeNormal?: boolean;
+}
+
+export function listAlarms(db: Db, viewer: Viewer, filter: AlarmFilter = {}): AlarmDto[] {
+  const where = [siteScope(viewer)];
+  if (filter.siteId) where.push(eq(alarms.siteId, filter.siteId));
+  if (filter.states?.length) where.push(inArray(alarms.state, filter.states));
+  else if (!filter.includeNormal) where.push(ne(alarms.state, "normal"));
+  if (filter.priority) where.push(eq(alarms.priority, filter.priority));
+  return db
+    .select(dtoColumns)
+    .from(alarms)
+    .innerJoin(sites, eq(sites.id, alarms.siteId))
+    .where(and(...where))
+    .orderBy(asc(alarms.priority), desc(alarms.lastTransitionMs))
+    .all()
+    .map(toDto);
+}
+
+export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHistoryDto | null {
+  const row = db
+    .select(dtoColumns)
+    .from(alarms)
+    .innerJoin(sites, eq(sites.id, alarms.siteId))
+    .where(and(eq(alarms.id, alarmId), siteScope(viewer)))
+    .get();
+  if (!row) return null;
+  const staff = seesAllSites(viewer);
+  const events = db
+    .select({
+      id: alarmEvents.id,
+      from: alarmEvents.fromState,
+      to: alarmEvents.toState,
+      cause: alarmEvents.cause,
+      eventAtMs: alarmEvents.eventAtMs,
+      wallAtMs: alarmEvents.wallAtMs,
+      actor: users.name,
+      note: alarmEvents.note,
+    })
+    .from(alarmEvents)
+    .leftJoin(users, eq(users.id, alarmEvents.actorUserId))
+    .where(eq(alarmEvents.alarmId, alarmId))
+    .orderBy(asc(alarmEvents.id))
+    .all()
+    .map((e) => (staff ? e : { ...e, note: null }));
+  const notes = db
+    .select({ id: alarmNotes.id, author: users.name, text: alarmNotes.text, visibility: alarmNotes.visibility, createdAt: alarmNotes.createdAt })
+    .from(alarmNotes)
+    .innerJoin(users, eq(users.id, alarmNotes.userId))
+    .where(and(eq(alarmNotes.alarmId, alarmId), staff ? undefined : eq(alarmNotes.visibility, "customer")))
+    .orderBy(asc(alarmNotes.id))
+    .all();
+  return { ...toDto(row), events, notes };
+}
+
+/** The alarm's site and key, when the viewer may see it (for commands). */
+export function findAlarmRef(db: Db, viewer: Viewer, alarmId: string): { id: string; siteId: string; key: string } | null {
+  return (
+    db
+      .select({ id: alarms.id, siteId: alarms.siteId, key: alarms.key })
+      .from(alarms)
+      .innerJoin(sites, eq(sites.id, alarms.siteId))
+      .where(and(eq(alarms.id, alarmId), siteScope(viewer)))
+      .get() ?? null
+  );
+}
+
+export function addNote(db: Db, viewer: Viewer, alarmId: string, text: string, visibility: "internal" | "customer"): AlarmNoteDto {
+  const id = db.insert(alarmNotes).values({ alarmId, userId: viewer.userId, text, visibility }).run().lastInsertRowid as number;
+  return db
+    .select({ id: alarmNotes.id, author: users.name, text: alarmNotes.text, visibility: alarmNotes.visibility, createdAt: alarmNotes.createdAt })
+    .from(alarmNotes)
+    .innerJoin(users, eq(users.id, alarmNotes.userId))
+    .where(eq(alarmNotes.id, id))
+    .get()!;
+}
+
+/** Every stored state machine of a site, so a restarted server resumes its alarms. */
+export function loadAlarmMachines(db: Db, siteId: string): Alarm[] {
+  return db
+    .select({ machineJson: alarms.machineJson })
+    .from(alarms)
+    .where(eq(alarms.siteId, siteId))
+    .all()
+    .map((r) => JSON.parse(r.machineJson) as Alarm);
+}
+
+export interface StoredTransition {
+  alarmId: string;
+  record: TransitionRecord;
+}
+
+/**
+ * Saves the alarms that changed and appends their transitions, in one transaction.
+ * `details` carries the latest condition words per alarm key (kept even without a transition).
+ */
+export function saveAlarmChanges(
+  db: Db,
+  siteId: string,
+  changed: readonly Alarm[],
+  transitions: readonly TransitionRecord[],
+  details: ReadonlyMap<string, AlarmDetail>,
+): StoredTransition[] {
+  const stored: StoredTransition[] = [];
+  db.transaction((tx) => {
+    const ids = new Map<string, string>();
+    for (const a of changed) {
+      const detail = details.get(a.key);
+      const existing = tx.select({ id: alarms.id, activeSinceMs: alarms.activeSinceMs }).from(alarms).where(and(eq(alarms.siteId, siteId), eq(alarms.key, a.key))).get();
+      const becameActive = transitions.some((t) => t.alarmKey === a.key && t.cause === "condition_active");
+      const values = {
+        priority: a.priority,
+        state: a.state,
+        conditionActive: a.conditionActive,
+        machineJson: JSON.stringify(a),
+        lastTransitionMs: a.lastTransitionMs,
+        activeSinceMs: a.conditionActive ? (becameActive ? a.conditionSinceMs : (existing?.activeSinceMs ?? a.conditionSinceMs)) : (existing?.activeSinceMs ?? null),
+        updatedAt: Date.now(),
+        ...(detail ? { detailJson: JSON.stringify(detail) } : {}),
+      };
+      if (existing) {
+        tx.update(alarms)
+          .set({ ...values, ...(becameActive ? { activations: sql`${alarms.activations} + 1` } : {}) })
+          .where(eq(alarms.id, existing.id))
+          .run();
+        ids.set(a.key, existing.id);
+      } else {
+        const id = randomUUID();
+        tx.insert(alarms)
+          .values({
+            id,
+            siteId,
+            key: a.key,
+            ruleId: a.ruleId,
+            equipment: a.equipment,
+            ...values,
+            detailJson: JSON.stringify(detail ?? emptyDetail(a)),
+            activations: becameActive ? 1 : 0,
+          })
+          .run();
+        ids.set(a.key, id);
+      }
+    }
+    for (const t of transitions) {
+      const alarmId = ids.get(t.alarmKey);
+      if (!alarmId) continue;
+      tx.insert(alarmEvents)
+        .values({
+          alarmId,
+          siteId,
+          fromState: t.from,
+          toState: t.to,
+          cause: t.cause,
+          priority: t.priority,
+          eventAtMs: t.atMs,
+          actorUserId: t.actor.kind === "person" ? t.actor.id : null,
+          note: t.note,
+        })
+        .run();
+      stored.push({ alarmId, record: t });
+    }
+  });
+  return stored;
+}
+
+function emptyDetail(a: Alarm): AlarmDetail {
+  return { technicianMessage: a.ruleId, ownerMessage: "", advice: [], caution: null, numbers: {}, related: [], atMs: a.lastTransitionMs ?? 0 };
+}
+
+/** Per visible site: the worst annunciated alarm and how many wait for acknowledgement. */
+export function alarmSummaryBySite(db: Db, viewer: Viewer): Map<string, { worst: AlarmDto | null; unacknowledged: number }> {
+  const active = listAlarms(db, viewer, { states: ["unacknowledged", "acknowledged", "returned_unacknowledged", "latched"] });
+  const out = new Map<string, { worst: AlarmDto | null; unacknowledged: number }>();
+  for (const a of active) {
+    const s = out.get(a.siteId) ?? { worst: null, unacknowledged: 0 };
+    if (a.state !== "acknowledged") s.unacknowledged++;
+    // Active conditions outrank ones that have already cleared.
+    const rank = (x: AlarmDto) => x.priority * 2 - (x.conditionActive ? 1 : 0);
+    if (!s.worst || rank(a) < rank(s.worst)) s.worst = a;
+    out.set(a.siteId, s);
+  }
+  return out;
+}
+
+/** Transition history across sites for the alarm-system health page (staff only). */
+export function transitionsSince(db: Db, sinceMs: number) {
+  return db
+    .select({
+      alarmId: alarmEvents.alarmId,
+      siteId: alarmEvents.siteId,
+      key: alarms.key,
+      ruleId: alarms.ruleId,
+      equipment: alarms.equipment,
+      from: alarmEvents.fromState,
+      to: alarmEvents.toState,
+      cause: alarmEvents.cause,
+      priority: alarmEvents.priority,
+      atMs: alarmEvents.eventAtMs,
+      actorUserId: alarmEvents.actorUserId,
+      note: alarmEvents.note,
+    })
+    .from(alarmEvents)
+    .innerJoin(alarms, eq(alarms.id, alarmEvents.alarmId))
+    .where(sql`${alarmEvents.eventAtMs} >= ${sinceMs}`)
+    .orderBy(asc(alarmEvents.eventAtMs))
+    .all();
+}
+
+export function siteOrganization(db: Db, siteId: string): { organizationId: string; customerName: string } | null {
+  return (
+    db
+      .select({ organizationId: sites.organizationId, customerName: organizations.name })
+      .from(sites)
+      .innerJoin(organizations, eq(organizations.id, sites.organizationId))
+      .where(eq(sites.id, siteId))
+      .get() ?? null
+  );
+}

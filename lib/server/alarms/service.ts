@@ -1,0 +1,191 @@
+import { eq } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { findAlarmRef, loadAlarmMachines, saveAlarmChanges, type AlarmDetail } from "@/db/queries/alarms";
+import { equipment, siteRuleSettings } from "@/db/schema";
+import { commandAlarm, type Alarm, type AlarmBook, type AlarmEvent, type TransitionRecord } from "@/lib/alarms";
+import { canAct, type Viewer } from "@/lib/auth/viewer";
+import { AppError, notFound } from "@/lib/errors";
+import type { Reading, Site } from "@/lib/plant/site";
+import type { SiteSnapshot } from "@/lib/plant/snapshot";
+import type { EquipmentKind } from "@/lib/quantities";
+import { createSiteMonitor, parseRuleSettings, type CommStatus, type SiteMonitor } from "@/lib/rules";
+
+// Runs the rule checks of every site on the readings ingestion commits, on event time,
+// and keeps the alarms' ISA-18.2 state in the database. People's commands (acknowledge,
+// shelve, unshelve) go through here too, so the in-memory machines and the rows agree.
+
+/** Evaluate at most this often in event time: rules look at minutes, not seconds. */
+const EVALUATION_STEP_MS = 5_000;
+
+export type AlarmCommand =
+  | { type: "acknowledge"; note?: string }
+  | { type: "shelve"; minutes: number; reason: string }
+  | { type: "unshelve"; note?: string };
+
+export interface SiteEvaluationSummary {
+  siteId: string;
+  atMs: number;
+  snapshot: SiteSnapshot;
+  transitions: TransitionRecord[];
+}
+
+export interface AlarmService {
+  ingest(siteId: string, readings: readonly Reading[]): void;
+  /** Evaluates now even if little event time passed (tests, and the wall-clock timer). */
+  evaluate(siteId: string, atMs?: number): SiteEvaluationSummary | null;
+  command(viewer: Viewer, alarmId: string, command: AlarmCommand): { alarmId: string; state: string };
+  /** The last derived numbers of a site (for its page), or null before any reading. */
+  snapshot(siteId: string): SiteSnapshot | null;
+  /** Forgets a site's monitor so settings are re-read on the next reading. */
+  reload(siteId: string): void;
+  /** Wall-clock housekeeping: shelf expiry and silence, extrapolating event time. */
+  tick(): void;
+}
+
+interface SiteState {
+  monitor: SiteMonitor;
+  lastEvaluatedMs: number;
+  latestEventMs: number;
+  latestWallMs: number;
+  snapshot: SiteSnapshot | null;
+  details: Map<string, AlarmDetail>;
+}
+
+function loadSite(db: Db, siteId: string): Site {
+  return db
+    .select({ tag: equipment.tag, kind: equipment.kind, capacityTons: equipment.capacityTons, designFlowLps: equipment.designFlowLps, refrigerant: equipment.refrigerant, serves: equipment.serves })
+    .from(equipment)
+    .where(eq(equipment.siteId, siteId))
+    .all()
+    .map((e) => ({
+      tag: e.tag,
+      kind: e.kind as EquipmentKind,
+      capacityTons: e.capacityTons ?? undefined,
+      designFlowLps: e.designFlowLps ?? undefined,
+      refrigerant: e.refrigerant ?? undefined,
+      serves: e.serves ?? undefined,
+    }));
+}
+
+export function loadRuleSettings(db: Db, siteId: string) {
+  const row = db.select({ json: siteRuleSettings.settingsJson }).from(siteRuleSettings).where(eq(siteRuleSettings.siteId, siteId)).get();
+  return parseRuleSettings(row ? JSON.parse(row.json) : {});
+}
+
+export function createAlarmService(deps: {
+  db: Db;
+  clock: () => number;
+  comms?: (siteId: string) => CommStatus;
+  onEvaluated?: (summary: SiteEvaluationSummary) => void;
+  onAlarmsChanged?: (siteId: string, transitions: TransitionRecord[]) => void;
+  log?: (line: string) => void;
+}): AlarmService {
+  const { db } = deps;
+  const sites = new Map<string, SiteState>();
+
+  function state(siteId: string): SiteState {
+    let s = sites.get(siteId);
+    if (!s) {
+      const book: AlarmBook = new Map(loadAlarmMachines(db, siteId).map((a) => [a.key, a]));
+      s = {
+        monitor: createSiteMonitor({ site: loadSite(db, siteId), settings: loadRuleSettings(db, siteId), alarms: book }),
+        lastEvaluatedMs: -Infinity,
+        latestEventMs: -Infinity,
+        latestWallMs: deps.clock(),
+        snapshot: null,
+        details: new Map(),
+      };
+      sites.set(siteId, s);
+    }
+    return s;
+  }
+
+  function persist(siteId: string, s: SiteState, before: AlarmBook, transitions: TransitionRecord[]) {
+    const after = s.monitor.alarms();
+    const changed: Alarm[] = [];
+    for (const [key, a] of after) {
+      // Rows exist for alarms that ever left normal; keep their words fresh while active.
+      if (before.get(key) !== a && (transitions.some((t) => t.alarmKey === key) || a.conditionActive || a.state !== "normal")) changed.push(a);
+    }
+    if (changed.length || transitions.length) saveAlarmChanges(db, siteId, changed, transitions, s.details);
+    if (transitions.length) deps.onAlarmsChanged?.(siteId, transitions);
+  }
+
+  function evaluateAt(siteId: string, s: SiteState, atMs: number): SiteEvaluationSummary {
+    const before = s.monitor.alarms();
+    const result = s.monitor.evaluate(atMs, deps.comms?.(siteId));
+    s.lastEvaluatedMs = atMs;
+    s.snapshot = result.snapshot;
+    for (const c of result.conditions) {
+      if (!c.rawActive && !c.active) continue;
+      s.details.set(`${c.ruleId}:${c.equipment}`, {
+        technicianMessage: c.technicianMessage,
+        ownerMessage: c.ownerMessage,
+        advice: c.advice,
+        caution: c.caution,
+        numbers: c.numbers,
+        related: c.related,
+        atMs,
+      });
+    }
+    persist(siteId, s, before, result.transitions);
+    const summary = { siteId, atMs, snapshot: result.snapshot, transitions: result.transitions };
+    deps.onEvaluated?.(summary);
+    return summary;
+  }
+
+  return {
+    ingest(siteId, readings) {
+      if (!readings.length) return;
+      const s = state(siteId);
+      const sorted = [...readings].sort((a, b) => a.tsMs - b.tsMs);
+      s.monitor.ingest(sorted);
+      const newest = sorted[sorted.length - 1].tsMs;
+      if (newest > s.latestEventMs) {
+        s.latestEventMs = newest;
+        s.latestWallMs = deps.clock();
+      }
+      if (s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS) evaluateAt(siteId, s, s.latestEventMs);
+    },
+    evaluate(siteId, atMs) {
+      const s = state(siteId);
+      const at = atMs ?? (Number.isFinite(s.latestEventMs) ? s.latestEventMs : deps.clock());
+      return evaluateAt(siteId, s, at);
+    },
+    command(viewer, alarmId, command) {
+      const ref = findAlarmRef(db, viewer, alarmId);
+      if (!ref) throw notFound("No such alarm.");
+      if (!canAct(viewer)) throw new AppError("forbidden", "Only the service company's staff can act on alarms.");
+      const s = state(ref.siteId);
+      // Commands happen on the site's clock so shelving and history line up with its readings.
+      const atMs = Number.isFinite(s.latestEventMs) ? s.latestEventMs + (deps.clock() - s.latestWallMs) : deps.clock();
+      const actor = { kind: "person" as const, id: viewer.userId };
+      const event: AlarmEvent =
+        command.type === "acknowledge"
+          ? { type: "acknowledge", atMs, actor, note: command.note }
+          : command.type === "shelve"
+            ? { type: "shelve", atMs, actor, untilMs: atMs + command.minutes * 60_000, reason: command.reason }
+            : { type: "unshelve", atMs, actor, note: command.note };
+      const before = s.monitor.alarms();
+      const result = commandAlarm(before, ref.key, event);
+      if (result.rejected) throw new AppError("conflict", `Not done: ${result.rejected}.`);
+      s.monitor.setAlarms(result.book);
+      persist(ref.siteId, s, before, result.transitions);
+      return { alarmId, state: result.alarm.state };
+    },
+    snapshot: (siteId) => sites.get(siteId)?.snapshot ?? null,
+    reload(siteId) {
+      sites.delete(siteId);
+    },
+    tick() {
+      const now = deps.clock();
+      for (const [siteId, s] of sites) {
+        if (!Number.isFinite(s.latestEventMs)) continue;
+        // With no readings arriving, let event time run on with the wall clock so silence
+        // is noticed and shelves expire.
+        const extrapolated = s.latestEventMs + (now - s.latestWallMs);
+        if (extrapolated - s.lastEvaluatedMs >= EVALUATION_STEP_MS) evaluateAt(siteId, s, extrapolated);
+      }
+    },
+  };
+}
