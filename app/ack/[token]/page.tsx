@@ -15,12 +15,17 @@ const refusal = {
   used: "This acknowledge link was already used.",
 } as const;
 
-export default async function AckLinkPage({ params }: { params: Promise<{ token: string }> }) {
-  const { token } = await params;
+function lookUp(token: string) {
   const db = getDb();
   const link = /^[A-Za-z0-9_-]{20,100}$/.test(token) ? peekAckLink(db, token, Date.now()) : ({ ok: false, reason: "unknown" } as const);
   const viewer = link.ok ? getViewerById(db, link.userId) : null;
   const alarm = link.ok && viewer ? getAlarm(db, viewer, link.alarmId) : null;
+  return { link, viewer, alarm };
+}
+
+export default async function AckLinkPage({ params }: { params: Promise<{ token: string }> }) {
+  const { token } = await params;
+  const { link, viewer, alarm } = lookUp(token);
   return (
     <main className="mx-auto flex min-h-screen max-w-md flex-col justify-center gap-4 px-4 py-10">
       <h1 className="text-2xl font-semibold">Liftline</h1>
