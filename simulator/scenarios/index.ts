@@ -1,0 +1,28 @@
+// The scenario catalogue.
+import { condenserPumpLoss } from "./condenser-pump-loss";
+import { designSteady } from "./design-steady";
+import { fouledCondenser } from "./fouled-condenser";
+import { normalDay } from "./normal-day";
+import { powerBlip } from "./power-blip";
+import { slowCrossover } from "./slow-crossover";
+import type { Scenario } from "./types";
+
+export const scenarios: Record<string, Scenario> = {
+  [normalDay.name]: normalDay,
+  [powerBlip.name]: powerBlip,
+  [slowCrossover.name]: slowCrossover,
+  [condenserPumpLoss.name]: condenserPumpLoss,
+  [fouledCondenser.name]: fouledCondenser,
+  [designSteady.name]: designSteady,
+};
+
+export const scenarioNames = Object.keys(scenarios);
+
+export function getScenario(name: string): Scenario {
+  const s = scenarios[name];
+  if (!s) throw new Error(`unknown scenario "${name}" (known: ${scenarioNames.join(", ")})`);
+  return s;
+}
+
+export type { Scenario, ScenarioConditions, ScriptedEvent } from "./types";
+export { powerBlipRightActions, powerBlipAtS, lateResetAtS } from "./power-blip";

@@ -1,0 +1,25 @@
+import { describe, expect, it } from "vitest";
+import { cToF, record } from "./helpers";
+
+const run = record({ scenario: "slow-crossover", seed: 5, durationS: 10 * 3600, stepS: 2, sampleEveryS: 60 });
+
+describe("slow-crossover (cold day, low load, tower over-cooling)", () => {
+  it("condenser water drifts down to and below the chilled water entering the running chiller", () => {
+    const cw = run.num("CH-1", "condenser_water_entering_temp").v.map(cToF);
+    const chw = run.num("CH-1", "chilled_water_entering_temp").v.map(cToF);
+    const margin = cw.map((v, i) => v - chw[i]);
+    expect(margin[0]).toBeGreaterThan(10); // starts well apart
+    expect(Math.min(...margin)).toBeLessThanOrEqual(0); // reaches crossover
+  });
+  it("with no fault, alarm or trip along the way, and the chiller still running", () => {
+    expect(run.events.filter((e) => e.kind === "fault" || e.kind === "alarm")).toEqual([]);
+    expect(run.get("CH-1", "run_status").v.every((v) => v === true)).toBe(true);
+  });
+  it("the refrigerant pressure difference that feeds motor/drive cooling shrinks below 10 psid", () => {
+    const cond = run.num("CH-1", "condenser_refrigerant_pressure").v;
+    const evap = run.num("CH-1", "evaporator_refrigerant_pressure").v;
+    const dpPsi = cond.map((c, i) => (c - evap[i]) / 6.894757);
+    expect(dpPsi[0]).toBeGreaterThan(20);
+    expect(Math.min(...dpPsi)).toBeLessThan(10);
+  });
+});
