@@ -1,11 +1,15 @@
 import { getDb } from "@/db/client";
 import { listSites } from "@/db/queries/sites";
 import { SiteBoard } from "@/components/sites/site-board";
+import { siteStatuses } from "@/lib/server/board/site-status";
 import { requirePageViewer } from "../(auth)/auth";
 
 export const dynamic = "force-dynamic";
 
 export default async function BoardPage() {
   const viewer = await requirePageViewer();
-  return <SiteBoard fallback={listSites(getDb(), viewer)} />;
+  const db = getDb();
+  const sites = listSites(db, viewer);
+  const statuses = siteStatuses(db, viewer, sites.map((s) => s.id));
+  return <SiteBoard fallback={sites.map((s) => ({ ...s, status: statuses.get(s.id) }))} />;
 }

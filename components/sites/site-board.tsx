@@ -3,11 +3,31 @@
 import Link from "next/link";
 import useSWR from "swr";
 import type { SiteSummaryDto } from "@/db/queries/sites";
+import type { SiteStatus } from "@/lib/realtime/events";
 import { fetchJson } from "@/lib/client/fetcher";
+import { PriorityBadge } from "@/components/alarms/priority";
+import { useSiteEvents } from "@/components/realtime/use-site-events";
 
-export function SiteBoard({ fallback }: { fallback: SiteSummaryDto[] }) {
-  const { data, error } = useSWR<{ sites: SiteSummaryDto[] }>("/api/sites", fetchJson, { fallbackData: { sites: fallback } });
-  const sites = data?.sites ?? [];
+export type BoardSite = SiteSummaryDto & { status?: SiteStatus };
+
+const dataLabel: Record<SiteStatus["data"], string> = { live: "Live", stale: "Stale data", offline: "Gateway offline", no_gateway: "No gateway" };
+const crossoverRules = new Set(["crossover_risk", "restart_race", "loops_crossed"]);
+const edge: Record<number, string> = { 1: "border-l-critical", 2: "border-l-alarm", 3: "border-l-warning", 4: "border-l-line" };
+
+function severity(s: BoardSite): number {
+  const w = s.status?.worst;
+  return w ? w.priority * 2 - (w.active ? 1 : 0) : 99;
+}
+
+export function SiteBoard({ fallback }: { fallback: BoardSite[] }) {
+  const { data, error, mutate } = useSWR<{ sites: BoardSite[] }>("/api/sites", fetchJson, { fallbackData: { sites: fallback } });
+  useSiteEvents("board", {
+    onStatus: (status) =>
+      void mutate((current) => current && { sites: current.sites.map((s) => (s.id === status.siteId ? { ...s, status } : s)) }, { revalidate: false }),
+    onReconnect: () => void mutate(),
+  });
+  // The most urgent plant first: on a phone it is the one the technician must see.
+  const sites = [...(data?.sites ?? [])].sort((a, b) => severity(a) - severity(b) || a.name.localeCompare(b.name));
   return (
     <section aria-labelledby="board-title">
       <h1 id="board-title" className="text-2xl font-semibold">
@@ -16,23 +36,49 @@ export function SiteBoard({ fallback }: { fallback: SiteSummaryDto[] }) {
       {error ? <p className="mt-2 text-alarm">Could not refresh the board: {error.message}</p> : null}
       {sites.length === 0 ? <p className="mt-4 text-muted">No sites yet.</p> : null}
       <ul className="mt-4 grid gap-3 sm:grid-cols-2 lg:grid-cols-3" data-testid="site-list">
-        {sites.map((site) => (
-          <li key={site.id}>
-            <Link href={`/sites/${site.id}`} className="block rounded-lg border border-line bg-panel p-4 hover:border-ink" data-testid="site-card">
-              <div className="flex items-start justify-between gap-2">
-                <h2 className="font-semibold">{site.name}</h2>
-                {/* Filled by the live status of later work: data freshness and the worst active condition. */}
-                <span className="rounded bg-surface px-2 py-0.5 text-xs text-muted" data-testid="site-status">
-                  No data yet
-                </span>
-              </div>
-              <p className="mt-1 text-sm text-muted">{site.customer.name}</p>
-              <p className="mt-3 text-sm">
-                {site.kind} · {site.equipmentCount} pieces of equipment
-              </p>
-            </Link>
-          </li>
-        ))}
+        {sites.map((site) => {
+          const w = site.status?.worst;
+          const crossover = w?.active && crossoverRules.has(w.ruleId);
+          return (
+            <li key={site.id}>
+              <Link
+                href={`/sites/${site.id}`}
+                className={`block rounded-lg border border-l-8 border-line bg-panel p-4 hover:border-ink ${w?.active ? edge[w.priority] : "border-l-line"} ${crossover ? "ring-2 ring-alarm" : ""}`}
+                data-testid="site-card"
+                data-site={site.id}
+              >
+                <div className="flex items-start justify-between gap-2">
+                  <h2 className="font-semibold">{site.name}</h2>
+                  <span className={`shrink-0 rounded px-2 py-0.5 text-xs ${site.status?.data === "live" ? "bg-surface text-muted" : "bg-stale text-white"}`} data-testid="site-data">
+                    {dataLabel[site.status?.data ?? "no_gateway"]}
+                  </span>
+                </div>
+                <p className="mt-1 text-sm text-muted">{site.customer.name}</p>
+                {w ? (
+                  <div className="mt-3 flex flex-col gap-1" data-testid="site-worst" data-rule={w.ruleId}>
+                    <div className="flex items-center gap-2">
+                      <PriorityBadge priority={w.priority} />
+                      {crossover ? <span className="text-sm font-semibold text-alarm">Loops heading for crossover</span> : null}
+                    </div>
+                    <p className="text-sm font-semibold leading-snug">
+                      {w.equipment}: {w.title}
+                    </p>
+                  </div>
+                ) : (
+                  <p className="mt-3 text-sm text-muted">No active warnings</p>
+                )}
+                <p className="mt-3 text-sm">
+                  {site.status?.unacknowledged ? (
+                    <span className="font-semibold" data-testid="site-unack">
+                      {site.status.unacknowledged} unacknowledged ·{" "}
+                    </span>
+                  ) : null}
+                  {site.kind} · {site.equipmentCount} pieces of equipment
+                </p>
+              </Link>
+            </li>
+          );
+        })}
       </ul>
     </section>
   );

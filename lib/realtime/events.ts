@@ -18,7 +18,7 @@ export interface SiteValues {
 export interface SiteStatus {
   siteId: string;
   data: "live" | "stale" | "no_gateway" | "offline";
-  worst: { priority: number; title: string } | null;
+  worst: { priority: number; ruleId: string; equipment: string; title: string; active: boolean } | null;
   unacknowledged: number;
 }
 

@@ -10,6 +10,8 @@ export interface Runtime {
   status(): RuntimeStatus;
   /** Rule checks and alarm commands (absent in a process that runs no alarm service). */
   alarms?: import("./alarms/service").AlarmService;
+  /** Whether a site's data is live, stale, offline or has no gateway at all. */
+  siteDataStatus?: (siteId: string) => "live" | "stale" | "offline" | "no_gateway";
   /** Sends due alarm e-mails now. */
   escalator?: import("./alarms/escalation").Escalator;
 }

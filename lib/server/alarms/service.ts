@@ -8,7 +8,7 @@ import { AppError, notFound } from "@/lib/errors";
 import type { Reading, Site } from "@/lib/plant/site";
 import type { SiteSnapshot } from "@/lib/plant/snapshot";
 import type { EquipmentKind } from "@/lib/quantities";
-import { createSiteMonitor, parseRuleSettings, type CommStatus, type SiteMonitor } from "@/lib/rules";
+import { createSiteMonitor, marginSeries, parseRuleSettings, type CommStatus, type RuleContext, type SiteMonitor } from "@/lib/rules";
 
 // Runs the rule checks of every site on the readings ingestion commits, on event time,
 // and keeps the alarms' ISA-18.2 state in the database. People's commands (acknowledge,
@@ -36,6 +36,8 @@ export interface AlarmService {
   command(viewer: Viewer, alarmId: string, command: AlarmCommand): { alarmId: string; state: string };
   /** The last derived numbers of a site (for its page), or null before any reading. */
   snapshot(siteId: string): SiteSnapshot | null;
+  /** Crossover margin per chiller over the last `windowS` of event time, at most `maxPoints` each. */
+  marginTrend(siteId: string, windowS: number, maxPoints?: number): Record<string, { tsMs: number[]; marginK: number[] }>;
   /** Forgets a site's monitor so settings are re-read on the next reading. */
   reload(siteId: string): void;
   /** Wall-clock housekeeping: shelf expiry and silence, extrapolating event time. */
@@ -43,6 +45,7 @@ export interface AlarmService {
 }
 
 interface SiteState {
+  site: Site;
   monitor: SiteMonitor;
   lastEvaluatedMs: number;
   latestEventMs: number;
@@ -87,8 +90,10 @@ export function createAlarmService(deps: {
     let s = sites.get(siteId);
     if (!s) {
       const book: AlarmBook = new Map(loadAlarmMachines(db, siteId).map((a) => [a.key, a]));
+      const site = loadSite(db, siteId);
       s = {
-        monitor: createSiteMonitor({ site: loadSite(db, siteId), settings: loadRuleSettings(db, siteId), alarms: book }),
+        site,
+        monitor: createSiteMonitor({ site, settings: loadRuleSettings(db, siteId), alarms: book }),
         lastEvaluatedMs: -Infinity,
         latestEventMs: -Infinity,
         latestWallMs: deps.clock(),
@@ -174,6 +179,21 @@ export function createAlarmService(deps: {
       return { alarmId, state: result.alarm.state };
     },
     snapshot: (siteId) => sites.get(siteId)?.snapshot ?? null,
+    marginTrend(siteId, windowS, maxPoints = 180) {
+      const s = sites.get(siteId);
+      if (!s || !Number.isFinite(s.latestEventMs)) return {};
+      // marginSeries reads only the site, the history and the time from its context.
+      const probe = { site: s.site, history: s.monitor.history, nowMs: s.latestEventMs } as Pick<RuleContext, "site" | "history" | "nowMs"> as RuleContext;
+      const out: Record<string, { tsMs: number[]; marginK: number[] }> = {};
+      for (const chiller of s.site.filter((e) => e.kind === "chiller")) {
+        const series = marginSeries(probe, chiller, windowS);
+        // Even thinning is enough for a sparkline; the trend API keeps spikes for real charts.
+        const step = Math.max(1, Math.ceil(series.length / maxPoints));
+        const kept = series.filter((_, i) => i % step === 0 || i === series.length - 1);
+        out[chiller.tag] = { tsMs: kept.map((p) => p.tsMs), marginK: kept.map((p) => p.value) };
+      }
+      return out;
+    },
     reload(siteId) {
       sites.delete(siteId);
     },

@@ -3,6 +3,8 @@ import { notFound } from "next/navigation";
 import { getDb } from "@/db/client";
 import { getSite } from "@/db/queries/sites";
 import { EquipmentTable } from "@/components/sites/equipment-table";
+import { SiteWarnings } from "@/components/sites/site-warnings";
+import { canAct } from "@/lib/auth/viewer";
 import { requirePageViewer } from "../../../(auth)/auth";
 
 export const dynamic = "force-dynamic";
@@ -28,6 +30,8 @@ export default async function SitePage({ params }: Props) {
           {site.customer.name} · {site.address} · {site.timeZone}
         </p>
       </header>
+      <SiteWarnings siteId={site.id} canAct={canAct(viewer)} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
+      <h2 className="mb-2 mt-8 text-lg font-semibold">Equipment and points</h2>
       <EquipmentTable equipment={site.equipment} unitSystem={viewer.unitSystem} />
     </article>
   );

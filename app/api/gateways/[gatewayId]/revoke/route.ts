@@ -1,0 +1,17 @@
+import { requireApiViewer } from "@/app/(auth)/auth";
+import { getDb } from "@/db/client";
+import { revokeGateway } from "@/db/queries/gateways";
+import { notifyGatewayChanged } from "@/gateway/link";
+import { route } from "@/lib/server/http";
+import { gatewayParams } from "../../schema";
+
+export const dynamic = "force-dynamic";
+
+/** Revokes the credentials for good and drops the gateway's live connection. */
+export const POST = route<{ params: Promise<{ gatewayId: string }> }>(async (request, { params }) => {
+  const viewer = await requireApiViewer(request);
+  const { gatewayId } = gatewayParams.parse(await params);
+  const gateway = revokeGateway(getDb(), viewer, gatewayId);
+  notifyGatewayChanged(gatewayId, "revoked");
+  return Response.json({ gateway });
+});

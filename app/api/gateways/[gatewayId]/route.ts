@@ -1,0 +1,28 @@
+import { requireApiViewer } from "@/app/(auth)/auth";
+import { getDb } from "@/db/client";
+import { getGateway, revokeGateway } from "@/db/queries/gateways";
+import { notifyGatewayChanged } from "@/gateway/link";
+import { notFound } from "@/lib/errors";
+import { route } from "@/lib/server/http";
+import { gatewayParams } from "../schema";
+
+export const dynamic = "force-dynamic";
+type Ctx = { params: Promise<{ gatewayId: string }> };
+
+/** Status and counters: connected, last message, messages, readings, rejections, unmapped names. */
+export const GET = route<Ctx>(async (request, { params }) => {
+  const viewer = await requireApiViewer(request);
+  const { gatewayId } = gatewayParams.parse(await params);
+  const gateway = getGateway(getDb(), viewer, gatewayId);
+  if (!gateway) throw notFound("No such gateway.");
+  return Response.json({ gateway });
+});
+
+/** Same as POST …/revoke. */
+export const DELETE = route<Ctx>(async (request, { params }) => {
+  const viewer = await requireApiViewer(request);
+  const { gatewayId } = gatewayParams.parse(await params);
+  const gateway = revokeGateway(getDb(), viewer, gatewayId);
+  notifyGatewayChanged(gatewayId, "revoked");
+  return Response.json({ gateway });
+});

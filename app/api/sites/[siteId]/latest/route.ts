@@ -1,0 +1,13 @@
+import { requireApiViewer } from "@/app/(auth)/auth";
+import { getDb } from "@/db/client";
+import { getSiteLatest } from "@/db/queries/readings";
+import { route } from "@/lib/server/http";
+
+export const dynamic = "force-dynamic";
+
+/** The latest value of every point of the site with its age and stale flag, and the site's data status. */
+export const GET = route<{ params: Promise<{ siteId: string }> }>(async (request, { params }) => {
+  const viewer = await requireApiViewer(request);
+  const { siteId } = await params;
+  return Response.json({ latest: getSiteLatest(getDb(), viewer, siteId, Date.now()) });
+});

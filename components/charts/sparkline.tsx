@@ -1,0 +1,55 @@
+"use client";
+
+import { useEffect, useRef } from "react";
+import type uPlot from "uplot";
+import "uplot/dist/uPlot.min.css";
+
+/** A small uPlot line with an optional zero line (the crossover), client-only. */
+export function Sparkline({ xs, ys, label, height = 90, zeroLine = false }: { xs: number[]; ys: number[]; label: string; height?: number; zeroLine?: boolean }) {
+  const box = useRef<HTMLDivElement>(null);
+  const plot = useRef<uPlot | null>(null);
+
+  useEffect(() => {
+    let disposed = false;
+    void import("uplot").then(({ default: UPlot }) => {
+      if (disposed || !box.current) return;
+      const width = box.current.clientWidth || 300;
+      const opts: uPlot.Options = {
+        width,
+        height,
+        legend: { show: false },
+        cursor: { show: false },
+        scales: { x: { time: true } },
+        axes: [{ size: 28, font: "11px Inter, sans-serif" }, { size: 40, font: "11px Inter, sans-serif" }],
+        series: [{}, { label, stroke: "#1f2328", width: 1.5 }],
+        hooks: zeroLine
+          ? {
+              draw: [
+                (u) => {
+                  const y = u.valToPos(0, "y", true);
+                  if (y < u.bbox.top || y > u.bbox.top + u.bbox.height) return;
+                  u.ctx.save();
+                  u.ctx.strokeStyle = "#b42318";
+                  u.ctx.setLineDash([4, 4]);
+                  u.ctx.beginPath();
+                  u.ctx.moveTo(u.bbox.left, y);
+                  u.ctx.lineTo(u.bbox.left + u.bbox.width, y);
+                  u.ctx.stroke();
+                  u.ctx.restore();
+                },
+              ],
+            }
+          : {},
+      };
+      plot.current?.destroy();
+      plot.current = new UPlot(opts, [xs.map((x) => x / 1000), ys], box.current);
+    });
+    return () => {
+      disposed = true;
+    };
+  }, [xs, ys, label, height, zeroLine]);
+
+  useEffect(() => () => plot.current?.destroy(), []);
+
+  return <div ref={box} role="img" aria-label={label} className="w-full" />;
+}
