@@ -5,6 +5,7 @@ import tseslint from "typescript-eslint";
 export default tseslint.config(
   { ignores: [".next/**", ".next-test/**", "node_modules/**", "data/**", "test-results/**", "db/migrations/**", "next-env.d.ts"] },
   js.configs.recommended,
+  { files: ["**/*.mjs"], languageOptions: { globals: { process: "readonly", console: "readonly" } } },
   ...tseslint.configs.recommended,
   {
     files: ["**/*.{ts,tsx}"],
