@@ -319,3 +319,12 @@ export function siteOrganization(db: Db, siteId: string): { organizationId: stri
       .get() ?? null
   );
 }
+
+/** Every alarm's state machine across all sites (staff-only health page). */
+export function allAlarmMachines(db: Db): Alarm[] {
+  return db
+    .select({ machineJson: alarms.machineJson })
+    .from(alarms)
+    .all()
+    .map((r) => JSON.parse(r.machineJson) as Alarm);
+}
