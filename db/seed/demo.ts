@@ -2,6 +2,7 @@ import bcrypt from "bcryptjs";
 import type { Db } from "../client";
 import { equipment, organizations, points, sites, users, type NewEquipment } from "../schema";
 import { canonicalUnitOf, pointsByKind, quantities, type EquipmentKind } from "@/lib/quantities";
+import { siteLayouts, type SiteLayout } from "@/simulator/layout";
 
 // An invented service company and three invented customers. Ids are fixed so the seed is
 // idempotent (re-running inserts nothing) and demo URLs stay stable.
@@ -20,6 +21,8 @@ interface DemoEquipment {
 
 interface DemoSite {
   id: string;
+  /** The simulator layout that drives this site in demo mode; the equipment follows it. */
+  layout: string;
   name: string;
   kind: string;
   address: string;
@@ -33,7 +36,10 @@ const GPM_TO_LPS = 0.0630902;
 const chwFlow = (tons: number) => Math.round(tons * 2.4 * GPM_TO_LPS * 10) / 10;
 const cwFlow = (tons: number) => Math.round(tons * 3 * GPM_TO_LPS * 10) / 10;
 
-function plant(chillers: Array<{ tons: number; refrigerant: string }>, airHandlers: number, towerTons: number): DemoEquipment[] {
+function plant(layout: SiteLayout): DemoEquipment[] {
+  const chillers = layout.chillers.map((c) => ({ tons: c.capacityTons, refrigerant: c.refrigerant }));
+  // Towers are sized for heat rejection ≈ 1.25 × the load (plant-reference §5).
+  const towerTons = Math.round(chillers.reduce((n, c) => n + c.tons, 0) * 1.25);
   const list: DemoEquipment[] = [];
   chillers.forEach((c, i) => {
     const n = i + 1;
@@ -42,7 +48,7 @@ function plant(chillers: Array<{ tons: number; refrigerant: string }>, airHandle
     list.push({ tag: `CWP-${n}`, name: `Condenser water pump ${n}`, kind: "pump", designFlowLps: cwFlow(c.tons), serves: `CH-${n}` });
   });
   list.push({ tag: "CT-1", name: "Cooling tower 1", kind: "cooling_tower", capacityTons: towerTons });
-  for (let i = 1; i <= airHandlers; i++) list.push({ tag: `AHU-${i}`, name: `Air handler ${i}`, kind: "air_handler" });
+  for (let i = 1; i <= layout.airHandlers; i++) list.push({ tag: `AHU-${i}`, name: `Air handler ${i}`, kind: "air_handler" });
   list.push({ tag: "WS-1", name: "Weather station", kind: "weather_station" });
   return list;
 }
@@ -55,7 +61,8 @@ export const DEMO_SITES: DemoSite[] = [
     address: "1450 Larkspur Avenue, Riverton",
     timeZone: "America/Chicago",
     customer: { id: "org-harborview", name: "Harborview Medical Partners", userEmail: "facilities@harborview.example", userName: "Morgan Ellis" },
-    equipment: plant([{ tons: 300, refrigerant: "R-134a" }], 4, 400),
+    layout: "medical-office",
+    equipment: plant(siteLayouts["medical-office"]),
   },
   {
     id: "quarry-ridge-dh2",
@@ -64,14 +71,8 @@ export const DEMO_SITES: DemoSite[] = [
     address: "88 Flint Quarry Road, Ashbury",
     timeZone: "America/Chicago",
     customer: { id: "org-quarry-ridge", name: "Quarry Ridge Data Centers", userEmail: "ops@quarryridge.example", userName: "Sam Achebe" },
-    equipment: plant(
-      [
-        { tons: 500, refrigerant: "R-1234ze(E)" },
-        { tons: 500, refrigerant: "R-1234ze(E)" },
-      ],
-      6,
-      1200,
-    ),
+    layout: "data-hall",
+    equipment: plant(siteLayouts["data-hall"]),
   },
   {
     id: "millbrook-high",
@@ -80,14 +81,8 @@ export const DEMO_SITES: DemoSite[] = [
     address: "300 Schoolhouse Lane, Millbrook",
     timeZone: "America/New_York",
     customer: { id: "org-millbrook", name: "Millbrook Unified School District", userEmail: "facilities@millbrook.example", userName: "Jordan Whitfield" },
-    equipment: plant(
-      [
-        { tons: 250, refrigerant: "R-134a" },
-        { tons: 250, refrigerant: "R-134a" },
-      ],
-      5,
-      600,
-    ),
+    layout: "school",
+    equipment: plant(siteLayouts.school),
   },
 ];
 

@@ -12,6 +12,10 @@ export interface Runtime {
   alarms?: import("./alarms/service").AlarmService;
   /** Whether a site's data is live, stale, offline or has no gateway at all. */
   siteDataStatus?: (siteId: string) => "live" | "stale" | "offline" | "no_gateway";
+  /** Demo mode's simulated gateways (absent when LIFTLINE_SIMULATOR=0 or not in demo mode). */
+  simulation?: import("./simulation/manager").SimulationManager;
+  /** Publishes a command to a gateway's command topic (the simulator's drills). */
+  sendGatewayCommand?: (gatewayId: string, payload: unknown) => Promise<void>;
   /** Sends due alarm e-mails now. */
   escalator?: import("./alarms/escalation").Escalator;
 }

@@ -1,0 +1,139 @@
+import { and, eq, gte, inArray } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { alarmEvents, alarms, equipment, latestValues, points, readings, readings1m } from "@/db/schema";
+import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } from "@/db/queries/gateways";
+import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
+import { newAlarm, type Alarm } from "@/lib/alarms";
+import type { Viewer } from "@/lib/auth/viewer";
+import { pointMapRows, getLayout, getScenario } from "@/simulator/index";
+import { startSimulatedGateway, type SimulatedGateway, type SimulatedGatewayStatus } from "@/simulator/gateway-client";
+import type { QuantityKey } from "@/lib/quantities";
+import type { WireUnitCode } from "@/lib/units";
+
+// Demo mode's simulated plants: each demo site gets its own provisioned gateway, and a
+// simulator publishes through it over MQTT exactly like a real gateway box would.
+
+export const SIMULATED_GATEWAY_NAME = "Simulated plant gateway";
+
+/** What runs on each demo site when the server starts: two normal days, one incident on repeat. */
+export const DEFAULT_RUNS: Record<string, { scenario: string; speed: number }> = {
+  "harborview-mob": { scenario: "normal-day", speed: 1 },
+  "quarry-ridge-dh2": { scenario: "normal-day", speed: 1 },
+  "millbrook-high": { scenario: "power-blip", speed: 20 },
+};
+
+// Provisioning is an admin act; the server does it for the demo as the service company.
+const systemAdmin: Viewer = { userId: "system", role: "admin", organizationId: SERVICE_ORG.id, name: "Liftline", email: "system@liftline.invalid", unitSystem: "ip" };
+
+export interface SimulatedSiteStatus {
+  siteId: string;
+  siteName: string;
+  layout: string;
+  gatewayId: string;
+  run: (SimulatedGatewayStatus & { speed: number; startedAt: number }) | null;
+}
+
+export interface SimulationManager {
+  list(): SimulatedSiteStatus[];
+  /** Starts `scenario` on a demo site at `speed`, replacing what ran there (see `start`). */
+  start(siteId: string, scenario: string, speed: number, seed?: number): Promise<SimulatedSiteStatus>;
+  stop(siteId: string): Promise<void>;
+  close(): Promise<void>;
+}
+
+export async function createSimulationManager(deps: {
+  db: Db;
+  mqttUrl: string;
+  log: (line: string) => void;
+  /** Forget in-memory state derived from a site's readings (live values, rule history). */
+  onSiteReset?: (siteId: string) => void;
+  now?: () => number;
+}): Promise<SimulationManager> {
+  const { db, log } = deps;
+  const now = deps.now ?? Date.now;
+  const runs = new Map<string, { gateway: SimulatedGateway; speed: number; startedAt: number }>();
+  const gatewayIds = new Map<string, string>();
+
+  // One gateway per demo site, with the simulator's own point map.
+  for (const site of DEMO_SITES) {
+    const layout = getLayout(site.layout)!;
+    let gw = listGateways(db, systemAdmin, site.id).find((g) => g.name === SIMULATED_GATEWAY_NAME && !g.revokedAt);
+    if (!gw) gw = (await createGateway(db, systemAdmin, { siteId: site.id, name: SIMULATED_GATEWAY_NAME, protocol: "json" })).gateway;
+    const rows = pointMapRows(layout).map((r, i) => ({ line: i + 2, gatewayPoint: r.gateway_point, equipmentTag: r.equipment, quantity: r.quantity as QuantityKey, unit: r.unit as WireUnitCode }));
+    const result = replacePointMap(db, systemAdmin, gw.id, rows, []);
+    if (result.errors.length) log(`[sim] point map for ${site.id}: ${result.errors.length} rows refused, first: ${result.errors[0].message}`);
+    gatewayIds.set(site.id, gw.id);
+  }
+
+  /**
+   * Removes a site's readings from `fromMs` on and returns its alarms to normal, so a run that
+   * starts in the past (to reach "now" at its end) does not interleave with the previous one.
+   * Demo sites only: this is a training reset, recorded in each alarm's history.
+   */
+  function resetSite(siteId: string, fromMs: number) {
+    const pointIds = db
+      .select({ id: points.id })
+      .from(points)
+      .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+      .where(eq(equipment.siteId, siteId))
+      .all()
+      .map((p) => p.id);
+    db.transaction((tx) => {
+      if (pointIds.length) {
+        tx.delete(readings).where(and(inArray(readings.pointId, pointIds), gte(readings.ts, fromMs))).run();
+        tx.delete(readings1m).where(and(inArray(readings1m.pointId, pointIds), gte(readings1m.bucket, fromMs - 60_000))).run();
+        tx.delete(latestValues).where(inArray(latestValues.pointId, pointIds)).run();
+      }
+      for (const row of tx.select().from(alarms).where(eq(alarms.siteId, siteId)).all()) {
+        const machine = JSON.parse(row.machineJson) as Alarm;
+        const fresh = newAlarm({ ruleId: machine.ruleId, equipment: machine.equipment, priority: machine.priority, latching: machine.latching });
+        if (row.state !== "normal") {
+          tx.insert(alarmEvents)
+            .values({ alarmId: row.id, siteId, fromState: row.state, toState: "normal", cause: "simulation_restarted", priority: row.priority, eventAtMs: fromMs, note: "A new simulated scenario replaced this site's timeline" })
+            .run();
+        }
+        tx.update(alarms).set({ state: "normal", conditionActive: false, machineJson: JSON.stringify(fresh), updatedAt: now() }).where(eq(alarms.id, row.id)).run();
+      }
+    });
+    deps.onSiteReset?.(siteId);
+  }
+
+  async function start(siteId: string, scenario: string, speed: number, seed = 7): Promise<SimulatedSiteStatus> {
+    const site = DEMO_SITES.find((s) => s.id === siteId);
+    const gatewayId = gatewayIds.get(siteId);
+    if (!site || !gatewayId) throw new Error(`${siteId} is not a simulated site`);
+    const durationS = getScenario(scenario).defaultDurationS;
+    await stop(siteId);
+    // The run ends at "now" after durationS / speed seconds, so it starts that far back.
+    const startMs = Math.floor(now() + (durationS / speed) * 1000 - durationS * 1000);
+    resetSite(siteId, startMs);
+    // A fresh password each start: the server never stores a gateway's secret, only its hash.
+    const { username, password } = await rotateGatewayPassword(db, systemAdmin, gatewayId);
+    const gateway = startSimulatedGateway({ mqttUrl: deps.mqttUrl, username, password, scenario, speed, seed, siteLayout: site.layout, loop: true, startMs, log: (line) => log(`[sim] ${line}`) });
+    runs.set(siteId, { gateway, speed, startedAt: now() });
+    log(`[sim] ${site.name}: ${scenario} at ${speed}×`);
+    return status(siteId);
+  }
+
+  async function stop(siteId: string) {
+    const run = runs.get(siteId);
+    if (!run) return;
+    runs.delete(siteId);
+    await run.gateway.stop();
+  }
+
+  function status(siteId: string): SimulatedSiteStatus {
+    const site = DEMO_SITES.find((s) => s.id === siteId)!;
+    const run = runs.get(siteId);
+    return { siteId, siteName: site.name, layout: site.layout, gatewayId: gatewayIds.get(siteId)!, run: run ? { ...run.gateway.status(), speed: run.speed, startedAt: run.startedAt } : null };
+  }
+
+  return {
+    list: () => DEMO_SITES.map((s) => status(s.id)),
+    start,
+    stop,
+    async close() {
+      await Promise.all([...runs.keys()].map((id) => stop(id)));
+    },
+  };
+}
