@@ -15,11 +15,15 @@ import type { WireUnitCode } from "@/lib/units";
 
 export const SIMULATED_GATEWAY_NAME = "Simulated plant gateway";
 
-/** What runs on each demo site when the server starts: two normal days, one incident on repeat. */
-export const DEFAULT_RUNS: Record<string, { scenario: string; speed: number }> = {
+/**
+ * What runs on each demo site when the server starts: two normal days, one incident on repeat.
+ * `leadInS`: replay only the scenario's first seconds fast, so the run reaches "now" just before
+ * the incident unfolds and the rest plays in real time, as an on-call technician would live it.
+ */
+export const DEFAULT_RUNS: Record<string, { scenario: string; speed: number; leadInS?: number }> = {
   "harborview-mob": { scenario: "normal-day", speed: 1 },
   "quarry-ridge-dh2": { scenario: "normal-day", speed: 1 },
-  "millbrook-high": { scenario: "power-blip", speed: 20 },
+  "millbrook-high": { scenario: "power-blip", speed: 20, leadInS: 20 * 60 },
 };
 
 // Provisioning is an admin act; the server does it for the demo as the service company.
@@ -36,7 +40,9 @@ export interface SimulatedSiteStatus {
 export interface SimulationManager {
   list(): SimulatedSiteStatus[];
   /** Starts `scenario` on a demo site at `speed`, replacing what ran there (see `start`). */
-  start(siteId: string, scenario: string, speed: number, seed?: number): Promise<SimulatedSiteStatus>;
+  start(siteId: string, scenario: string, speed: number, seed?: number, leadInS?: number): Promise<SimulatedSiteStatus>;
+  /** Starts every demo site's default run. */
+  startDefaults(): Promise<void>;
   stop(siteId: string): Promise<void>;
   close(): Promise<void>;
 }
@@ -98,14 +104,16 @@ export async function createSimulationManager(deps: {
     deps.onSiteReset?.(siteId);
   }
 
-  async function start(siteId: string, scenario: string, speed: number, seed = 7): Promise<SimulatedSiteStatus> {
+  async function start(siteId: string, scenario: string, speed: number, seed = 7, leadInS?: number): Promise<SimulatedSiteStatus> {
     const site = DEMO_SITES.find((s) => s.id === siteId);
     const gatewayId = gatewayIds.get(siteId);
     if (!site || !gatewayId) throw new Error(`${siteId} is not a simulated site`);
     const durationS = getScenario(scenario).defaultDurationS;
     await stop(siteId);
-    // The run ends at "now" after durationS / speed seconds, so it starts that far back.
-    const startMs = Math.floor(now() + (durationS / speed) * 1000 - durationS * 1000);
+    // The fast part (the whole run, or its lead-in) reaches "now" as it ends, so it starts that far back;
+    // the simulator never stamps a reading later than "now".
+    const fastS = Math.min(durationS, leadInS ?? durationS);
+    const startMs = Math.floor(now() - fastS * 1000 * (1 - 1 / speed));
     resetSite(siteId, startMs);
     // A fresh password each start: the server never stores a gateway's secret, only its hash.
     const { username, password } = await rotateGatewayPassword(db, systemAdmin, gatewayId);
@@ -131,6 +139,9 @@ export async function createSimulationManager(deps: {
   return {
     list: () => DEMO_SITES.map((s) => status(s.id)),
     start,
+    async startDefaults() {
+      for (const [siteId, run] of Object.entries(DEFAULT_RUNS)) await start(siteId, run.scenario, run.speed, 7, run.leadInS);
+    },
     stop,
     async close() {
       await Promise.all([...runs.keys()].map((id) => stop(id)));

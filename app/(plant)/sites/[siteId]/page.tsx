@@ -2,9 +2,10 @@ import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { getDb } from "@/db/client";
 import { getSite } from "@/db/queries/sites";
-import { EquipmentTable } from "@/components/sites/equipment-table";
+import { LivePoints } from "@/components/sites/live-points";
 import { SiteWarnings } from "@/components/sites/site-warnings";
-import { canAct } from "@/lib/auth/viewer";
+import { canAct, isAdmin } from "@/lib/auth/viewer";
+import Link from "next/link";
 import { requirePageViewer } from "../../../(auth)/auth";
 
 export const dynamic = "force-dynamic";
@@ -29,10 +30,15 @@ export default async function SitePage({ params }: Props) {
         <p className="text-muted">
           {site.customer.name} · {site.address} · {site.timeZone}
         </p>
+        {isAdmin(viewer) ? (
+          <Link href={`/sites/${site.id}/gateways`} className="text-sm underline">
+            Gateways and point maps
+          </Link>
+        ) : null}
       </header>
       <SiteWarnings siteId={site.id} canAct={canAct(viewer)} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
       <h2 className="mb-2 mt-8 text-lg font-semibold">Equipment and points</h2>
-      <EquipmentTable equipment={site.equipment} unitSystem={viewer.unitSystem} />
+      <LivePoints siteId={site.id} equipment={site.equipment} unitSystem={viewer.unitSystem} />
     </article>
   );
 }

@@ -1,0 +1,106 @@
+"use client";
+
+import { useEffect, useMemo, useRef, useState } from "react";
+import useSWR from "swr";
+import type uPlot from "uplot";
+import "uplot/dist/uPlot.min.css";
+import type { SeriesDto } from "@/db/queries/readings";
+import { fetchJson } from "@/lib/client/fetcher";
+import type { Measure } from "@/lib/quantities";
+import { fromCanonical, type UnitSystem } from "@/lib/units";
+import { useSiteEvents } from "@/components/realtime/use-site-events";
+
+export const ranges = { "1 h": 3600, "24 h": 86_400, "7 d": 7 * 86_400, "30 d": 30 * 86_400 } as const;
+type RangeLabel = keyof typeof ranges;
+
+/** Range start, rounded to the minute so the request stays cacheable while the range is shown. */
+function rangeStartMs(range: RangeLabel): number {
+  return Math.floor(Date.now() / 60_000) * 60_000 - ranges[range] * 1000;
+}
+
+/**
+ * One point's trend: min/max band (spikes stay visible) and average, over a chosen range,
+ * appending live values as they arrive. Drag across the chart to zoom; double-click to reset.
+ */
+export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { siteId: string; pointId: number; measure: Measure; unitSystem: UnitSystem; label: string }) {
+  const [view, setView] = useState(() => ({ range: "1 h" as RangeLabel, fromMs: rangeStartMs("1 h") }));
+  const range = view.range;
+  const box = useRef<HTMLDivElement>(null);
+  const plot = useRef<uPlot | null>(null);
+  const key = `/api/points/${pointId}/series?maxPoints=600&from=${view.fromMs}`;
+  // Live values belong to the request they extend; a new range starts a new tail.
+  const [liveTail, setLiveTail] = useState<{ key: string; points: Array<[number, number]> }>({ key, points: [] });
+  const live = useMemo(() => (liveTail.key === key ? liveTail.points : []), [liveTail, key]);
+  const { data, error } = useSWR<{ series: SeriesDto }>(key, fetchJson);
+
+  useSiteEvents(
+    { siteId },
+    {
+      onValues: (v) => {
+        for (const p of v.values) {
+          if (p.pointId === pointId && typeof p.value === "number") {
+            const shown = fromCanonical(p.value, measure, unitSystem);
+            setLiveTail((prev) => ({ key, points: [...(prev.key === key ? prev.points.slice(-2000) : []), [p.tsMs, shown]] }));
+          }
+        }
+      },
+    },
+  );
+
+  useEffect(() => {
+    const s = data?.series;
+    if (!s || !box.current) return;
+    let disposed = false;
+    void import("uplot").then(({ default: UPlot }) => {
+      if (disposed || !box.current) return;
+      const lastT = s.time.length ? s.time[s.time.length - 1] : 0;
+      const tail = live.filter(([t]) => t > lastT);
+      const xs = [...s.time, ...tail.map(([t]) => t)].map((t) => t / 1000);
+      const avg = [...s.avg, ...tail.map(([, v]) => v)];
+      const min = [...s.min, ...tail.map(([, v]) => v)];
+      const max = [...s.max, ...tail.map(([, v]) => v)];
+      const opts: uPlot.Options = {
+        width: box.current.clientWidth || 600,
+        height: 280,
+        scales: { x: { time: true } },
+        axes: [{ font: "11px Inter, sans-serif" }, { label: s.unit, font: "11px Inter, sans-serif", size: 56 }],
+        series: [
+          {},
+          { label: "min", stroke: "#8a8f96", width: 1 },
+          { label: "max", stroke: "#8a8f96", width: 1 },
+          { label: `${label} (${s.unit})`, stroke: "#1f2328", width: 2 },
+        ],
+        bands: [{ series: [2, 1], fill: "rgba(138,143,150,0.2)" }],
+        cursor: { drag: { x: true, y: false } },
+      };
+      plot.current?.destroy();
+      plot.current = new UPlot(opts, [xs, min, max, avg], box.current);
+    });
+    return () => {
+      disposed = true;
+    };
+  }, [data, live, label]);
+
+  useEffect(() => () => plot.current?.destroy(), []);
+
+  return (
+    <div className="flex flex-col gap-3">
+      <div role="group" aria-label="Range" className="flex flex-wrap gap-2">
+        {(Object.keys(ranges) as RangeLabel[]).map((r) => (
+          <button key={r} type="button" aria-pressed={r === range} onClick={() => setView({ range: r, fromMs: rangeStartMs(r) })} className={`min-h-11 rounded border px-4 text-sm ${r === range ? "border-ink bg-ink text-white" : "border-line bg-panel"}`}>
+            {r}
+          </button>
+        ))}
+      </div>
+      {error ? <p className="text-alarm">{error.message}</p> : null}
+      {data && data.series.time.length === 0 && live.length === 0 ? <p className="text-muted">No readings in this range.</p> : null}
+      <div ref={box} className="w-full overflow-hidden rounded-lg border border-line bg-panel p-2" data-testid="trend" role="img" aria-label={`Trend of ${label}`} />
+      {data ? (
+        <p className="text-xs text-muted">
+          {data.series.source === "raw" ? "Raw readings" : "1-minute rollups"}
+          {data.series.bucketMs ? `, ${Math.round(data.series.bucketMs / 1000)} s buckets (min/max band, average line)` : ""}. Drag to zoom, double-click to reset.
+        </p>
+      ) : null}
+    </div>
+  );
+}
