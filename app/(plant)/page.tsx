@@ -2,6 +2,7 @@ import { getDb } from "@/db/client";
 import { listSites } from "@/db/queries/sites";
 import { SiteBoard } from "@/components/sites/site-board";
 import { siteStatuses } from "@/lib/server/board/site-status";
+import { canAct } from "@/lib/auth/viewer";
 import { requirePageViewer } from "../(auth)/auth";
 
 export const dynamic = "force-dynamic";
@@ -11,5 +12,5 @@ export default async function BoardPage() {
   const db = getDb();
   const sites = listSites(db, viewer);
   const statuses = siteStatuses(db, viewer, sites.map((s) => s.id));
-  return <SiteBoard fallback={sites.map((s) => ({ ...s, status: statuses.get(s.id) }))} />;
+  return <SiteBoard fallback={sites.map((s) => ({ ...s, status: statuses.get(s.id) }))} canAct={canAct(viewer)} />;
 }

@@ -19,7 +19,7 @@ function severity(s: BoardSite): number {
   return w ? w.priority * 2 - (w.active ? 1 : 0) : 99;
 }
 
-export function SiteBoard({ fallback }: { fallback: BoardSite[] }) {
+export function SiteBoard({ fallback, canAct }: { fallback: BoardSite[]; canAct: boolean }) {
   const { data, error, mutate } = useSWR<{ sites: BoardSite[] }>("/api/sites", fetchJson, { fallbackData: { sites: fallback } });
   useSiteEvents("board", {
     onStatus: (status) =>
@@ -61,7 +61,7 @@ export function SiteBoard({ fallback }: { fallback: BoardSite[] }) {
                       {crossover ? <span className="text-sm font-semibold text-alarm">Loops heading for crossover</span> : null}
                     </div>
                     <p className="text-sm font-semibold leading-snug">
-                      {w.equipment}: {w.title}
+                      {w.equipment}: {canAct ? w.title : w.ownerTitle}
                     </p>
                   </div>
                 ) : (

@@ -18,7 +18,8 @@ export interface SiteValues {
 export interface SiteStatus {
   siteId: string;
   data: "live" | "stale" | "no_gateway" | "offline";
-  worst: { priority: number; ruleId: string; equipment: string; title: string; active: boolean } | null;
+  /** `title` is for technicians; `ownerTitle` says the same in plain words for building owners. */
+  worst: { priority: number; ruleId: string; equipment: string; title: string; ownerTitle: string; active: boolean } | null;
   unacknowledged: number;
 }
 

@@ -1,26 +1,28 @@
 import type { Db } from "@/db/client";
-import { alarmSummaryBySite } from "@/db/queries/alarms";
-import { canAct, type Viewer } from "@/lib/auth/viewer";
+import { alarmSummaryBySite, type AlarmDto } from "@/db/queries/alarms";
+import type { Viewer } from "@/lib/auth/viewer";
 import type { SiteStatus } from "@/lib/realtime/events";
 import { getRuntime } from "../runtime";
 
+type AlarmSide = Pick<SiteStatus, "worst" | "unacknowledged">;
+
+function toWorst(worst: AlarmDto | null | undefined): SiteStatus["worst"] {
+  if (!worst) return null;
+  const d = worst.detail;
+  return { priority: worst.priority, ruleId: worst.ruleId, equipment: worst.equipment, title: d.technicianMessage, ownerTitle: d.ownerMessage || d.technicianMessage, active: worst.conditionActive };
+}
+
+/** The alarm half of a site's board status (worst active alarm, unacknowledged count). */
+export function alarmSide(summary: Map<string, { worst: AlarmDto | null; unacknowledged: number }>, siteId: string): AlarmSide {
+  const a = summary.get(siteId);
+  return { worst: toWorst(a?.worst), unacknowledged: a?.unacknowledged ?? 0 };
+}
+
 /** Each visible site's board status: data freshness, worst active alarm, unacknowledged count. */
 export function siteStatuses(db: Db, viewer: Viewer, siteIds: readonly string[]): Map<string, SiteStatus> {
-  const alarms = alarmSummaryBySite(db, viewer);
+  const summary = alarmSummaryBySite(db, viewer);
   const dataStatus = getRuntime()?.siteDataStatus;
-  const staff = canAct(viewer);
   const out = new Map<string, SiteStatus>();
-  for (const siteId of siteIds) {
-    const a = alarms.get(siteId);
-    const worst = a?.worst;
-    out.set(siteId, {
-      siteId,
-      data: dataStatus ? dataStatus(siteId) : "no_gateway",
-      worst: worst
-        ? { priority: worst.priority, ruleId: worst.ruleId, equipment: worst.equipment, title: staff ? worst.detail.technicianMessage : worst.detail.ownerMessage || worst.detail.technicianMessage, active: worst.conditionActive }
-        : null,
-      unacknowledged: a?.unacknowledged ?? 0,
-    });
-  }
+  for (const siteId of siteIds) out.set(siteId, { siteId, data: dataStatus ? dataStatus(siteId) : "no_gateway", ...alarmSide(summary, siteId) });
   return out;
 }

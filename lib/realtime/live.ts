@@ -1,0 +1,104 @@
+import type { Db } from "@/db/client";
+import { siteDataStatuses } from "@/db/queries/readings";
+import { siteRoom, type SiteStatus, type SiteValues } from "./events";
+import type { RealtimeServer } from "./server";
+
+// Live values to browsers: the latest value per point is kept in memory, and each site room
+// gets at most one `site:values` per push interval with only the points that changed, so
+// the fan-out grows with sites watched, not with readings received.
+
+type Value = SiteValues["values"][number];
+
+export interface LiveRow {
+  pointId: number;
+  siteId: string;
+  ts: number;
+  live: number | boolean | string;
+  quality: 0 | 1 | 2;
+}
+
+export interface LivePublisherOptions {
+  io: Pick<RealtimeServer, "to">;
+  db: Db;
+  clock?: { now(): number };
+  /** Coalescing window for `site:values` (a few per second at most). */
+  pushMs?: number;
+  /** How often site data status is re-evaluated (stale after 3× interval, silence). */
+  statusMs?: number;
+  /** The alarm side of `site:status`; another module owns it. */
+  alarmSummary?: (siteId: string) => Pick<SiteStatus, "worst" | "unacknowledged">;
+}
+
+export interface LivePublisher {
+  onCommitted(rows: LiveRow[]): void;
+  /** Re-evaluate site status soon (presence changed). */
+  touch(siteId: string): void;
+  latest(pointId: number): Value | undefined;
+  flushNow(): void;
+  stop(): void;
+}
+
+const qualityNames = ["good", "uncertain", "bad"] as const;
+
+export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
+  const now = () => opts.clock?.now() ?? Date.now();
+  const latest = new Map<number, Value>();
+  const pending = new Map<string, Map<number, Value>>();
+  const lastStatus = new Map<string, string>();
+  let statusDue = true;
+
+  function pushValues() {
+    if (pending.size === 0) return;
+    for (const [siteId, values] of pending) {
+      const payload: SiteValues = { siteId, values: [...values.values()] };
+      opts.io.to(siteRoom(siteId)).emit("site:values", payload);
+    }
+    pending.clear();
+  }
+
+  function pushStatus() {
+    statusDue = false;
+    const statuses = siteDataStatuses(opts.db, now());
+    for (const [siteId, s] of statuses) {
+      const extras = opts.alarmSummary?.(siteId) ?? { worst: null, unacknowledged: 0 };
+      const payload: SiteStatus = { siteId, data: s.data, ...extras };
+      const key = JSON.stringify(payload);
+      if (lastStatus.get(siteId) === key) continue;
+      lastStatus.set(siteId, key);
+      opts.io.to(siteRoom(siteId)).emit("site:status", payload);
+    }
+  }
+
+  const valuesTimer = setInterval(pushValues, opts.pushMs ?? 200);
+  const statusTimer = setInterval(pushStatus, opts.statusMs ?? 2000);
+  // A presence change shows within a second instead of waiting for the next full round.
+  const dueTimer = setInterval(() => statusDue && pushStatus(), 500);
+  for (const t of [valuesTimer, statusTimer, dueTimer]) t.unref();
+
+  return {
+    onCommitted(rows) {
+      for (const r of rows) {
+        const prev = latest.get(r.pointId);
+        // Out-of-order readings are stored but do not replace a newer live value.
+        if (prev && prev.tsMs > r.ts) continue;
+        const v: Value = { pointId: r.pointId, tsMs: r.ts, value: r.live, quality: qualityNames[r.quality] };
+        latest.set(r.pointId, v);
+        let site = pending.get(r.siteId);
+        if (!site) pending.set(r.siteId, (site = new Map()));
+        site.set(r.pointId, v);
+        if (!prev) statusDue = true;
+      }
+    },
+    touch() {
+      statusDue = true;
+    },
+    latest: (pointId) => latest.get(pointId),
+    flushNow() {
+      pushValues();
+      pushStatus();
+    },
+    stop() {
+      for (const t of [valuesTimer, statusTimer, dueTimer]) clearInterval(t);
+    },
+  };
+}
