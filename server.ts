@@ -1,12 +1,13 @@
 // Liftline's one process: the web app (Next), live updates (socket.io) and the MQTT broker
 // the site gateways publish to, on one machine. This file only wires parts together.
-import { randomBytes } from "node:crypto";
 import { createServer, type IncomingMessage } from "node:http";
 import path from "node:path";
 import next from "next";
 import { migrateDb, openDb, setDb } from "./db/client";
 import { demoAccounts, seedDemo } from "./db/seed/demo";
-import { startEmbeddedBroker, type BrokerAuth, type EmbeddedBroker } from "./gateway/broker";
+import { loadGatewayConfig } from "./gateway/config";
+import { startGatewaySide, type GatewaySide } from "./gateway/index";
+import { createLivePublisher } from "./lib/realtime/live";
 import { createRealtimeServer } from "./lib/realtime/server";
 import { buildIfNeeded } from "./lib/server/build";
 import { loadConfig } from "./lib/server/config";
@@ -18,9 +19,9 @@ process.env.NEXT_TELEMETRY_DISABLED = "1";
 const CLIENT_ADDRESS_HEADER = "x-liftline-client-address";
 const log = (line: string) => console.log(line);
 
-const config = (() => {
+const { config, gatewayConfig } = (() => {
   try {
-    return loadConfig();
+    return { config: loadConfig(), gatewayConfig: loadGatewayConfig() };
   } catch (err) {
     console.error(err instanceof Error ? err.message : err);
     process.exit(1);
@@ -66,28 +67,29 @@ httpServer.on("upgrade", (req, socket, head) => {
 
 const io = createRealtimeServer(httpServer, { db, secret: authSecret });
 
-// The server's own components connect to the broker with this credential; it is never
-// written anywhere and changes on every start.
-const internalCredential = { username: "liftline-internal", password: randomBytes(24).toString("base64url") };
-const brokerAuth: BrokerAuth = {
-  async authenticate(username, password) {
-    if (username === internalCredential.username && password === internalCredential.password) return { kind: "internal" };
-    return "bad_credentials";
-  },
-  canPublish: (identity) => identity.kind === "internal",
-  canSubscribe: (identity) => identity.kind === "internal",
-};
-
-let broker: EmbeddedBroker | undefined;
+// Live values are pushed per site room after each commit; the gateway side is the broker
+// (embedded, or a client of MQTT_URL), ingest, the batched writer and retention.
+const live = createLivePublisher({ io, db, pushMs: gatewayConfig.LIVE_PUSH_MS });
+let gatewaySide: GatewaySide;
 try {
-  broker = await startEmbeddedBroker({ host: config.HOST, port: config.MQTT_PORT, auth: brokerAuth, log });
+  gatewaySide = await startGatewaySide({
+    db,
+    live,
+    config: gatewayConfig,
+    host: config.HOST,
+    mqttPort: config.MQTT_PORT,
+    mqttUrl: config.MQTT_URL,
+    rawRetentionDays: config.RAW_RETENTION_DAYS,
+    log,
+  });
 } catch (err) {
-  console.error(`Could not start the MQTT broker on port ${config.MQTT_PORT}: ${err instanceof Error ? err.message : err}`);
+  const where = config.MQTT_URL ? `connect to the MQTT broker at ${config.MQTT_URL}` : `start the MQTT broker on port ${config.MQTT_PORT}`;
+  console.error(`Could not ${where}: ${err instanceof Error ? err.message : err}`);
   process.exit(1);
 }
 
 setRuntime({
-  status: () => ({ broker: { mode: "embedded", up: broker !== undefined, clients: broker?.connectedClients() ?? 0 } }),
+  status: () => ({ broker: { mode: gatewaySide.mode, ...gatewaySide.status() } }),
 });
 
 await new Promise<void>((resolve, reject) => {
@@ -97,7 +99,7 @@ await new Promise<void>((resolve, reject) => {
 const address = httpServer.address();
 const httpPort = typeof address === "object" && address ? address.port : config.PORT;
 
-log(`Liftline is running at ${publicUrl} (${dev ? "development" : "production"}; HTTP port ${httpPort}, MQTT port ${broker.port})`);
+log(`Liftline is running at ${publicUrl} (${dev ? "development" : "production"}; HTTP port ${httpPort}, ${gatewaySide.mqttPort === null ? `MQTT broker ${config.MQTT_URL}` : `MQTT port ${gatewaySide.mqttPort}`})`);
 if (config.LIFTLINE_DEMO) {
   log(`Demo sign-ins (demo data only; password: ${config.LIFTLINE_DEMO_PASSWORD}):`);
   for (const a of demoAccounts()) log(`  ${a.role.padEnd(10)} ${a.email.padEnd(32)} ${a.organization}`);
@@ -111,7 +113,9 @@ async function shutdown(signal: string) {
   const force = setTimeout(() => process.exit(1), 10_000);
   force.unref();
   try {
-    await broker?.close();
+    // Stop taking messages, commit what was accepted, then stop pushing.
+    await gatewaySide.close();
+    live.stop();
     io.close();
     await new Promise<void>((resolve) => httpServer.close(() => resolve()));
     await app.close?.();

@@ -5,7 +5,9 @@ import { Aedes, type AuthenticateError, type Client, type PublishPacket } from "
 // can drive it over any duplex stream; who may connect, publish and subscribe is injected.
 
 /** Who a connected client is, decided once at CONNECT. */
-export type ClientIdentity = { kind: "internal" } | { kind: "gateway"; gatewayId: string };
+export type ClientIdentity =
+  | { kind: "internal" }
+  | { kind: "gateway"; gatewayId: string; siteId: string; protocol: "json" | "sparkplug"; groupId: string | null; edgeNodeId: string | null };
 
 export interface BrokerAuth {
   authenticate(username: string | undefined, password: string | undefined): Promise<ClientIdentity | "bad_credentials" | "not_authorized">;
@@ -25,6 +27,10 @@ export interface EmbeddedBrokerOptions {
   port: number;
   auth: BrokerAuth;
   onPublish?: PublishGate;
+  /** A publish canPublish refused (the client is then disconnected, MQTT 3.1.1 §3.3.5). */
+  onRefusedPublish?: (identity: ClientIdentity, topic: string) => void;
+  /** A client finished CONNECT / went away (for gateway presence). */
+  onClientChange?: (identity: ClientIdentity, change: "connected" | "disconnected") => void;
   log?: (line: string) => void;
 }
 
@@ -32,6 +38,10 @@ export interface EmbeddedBroker {
   aedes: Aedes;
   port: number;
   connectedClients(): number;
+  /** Publishes on behalf of the server (commands, Sparkplug rebirth requests, STATE). */
+  publish(topic: string, payload: Buffer, opts?: { qos?: 0 | 1; retain?: boolean }): Promise<void>;
+  /** Drops every connection of a gateway (after a revoke or password rotation). */
+  disconnectGateway(gatewayId: string): number;
   close(): Promise<void>;
 }
 
@@ -67,7 +77,11 @@ export async function startEmbeddedBroker(opts: EmbeddedBrokerOptions): Promise<
       // The broker's own $SYS topics are never writable by clients.
       if (packet.topic.startsWith("$SYS/")) return callback(new Error("$SYS is reserved"));
       const identity = client ? identities.get(client) : undefined;
-      if (!identity || !opts.auth.canPublish(identity, packet.topic)) return callback(new Error("not allowed to publish here"));
+      if (!identity) return callback(new Error("not allowed to publish here"));
+      if (!opts.auth.canPublish(identity, packet.topic)) {
+        opts.onRefusedPublish?.(identity, packet.topic);
+        return callback(new Error("not allowed to publish here"));
+      }
       if (!opts.onPublish) return callback(null);
       opts.onPublish(identity, packet).then(
         () => callback(null),
@@ -79,9 +93,20 @@ export async function startEmbeddedBroker(opts: EmbeddedBrokerOptions): Promise<
     },
     authorizeSubscribe(client, subscription, callback) {
       const identity = identities.get(client);
-      if (!identity || !opts.auth.canSubscribe(identity, subscription.topic)) return callback(new Error("not allowed to subscribe here"));
+      // MQTT 3.1.1 §3.9.3: a refused subscription gets return code 0x80 in SUBACK; the
+      // connection stays up (aedes grants 128 for a null subscription).
+      if (!identity || !opts.auth.canSubscribe(identity, subscription.topic)) return callback(null, null);
       callback(null, subscription);
     },
+  });
+
+  aedes.on("client", (client) => {
+    const identity = identities.get(client);
+    if (identity) opts.onClientChange?.(identity, "connected");
+  });
+  aedes.on("clientDisconnect", (client) => {
+    const identity = identities.get(client);
+    if (identity) opts.onClientChange?.(identity, "disconnected");
   });
 
   const server = net.createServer(aedes.handle);
@@ -99,6 +124,24 @@ export async function startEmbeddedBroker(opts: EmbeddedBrokerOptions): Promise<
     aedes,
     port,
     connectedClients: () => aedes.connectedClients,
+    publish(topic, payload, o) {
+      return new Promise<void>((resolve, reject) => {
+        aedes.publish({ cmd: "publish", topic, payload, qos: o?.qos ?? 0, retain: o?.retain ?? false, dup: false }, (err) => (err ? reject(err) : resolve()));
+      });
+    },
+    disconnectGateway(gatewayId) {
+      let n = 0;
+      // aedes keeps connected clients by id; its typings do not declare the map.
+      const clients = (aedes as unknown as { clients: Record<string, Client> }).clients;
+      for (const client of Object.values(clients)) {
+        const identity = identities.get(client);
+        if (identity?.kind === "gateway" && identity.gatewayId === gatewayId) {
+          client.close();
+          n++;
+        }
+      }
+      return n;
+    },
     async close() {
       await new Promise<void>((resolve) => aedes.close(() => resolve()));
       await new Promise<void>((resolve) => server.close(() => resolve()));

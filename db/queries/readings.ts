@@ -1,0 +1,322 @@
+import { and, asc, eq, gte, lt, sql } from "drizzle-orm";
+import type { Db } from "../client";
+import { equipment, gatewayPointMaps, gateways, latestValues, points, readings, readings1m, sites } from "../schema";
+import { canSeeSite } from "./sites";
+import { listGatewayPresence } from "./gateways";
+import type { Viewer } from "@/lib/auth/viewer";
+import { notFound } from "@/lib/errors";
+import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
+import { displayUnit, formatValue, fromCanonical } from "@/lib/units";
+import { isOnline, isStale, siteDataState, silenceMs, type SiteDataState } from "@/gateway/status";
+
+// Reading data for screens: trends (raw or 1-minute rollups, bucketed with min/max so spikes
+// stay visible) and the latest value of every point with its age. Viewer-scoped.
+
+const MINUTE_MS = 60_000;
+const qualityNames = ["good", "uncertain", "bad"] as const;
+
+export interface SeriesQuery {
+  fromMs: number;
+  toMs: number;
+  maxPoints: number;
+}
+
+export interface SeriesDto {
+  pointId: number;
+  quantity: string;
+  measure: Measure;
+  /** The unit `min`/`max`/`avg` are in (the viewer's IP or SI preference). */
+  unit: string;
+  unitSystem: "ip" | "si";
+  from: string;
+  to: string;
+  source: "raw" | "rollup_1m";
+  /** Bucket width; null when every raw reading is returned as is. */
+  bucketMs: number | null;
+  /** Columnar: time[i] (ms since epoch, bucket start) goes with min[i], max[i], avg[i], count[i]. */
+  time: number[];
+  min: number[];
+  max: number[];
+  avg: number[];
+  count: number[];
+  /** State and text points: the raw values (newest maxPoints of the range). */
+  text?: string[];
+}
+
+interface PointInfo {
+  pointId: number;
+  siteId: string;
+  quantity: string;
+  measure: Measure;
+}
+
+function pointInfo(db: Db, viewer: Viewer, pointId: number): PointInfo {
+  const row = db
+    .select({ pointId: points.id, siteId: equipment.siteId, quantity: points.quantity })
+    .from(points)
+    .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+    .where(eq(points.id, pointId))
+    .get();
+  // A point of a site the viewer may not see does not exist for them.
+  if (!row || !canSeeSite(db, viewer, row.siteId)) throw notFound("No such point.");
+  const q = quantities[row.quantity as QuantityKey];
+  return { ...row, measure: q?.measure ?? "text" };
+}
+
+export function getSeries(db: Db, viewer: Viewer, pointId: number, q: SeriesQuery, opts: { nowMs: number; rawRetentionMs: number }): SeriesDto {
+  const p = pointInfo(db, viewer, pointId);
+  const system = viewer.unitSystem;
+  const span = Math.max(1, q.toMs - q.fromMs);
+  const base = {
+    pointId,
+    quantity: p.quantity,
+    measure: p.measure,
+    unit: displayUnit(p.measure, system),
+    unitSystem: system,
+    from: new Date(q.fromMs).toISOString(),
+    to: new Date(q.toMs).toISOString(),
+  };
+  const conv = (v: number) => fromCanonical(v, p.measure, system);
+  const inRange = and(eq(readings.pointId, pointId), gte(readings.ts, q.fromMs), lt(readings.ts, q.toMs));
+
+  if (p.measure === "state" || p.measure === "text") {
+    const rows = db
+      .select({ ts: readings.ts, text: readings.text })
+      .from(readings)
+      .where(inRange)
+      .orderBy(sql`${readings.ts} desc`)
+      .limit(q.maxPoints)
+      .all()
+      .reverse();
+    return { ...base, source: "raw", bucketMs: null, time: rows.map((r) => r.ts), min: [], max: [], avg: [], count: [], text: rows.map((r) => r.text ?? "") };
+  }
+
+  const rawWidth = Math.ceil(span / q.maxPoints);
+  const useRollups = rawWidth >= MINUTE_MS || q.fromMs < opts.nowMs - opts.rawRetentionMs;
+
+  if (!useRollups) {
+    const n = db.select({ n: sql<number>`count(*)` }).from(readings).where(inRange).get()?.n ?? 0;
+    if (n <= q.maxPoints) {
+      const rows = db
+        .select({ ts: readings.ts, value: readings.value })
+        .from(readings)
+        .where(and(inRange, sql`${readings.value} is not null`))
+        .orderBy(asc(readings.ts))
+        .all();
+      const v = rows.map((r) => conv(r.value!));
+      return { ...base, source: "raw", bucketMs: null, time: rows.map((r) => r.ts), min: v, max: v, avg: v, count: rows.map(() => 1) };
+    }
+    const w = Math.trunc(rawWidth);
+    const rows = db
+      .select({
+        // Inlined: a bound JS number arrives as REAL and the division would not floor.
+        t: sql<number>`(${readings.ts} / ${sql.raw(String(w))}) * ${sql.raw(String(w))}`,
+        min: sql<number>`min(${readings.value})`,
+        max: sql<number>`max(${readings.value})`,
+        avg: sql<number>`avg(${readings.value})`,
+        count: sql<number>`count(${readings.value})`,
+      })
+      .from(readings)
+      .where(and(inRange, sql`${readings.value} is not null`))
+      .groupBy(sql`1`)
+      .orderBy(sql`1`)
+      .all();
+    return columnar(base, "raw", w, rows, conv);
+  }
+
+  // Rollup buckets are whole minutes, so the width is too.
+  const w = Math.max(MINUTE_MS, Math.ceil(rawWidth / MINUTE_MS) * MINUTE_MS);
+  const rows = db
+    .select({
+      t: sql<number>`(${readings1m.bucket} / ${sql.raw(String(w))}) * ${sql.raw(String(w))}`,
+      min: sql<number>`min(${readings1m.min})`,
+      max: sql<number>`max(${readings1m.max})`,
+      avg: sql<number>`sum(${readings1m.sum}) / sum(${readings1m.count})`,
+      count: sql<number>`sum(${readings1m.count})`,
+    })
+    .from(readings1m)
+    .where(and(eq(readings1m.pointId, pointId), gte(readings1m.bucket, Math.floor(q.fromMs / MINUTE_MS) * MINUTE_MS), lt(readings1m.bucket, q.toMs)))
+    .groupBy(sql`1`)
+    .orderBy(sql`1`)
+    .all();
+  return columnar(base, "rollup_1m", w, rows, conv);
+}
+
+function columnar(
+  base: Omit<SeriesDto, "source" | "bucketMs" | "time" | "min" | "max" | "avg" | "count">,
+  source: SeriesDto["source"],
+  width: number,
+  rows: Array<{ t: number; min: number; max: number; avg: number; count: number }>,
+  conv: (v: number) => number,
+): SeriesDto {
+  return {
+    ...base,
+    source,
+    bucketMs: width,
+    time: rows.map((r) => r.t),
+    min: rows.map((r) => conv(r.min)),
+    max: rows.map((r) => conv(r.max)),
+    avg: rows.map((r) => conv(r.avg)),
+    count: rows.map((r) => r.count),
+  };
+}
+
+export interface LatestPointDto {
+  pointId: number;
+  equipmentId: string;
+  equipmentTag: string;
+  key: string;
+  quantity: string;
+  measure: Measure;
+  /** Canonical SI unit of `value` (the same as `site:values` socket updates carry). */
+  unit: string;
+  value: number | boolean | string | null;
+  /** `value` formatted in the viewer's units, "—" when there is none. */
+  display: string;
+  ts: string | null;
+  tsMs: number | null;
+  ageS: number | null;
+  /** Older than 3× the point's expected interval, or never received. */
+  stale: boolean;
+  quality: "good" | "uncertain" | "bad" | null;
+  expectedIntervalS: number;
+  mapped: boolean;
+}
+
+export interface SiteLatestDto {
+  siteId: string;
+  at: string;
+  data: SiteDataState;
+  gateways: Array<{ id: string; name: string; protocol: string; online: boolean; lastMessageAt: string | null }>;
+  points: LatestPointDto[];
+}
+
+function liveValue(measure: Measure, value: number | null, text: string | null): number | boolean | string | null {
+  if (measure === "boolean") return value === null ? null : value !== 0;
+  if (measure === "state" || measure === "text") return text;
+  return value;
+}
+
+export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: number): SiteLatestDto {
+  if (!canSeeSite(db, viewer, siteId)) throw notFound("No such site.");
+  const rows = db
+    .select({
+      pointId: points.id,
+      equipmentId: equipment.id,
+      equipmentTag: equipment.tag,
+      key: points.key,
+      quantity: points.quantity,
+      unit: points.unit,
+      expectedIntervalS: points.expectedIntervalS,
+      ts: latestValues.ts,
+      value: latestValues.value,
+      text: latestValues.text,
+      quality: latestValues.quality,
+      mapped: sql<number>`exists (select 1 from ${gatewayPointMaps} m join ${gateways} g on g.id = m.gateway_id where m.point_id = ${points.id} and g.revoked_at is null)`,
+    })
+    .from(points)
+    .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+    .leftJoin(latestValues, eq(latestValues.pointId, points.id))
+    .where(eq(equipment.siteId, siteId))
+    .orderBy(asc(equipment.tag), asc(points.id))
+    .all();
+  const out: LatestPointDto[] = rows.map((r) => {
+    const measure = quantities[r.quantity as QuantityKey]?.measure ?? "text";
+    const value = r.ts === null ? null : liveValue(measure, r.value, r.text);
+    return {
+      pointId: r.pointId,
+      equipmentId: r.equipmentId,
+      equipmentTag: r.equipmentTag,
+      key: r.key,
+      quantity: r.quantity,
+      measure,
+      unit: r.unit,
+      value,
+      display: formatValue(value, measure, viewer.unitSystem),
+      ts: r.ts === null ? null : new Date(r.ts).toISOString(),
+      tsMs: r.ts,
+      ageS: r.ts === null ? null : Math.max(0, Math.round((nowMs - r.ts) / 1000)),
+      stale: r.ts === null || isStale(r.ts, r.expectedIntervalS, nowMs),
+      quality: r.quality === null ? null : qualityNames[r.quality] ?? "bad",
+      expectedIntervalS: r.expectedIntervalS,
+      mapped: r.mapped === 1,
+    };
+  });
+  const status = siteDataStatuses(db, nowMs, siteId).get(siteId);
+  const gws = db
+    .select({ id: gateways.id, name: gateways.name, protocol: gateways.protocol, revokedAt: gateways.revokedAt })
+    .from(gateways)
+    .where(eq(gateways.siteId, siteId))
+    .all()
+    .filter((g) => g.revokedAt === null);
+  return {
+    siteId,
+    at: new Date(nowMs).toISOString(),
+    data: status?.data ?? "no_gateway",
+    gateways: gws.map((g) => {
+      const p = status?.gateways.get(g.id);
+      return { id: g.id, name: g.name, protocol: g.protocol, online: p?.online ?? false, lastMessageAt: p?.lastMessageAtMs ? new Date(p.lastMessageAtMs).toISOString() : null };
+    }),
+    points: out,
+  };
+}
+
+export interface SiteStatusRow {
+  data: SiteDataState;
+  gateways: Map<string, { online: boolean; lastMessageAtMs: number | null }>;
+}
+
+/**
+ * Data status of every site (or one): system function for the live publisher and the
+ * latest-values API. One aggregate query over mapped points, not a scan of readings.
+ */
+export function siteDataStatuses(db: Db, nowMs: number, onlySiteId?: string): Map<string, SiteStatusRow> {
+  const freshness = db
+    .select({
+      gatewayId: gatewayPointMaps.gatewayId,
+      mapped: sql<number>`count(*)`,
+      fresh: sql<number>`sum(case when ${latestValues.ts} >= ${nowMs} - 3000 * ${points.expectedIntervalS} then 1 else 0 end)`,
+      slowest: sql<number>`max(${points.expectedIntervalS})`,
+    })
+    .from(gatewayPointMaps)
+    .innerJoin(gateways, eq(gateways.id, gatewayPointMaps.gatewayId))
+    .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
+    .leftJoin(latestValues, eq(latestValues.pointId, gatewayPointMaps.pointId))
+    .where(onlySiteId ? eq(gateways.siteId, onlySiteId) : undefined)
+    .groupBy(gatewayPointMaps.gatewayId)
+    .all();
+  const byGateway = new Map(freshness.map((f) => [f.gatewayId, f]));
+  const acc = new Map<string, { gateways: number; online: number; mapped: number; fresh: number; rows: SiteStatusRow["gateways"] }>();
+  const siteIds = onlySiteId ? [onlySiteId] : db.select({ id: sites.id }).from(sites).all().map((s) => s.id);
+  for (const id of siteIds) acc.set(id, { gateways: 0, online: 0, mapped: 0, fresh: 0, rows: new Map() });
+  for (const g of listGatewayPresence(db)) {
+    const a = acc.get(g.siteId);
+    if (!a || g.revoked) continue;
+    const f = byGateway.get(g.gatewayId);
+    const online = isOnline({ ...g, silenceMs: silenceMs(f?.slowest) }, nowMs);
+    a.gateways++;
+    if (online) a.online++;
+    a.mapped += f?.mapped ?? 0;
+    a.fresh += f?.fresh ?? 0;
+    a.rows.set(g.gatewayId, { online, lastMessageAtMs: g.lastMessageAtMs });
+  }
+  const out = new Map<string, SiteStatusRow>();
+  for (const [id, a] of acc) out.set(id, { data: siteDataState({ gateways: a.gateways, online: a.online, mappedPoints: a.mapped, freshPoints: a.fresh }), gateways: a.rows });
+  return out;
+}
+
+/** All point ids, for the pruner to walk one primary-key range at a time. */
+export function allPointIds(db: Db): number[] {
+  return db.select({ id: points.id }).from(points).orderBy(asc(points.id)).all().map((p) => p.id);
+}
+
+/**
+ * Background pruning of one point's old rows, at most `limit` per call. The primary key is
+ * (point_id, ts), so this is a range delete, never a table scan.
+ */
+export function pruneChunk(db: Db, table: "readings" | "readings_1m", pointId: number, beforeMs: number, limit = 5000): number {
+  const col = table === "readings" ? "ts" : "bucket";
+  return db.$client
+    .prepare(`delete from ${table} where point_id = ? and ${col} in (select ${col} from ${table} where point_id = ? and ${col} < ? order by ${col} limit ?)`)
+    .run(pointId, pointId, beforeMs, limit).changes;
+}

@@ -1,0 +1,66 @@
+import type { Db } from "@/db/client";
+import { verifyGatewayCredentials } from "@/db/queries/gateways";
+import type { BrokerAuth, ClientIdentity } from "./broker";
+import { parseTopic, SPARKPLUG_NAMESPACE, TOPIC_ROOT } from "./contract";
+import { stateTopic } from "./sparkplug";
+
+// Who may connect to the embedded broker, and where each client may publish and subscribe.
+// A gateway publishes only under its own topics and subscribes only to its own commands.
+
+export interface InternalCredential {
+  username: string;
+  password: string;
+}
+
+export function createGatewayAuth(deps: { db: Db; internal: InternalCredential }): BrokerAuth {
+  return {
+    async authenticate(username, password) {
+      if (username === deps.internal.username) {
+        return password === deps.internal.password ? { kind: "internal" } : "bad_credentials";
+      }
+      const result = await verifyGatewayCredentials(deps.db, username, password);
+      // MQTT 3.1.1 §3.2.2.3: 4 = bad user name or password, 5 = not authorized (revoked).
+      if (result === "bad_credentials") return "bad_credentials";
+      if (result === "revoked") return "not_authorized";
+      return { kind: "gateway", ...result };
+    },
+
+    canPublish(identity, topic) {
+      if (identity.kind === "internal") return true;
+      return ownsPublishTopic(identity, topic);
+    },
+
+    canSubscribe(identity, topic) {
+      if (identity.kind === "internal") return true;
+      if (identity.protocol === "json") return topic === `${TOPIC_ROOT}/${identity.gatewayId}/commands`;
+      const node = `${SPARKPLUG_NAMESPACE}/${identity.groupId}`;
+      // Sparkplug B 3.0 §6.4.16/§6.4.17 commands to this node and its devices, and §5.1 host STATE.
+      const dcmd = `${node}/DCMD/${identity.edgeNodeId}/`;
+      return (
+        topic === `${node}/NCMD/${identity.edgeNodeId}` ||
+        topic === `${node}/NCMD/${identity.edgeNodeId}/#` ||
+        (topic.startsWith(dcmd) && /^(#|\+|[A-Za-z0-9._-]{1,64})$/.test(topic.slice(dcmd.length))) ||
+        topic === stateTopic ||
+        topic === `${SPARKPLUG_NAMESPACE}/STATE/+`
+      );
+    },
+  };
+}
+
+/** A gateway's own namespace: `liftline/{id}/...` (JSON) or its Sparkplug node's topics. */
+export function ownsPublishTopic(identity: Extract<ClientIdentity, { kind: "gateway" }>, topic: string): boolean {
+  if (identity.protocol === "json") {
+    const parts = topic.split("/");
+    // Anything under its own id is its own; unknown channels are counted as bad_topic later.
+    return parts[0] === TOPIC_ROOT && parts[1] === identity.gatewayId && parts.length >= 3;
+  }
+  const t = parseTopic(topic);
+  return (
+    t.kind === "sparkplug" &&
+    t.groupId === identity.groupId &&
+    t.edgeNodeId === identity.edgeNodeId &&
+    // an edge node sends births, deaths and data, never commands (§6.4.16)
+    t.messageType !== "NCMD" &&
+    t.messageType !== "DCMD"
+  );
+}

@@ -1,0 +1,100 @@
+import { z } from "zod";
+
+// The Liftline JSON wire contract (gateway/PROTOCOL.md is its public description) and the
+// limits every message is held to, whatever the protocol.
+
+export const TOPIC_ROOT = "liftline";
+/** Sparkplug B 3.0 §4.1.1: the namespace element of every Sparkplug B topic. */
+export const SPARKPLUG_NAMESPACE = "spBv1.0";
+
+export const MAX_PAYLOAD_BYTES = 256 * 1024;
+export const MAX_READINGS_PER_MESSAGE = 5000;
+export const MAX_FUTURE_MS = 5 * 60_000;
+export const MAX_POINT_NAME = 128;
+export const MAX_TEXT_VALUE = 200;
+
+/** Why input was not stored. Message-level reasons count messages, the others count readings. */
+export const rejectionReasons = [
+  "too_large", // message: payload over MAX_PAYLOAD_BYTES
+  "malformed_json", // message: not JSON (NaN and Infinity are not JSON either)
+  "invalid_message", // message: envelope does not match the contract
+  "bad_topic", // message: a topic of its own namespace the contract does not define
+  "foreign_topic", // message: a topic of another gateway (the connection is closed, MQTT 3.1.1 §3.3.5)
+  "rate_limited", // message: more messages per second than a gateway may send
+  "sparkplug_decode", // message: not a Sparkplug B protobuf payload
+  "sparkplug_no_birth", // message: DATA before any BIRTH (a rebirth is requested)
+  "invalid_reading", // reading: wrong shape or type
+  "wrong_type", // reading: a value the mapped point cannot hold (text for a temperature)
+  "future_timestamp", // reading: more than 5 minutes ahead of the server clock
+  "too_old", // reading: older than raw retention
+  "unmapped_point", // reading: the point map has no such name (also listed by name)
+  "unknown_alias", // reading: a Sparkplug alias no BIRTH declared
+] as const;
+export type RejectionReason = (typeof rejectionReasons)[number];
+
+const isoTime = z.iso.datetime({ offset: true });
+
+/** One reading as sent. `value` is checked against the mapped point later. */
+export const readingSchema = z.strictObject({
+  point: z.string().min(1).max(MAX_POINT_NAME),
+  value: z.union([z.number(), z.boolean(), z.string().max(MAX_TEXT_VALUE)]),
+  ts: isoTime.optional(),
+  quality: z.enum(["good", "uncertain", "bad"]).optional(),
+});
+export type WireReading = z.infer<typeof readingSchema>;
+
+/**
+ * The envelope on `liftline/{gatewayId}/readings`. Readings are validated one by one so a
+ * bad reading never costs the good ones beside it.
+ */
+export const readingsMessageSchema = z.object({
+  seq: z.number().int().min(0).optional(),
+  sentAt: isoTime,
+  readings: z.array(z.unknown()).max(MAX_READINGS_PER_MESSAGE),
+});
+
+/** Retained payload of `liftline/{gatewayId}/status` (also the gateway's last will). */
+export const statusPayloadSchema = z.enum(["online", "offline"]);
+
+export const qualityCodes = { good: 0, uncertain: 1, bad: 2 } as const;
+export type Quality = keyof typeof qualityCodes;
+export const qualityNames: readonly Quality[] = ["good", "uncertain", "bad"];
+
+export type GatewayTopic =
+  | { kind: "json"; gatewayId: string; channel: "readings" | "status" | "commands" }
+  | { kind: "sparkplug"; groupId: string; messageType: SparkplugMessageType; edgeNodeId: string; deviceId?: string }
+  | { kind: "other" };
+
+/** Sparkplug B 3.0 §4.2 (message types an edge node publishes, plus the commands it receives). */
+export const sparkplugMessageTypes = ["NBIRTH", "NDEATH", "DBIRTH", "DDEATH", "NDATA", "DDATA", "NCMD", "DCMD"] as const;
+export type SparkplugMessageType = (typeof sparkplugMessageTypes)[number];
+
+const idLevel = /^[A-Za-z0-9._-]{1,64}$/;
+
+export function parseTopic(topic: string): GatewayTopic {
+  const parts = topic.split("/");
+  if (parts[0] === TOPIC_ROOT && parts.length === 3 && idLevel.test(parts[1])) {
+    const channel = parts[2];
+    if (channel === "readings" || channel === "status" || channel === "commands") return { kind: "json", gatewayId: parts[1], channel };
+  }
+  // Sparkplug B 3.0 §4.1.1: namespace/group_id/message_type/edge_node_id[/device_id]
+  if (parts[0] === SPARKPLUG_NAMESPACE && (parts.length === 4 || parts.length === 5)) {
+    const messageType = parts[2] as SparkplugMessageType;
+    if (sparkplugMessageTypes.includes(messageType) && parts.slice(1).every((p) => idLevel.test(p))) {
+      const deviceNeeded = messageType.startsWith("D");
+      if (deviceNeeded === (parts.length === 5)) {
+        return { kind: "sparkplug", groupId: parts[1], messageType, edgeNodeId: parts[3], deviceId: parts[4] };
+      }
+    }
+  }
+  return { kind: "other" };
+}
+
+export const jsonTopics = {
+  readings: (gatewayId: string) => `${TOPIC_ROOT}/${gatewayId}/readings`,
+  status: (gatewayId: string) => `${TOPIC_ROOT}/${gatewayId}/status`,
+  commands: (gatewayId: string) => `${TOPIC_ROOT}/${gatewayId}/commands`,
+};
+
+export const sparkplugTopic = (groupId: string, type: SparkplugMessageType, edgeNodeId: string, deviceId?: string) =>
+  [SPARKPLUG_NAMESPACE, groupId, type, edgeNodeId, ...(deviceId ? [deviceId] : [])].join("/");

@@ -1,0 +1,158 @@
+import { randomBytes } from "node:crypto";
+import type { Db } from "@/db/client";
+import { markAllGatewaysOffline, setGatewayState, type IngestGateway } from "@/db/queries/gateways";
+import type { LivePublisher } from "@/lib/realtime/live";
+import { createGatewayAuth } from "./auth";
+import { startEmbeddedBroker, type EmbeddedBroker } from "./broker";
+import type { GatewayConfig } from "./config";
+import { connectExternalBroker, type ExternalBroker } from "./external";
+import { createIngest, type Ingest, type Presence } from "./ingest";
+import { setGatewayLink } from "./link";
+import { startPruner, type Pruner } from "./pruner";
+import { createGatewayRegistry } from "./registry";
+import { createSparkplugHost, encodeStatePayload, stateTopic } from "./sparkplug";
+import { createBatchWriter, systemClock, type BatchWriter, type Clock } from "./writer";
+
+// The gateway side of the server, assembled from its parts: broker (embedded or external),
+// ingest, batched writer, live publisher hook and pruner. server.ts calls this once.
+
+export interface GatewaySideOptions {
+  db: Db;
+  live: LivePublisher;
+  config: GatewayConfig;
+  host: string;
+  mqttPort: number;
+  /** External broker mode when set. */
+  mqttUrl?: string;
+  rawRetentionDays: number;
+  clock?: Clock;
+  log: (line: string) => void;
+}
+
+export interface GatewaySide {
+  mode: "embedded" | "external";
+  mqttPort: number | null;
+  ingest: Ingest;
+  writer: BatchWriter;
+  pruner: Pruner;
+  status(): { up: boolean; clients: number };
+  close(): Promise<void>;
+}
+
+const DAY_MS = 86_400_000;
+
+export async function startGatewaySide(opts: GatewaySideOptions): Promise<GatewaySide> {
+  const { db, live, log } = opts;
+  const clock = opts.clock ?? systemClock;
+  const rawRetentionMs = opts.rawRetentionDays * DAY_MS;
+  const external = opts.mqttUrl !== undefined;
+
+  const writer = createBatchWriter({
+    db,
+    clock,
+    // An external session waits for each acknowledgement, so its flushes must not wait.
+    flushMs: external ? 0 : opts.config.INGEST_FLUSH_MS,
+    maxRows: opts.config.INGEST_MAX_BATCH_ROWS,
+    onCommitted: (rows) => live.onCommitted(rows),
+    log,
+  });
+  const registry = createGatewayRegistry({ db, clock });
+  let sendCommand: (topic: string, payload: Buffer) => void = () => {};
+  const sparkplug = createSparkplugHost({ publishCommand: (t, p) => sendCommand(t, p), log });
+
+  function presence(gw: Pick<IngestGateway, "gatewayId" | "siteId">, state: Presence, atMs: number) {
+    setGatewayState(db, gw.gatewayId, state, new Date(atMs));
+    live.touch(gw.siteId);
+  }
+
+  const ingest = createIngest({
+    writer,
+    registry,
+    sparkplug,
+    clock,
+    rawRetentionMs,
+    onPresence: presence,
+    maxMessagesPerS: opts.config.GATEWAY_MAX_MSGS_PER_S,
+    log,
+  });
+
+  let embedded: EmbeddedBroker | undefined;
+  let ext: ExternalBroker | undefined;
+  if (external) {
+    ext = await connectExternalBroker({
+      url: opts.mqttUrl!,
+      clientId: opts.config.MQTT_CLIENT_ID,
+      username: opts.config.MQTT_USERNAME,
+      password: opts.config.MQTT_PASSWORD,
+      ingest,
+      log,
+    });
+    sendCommand = (t, p) => void ext!.publish(t, p).catch(() => {});
+  } else {
+    // Nobody is connected to a broker that has not started yet.
+    markAllGatewaysOffline(db, new Date(clock.now()));
+    const connections = new Map<string, number>();
+    const internal = { username: "liftline-internal", password: randomBytes(24).toString("base64url") };
+    embedded = await startEmbeddedBroker({
+      host: opts.host,
+      port: opts.mqttPort,
+      auth: createGatewayAuth({ db, internal }),
+      onPublish: async (identity, packet) => {
+        if (identity.kind !== "gateway") return;
+        await ingest.handle(identity.gatewayId, packet.topic, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload));
+      },
+      onRefusedPublish: (identity, topic) => {
+        if (identity.kind === "gateway") {
+          log(`[mqtt] ${identity.gatewayId} may not publish on ${topic}; disconnecting`);
+          ingest.refused(identity.gatewayId, "foreign_topic");
+        }
+      },
+      onClientChange: (identity, change) => {
+        if (identity.kind !== "gateway") return;
+        // Offline only when its last connection goes (a gateway may briefly hold two while
+        // reconnecting). Its status topic or NBIRTH/NDEATH refine this.
+        const n = (connections.get(identity.gatewayId) ?? 0) + (change === "connected" ? 1 : -1);
+        if (n > 0) connections.set(identity.gatewayId, n);
+        else connections.delete(identity.gatewayId);
+        if (change === "connected" && n === 1) presence(identity, "online", clock.now());
+        if (change === "disconnected" && n <= 0) {
+          presence(identity, "offline", clock.now());
+          if (identity.protocol === "sparkplug") sparkplug.forget(identity.gatewayId);
+        }
+      },
+      log,
+    });
+    sendCommand = (t, p) => void embedded!.publish(t, p).catch(() => {});
+    // Sparkplug B 3.0 §5.1: the primary host announces itself with a retained STATE message.
+    await embedded.publish(stateTopic, encodeStatePayload(true, clock.now()), { qos: 1, retain: true });
+  }
+
+  setGatewayLink({
+    changed(gatewayId, change) {
+      registry.invalidate(gatewayId);
+      if (change !== "point_map") {
+        const n = embedded?.disconnectGateway(gatewayId) ?? 0;
+        if (n) log(`[mqtt] ${gatewayId}: ${change}; closed ${n} connection(s)`);
+      }
+    },
+  });
+
+  const pruner = startPruner({ db, clock, rawRetentionMs, rollupRetentionMs: opts.config.ROLLUP_RETENTION_DAYS * DAY_MS, log });
+
+  return {
+    mode: external ? "external" : "embedded",
+    mqttPort: embedded?.port ?? null,
+    ingest,
+    writer,
+    pruner,
+    status: () => (embedded ? { up: true, clients: embedded.connectedClients() } : { up: ext?.connected() ?? false, clients: 0 }),
+    async close() {
+      setGatewayLink(undefined);
+      pruner.stop();
+      // Stop taking messages first, then commit what was accepted.
+      await embedded?.close();
+      await ext?.close();
+      await writer.close();
+    },
+  };
+}

@@ -1,0 +1,192 @@
+import { RateLimiterMemory } from "rate-limiter-flexible";
+import type { IngestGateway, IngestPoint } from "@/db/queries/gateways";
+import { toCanonical } from "@/lib/units";
+import {
+  MAX_FUTURE_MS,
+  MAX_PAYLOAD_BYTES,
+  parseTopic,
+  qualityCodes,
+  readingSchema,
+  readingsMessageSchema,
+  statusPayloadSchema,
+  type RejectionReason,
+} from "./contract";
+import type { GatewayRegistry } from "./registry";
+import type { SparkplugHost } from "./sparkplug";
+import type { Batch, BatchWriter, Clock, RowIn } from "./writer";
+
+// From a published message to a batch for the writer: topic → gateway, payload → zod,
+// point names → points through the gateway's point map, wire units → canonical units.
+// Every rejected reading is counted by reason; good readings of the same message are kept.
+
+export type Presence = "online" | "offline";
+
+export interface IngestDeps {
+  writer: BatchWriter;
+  registry: GatewayRegistry;
+  sparkplug: SparkplugHost;
+  clock: Clock;
+  rawRetentionMs: number;
+  /** Presence changes (status topic, NBIRTH/NDEATH); the caller persists and broadcasts. */
+  onPresence?: (gateway: IngestGateway, state: Presence, atMs: number) => void;
+  /** Messages per second one gateway may send before it is cut off. */
+  maxMessagesPerS?: number;
+  log?: (line: string) => void;
+}
+
+export interface Ingest {
+  /** Resolves once the message's readings and counters are committed (or it was rejected and counted). */
+  handle(gatewayId: string, topic: string, payload: Buffer): Promise<void>;
+  /** External broker mode: the topic alone says which gateway a message belongs to. */
+  handleByTopic(topic: string, payload: Buffer): Promise<void>;
+  /** The broker refused a publish (another gateway's topic); counted, the client is disconnected. */
+  refused(gatewayId: string, reason: RejectionReason): void;
+}
+
+export class RateLimitedError extends Error {
+  constructor(gatewayId: string) {
+    super(`gateway ${gatewayId} exceeded its message rate`);
+  }
+}
+
+const numericMeasures = new Set(["temperature", "pressure", "differential_pressure", "flow", "power", "percent", "frequency", "duration"]);
+
+/** A value checked against the point it maps to, in canonical units; or why not. */
+export function toRow(point: IngestPoint, value: unknown, ts: number, quality: 0 | 1 | 2): RowIn | "wrong_type" {
+  const base = { pointId: point.pointId, siteId: point.siteId, ts, quality };
+  if (numericMeasures.has(point.measure)) {
+    if (typeof value !== "number" || !Number.isFinite(value)) return "wrong_type";
+    const v = toCanonical(value, point.unit);
+    if (!Number.isFinite(v)) return "wrong_type";
+    return { ...base, value: v, text: null, live: v };
+  }
+  if (point.measure === "boolean") {
+    const b = typeof value === "boolean" ? value : value === 1 ? true : value === 0 ? false : undefined;
+    if (b === undefined) return "wrong_type";
+    return { ...base, value: b ? 1 : 0, text: null, live: b };
+  }
+  if (typeof value !== "string" || value.length === 0) return "wrong_type";
+  if (point.measure === "state") {
+    const s = value.trim().toLowerCase();
+    if (point.states && !point.states.includes(s)) return "wrong_type";
+    return { ...base, value: null, text: s, live: s };
+  }
+  return { ...base, value: null, text: value, live: value };
+}
+
+export function createIngest(deps: IngestDeps): Ingest {
+  const log = deps.log ?? (() => {});
+  const limiter = new RateLimiterMemory({ points: deps.maxMessagesPerS ?? 500, duration: 1 });
+
+  function counterOnly(gatewayId: string, reason: RejectionReason, now: number): Batch {
+    return { gatewayId, rows: [], messages: 1, rejections: { [reason]: 1 }, receivedAtMs: now };
+  }
+
+  /** Shared by both protocols: name → point → checked row. */
+  function mapValues(gw: IngestGateway, items: Array<{ name: string; value: unknown; tsMs: number; quality: 0 | 1 | 2 }>, now: number, batch: Batch) {
+    const rej = (batch.rejections ??= {});
+    const bump = (r: RejectionReason) => (rej[r] = (rej[r] ?? 0) + 1);
+    for (const item of items) {
+      const point = gw.map.get(item.name);
+      if (!point) {
+        bump("unmapped_point");
+        batch.unmapped ??= new Map();
+        batch.unmapped.set(item.name, (batch.unmapped.get(item.name) ?? 0) + 1);
+        continue;
+      }
+      if (!Number.isFinite(item.tsMs)) {
+        bump("invalid_reading");
+        continue;
+      }
+      const ts = Math.round(item.tsMs);
+      if (ts > now + MAX_FUTURE_MS) {
+        bump("future_timestamp");
+        continue;
+      }
+      if (ts < now - deps.rawRetentionMs) {
+        bump("too_old");
+        continue;
+      }
+      const row = toRow(point, item.value, ts, item.quality);
+      if (row === "wrong_type") bump("wrong_type");
+      else batch.rows.push(row);
+    }
+  }
+
+  async function submit(batch: Batch): Promise<void> {
+    await deps.writer.submit(batch);
+  }
+
+  async function handleJson(gw: IngestGateway, channel: "readings" | "status" | "commands", payload: Buffer, now: number): Promise<void> {
+    if (channel === "status") {
+      const state = statusPayloadSchema.safeParse(payload.toString("utf8").trim());
+      if (!state.success) return submit(counterOnly(gw.gatewayId, "invalid_message", now));
+      deps.onPresence?.(gw, state.data, now);
+      return submit({ gatewayId: gw.gatewayId, rows: [], messages: 1, receivedAtMs: now });
+    }
+    if (channel !== "readings") return submit(counterOnly(gw.gatewayId, "bad_topic", now));
+    let body: unknown;
+    try {
+      body = JSON.parse(payload.toString("utf8"));
+    } catch {
+      return submit(counterOnly(gw.gatewayId, "malformed_json", now));
+    }
+    const envelope = readingsMessageSchema.safeParse(body);
+    if (!envelope.success) return submit(counterOnly(gw.gatewayId, "invalid_message", now));
+    const sentAt = Date.parse(envelope.data.sentAt);
+    const batch: Batch = { gatewayId: gw.gatewayId, rows: [], messages: 1, rejections: {}, receivedAtMs: now };
+    const items: Array<{ name: string; value: unknown; tsMs: number; quality: 0 | 1 | 2 }> = [];
+    for (const raw of envelope.data.readings) {
+      const r = readingSchema.safeParse(raw);
+      if (!r.success) {
+        batch.rejections!.invalid_reading = (batch.rejections!.invalid_reading ?? 0) + 1;
+        continue;
+      }
+      items.push({ name: r.data.point, value: r.data.value, tsMs: r.data.ts ? Date.parse(r.data.ts) : sentAt, quality: qualityCodes[r.data.quality ?? "good"] });
+    }
+    mapValues(gw, items, now, batch);
+    return submit(batch);
+  }
+
+  async function handleFor(gw: IngestGateway, topic: string, payload: Buffer): Promise<void> {
+    const now = deps.clock.now();
+    try {
+      await limiter.consume(gw.gatewayId);
+    } catch {
+      await submit(counterOnly(gw.gatewayId, "rate_limited", now));
+      throw new RateLimitedError(gw.gatewayId);
+    }
+    if (payload.length > MAX_PAYLOAD_BYTES) return submit(counterOnly(gw.gatewayId, "too_large", now));
+    const t = parseTopic(topic);
+    if (t.kind === "json" && gw.protocol === "json" && t.gatewayId === gw.gatewayId) return handleJson(gw, t.channel, payload, now);
+    if (t.kind === "sparkplug" && gw.protocol === "sparkplug" && t.groupId === gw.groupId && t.edgeNodeId === gw.edgeNodeId) {
+      const out = deps.sparkplug.handle(gw.gatewayId, t, payload, now);
+      if (out.presence) deps.onPresence?.(gw, out.presence, now);
+      const batch: Batch = { gatewayId: gw.gatewayId, rows: [], messages: 1, rejections: { ...out.rejections }, receivedAtMs: now };
+      mapValues(gw, out.values.map((v) => ({ name: v.name, value: v.value, tsMs: Number.isFinite(v.tsMs) ? v.tsMs : now, quality: 0 })), now, batch);
+      return submit(batch);
+    }
+    return submit(counterOnly(gw.gatewayId, "bad_topic", now));
+  }
+
+  return {
+    async handle(gatewayId, topic, payload) {
+      const gw = deps.registry.get(gatewayId);
+      if (!gw || gw.revoked) throw new Error(`gateway ${gatewayId} is unknown or revoked`);
+      return handleFor(gw, topic, payload);
+    },
+    async handleByTopic(topic, payload) {
+      const t = parseTopic(topic);
+      const gw = t.kind === "json" ? deps.registry.get(t.gatewayId) : t.kind === "sparkplug" ? deps.registry.bySparkplug(t.groupId, t.edgeNodeId) : null;
+      if (!gw || gw.revoked) {
+        // Nobody to count it against; acknowledged so the broker does not resend it forever.
+        log(`[ingest] message on ${topic} belongs to no active gateway; dropped`);
+        return;
+      }
+      return handleFor(gw, topic, payload);
+    },
+    refused(gatewayId, reason) {
+      deps.writer.submit(counterOnly(gatewayId, reason, deps.clock.now())).catch((err) => log(`[ingest] could not count a refusal: ${String(err)}`));
+    },
+  };
+}

@@ -1,0 +1,44 @@
+import type { Db } from "@/db/client";
+import { findSparkplugGatewayId, loadIngestGateway, type IngestGateway } from "@/db/queries/gateways";
+
+// Gateways and their point maps, cached for the hot path and dropped when an API call
+// changes them (gateway/link.ts). A short expiry covers changes made by another process.
+
+export interface GatewayRegistry {
+  get(gatewayId: string): IngestGateway | null;
+  bySparkplug(groupId: string, edgeNodeId: string): IngestGateway | null;
+  invalidate(gatewayId?: string): void;
+}
+
+export function createGatewayRegistry(deps: { db: Db; clock?: { now(): number }; ttlMs?: number }): GatewayRegistry {
+  const ttl = deps.ttlMs ?? 30_000;
+  const now = () => deps.clock?.now() ?? Date.now();
+  const cache = new Map<string, { at: number; gw: IngestGateway | null }>();
+  const sparkplugIds = new Map<string, string | null>();
+
+  function get(gatewayId: string): IngestGateway | null {
+    const hit = cache.get(gatewayId);
+    if (hit && now() - hit.at < ttl) return hit.gw;
+    const gw = loadIngestGateway(deps.db, gatewayId);
+    cache.set(gatewayId, { at: now(), gw });
+    return gw;
+  }
+
+  return {
+    get,
+    bySparkplug(groupId, edgeNodeId) {
+      const key = `${groupId}/${edgeNodeId}`;
+      let id = sparkplugIds.get(key);
+      if (id === undefined) {
+        id = findSparkplugGatewayId(deps.db, groupId, edgeNodeId);
+        sparkplugIds.set(key, id);
+      }
+      return id ? get(id) : null;
+    },
+    invalidate(gatewayId) {
+      if (gatewayId) cache.delete(gatewayId);
+      else cache.clear();
+      sparkplugIds.clear();
+    },
+  };
+}

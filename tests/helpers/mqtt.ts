@@ -1,0 +1,90 @@
+import mqtt, { type IClientOptions, type MqttClient } from "mqtt";
+import { signIn, type TestServer } from "./server";
+
+// Gateway-side helpers for integration tests: provision a gateway through the real API,
+// upload its point map, and connect real mqtt.js clients as that gateway.
+
+export const ADMIN = "admin@tallgrass.example";
+
+export interface ProvisionedGateway {
+  gateway: { id: string; siteId: string; protocol: string; groupId: string | null; edgeNodeId: string | null };
+  username: string;
+  password: string;
+}
+
+export async function adminCookie(server: TestServer): Promise<string> {
+  const { cookie } = await signIn(server.url, ADMIN);
+  if (!cookie) throw new Error("admin sign-in failed");
+  return cookie;
+}
+
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- response bodies are checked field by field by the tests' assertions
+type JsonBody = any;
+
+export async function api(server: TestServer, cookie: string, path: string, init: RequestInit = {}): Promise<{ status: number; body: JsonBody }> {
+  const res = await fetch(`${server.url}${path}`, { ...init, headers: { cookie, ...(init.headers ?? {}) } });
+  const text = await res.text();
+  let body: unknown = text;
+  try {
+    body = JSON.parse(text);
+  } catch {
+    // not JSON; keep the text
+  }
+  return { status: res.status, body };
+}
+
+export async function provisionGateway(server: TestServer, cookie: string, input: { siteId: string; name?: string; protocol?: "json" | "sparkplug"; groupId?: string; edgeNodeId?: string }): Promise<ProvisionedGateway> {
+  const res = await api(server, cookie, "/api/gateways", {
+    method: "POST",
+    headers: { "content-type": "application/json" },
+    body: JSON.stringify({ name: "Test gateway", protocol: "json", ...input }),
+  });
+  if (res.status !== 201) throw new Error(`provisioning failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body as ProvisionedGateway;
+}
+
+export async function putPointMap(server: TestServer, cookie: string, gatewayId: string, csv: string) {
+  return api(server, cookie, `/api/gateways/${gatewayId}/point-map`, { method: "PUT", headers: { "content-type": "text/csv" }, body: csv });
+}
+
+/** Connects and resolves on CONNACK 0; rejects with the refusal (err.code = CONNACK return code). */
+export function connectGateway(server: TestServer, creds: { username: string; password: string }, extra: IClientOptions = {}): Promise<MqttClient> {
+  return new Promise((resolve, reject) => {
+    const client = mqtt.connect(server.mqttUrl, {
+      protocolVersion: 4,
+      username: creds.username,
+      password: creds.password,
+      reconnectPeriod: 0,
+      connectTimeout: 10_000,
+      ...extra,
+    });
+    client.once("connect", () => resolve(client));
+    client.once("error", (err) => {
+      client.end(true);
+      reject(err);
+    });
+  });
+}
+
+export function publishQos1(client: MqttClient, topic: string, payload: string | Buffer): Promise<void> {
+  return new Promise((resolve, reject) => client.publish(topic, payload, { qos: 1 }, (err) => (err ? reject(err) : resolve())));
+}
+
+export function endClient(client: MqttClient): Promise<void> {
+  return new Promise((resolve) => client.end(false, {}, () => resolve()));
+}
+
+export async function waitFor<T>(fn: () => Promise<T | undefined | null | false>, timeoutMs = 10_000, stepMs = 100): Promise<T> {
+  const until = Date.now() + timeoutMs;
+  for (;;) {
+    const v = await fn();
+    if (v) return v;
+    if (Date.now() > until) throw new Error("timed out waiting");
+    await new Promise((r) => setTimeout(r, stepMs));
+  }
+}
+
+/** A JSON readings message as the wire contract describes it. */
+export function readingsMessage(readings: Array<{ point: string; value: unknown; ts?: string; quality?: string }>, seq = 1, sentAt = new Date().toISOString()) {
+  return JSON.stringify({ seq, sentAt, readings });
+}

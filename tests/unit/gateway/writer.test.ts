@@ -1,0 +1,56 @@
+import { describe, expect, it } from "vitest";
+import { migrateDb, openDb } from "@/db/client";
+import { gateways } from "@/db/schema";
+import { seedDemo } from "@/db/seed/demo";
+import { createBatchWriter, type RowIn } from "@/gateway/writer";
+
+// The batched writer on a fresh in-memory database: idempotent on (point, ts), rollups that
+// count each reading once whatever order readings arrive in, latest value by event time.
+
+function setup() {
+  const db = openDb(":memory:");
+  migrateDb(db);
+  seedDemo(db, "unit-test-password");
+  db.insert(gateways).values({ id: "gw-unit", siteId: "harborview-mob", name: "unit", protocol: "json", username: "gw-unit", passwordHash: "-" }).run();
+  return db;
+}
+const row = (ts: number, value: number): RowIn => ({ pointId: 1, siteId: "harborview-mob", ts, value, text: null, quality: 0, live: value });
+
+describe("batch writer", () => {
+  it("stores each (point, ts) once and keeps rollups and counters consistent with the rows", async () => {
+    const db = setup();
+    const committed: number[] = [];
+    const w = createBatchWriter({ db, flushMs: 5, onCommitted: (rows) => committed.push(rows.length) });
+    const minute = 60_000 * 1000;
+    // Out of order within the minute, and a duplicate of 10 s with another value.
+    const first = await w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: 1, rows: [row(minute + 30_000, 5), row(minute + 10_000, 9), row(minute + 10_000, 100)] });
+    expect(first).toEqual({ accepted: 2, duplicates: 1 });
+    // A redelivery of the same message adds nothing; a later reading extends the bucket.
+    const again = await w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: 2, rows: [row(minute + 30_000, 5), row(minute + 10_000, 9), row(minute + 50_000, 2)] });
+    expect(again).toEqual({ accepted: 1, duplicates: 2 });
+
+    const r = db.$client.prepare("select min, max, sum, count, last, last_ts as lastTs from readings_1m where point_id = 1 and bucket = ?").get(minute);
+    // min 2, max 9, sum 5 + 9 + 2, three readings, last by event time = the 50 s one
+    expect(r).toEqual({ min: 2, max: 9, sum: 16, count: 3, last: 2, lastTs: minute + 50_000 });
+    expect(db.$client.prepare("select count(*) as n from readings where point_id = 1").get()).toEqual({ n: 3 });
+    expect(db.$client.prepare("select ts, value from latest_values where point_id = 1").get()).toEqual({ ts: minute + 50_000, value: 2 });
+    expect(db.$client.prepare("select messages, readings_accepted as a, readings_duplicate as d from gateways").get()).toEqual({ messages: 2, a: 3, d: 3 });
+    expect(committed.reduce((a, b) => a + b, 0)).toBe(3);
+
+    // An older reading arriving late is stored but does not replace the latest value.
+    await w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: 3, rows: [row(minute - 60_000, 7)] });
+    expect(db.$client.prepare("select ts from latest_values where point_id = 1").get()).toEqual({ ts: minute + 50_000 });
+    await w.close();
+  });
+
+  it("rejects every submit of a flush whose transaction fails, so nothing is acknowledged", async () => {
+    const db = setup();
+    const w = createBatchWriter({ db, flushMs: 5 });
+    // Point 999999 does not exist: the foreign key fails the whole transaction.
+    const good = w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: 1, rows: [row(1_000, 1)] });
+    const bad = w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: 1, rows: [{ ...row(2_000, 1), pointId: 999_999 }] });
+    await expect(good).rejects.toThrow();
+    await expect(bad).rejects.toThrow();
+    expect(db.$client.prepare("select count(*) as n from readings").get()).toEqual({ n: 0 });
+  });
+});
