@@ -7,7 +7,15 @@ import { migrateDb, openDb, setDb } from "./db/client";
 import { demoAccounts, seedDemo } from "./db/seed/demo";
 import { loadGatewayConfig } from "./gateway/config";
 import { startGatewaySide, type GatewaySide } from "./gateway/index";
-import { createLivePublisher } from "./lib/realtime/live";
+import { alarmSummaryBySite } from "./db/queries/alarms";
+import { siteDataStatuses } from "./db/queries/readings";
+import { SERVICE_ORG } from "./db/seed/demo";
+import type { Viewer } from "./lib/auth/viewer";
+import { createLivePublisher, type LivePublisher } from "./lib/realtime/live";
+import { createRuleFeed } from "./lib/server/alarms/feed";
+import { startAlarmSystem } from "./lib/server/alarms/start";
+import { alarmSide } from "./lib/server/board/site-status";
+import { createSimulationManager, type SimulationManager } from "./lib/server/simulation/manager";
 import { createRealtimeServer } from "./lib/realtime/server";
 import { buildIfNeeded } from "./lib/server/build";
 import { loadConfig } from "./lib/server/config";
@@ -67,14 +75,37 @@ httpServer.on("upgrade", (req, socket, head) => {
 
 const io = createRealtimeServer(httpServer, { db, secret: authSecret });
 
+// The alarm side of each site's board status, read with the service company's full view.
+const staffViewer: Viewer = { userId: "system", role: "admin", organizationId: SERVICE_ORG.id, name: "Liftline", email: "system@liftline.invalid", unitSystem: "ip" };
+const dataStatus = (siteId: string) => siteDataStatuses(db, Date.now(), siteId).get(siteId)?.data ?? "no_gateway";
+
 // Live values are pushed per site room after each commit; the gateway side is the broker
 // (embedded, or a client of MQTT_URL), ingest, the batched writer and retention.
-const live = createLivePublisher({ io, db, pushMs: gatewayConfig.LIVE_PUSH_MS });
+const live = createLivePublisher({ io, db, pushMs: gatewayConfig.LIVE_PUSH_MS, alarmSummary: (siteId) => alarmSide(alarmSummaryBySite(db, staffViewer), siteId) });
+
+// Rule checks run on every committed reading, on event time; alarm changes refresh the board.
+const alarmSystem = await startAlarmSystem({
+  db,
+  config,
+  publicUrl,
+  comms: (siteId) => ({ gatewayOnline: dataStatus(siteId) !== "offline" }),
+  onSiteChanged: (siteId) => live.touch(siteId),
+  log,
+});
+const feedRules = createRuleFeed({ db, service: alarmSystem.service });
+const liveAndRules: LivePublisher = {
+  ...live,
+  onCommitted(rows) {
+    live.onCommitted(rows);
+    feedRules(rows);
+  },
+};
+
 let gatewaySide: GatewaySide;
 try {
   gatewaySide = await startGatewaySide({
     db,
-    live,
+    live: liveAndRules,
     config: gatewayConfig,
     host: config.HOST,
     mqttPort: config.MQTT_PORT,
@@ -88,8 +119,29 @@ try {
   process.exit(1);
 }
 
+// Demo mode's simulated plants publish through their own gateways, like real ones.
+let simulation: SimulationManager | undefined;
+if (config.LIFTLINE_DEMO && config.LIFTLINE_SIMULATOR) {
+  if (gatewaySide.mqttPort === null) log("Simulated gateways run only with the embedded broker; skipped with MQTT_URL set.");
+  else
+    simulation = await createSimulationManager({
+      db,
+      mqttUrl: `mqtt://127.0.0.1:${gatewaySide.mqttPort}`,
+      log,
+      onSiteReset: (siteId, pointIds) => {
+        live.forget(pointIds);
+        alarmSystem.service.reload(siteId);
+      },
+    });
+}
+
 setRuntime({
   status: () => ({ broker: { mode: gatewaySide.mode, ...gatewaySide.status() } }),
+  alarms: alarmSystem.service,
+  escalator: alarmSystem.escalator,
+  siteDataStatus: dataStatus,
+  simulation,
+  sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
 });
 
 await new Promise<void>((resolve, reject) => {
@@ -100,6 +152,10 @@ const address = httpServer.address();
 const httpPort = typeof address === "object" && address ? address.port : config.PORT;
 
 log(`Liftline is running at ${publicUrl} (${dev ? "development" : "production"}; HTTP port ${httpPort}, ${gatewaySide.mqttPort === null ? `MQTT broker ${config.MQTT_URL}` : `MQTT port ${gatewaySide.mqttPort}`})`);
+if (simulation) {
+  await simulation.startDefaults();
+  log("Simulated plants: two normal days and one power-blip incident (Millbrook High School), each through its own gateway. Set LIFTLINE_SIMULATOR=0 to run without them.");
+}
 if (config.LIFTLINE_DEMO) {
   log(`Demo sign-ins (demo data only; password: ${config.LIFTLINE_DEMO_PASSWORD}):`);
   for (const a of demoAccounts()) log(`  ${a.role.padEnd(10)} ${a.email.padEnd(32)} ${a.organization}`);
@@ -113,8 +169,10 @@ async function shutdown(signal: string) {
   const force = setTimeout(() => process.exit(1), 10_000);
   force.unref();
   try {
-    // Stop taking messages, commit what was accepted, then stop pushing.
+    // Stop the simulated gateways, stop taking messages, commit what was accepted, then stop pushing.
+    await simulation?.close();
     await gatewaySide.close();
+    await alarmSystem.close();
     live.stop();
     io.close();
     await new Promise<void>((resolve) => httpServer.close(() => resolve()));

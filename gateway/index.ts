@@ -3,6 +3,7 @@ import type { Db } from "@/db/client";
 import { markAllGatewaysOffline, setGatewayState, type IngestGateway } from "@/db/queries/gateways";
 import type { LivePublisher } from "@/lib/realtime/live";
 import { createGatewayAuth } from "./auth";
+import { TOPIC_ROOT } from "./contract";
 import { startEmbeddedBroker, type EmbeddedBroker } from "./broker";
 import type { GatewayConfig } from "./config";
 import { connectExternalBroker, type ExternalBroker } from "./external";
@@ -36,6 +37,8 @@ export interface GatewaySide {
   writer: BatchWriter;
   pruner: Pruner;
   status(): { up: boolean; clients: number };
+  /** Publishes a JSON message on a gateway's command topic, QoS 1 (the simulator's drills). */
+  sendGatewayCommand(gatewayId: string, payload: unknown): void;
   close(): Promise<void>;
 }
 
@@ -146,6 +149,7 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     writer,
     pruner,
     status: () => (embedded ? { up: true, clients: embedded.connectedClients() } : { up: ext?.connected() ?? false, clients: 0 }),
+    sendGatewayCommand: (gatewayId, payload) => sendCommand(`${TOPIC_ROOT}/${gatewayId}/commands`, Buffer.from(JSON.stringify(payload))),
     async close() {
       setGatewayLink(undefined);
       pruner.stop();

@@ -28,7 +28,7 @@ export function AlarmCard({ alarm, canAct, unitSystem, timeZone, onChanged }: { 
         <span className="text-sm text-muted" data-testid="alarm-state">
           {canAct ? stateLabel[alarm.state] : ownerStateLabel[alarm.state]}
         </span>
-        <span className="ml-auto text-xs text-muted">as of {formatDateTime(d.atMs, timeZone)}</span>
+        <span className="ml-auto text-xs text-muted">as of {formatDateTime(d.atMs, timeZone)} site time</span>
       </header>
       <h3 className="mt-2 text-lg font-semibold leading-snug">
         <Link href={`/alarms/${alarm.id}`} className="hover:underline">
@@ -38,7 +38,7 @@ export function AlarmCard({ alarm, canAct, unitSystem, timeZone, onChanged }: { 
       {canAct ? (
         <>
           <div className="mt-3">
-            <AlarmNumbers numbers={d.numbers} unitSystem={unitSystem} />
+            <AlarmNumbers numbers={d.numbers} unitSystem={unitSystem} timeZone={timeZone} />
           </div>
           {d.advice.length ? (
             <div className="mt-3">

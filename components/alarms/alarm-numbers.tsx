@@ -1,41 +1,85 @@
-import { formatDelta, formatDuration, formatPressureDelta } from "@/lib/client/format";
+import { formatClock, formatDelta, formatDuration, formatPressureDelta } from "@/lib/client/format";
 import { formatValue, type UnitSystem } from "@/lib/units";
 
-// Rule numbers carry their unit in the name (marginK, timeToCrossoverS, headroomKPa, driveTempC).
-const labels: Record<string, string> = {
-  marginK: "Crossover margin",
-  timeToCrossoverS: "Time to crossover",
-  timeToCrossoverLowS: "Earliest crossover",
-  lockoutLeftS: "Restart lockout left",
-  loadTimeS: "Time to load",
-  pressureMarginKPa: "Condenser − evaporator pressure",
+// Rule numbers carry their unit in the name (marginK, timeToCrossoverS, condenserPressureKPa);
+// each known key gets a label and a formatter in the viewer's units.
+type Format = (v: number, system: UnitSystem, timeZone?: string) => string;
+
+const delta: Format = (v, s) => formatDelta(v, s);
+const deltaPerMin: Format = (v, s) => `${formatDelta(v, s, 2)}/min`;
+const duration: Format = (v) => formatDuration(v);
+const temp: Format = (v, s) => formatValue(v, "temperature", s);
+const pressure: Format = (v, s) => formatValue(v, "pressure", s);
+const pressureDelta: Format = (v, s) => formatPressureDelta(v, s);
+const pressurePerMin: Format = (v, s) => `${formatPressureDelta(v, s)}/min`;
+const clock: Format = (v, _s, tz) => formatClock(v, tz);
+const yesNo: Format = (v) => (v ? "yes" : "no");
+const plain: Format = (v) => (Number.isInteger(v) ? String(v) : v.toFixed(2));
+const percent: Format = (v) => `${(v <= 1 ? v * 100 : v).toFixed(0)} %`;
+
+const known: Record<string, [string, Format]> = {
+  marginK: ["Crossover margin", delta],
+  measuredMarginK: ["Measured margin", delta],
+  pressureMarginKPa: ["Condenser − evaporator pressure", pressureDelta],
+  timeToCrossoverS: ["Time to crossover", duration],
+  timeToCrossoverEarliestS: ["Earliest crossover", duration],
+  timeToCrossoverLatestS: ["Latest crossover", duration],
+  closingRateKPerMin: ["Margin closing at", deltaPerMin],
+  fitResidualK: ["Fit spread (σ)", delta],
+  lockoutLeftS: ["Restart lockout left", duration],
+  loadTimeS: ["Time to load", duration],
+  driveTempC: ["Drive temperature", temp],
+  tripC: ["Trip at", temp],
+  riseKPerMin: ["Rising at", deltaPerMin],
+  timeToTripS: ["Time to trip", duration],
+  timeToTripEarliestS: ["Earliest trip", duration],
+  condenserPressureKPa: ["Condensing pressure", pressure],
+  tripKPa: ["Trip setting", pressure],
+  riseKPaPerMin: ["Rising at", pressurePerMin],
+  evaporatorSaturatedC: ["Evaporator saturated", temp],
+  limitC: ["Limit", temp],
+  condenserWaterC: ["Condenser water", temp],
+  setpointC: ["Setpoint", temp],
+  aboveSetpointK: ["Above setpoint", delta],
+  fanSpeedPct: ["Fan speed", percent],
+  faultedDrives: ["Drives faulted", plain],
+  firstFaultMs: ["First fault", clock],
+  lastFaultMs: ["Last fault", clock],
+  lastReadingMs: ["Last reading", clock],
+  ageS: ["Silent for", duration],
+  latchedAlarm: ["Latched alarm", yesNo],
+  driveFault: ["Drive fault", yesNo],
+  kwPerTon: ["kW/ton (averaged)", plain],
+  baselineKwPerTon: ["Baseline kW/ton", plain],
+  condenserApproachK: ["Condenser approach", delta],
+  baselineCondenserApproachK: ["Baseline approach", delta],
+  coverage: ["Data coverage", percent],
 };
 
-function label(key: string): string {
-  if (labels[key]) return labels[key];
-  const words = key.replace(/(KPa|K|S|C|Kw|Pct)$/, "").replace(/([A-Z])/g, " $1").toLowerCase();
-  return words.charAt(0).toUpperCase() + words.slice(1);
+function describe(key: string): [string, Format] {
+  if (known[key]) return known[key];
+  const words = key.replace(/([A-Z])/g, " $1").toLowerCase();
+  const label = words.charAt(0).toUpperCase() + words.slice(1);
+  if (key.endsWith("S")) return [label, duration];
+  if (key.endsWith("K")) return [label, delta];
+  if (key.endsWith("C")) return [label, temp];
+  return [label, plain];
 }
 
-export function formatNumber(key: string, value: number | null, system: UnitSystem): string {
-  if (value === null) return "—";
-  if (key.endsWith("KPa")) return key.toLowerCase().includes("pressure") && !key.toLowerCase().includes("margin") && !key.toLowerCase().includes("headroom") ? formatValue(value, "pressure", system) : formatPressureDelta(value, system);
-  if (key.endsWith("K")) return formatDelta(value, system);
-  if (key.endsWith("S")) return formatDuration(value);
-  if (key.endsWith("C")) return formatValue(value, "temperature", system);
-  return Number.isInteger(value) ? String(value) : value.toFixed(2);
+export function formatNumber(key: string, value: number | null, system: UnitSystem, timeZone?: string): string {
+  return value === null ? "—" : describe(key)[1](value, system, timeZone);
 }
 
-export function AlarmNumbers({ numbers, unitSystem }: { numbers: Record<string, number | null>; unitSystem: UnitSystem }) {
+export function AlarmNumbers({ numbers, unitSystem, timeZone }: { numbers: Record<string, number | null>; unitSystem: UnitSystem; timeZone?: string }) {
   const entries = Object.entries(numbers).filter(([, v]) => v !== null);
   if (!entries.length) return null;
   return (
     <dl className="grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-3">
       {entries.map(([k, v]) => (
         <div key={k}>
-          <dt className="text-muted">{label(k)}</dt>
+          <dt className="text-muted">{describe(k)[0]}</dt>
           <dd className="font-semibold tabular-nums" data-number={k}>
-            {formatNumber(k, v, unitSystem)}
+            {formatNumber(k, v, unitSystem, timeZone)}
           </dd>
         </div>
       ))}

@@ -87,7 +87,7 @@ export function LivePoints({ siteId, equipment, unitSystem }: { siteId: string; 
                       <td className={`px-4 py-1.5 text-right tabular-nums ${stale ? "text-stale" : "font-semibold"}`} data-testid="point-value">
                         {tsMs === null ? "no data" : formatValue(value, measure, unitSystem)}
                       </td>
-                      <td className="w-28 px-4 py-1.5 text-right text-xs text-muted">
+                      <td className="whitespace-nowrap px-4 py-1.5 text-right text-xs text-muted">
                         {tsMs === null ? "" : stale ? <span className="rounded bg-stale px-1.5 py-0.5 text-white">stale · {formatDuration((nowMs - tsMs) / 1000)}</span> : `${formatDuration((nowMs - tsMs) / 1000)} ago`}
                       </td>
                       <td className="hidden px-4 py-1.5 font-mono text-xs text-muted lg:table-cell">{p.brickClass}</td>

@@ -61,7 +61,7 @@ export function SiteBoard({ fallback, canAct }: { fallback: BoardSite[]; canAct:
                       {crossover ? <span className="text-sm font-semibold text-alarm">Loops heading for crossover</span> : null}
                     </div>
                     <p className="text-sm font-semibold leading-snug">
-                      {w.equipment}: {canAct ? w.title : w.ownerTitle}
+                      {canAct ? w.title : w.ownerTitle}
                     </p>
                   </div>
                 ) : (

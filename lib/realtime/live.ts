@@ -34,6 +34,8 @@ export interface LivePublisher {
   /** Re-evaluate site status soon (presence changed). */
   touch(siteId: string): void;
   latest(pointId: number): Value | undefined;
+  /** Drops the remembered values of these points (a simulated site's timeline was replaced). */
+  forget(pointIds: readonly number[]): void;
   flushNow(): void;
   stop(): void;
 }
@@ -93,6 +95,10 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
       statusDue = true;
     },
     latest: (pointId) => latest.get(pointId),
+    forget(pointIds) {
+      for (const id of pointIds) latest.delete(id);
+      statusDue = true;
+    },
     flushNow() {
       pushValues();
       pushStatus();

@@ -52,7 +52,7 @@ export async function createSimulationManager(deps: {
   mqttUrl: string;
   log: (line: string) => void;
   /** Forget in-memory state derived from a site's readings (live values, rule history). */
-  onSiteReset?: (siteId: string) => void;
+  onSiteReset?: (siteId: string, pointIds: readonly number[]) => void;
   now?: () => number;
 }): Promise<SimulationManager> {
   const { db, log } = deps;
@@ -101,7 +101,7 @@ export async function createSimulationManager(deps: {
         tx.update(alarms).set({ state: "normal", conditionActive: false, machineJson: JSON.stringify(fresh), updatedAt: now() }).where(eq(alarms.id, row.id)).run();
       }
     });
-    deps.onSiteReset?.(siteId);
+    deps.onSiteReset?.(siteId, pointIds);
   }
 
   async function start(siteId: string, scenario: string, speed: number, seed = 7, leadInS?: number): Promise<SimulatedSiteStatus> {
