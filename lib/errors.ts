@@ -35,4 +35,12 @@ export class AppError extends Error {
   }
 }
 
+/**
+ * True for an AppError from any copy of this module: Next bundles route code apart from
+ * server.ts, so an error thrown by the alarm service is not `instanceof` the route's class.
+ */
+export function isAppError(err: unknown): err is AppError {
+  return err instanceof AppError || (err instanceof Error && err.name === "AppError" && typeof (err as AppError).status === "number" && typeof (err as AppError).toBody === "function");
+}
+
 export const notFound = (what = "Not found") => new AppError("not_found", what);

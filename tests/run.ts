@@ -51,11 +51,14 @@ try {
     numFailedTests: number;
     numPendingTests: number;
     numTodoTests: number;
-    numFailedTestSuites: number;
+    testResults: Array<{ name: string; status: string; assertionResults: Array<{ status: string }> }>;
   };
   passed = results.numPassedTests;
-  // A suite that fails to load has no failed tests of its own; count it so it cannot pass silently.
-  failed = results.numFailedTests + results.numFailedTestSuites;
+  // A file that fails outside its tests (an import error, a failing beforeAll) has no failed
+  // test of its own; count it once so it cannot pass silently.
+  const brokenFiles = results.testResults.filter((f) => f.status === "failed" && !f.assertionResults.some((a) => a.status === "failed"));
+  for (const f of brokenFiles) console.log(`failed outside its tests: ${path.relative(root, f.name)}`);
+  failed = results.numFailedTests + brokenFiles.length;
   skipped = results.numPendingTests + results.numTodoTests;
 } catch {
   console.error("vitest wrote no results: counting the run as failed");

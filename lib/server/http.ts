@@ -1,5 +1,5 @@
 import { ZodError, type z } from "zod";
-import { AppError } from "@/lib/errors";
+import { AppError, isAppError } from "@/lib/errors";
 
 // Every route handler goes through `route()`: one place turns thrown errors into
 // the shared error body, so no handler can leak a stack trace or forget a status.
@@ -10,7 +10,7 @@ export function route<C>(handler: Handler<C>): Handler<C> {
     try {
       return await handler(request, context);
     } catch (err) {
-      if (err instanceof AppError) return Response.json(err.toBody(), { status: err.status });
+      if (isAppError(err)) return Response.json(err.toBody(), { status: err.status });
       if (err instanceof ZodError) {
         const e = new AppError("bad_request", "The request is not valid.", err.issues.map((i) => ({ path: i.path.join("."), message: i.message })));
         return Response.json(e.toBody(), { status: 400 });

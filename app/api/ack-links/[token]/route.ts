@@ -2,7 +2,7 @@ import { z } from "zod";
 import { getDb } from "@/db/client";
 import { consumeAckLink } from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";
-import { AppError } from "@/lib/errors";
+import { AppError, isAppError } from "@/lib/errors";
 import { route } from "@/lib/server/http";
 import { requireAlarmService } from "@/lib/server/runtime";
 
@@ -28,7 +28,7 @@ export const POST = route<{ params: Promise<{ token: string }> }>(async (_reques
     return Response.json(requireAlarmService().command(viewer, link.alarmId, { type: "acknowledge", note: "Acknowledged from the e-mailed link" }));
   } catch (err) {
     // Someone acknowledged it in the app already: the link did its job.
-    if (err instanceof AppError && err.code === "conflict") return Response.json({ alarmId: link.alarmId, state: "already acknowledged" });
+    if (isAppError(err) && err.code === "conflict") return Response.json({ alarmId: link.alarmId, state: "already acknowledged" });
     throw err;
   }
 });
