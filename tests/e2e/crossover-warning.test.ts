@@ -82,5 +82,5 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     const refused = await ownerPage.evaluate(async (id) => (await fetch(`/api/alarms/${id}/ack`, { method: "POST", headers: { "content-type": "application/json" }, body: "{}" })).status, alarmId);
     expect(refused).toBe(403);
     await owner.close();
-  });
+  }, 240_000);
 });

@@ -1,0 +1,72 @@
+import type { Browser } from "playwright-core";
+import { io } from "socket.io-client";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { hasChromium, launchBrowser, screenshot, signInAs, viewports } from "../helpers/browser";
+import { adminCookie, connectGateway, provisionGateway, putPointMap } from "../helpers/mqtt";
+import { signIn, startServer, type TestServer } from "../helpers/server";
+
+// Live values from a gateway to the technician's screen, and room isolation between customers.
+let server: TestServer;
+let browser: Browser;
+
+describe.skipIf(!hasChromium)("live values in the browser", () => {
+  beforeAll(async () => {
+    server = await startServer();
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await server?.stop();
+  });
+
+  it("a reading published over MQTT appears on the site page within a second", async () => {
+    const cookie = await adminCookie(server);
+    const gw = await provisionGateway(server, cookie, { siteId: "harborview-mob" });
+    const map = await putPointMap(server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nCH1-LCHWT,CH-1,chilled_water_leaving_temp,degF\n");
+    expect(map.status).toBe(200);
+    const client = await connectGateway(server, gw);
+
+    const context = await browser.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    await signInAs(page, server.url, "luis@tallgrass.example");
+    await page.goto(`${server.url}/sites/harborview-mob`);
+    const cell = page.locator("[data-testid=point-row][data-equipment='CH-1'][data-point=chilled_water_leaving_temp] [data-testid=point-value]");
+    await expect.poll(() => cell.textContent()).toBe("no data");
+    // Give the page's socket time to join its site room before publishing.
+    await page.waitForTimeout(1000);
+
+    const value = 44.3 + Math.round(Math.random() * 10) / 10; // °F, shown as sent to a technician in IP units
+    const published = Date.now();
+    await client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ seq: 1, sentAt: new Date().toISOString(), readings: [{ point: "CH1-LCHWT", value }] }), { qos: 1 });
+    await cell.filter({ hasText: `${value.toFixed(1)} °F` }).waitFor({ timeout: 1000 + 500 });
+    const elapsedMs = Date.now() - published;
+    console.log(`publish → shown on the site page: ${elapsedMs} ms`);
+    expect(elapsedMs).toBeLessThan(1000 + 500); // the 1 s goal plus the poll's own resolution
+    await screenshot(page, "site-live-value-phone");
+    await client.endAsync();
+    await context.close();
+  });
+
+  it("a customer's socket cannot join another customer's site room", async () => {
+    const { cookie } = await signIn(server.url, "facilities@harborview.example");
+    const socket = io(server.url, { extraHeaders: { cookie: cookie! }, transports: ["websocket"] });
+    await new Promise<void>((resolve, reject) => {
+      socket.once("connect", () => resolve());
+      socket.once("connect_error", reject);
+    });
+    const own = await socket.emitWithAck("site:join", { siteId: "harborview-mob" });
+    const other = await socket.emitWithAck("site:join", { siteId: "quarry-ridge-dh2" });
+    const board = await socket.emitWithAck("board:join");
+    socket.disconnect();
+    expect(own).toEqual({ data: { siteId: "harborview-mob" } });
+    expect(other).toEqual({ error: { code: "not_found", message: "No such site." } });
+    expect(board).toEqual({ data: { siteIds: ["harborview-mob"] } });
+  });
+
+  it("refuses a socket without a session", async () => {
+    const socket = io(server.url, { transports: ["websocket"], reconnection: false });
+    const error = await new Promise<Error>((resolve) => socket.once("connect_error", resolve));
+    socket.disconnect();
+    expect(error.message).toBe("unauthorized");
+  });
+});
