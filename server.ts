@@ -81,7 +81,13 @@ const dataStatus = (siteId: string) => siteDataStatuses(db, Date.now(), siteId).
 
 // Live values are pushed per site room after each commit; the gateway side is the broker
 // (embedded, or a client of MQTT_URL), ingest, the batched writer and retention.
-const live = createLivePublisher({ io, db, pushMs: gatewayConfig.LIVE_PUSH_MS, alarmSummary: (siteId) => alarmSide(alarmSummaryBySite(db, staffViewer), siteId) });
+// One summary query serves every site's status push in a round; an alarm change refreshes it.
+let alarmSummary = { atMs: 0, bySite: new Map() as ReturnType<typeof alarmSummaryBySite> };
+const currentAlarmSummary = () => {
+  if (Date.now() - alarmSummary.atMs > 1000) alarmSummary = { atMs: Date.now(), bySite: alarmSummaryBySite(db, staffViewer) };
+  return alarmSummary.bySite;
+};
+const live = createLivePublisher({ io, db, pushMs: gatewayConfig.LIVE_PUSH_MS, alarmSummary: (siteId) => alarmSide(currentAlarmSummary(), siteId) });
 
 // Rule checks run on every committed reading, on event time; alarm changes refresh the board.
 const alarmSystem = await startAlarmSystem({
@@ -89,7 +95,12 @@ const alarmSystem = await startAlarmSystem({
   config,
   publicUrl,
   comms: (siteId) => ({ gatewayOnline: dataStatus(siteId) !== "offline" }),
-  onSiteChanged: (siteId) => live.touch(siteId),
+  onSiteChanged: (siteId, summary) => {
+    // An evaluation without a transition changes nothing on the board; a transition does.
+    if (summary !== null) return;
+    alarmSummary.atMs = 0;
+    live.touch(siteId);
+  },
   log,
 });
 const feedRules = createRuleFeed({ db, service: alarmSystem.service });

@@ -71,7 +71,9 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
   delete env.VITEST;
   delete env.VITEST_WORKER_ID;
   delete env.VITEST_POOL_ID;
-  const child = spawn(process.execPath, ["--import", "tsx", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe"] });
+  // LIFTLINE_TEST_NODE_ARGS passes extra Node flags to the server (e.g. --cpu-prof for benchmarks).
+  const nodeArgs = (process.env.LIFTLINE_TEST_NODE_ARGS ?? "").split(" ").filter(Boolean);
+  const child = spawn(process.execPath, [...nodeArgs, "--import", "tsx", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe"] });
   let out = "";
   child.stdout.on("data", (d) => (out += d));
   child.stderr.on("data", (d) => (out += d));
