@@ -10,7 +10,7 @@ import { startGatewaySide, type GatewaySide } from "./gateway/index";
 import { alarmSummaryBySite } from "./db/queries/alarms";
 import { siteDataStatuses } from "./db/queries/readings";
 import { SERVICE_ORG } from "./db/seed/demo";
-import type { Viewer } from "./lib/auth/viewer";
+import { systemViewer } from "./lib/auth/viewer";
 import { createLivePublisher, type LivePublisher } from "./lib/realtime/live";
 import { createRuleFeed } from "./lib/server/alarms/feed";
 import { startAlarmSystem } from "./lib/server/alarms/start";
@@ -76,7 +76,7 @@ httpServer.on("upgrade", (req, socket, head) => {
 const io = createRealtimeServer(httpServer, { db, secret: authSecret });
 
 // The alarm side of each site's board status, read with the service company's full view.
-const staffViewer: Viewer = { userId: "system", role: "admin", organizationId: SERVICE_ORG.id, name: "Liftline", email: "system@liftline.invalid", unitSystem: "ip" };
+const staffViewer = systemViewer(SERVICE_ORG.id);
 const dataStatus = (siteId: string) => siteDataStatuses(db, Date.now(), siteId).get(siteId)?.data ?? "no_gateway";
 
 // Live values are pushed per site room after each commit; the gateway side is the broker

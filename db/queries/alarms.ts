@@ -1,24 +1,18 @@
 import { randomUUID } from "node:crypto";
-import { and, asc, desc, eq, inArray, ne, sql, type SQL } from "drizzle-orm";
+import { and, asc, desc, eq, inArray, ne, sql } from "drizzle-orm";
 import type { Db } from "../client";
 import { alarmEvents, alarmNotes, alarms, organizations, sites, users } from "../schema";
 import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
+import type { Condition } from "@/lib/rules/condition";
+import { siteScope } from "./sites";
 import type { Alarm, AlarmState, TransitionRecord } from "@/lib/alarms";
 
 // Alarms as stored: one row per rule × equipment × site with its current ISA-18.2 state,
 // an append-only event history, and notes. Customers read their own sites' alarms and the
 // notes shared with them; nothing here lets them change anything.
 
-export interface AlarmDetail {
-  technicianMessage: string;
-  ownerMessage: string;
-  advice: string[];
-  caution: string | null;
-  numbers: Record<string, number | null>;
-  related: string[];
-  /** Event time of the evaluation these words come from. */
-  atMs: number;
-}
+/** The latest condition's words and numbers, as of the evaluation at `atMs` (event time). */
+export type AlarmDetail = Pick<Condition, "technicianMessage" | "ownerMessage" | "advice" | "caution" | "numbers" | "related" | "atMs">;
 
 export interface AlarmDto {
   id: string;
@@ -60,10 +54,6 @@ export interface AlarmNoteDto {
 export interface AlarmWithHistoryDto extends AlarmDto {
   events: AlarmEventDto[];
   notes: AlarmNoteDto[];
-}
-
-function siteScope(viewer: Viewer): SQL | undefined {
-  return seesAllSites(viewer) ? undefined : eq(sites.organizationId, viewer.organizationId);
 }
 
 const dtoColumns = {

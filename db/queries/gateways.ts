@@ -3,8 +3,8 @@ import bcrypt from "bcryptjs";
 import { and, asc, desc, eq, inArray, isNull, max, sql } from "drizzle-orm";
 import type { Db } from "../client";
 import { equipment, gatewayPointMaps, gatewayRejections, gateways, gatewayUnmappedPoints, points, sites, type GatewayProtocol, type GatewayState } from "../schema";
-import { canSeeSite } from "./sites";
-import { canAct, isAdmin, seesAllSites, type Viewer } from "@/lib/auth/viewer";
+import { canSeeSite, siteScope } from "./sites";
+import { canAct, isAdmin, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
 import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import type { WireUnitCode } from "@/lib/units";
@@ -182,7 +182,7 @@ export function listGateways(db: Db, viewer: Viewer, siteId?: string): GatewayDt
     .select({ g: gateways })
     .from(gateways)
     .innerJoin(sites, eq(sites.id, gateways.siteId))
-    .where(and(siteId ? eq(gateways.siteId, siteId) : undefined, seesAllSites(viewer) ? undefined : eq(sites.organizationId, viewer.organizationId)))
+    .where(and(siteId ? eq(gateways.siteId, siteId) : undefined, siteScope(viewer)))
     .orderBy(asc(gateways.siteId), asc(gateways.name))
     .all()
     .map((r) => r.g);

@@ -5,7 +5,7 @@ import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
 
 // Authorization lives here, in the queries: a customer's viewer can only ever match its
 // own organization's rows, whatever the route or page above asks for.
-function siteScope(viewer: Viewer): SQL | undefined {
+export function siteScope(viewer: Viewer): SQL | undefined {
   return seesAllSites(viewer) ? undefined : eq(sites.organizationId, viewer.organizationId);
 }
 

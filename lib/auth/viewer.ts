@@ -24,3 +24,8 @@ export function canAct(viewer: Pick<Viewer, "role">): boolean {
 export function isAdmin(viewer: Pick<Viewer, "role">): boolean {
   return viewer.role === "admin";
 }
+
+/** The server acting on its own (demo provisioning, board summaries): the service company's full view. */
+export function systemViewer(serviceOrganizationId: string): Viewer {
+  return { userId: "system", role: "admin", organizationId: serviceOrganizationId, name: "Liftline", email: "system@liftline.invalid", unitSystem: "ip" };
+}

@@ -4,7 +4,7 @@ import { alarmEvents, alarms, equipment, latestValues, points, readings, reading
 import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } from "@/db/queries/gateways";
 import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
 import { newAlarm, type Alarm } from "@/lib/alarms";
-import type { Viewer } from "@/lib/auth/viewer";
+import { systemViewer } from "@/lib/auth/viewer";
 import { pointMapRows, getLayout, getScenario } from "@/simulator/index";
 import { startSimulatedGateway, type SimulatedGateway, type SimulatedGatewayStatus } from "@/simulator/gateway-client";
 import type { QuantityKey } from "@/lib/quantities";
@@ -27,7 +27,7 @@ export const DEFAULT_RUNS: Record<string, { scenario: string; speed: number; lea
 };
 
 // Provisioning is an admin act; the server does it for the demo as the service company.
-const systemAdmin: Viewer = { userId: "system", role: "admin", organizationId: SERVICE_ORG.id, name: "Liftline", email: "system@liftline.invalid", unitSystem: "ip" };
+const systemAdmin = systemViewer(SERVICE_ORG.id);
 
 export interface SimulatedSiteStatus {
   siteId: string;
