@@ -1,6 +1,6 @@
 import bcrypt from "bcryptjs";
 import type { Db } from "../client";
-import { equipment, organizations, points, sites, users, type NewEquipment } from "../schema";
+import { equipment, onCallShifts, organizations, points, sites, users, type NewEquipment } from "../schema";
 import { canonicalUnitOf, pointsByKind, quantities, type EquipmentKind } from "@/lib/quantities";
 import { siteLayouts, type SiteLayout } from "@/simulator/layout";
 
@@ -150,6 +150,11 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
         }
       }
     }
+    // Two weeks of on-call from the first start: the technicians take turns, each backing the other.
+    const weekMs = 7 * 24 * 3600_000;
+    const from = Date.now() - 3600_000;
+    count(tx.insert(onCallShifts).values({ id: "demo-shift-1", startsAt: from, endsAt: from + weekMs, primaryUserId: "user-tech-1", backupUserId: "user-tech-2" }).onConflictDoNothing().run());
+    count(tx.insert(onCallShifts).values({ id: "demo-shift-2", startsAt: from + weekMs, endsAt: from + 2 * weekMs, primaryUserId: "user-tech-2", backupUserId: "user-tech-1" }).onConflictDoNothing().run());
   });
   return { inserted };
 }
