@@ -1,7 +1,7 @@
 import { randomUUID } from "node:crypto";
 import { and, asc, desc, eq, inArray, ne, sql } from "drizzle-orm";
 import type { Db } from "../client";
-import { alarmEvents, alarmNotes, alarms, organizations, sites, users } from "../schema";
+import { alarmEvents, alarmNotes, alarms, organizations, siteRuleSettings, sites, users } from "../schema";
 import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
 import type { Condition } from "@/lib/rules/condition";
 import { siteScope } from "./sites";
@@ -317,4 +317,18 @@ export function allAlarmMachines(db: Db): Alarm[] {
     .from(alarms)
     .all()
     .map((r) => JSON.parse(r.machineJson) as Alarm);
+}
+
+/** The admin's stored overrides of a site's rule settings (defaults fill the rest). */
+export function getRuleOverrides(db: Db, siteId: string): unknown {
+  const row = db.select({ json: siteRuleSettings.settingsJson }).from(siteRuleSettings).where(eq(siteRuleSettings.siteId, siteId)).get();
+  return row ? JSON.parse(row.json) : {};
+}
+
+export function saveRuleOverrides(db: Db, viewer: Viewer, siteId: string, overrides: unknown): void {
+  const settingsJson = JSON.stringify(overrides);
+  db.insert(siteRuleSettings)
+    .values({ siteId, settingsJson, updatedBy: viewer.userId === "system" ? null : viewer.userId })
+    .onConflictDoUpdate({ target: siteRuleSettings.siteId, set: { settingsJson, updatedAt: Date.now(), updatedBy: viewer.userId === "system" ? null : viewer.userId } })
+    .run();
 }

@@ -20,9 +20,9 @@ const common = (p: 1 | 2 | 3 | 4, onDelayS: number, offDelayS: number) => ({
   ...delays(onDelayS, offDelayS),
 });
 
-export const ruleSettingsSchema = z.object({
+export const ruleSettingsSchema = z.strictObject({
   crossoverRisk: z
-    .object({
+    .strictObject({
       ...common(2, 30, 120),
       /** Warn when the projected time to crossover is under this. */
       warnTimeToCrossoverS: positive.default(30 * 60),
@@ -46,7 +46,7 @@ export const ruleSettingsSchema = z.object({
     })
     .prefault({}),
   restartRace: z
-    .object({
+    .strictObject({
       ...common(1, 0, 120),
       /** Time a compressor needs from start until it carries load (common practice: a few minutes). */
       compressorLoadS: seconds.default(5 * 60),
@@ -56,7 +56,7 @@ export const ruleSettingsSchema = z.object({
     })
     .prefault({}),
   loopsCrossed: z
-    .object({
+    .strictObject({
       ...common(1, 30, 60),
       /** Margin at or below which the loops count as crossed (K). */
       crossedAtMarginK: z.number().default(0),
@@ -64,7 +64,7 @@ export const ruleSettingsSchema = z.object({
     })
     .prefault({}),
   towerFan: z
-    .object({
+    .strictObject({
       ...common(2, 60, 60),
       /** Condenser water this far above its setpoint counts as "above" (K). */
       aboveSetpointK: seconds.default(0.5),
@@ -76,7 +76,7 @@ export const ruleSettingsSchema = z.object({
     })
     .prefault({}),
   headPressure: z
-    .object({
+    .strictObject({
       ...common(2, 15, 60),
       /** High condenser pressure trip (kPa abs). Default 160 psig (1204.5 kPa abs) for R-134a, recalled, not verified: set it from the chiller's controller. */
       tripKPa: positive.default(1204.5),
@@ -88,7 +88,7 @@ export const ruleSettingsSchema = z.object({
     })
     .prefault({}),
   driveTemperature: z
-    .object({
+    .strictObject({
       ...common(2, 15, 60),
       /** Drive over-temperature trip (°C). Default 150 °F (65.6 °C), common practice, recalled, not verified: set it from the drive's manual. */
       tripC: positive.default(65.6),
@@ -103,7 +103,7 @@ export const ruleSettingsSchema = z.object({
     })
     .prefault({}),
   powerEvent: z
-    .object({
+    .strictObject({
       ...common(3, 0, 0),
       /** Drive faults this close together count as one event. */
       windowS: positive.default(30),
@@ -112,19 +112,19 @@ export const ruleSettingsSchema = z.object({
       holdS: positive.default(30 * 60),
     })
     .prefault({}),
-  chillerTrip: z.object({ ...common(2, 0, 0), latching: z.boolean().default(true) }).prefault({}),
+  chillerTrip: z.strictObject({ ...common(2, 0, 0), latching: z.boolean().default(true) }).prefault({}),
   commLost: z
-    .object({
+    .strictObject({
       ...common(3, 0, 60),
       /** A point older than this (event time) is stale. */
       staleAfterS: positive.default(5 * 60),
     })
     .prefault({}),
   efficiencyDrift: z
-    .object({
+    .strictObject({
       ...common(4, 30 * 60, 30 * 60),
       /** The equipment's own baseline, by chiller tag. */
-      baselines: z.record(z.string(), z.object({ kwPerTon: positive.optional(), condenserApproachK: z.number().optional() })).default({}),
+      baselines: z.record(z.string(), z.strictObject({ kwPerTon: positive.optional(), condenserApproachK: z.number().optional() })).default({}),
       kwPerTonDriftFraction: positive.default(0.15),
       approachDriftK: positive.default(1.5),
       averagingWindowS: positive.default(60 * 60),
@@ -135,7 +135,7 @@ export const ruleSettingsSchema = z.object({
     })
     .prefault({}),
   lowEvaporatorPressure: z
-    .object({
+    .strictObject({
       ...common(2, 15, 60),
       /** Saturated evaporating temperature at or below which freezing is a risk (°C; common practice ≈ 34 °F). */
       limitC: z.number().default(1.1),
@@ -145,7 +145,7 @@ export const ruleSettingsSchema = z.object({
     })
     .prefault({}),
   timers: z
-    .object({
+    .strictObject({
       /** Anti-recycle timers assumed when the controller reports neither countdown nor settings (common practice). */
       fallbackStartToStartS: seconds.default(20 * 60),
       fallbackStopToStartS: seconds.default(5 * 60),

@@ -1,7 +1,7 @@
 import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { findAlarmRef, loadAlarmMachines, saveAlarmChanges, type AlarmDetail } from "@/db/queries/alarms";
-import { equipment, siteRuleSettings } from "@/db/schema";
+import { findAlarmRef, getRuleOverrides, loadAlarmMachines, saveAlarmChanges, type AlarmDetail } from "@/db/queries/alarms";
+import { equipment } from "@/db/schema";
 import { commandAlarm, type Alarm, type AlarmBook, type AlarmEvent, type TransitionRecord } from "@/lib/alarms";
 import { canAct, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
@@ -71,8 +71,7 @@ function loadSite(db: Db, siteId: string): Site {
 }
 
 export function loadRuleSettings(db: Db, siteId: string) {
-  const row = db.select({ json: siteRuleSettings.settingsJson }).from(siteRuleSettings).where(eq(siteRuleSettings.siteId, siteId)).get();
-  return parseRuleSettings(row ? JSON.parse(row.json) : {});
+  return parseRuleSettings(getRuleOverrides(db, siteId));
 }
 
 export function createAlarmService(deps: {

@@ -30,10 +30,17 @@ export default async function SitePage({ params }: Props) {
         <p className="text-muted">
           {site.customer.name} · {site.address} · {site.timeZone}
         </p>
-        {isAdmin(viewer) ? (
-          <Link href={`/sites/${site.id}/gateways`} className="text-sm underline">
-            Gateways and point maps
-          </Link>
+        {canAct(viewer) ? (
+          <p className="mt-1 flex flex-wrap gap-x-4 text-sm">
+            <Link href={`/sites/${site.id}/rules`} className="underline">
+              Rule settings
+            </Link>
+            {isAdmin(viewer) ? (
+              <Link href={`/sites/${site.id}/gateways`} className="underline">
+                Gateways and point maps
+              </Link>
+            ) : null}
+          </p>
         ) : null}
       </header>
       <SiteWarnings siteId={site.id} canAct={canAct(viewer)} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
