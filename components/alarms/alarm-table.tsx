@@ -11,8 +11,18 @@ import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { ownerStateLabel, PriorityBadge, stateLabel } from "./priority";
 
 const column = createColumnHelper<AlarmDto>();
+
+declare module "@tanstack/react-table" {
+  // Lets a column hide itself on narrow screens. Declaration merging needs the library's own
+  // type parameters, used or not.
+  // eslint-disable-next-line @typescript-eslint/no-unused-vars
+  interface ColumnMeta<TData, TValue> {
+    className?: string;
+  }
+}
+// ISA-18.2: shelved and suppressed alarms stay out of the main list but can be looked up.
 const stateFilters = [
-  { value: "", label: "All active" },
+  { value: "unacknowledged,acknowledged,returned_unacknowledged,latched", label: "All active" },
   { value: "unacknowledged,returned_unacknowledged,latched", label: "Needs acknowledgement" },
   { value: "acknowledged", label: "Acknowledged" },
   { value: "shelved", label: "Shelved" },
@@ -21,7 +31,7 @@ const stateFilters = [
 
 export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name: string }>; canAct: boolean }) {
   const [site, setSite] = useState("");
-  const [state, setState] = useState("");
+  const [state, setState] = useState(stateFilters[0].value);
   const [priority, setPriority] = useState("");
   const [sorting, setSorting] = useState<SortingState>([{ id: "priority", desc: false }]);
   const query = new URLSearchParams({ ...(site && { site }), ...(state && { state }), ...(priority && { priority }) }).toString();
@@ -31,19 +41,22 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
   const columns = useMemo(
     () => [
       column.accessor("priority", { header: "Priority", cell: (c) => <PriorityBadge priority={c.getValue()} /> }),
-      column.accessor("siteName", { header: "Site" }),
-      column.accessor("equipment", { header: "Equipment" }),
+      column.accessor("siteName", { header: "Site", meta: { className: "hidden sm:table-cell" } }),
+      column.accessor("equipment", { header: "Equipment", meta: { className: "hidden sm:table-cell" } }),
       column.accessor((a) => (canAct ? a.detail.technicianMessage : a.detail.ownerMessage || a.detail.technicianMessage), {
         id: "message",
         header: "What",
         cell: (c) => (
-          <Link href={`/alarms/${c.row.original.id}`} className="font-semibold hover:underline">
-            {c.getValue()}
-          </Link>
+          <>
+            <span className="block text-xs text-muted sm:hidden">{c.row.original.siteName}</span>
+            <Link href={`/alarms/${c.row.original.id}`} className="font-semibold hover:underline">
+              {c.getValue()}
+            </Link>
+          </>
         ),
       }),
       column.accessor("state", { header: "State", cell: (c) => (canAct ? stateLabel : ownerStateLabel)[c.getValue()] ?? c.getValue() }),
-      column.accessor("lastTransitionMs", { header: "Last change", cell: (c) => formatDateTime(c.getValue()) }),
+      column.accessor("lastTransitionMs", { header: "Last change", cell: (c) => formatDateTime(c.getValue()), meta: { className: "hidden md:table-cell" } }),
     ],
     [canAct],
   );
@@ -93,7 +106,7 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id}>
                 {g.headers.map((h) => (
-                  <th key={h.id} scope="col" className="px-3 py-2 font-normal" aria-sort={h.column.getIsSorted() ? (h.column.getIsSorted() === "asc" ? "ascending" : "descending") : undefined}>
+                  <th key={h.id} scope="col" className={`px-3 py-2 font-normal ${h.column.columnDef.meta?.className ?? ""}`} aria-sort={h.column.getIsSorted() ? (h.column.getIsSorted() === "asc" ? "ascending" : "descending") : undefined}>
                     <button type="button" className="min-h-11 hover:underline" onClick={h.column.getToggleSortingHandler()}>
                       {flexRender(h.column.columnDef.header, h.getContext())}
                       {{ asc: " ▲", desc: " ▼" }[h.column.getIsSorted() as string] ?? ""}
@@ -107,7 +120,7 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
             {table.getRowModel().rows.map((row) => (
               <tr key={row.id} className="border-t border-line/60">
                 {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className="px-3 py-2 align-top">
+                  <td key={cell.id} className={`px-3 py-2 align-top ${cell.column.columnDef.meta?.className ?? ""}`}>
                     {flexRender(cell.column.columnDef.cell, cell.getContext())}
                   </td>
                 ))}

@@ -257,7 +257,8 @@ export function saveAlarmChanges(
 }
 
 function emptyDetail(a: Alarm): AlarmDetail {
-  return { technicianMessage: a.ruleId, ownerMessage: "", advice: [], caution: null, numbers: {}, related: [], atMs: a.lastTransitionMs ?? 0 };
+  const what = `${a.equipment}: ${a.ruleId.replaceAll("_", " ")}`;
+  return { technicianMessage: what, ownerMessage: "", advice: [], caution: null, numbers: {}, related: [], atMs: a.lastTransitionMs ?? 0 };
 }
 
 /** Per visible site: the worst annunciated alarm and how many wait for acknowledgement. */

@@ -21,13 +21,17 @@ export function createEscalator(deps: { db: Db; mailer: Mailer; clock: () => num
   const { db } = deps;
   let running: Promise<number> | null = null;
 
-  function recipients(step: EscalationStep, nowMs: number): Array<{ id: string; name: string; email: string }> {
+  type Recipient = { id: string; name: string; email: string; why: string };
+  function recipients(step: EscalationStep, nowMs: number): Recipient[] {
     const shift = shiftAt(allShifts(db), nowMs);
+    const asAdmin = (why: string) => admins(db).map((a) => ({ ...a, why }));
     // With nobody on the rota the admins hear about it at once rather than nobody at all.
-    if (step === 2 || !shift) return admins(db);
+    if (!shift) return step === 0 ? asAdmin("an admin: nobody is on the on-call rota") : [];
+    if (step === 2) return asAdmin("an admin, because nobody acknowledged it yet");
     const userId = step === 0 ? shift.primaryUserId : shift.backupUserId;
     const contact = userId ? contactOf(db, userId) : null;
-    return contact ? [contact] : step === 1 ? admins(db) : [];
+    if (!contact) return step === 1 ? asAdmin("an admin: the shift has no backup") : [];
+    return [{ ...contact, why: step === 0 ? stepLabel[0] : `${stepLabel[1]}, because nobody acknowledged it yet` }];
   }
 
   async function runOnce(): Promise<number> {
@@ -53,7 +57,7 @@ export function createEscalator(deps: { db: Db; mailer: Mailer; clock: () => num
           const link = `${deps.publicUrl}/ack/${token}`;
           const meaning = priorityMeanings[alarm.priority as Priority];
           const text = [
-            `${alarm.siteName} — ${alarm.equipment}: ${alarm.detail.technicianMessage}`,
+            `${alarm.siteName}: ${alarm.detail.technicianMessage}`,
             "",
             `Priority: ${meaning?.label ?? alarm.priority}. ${meaning?.response ?? ""}`,
             ...(alarm.detail.advice.length ? ["", "What to consider:", ...alarm.detail.advice.map((s) => `- ${s}`)] : []),
@@ -62,7 +66,7 @@ export function createEscalator(deps: { db: Db; mailer: Mailer; clock: () => num
             `Acknowledge (works once, expires in ${ACK_LINK_TTL_MS / 3600_000} h): ${link}`,
             `Open the alarm: ${deps.publicUrl}/alarms/${a.id}`,
             "",
-            `You are receiving this as ${stepLabel[step]}${step > 0 ? " because nobody acknowledged it yet" : ""}.`,
+            `You are receiving this as ${person.why}.`,
           ].join("\n");
           try {
             await deps.mailer.send({ to: person.email, subject: `[Liftline P${alarm.priority}] ${alarm.siteName}: ${alarm.detail.technicianMessage}`.slice(0, 180), text });
