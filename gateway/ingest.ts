@@ -2,6 +2,7 @@ import { RateLimiterMemory } from "rate-limiter-flexible";
 import type { IngestGateway, IngestPoint } from "@/db/queries/gateways";
 import { toCanonical } from "@/lib/units";
 import {
+  fastReading,
   MAX_FUTURE_MS,
   MAX_PAYLOAD_BYTES,
   parseTopic,
@@ -53,25 +54,25 @@ const numericMeasures = new Set(["temperature", "pressure", "differential_pressu
 
 /** A value checked against the point it maps to, in canonical units; or why not. */
 export function toRow(point: IngestPoint, value: unknown, ts: number, quality: 0 | 1 | 2): RowIn | "wrong_type" {
-  const base = { pointId: point.pointId, siteId: point.siteId, ts, quality };
+  // One object literal per row (no spread of a shared base): this runs for every reading.
   if (numericMeasures.has(point.measure)) {
     if (typeof value !== "number" || !Number.isFinite(value)) return "wrong_type";
     const v = toCanonical(value, point.unit);
     if (!Number.isFinite(v)) return "wrong_type";
-    return { ...base, value: v, text: null, live: v };
+    return { pointId: point.pointId, siteId: point.siteId, ts, quality, value: v, text: null, live: v };
   }
   if (point.measure === "boolean") {
     const b = typeof value === "boolean" ? value : value === 1 ? true : value === 0 ? false : undefined;
     if (b === undefined) return "wrong_type";
-    return { ...base, value: b ? 1 : 0, text: null, live: b };
+    return { pointId: point.pointId, siteId: point.siteId, ts, quality, value: b ? 1 : 0, text: null, live: b };
   }
   if (typeof value !== "string" || value.length === 0) return "wrong_type";
   if (point.measure === "state") {
     const s = value.trim().toLowerCase();
     if (point.states && !point.states.includes(s)) return "wrong_type";
-    return { ...base, value: null, text: s, live: s };
+    return { pointId: point.pointId, siteId: point.siteId, ts, quality, value: null, text: s, live: s };
   }
-  return { ...base, value: null, text: value, live: value };
+  return { pointId: point.pointId, siteId: point.siteId, ts, quality, value: null, text: value, live: value };
 }
 
 export function createIngest(deps: IngestDeps): Ingest {
@@ -82,35 +83,27 @@ export function createIngest(deps: IngestDeps): Ingest {
     return { gatewayId, rows: [], messages: 1, rejections: { [reason]: 1 }, receivedAtMs: now };
   }
 
-  /** Shared by both protocols: name → point → checked row. */
-  function mapValues(gw: IngestGateway, items: Array<{ name: string; value: unknown; tsMs: number; quality: 0 | 1 | 2 }>, now: number, batch: Batch) {
+  function bump(batch: Batch, r: RejectionReason) {
     const rej = (batch.rejections ??= {});
-    const bump = (r: RejectionReason) => (rej[r] = (rej[r] ?? 0) + 1);
-    for (const item of items) {
-      const point = gw.map.get(item.name);
-      if (!point) {
-        bump("unmapped_point");
-        batch.unmapped ??= new Map();
-        batch.unmapped.set(item.name, (batch.unmapped.get(item.name) ?? 0) + 1);
-        continue;
-      }
-      if (!Number.isFinite(item.tsMs)) {
-        bump("invalid_reading");
-        continue;
-      }
-      const ts = Math.round(item.tsMs);
-      if (ts > now + MAX_FUTURE_MS) {
-        bump("future_timestamp");
-        continue;
-      }
-      if (ts < now - deps.rawRetentionMs) {
-        bump("too_old");
-        continue;
-      }
-      const row = toRow(point, item.value, ts, item.quality);
-      if (row === "wrong_type") bump("wrong_type");
-      else batch.rows.push(row);
+    rej[r] = (rej[r] ?? 0) + 1;
+  }
+
+  /** Shared by both protocols: name → point → checked row, one reading at a time (no intermediate arrays). */
+  function mapValue(gw: IngestGateway, name: string, value: unknown, tsMs: number, quality: 0 | 1 | 2, now: number, batch: Batch) {
+    const point = gw.map.get(name);
+    if (!point) {
+      bump(batch, "unmapped_point");
+      batch.unmapped ??= new Map();
+      batch.unmapped.set(name, (batch.unmapped.get(name) ?? 0) + 1);
+      return;
     }
+    if (!Number.isFinite(tsMs)) return bump(batch, "invalid_reading");
+    const ts = Math.round(tsMs);
+    if (ts > now + MAX_FUTURE_MS) return bump(batch, "future_timestamp");
+    if (ts < now - deps.rawRetentionMs) return bump(batch, "too_old");
+    const row = toRow(point, value, ts, quality);
+    if (row === "wrong_type") bump(batch, "wrong_type");
+    else batch.rows.push(row);
   }
 
   async function submit(batch: Batch): Promise<void> {
@@ -135,16 +128,20 @@ export function createIngest(deps: IngestDeps): Ingest {
     if (!envelope.success) return submit(counterOnly(gw.gatewayId, "invalid_message", now));
     const sentAt = Date.parse(envelope.data.sentAt);
     const batch: Batch = { gatewayId: gw.gatewayId, rows: [], messages: 1, rejections: {}, receivedAtMs: now };
-    const items: Array<{ name: string; value: unknown; tsMs: number; quality: 0 | 1 | 2 }> = [];
-    for (const raw of envelope.data.readings) {
-      const r = readingSchema.safeParse(raw);
-      if (!r.success) {
-        batch.rejections!.invalid_reading = (batch.rejections!.invalid_reading ?? 0) + 1;
-        continue;
+    const list = envelope.data.readings;
+    for (let i = 0; i < list.length; i++) {
+      // The common valid reading skips safeParse; anything else gets zod's verdict.
+      let r = fastReading(list[i]);
+      if (r === undefined) {
+        const parsed = readingSchema.safeParse(list[i]);
+        if (!parsed.success) {
+          bump(batch, "invalid_reading");
+          continue;
+        }
+        r = parsed.data;
       }
-      items.push({ name: r.data.point, value: r.data.value, tsMs: r.data.ts ? Date.parse(r.data.ts) : sentAt, quality: qualityCodes[r.data.quality ?? "good"] });
+      mapValue(gw, r.point, r.value, r.ts !== undefined ? Date.parse(r.ts) : sentAt, r.quality === undefined ? 0 : qualityCodes[r.quality], now, batch);
     }
-    mapValues(gw, items, now, batch);
     return submit(batch);
   }
 
@@ -163,7 +160,7 @@ export function createIngest(deps: IngestDeps): Ingest {
       const out = deps.sparkplug.handle(gw.gatewayId, t, payload, now);
       if (out.presence) deps.onPresence?.(gw, out.presence, now);
       const batch: Batch = { gatewayId: gw.gatewayId, rows: [], messages: 1, rejections: { ...out.rejections }, receivedAtMs: now };
-      mapValues(gw, out.values.map((v) => ({ name: v.name, value: v.value, tsMs: Number.isFinite(v.tsMs) ? v.tsMs : now, quality: 0 })), now, batch);
+      for (const v of out.values) mapValue(gw, v.name, v.value, Number.isFinite(v.tsMs) ? v.tsMs : now, 0, now, batch);
       return submit(batch);
     }
     return submit(counterOnly(gw.gatewayId, "bad_topic", now));

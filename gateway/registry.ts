@@ -13,14 +13,16 @@ export interface GatewayRegistry {
 export function createGatewayRegistry(deps: { db: Db; clock?: { now(): number }; ttlMs?: number }): GatewayRegistry {
   const ttl = deps.ttlMs ?? 30_000;
   const now = () => deps.clock?.now() ?? Date.now();
-  const cache = new Map<string, { at: number; gw: IngestGateway | null }>();
+  const cache = new Map<string, { expires: number; gw: IngestGateway | null }>();
   const sparkplugIds = new Map<string, string | null>();
 
   function get(gatewayId: string): IngestGateway | null {
     const hit = cache.get(gatewayId);
-    if (hit && now() - hit.at < ttl) return hit.gw;
+    if (hit && now() < hit.expires) return hit.gw;
     const gw = loadIngestGateway(deps.db, gatewayId);
-    cache.set(gatewayId, { at: now(), gw });
+    // Expiry spread over [ttl/2, ttl]: gateways that connected together would otherwise all
+    // reload their point maps in the same turn of the event loop (~2.5 ms per 500 points).
+    cache.set(gatewayId, { expires: now() + ttl * (0.5 + Math.random() / 2), gw });
     return gw;
   }
 

@@ -1,6 +1,6 @@
-import { eq, sql } from "drizzle-orm";
+import { createRequire } from "node:module";
+import { Worker } from "node:worker_threads";
 import type { Db } from "@/db/client";
-import { gatewayRejections, gateways, gatewayUnmappedPoints, latestValues, readings, readings1m } from "@/db/schema";
 import type { RejectionReason } from "./contract";
 
 // The batched writer: everything the ingest accepted (readings, counters, rejections) is
@@ -48,11 +48,15 @@ export interface WriterOptions {
   clock?: Clock;
   /** Longest a row waits before its flush starts. */
   flushMs?: number;
+  /** A flush starts early when no message arrived for this long (default 5 ms, at most flushMs). */
+  idleMs?: number;
   /** A flush starts at once when this many rows are queued. */
   maxRows?: number;
   /** Called after each commit with the rows that were new (duplicates left out). */
-  onCommitted?: (inserted: Array<RowIn & { gatewayId: string }>) => void;
+  onCommitted?: (inserted: RowIn[]) => void;
   log?: (line: string) => void;
+  /** Interval of the background WAL checkpoint (file databases only); 0 turns it off. */
+  checkpointMs?: number;
 }
 
 export interface BatchWriter {
@@ -71,74 +75,96 @@ interface Pending {
 
 const MINUTE_MS = 60_000;
 
+interface Rollup {
+  pointId: number;
+  bucket: number;
+  min: number;
+  max: number;
+  sum: number;
+  count: number;
+  last: number;
+  lastTs: number;
+  next: Rollup | undefined;
+}
+
+// A PASSIVE checkpoint every 100 ms on its own connection in a worker thread: it copies
+// committed WAL pages back into the database (and fsyncs) while the event loop goes on
+// committing, so SQLite's automatic checkpoint, which runs inside a commit and blocks the event
+// loop, is only a safety net (db/client.ts). Measured on 20k points, 2,000-row flushes at
+// ~35k rows/s: p99 flush 30 ms with the default in-commit checkpoint, 22 ms with this one.
+const checkpointWorkerSource = `
+const { parentPort, workerData } = require("node:worker_threads");
+const Database = require(workerData.driver);
+const db = new Database(workerData.file, { fileMustExist: true });
+db.pragma("busy_timeout = 1000");
+const timer = setInterval(() => {
+  try { db.pragma("wal_checkpoint(PASSIVE)"); } catch { /* busy or closing: the next round retries */ }
+}, workerData.everyMs);
+parentPort.once("message", () => { clearInterval(timer); db.close(); parentPort.close(); });
+`;
+
+function startCheckpointer(file: string, everyMs: number, log: (line: string) => void): { stop(): Promise<void> } {
+  const worker = new Worker(checkpointWorkerSource, { eval: true, workerData: { driver: createRequire(import.meta.url).resolve("better-sqlite3"), file, everyMs } });
+  worker.unref();
+  worker.on("error", (err) => log(`[ingest] background checkpoint stopped: ${String(err)}`));
+  return {
+    stop: () =>
+      new Promise<void>((resolve) => {
+        worker.once("exit", () => resolve());
+        worker.postMessage("stop");
+        setTimeout(() => void worker.terminate(), 2000).unref();
+      }),
+  };
+}
+
 export function createBatchWriter(opts: WriterOptions): BatchWriter {
   const { db } = opts;
   const flushMs = opts.flushMs ?? 50;
   const maxRows = opts.maxRows ?? 5000;
+  const idleMs = Math.max(1, Math.min(flushMs, opts.idleMs ?? 5));
   const log = opts.log ?? (() => {});
-  const ph = sql.placeholder;
+  const sqlite = db.$client;
 
-  // Prepared once; Drizzle's prepared statements with placeholders stay close to raw speed.
-  const insertReading = db
-    .insert(readings)
-    .values({ pointId: ph("pointId"), ts: ph("ts"), value: ph("value"), text: ph("text"), quality: ph("quality") })
-    .onConflictDoNothing() // idempotent on (point_id, ts): a redelivered message adds nothing
-    .prepare();
-  const upsertRollup = db
-    .insert(readings1m)
-    .values({ pointId: ph("pointId"), bucket: ph("bucket"), min: ph("min"), max: ph("max"), sum: ph("sum"), count: ph("count"), last: ph("last"), lastTs: ph("lastTs") })
-    .onConflictDoUpdate({
-      target: [readings1m.pointId, readings1m.bucket],
-      // SQLite evaluates every SET expression against the old row, so `last` compares old last_ts.
-      set: {
-        min: sql`min(${readings1m.min}, excluded.min)`,
-        max: sql`max(${readings1m.max}, excluded.max)`,
-        sum: sql`${readings1m.sum} + excluded.sum`,
-        count: sql`${readings1m.count} + excluded.count`,
-        last: sql`case when excluded.last_ts >= ${readings1m.lastTs} then excluded.last else ${readings1m.last} end`,
-        lastTs: sql`max(${readings1m.lastTs}, excluded.last_ts)`,
-      },
-    })
-    .prepare();
-  const upsertLatest = db
-    .insert(latestValues)
-    .values({ pointId: ph("pointId"), ts: ph("ts"), value: ph("value"), text: ph("text"), quality: ph("quality"), gatewayId: ph("gatewayId"), receivedAt: ph("receivedAt") })
-    .onConflictDoUpdate({
-      target: latestValues.pointId,
-      set: {
-        ts: sql`excluded.ts`,
-        value: sql`excluded.value`,
-        text: sql`excluded.text`,
-        quality: sql`excluded.quality`,
-        gatewayId: sql`excluded.gateway_id`,
-        receivedAt: sql`excluded.received_at`,
-      },
-      setWhere: sql`excluded.ts >= ${latestValues.ts}`,
-    })
-    .prepare();
-  const bumpGateway = db
-    .update(gateways)
-    .set({
-      messages: sql`${gateways.messages} + ${ph("messages")}`,
-      readingsAccepted: sql`${gateways.readingsAccepted} + ${ph("accepted")}`,
-      readingsDuplicate: sql`${gateways.readingsDuplicate} + ${ph("duplicates")}`,
-      lastMessageAt: sql`max(coalesce(${gateways.lastMessageAt}, 0), ${ph("at")})`,
-    })
-    .where(eq(gateways.id, ph("id")))
-    .prepare();
-  const bumpRejection = db
-    .insert(gatewayRejections)
-    .values({ gatewayId: ph("gatewayId"), reason: ph("reason"), count: ph("count"), lastAt: ph("at") })
-    .onConflictDoUpdate({ target: [gatewayRejections.gatewayId, gatewayRejections.reason], set: { count: sql`${gatewayRejections.count} + excluded.count`, lastAt: sql`excluded.last_at` } })
-    .prepare();
-  const bumpUnmapped = db
-    .insert(gatewayUnmappedPoints)
-    .values({ gatewayId: ph("gatewayId"), pointName: ph("pointName"), count: ph("count"), lastSeenAt: ph("at") })
-    .onConflictDoUpdate({
-      target: [gatewayUnmappedPoints.gatewayId, gatewayUnmappedPoints.pointName],
-      set: { count: sql`${gatewayUnmappedPoints.count} + excluded.count`, lastSeenAt: sql`excluded.last_seen_at` },
-    })
-    .prepare();
+  // Raw better-sqlite3 statements, prepared once: on the hot path Drizzle's per-call
+  // placeholder filling and entity checks cost more than the inserts themselves.
+  // Idempotent on (point_id, ts): a redelivered message adds nothing.
+  const insertReading = sqlite.prepare("insert into readings (point_id, ts, value, text, quality) values (?, ?, ?, ?, ?) on conflict do nothing");
+  // SQLite evaluates every SET expression against the old row, so `last` compares old last_ts.
+  const upsertRollup = sqlite.prepare(
+    `insert into readings_1m (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, ?, ?, ?, ?, ?, ?)
+     on conflict (point_id, bucket) do update set
+       min = min(readings_1m.min, excluded.min),
+       max = max(readings_1m.max, excluded.max),
+       sum = readings_1m.sum + excluded.sum,
+       count = readings_1m.count + excluded.count,
+       last = case when excluded.last_ts >= readings_1m.last_ts then excluded.last else readings_1m.last end,
+       last_ts = max(readings_1m.last_ts, excluded.last_ts)`,
+  );
+  const upsertLatest = sqlite.prepare(
+    `insert into latest_values (point_id, ts, value, text, quality, gateway_id, received_at) values (?, ?, ?, ?, ?, ?, ?)
+     on conflict (point_id) do update set
+       ts = excluded.ts, value = excluded.value, text = excluded.text, quality = excluded.quality,
+       gateway_id = excluded.gateway_id, received_at = excluded.received_at
+     where excluded.ts >= latest_values.ts`,
+  );
+  const bumpGateway = sqlite.prepare(
+    `update gateways set messages = messages + ?, readings_accepted = readings_accepted + ?, readings_duplicate = readings_duplicate + ?,
+       last_message_at = max(coalesce(last_message_at, 0), ?)
+     where id = ?`,
+  );
+  const bumpRejection = sqlite.prepare(
+    `insert into gateway_rejections (gateway_id, reason, count, last_at) values (?, ?, ?, ?)
+     on conflict (gateway_id, reason) do update set count = gateway_rejections.count + excluded.count, last_at = excluded.last_at`,
+  );
+  const bumpUnmapped = sqlite.prepare(
+    `insert into gateway_unmapped_points (gateway_id, point_name, count, last_seen_at) values (?, ?, ?, ?)
+     on conflict (gateway_id, point_name) do update set count = gateway_unmapped_points.count + excluded.count, last_seen_at = excluded.last_seen_at`,
+  );
+  const checkpointMs = opts.checkpointMs ?? 100;
+  const checkpointer = !sqlite.memory && sqlite.name && checkpointMs > 0 ? startCheckpointer(sqlite.name, checkpointMs, log) : undefined;
+
+  // One BEGIN/COMMIT pair prepared once (better-sqlite3 caches them per transaction function).
+  const transaction = sqlite.transaction((items: Pending[]) => writeAll(items));
 
   let queue: Pending[] = [];
   let queuedRows = 0;
@@ -151,6 +177,19 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   let closed = false;
   const stats = { flushes: 0, rows: 0, lastFlushMs: 0, maxFlushMs: 0 };
 
+  // A flush starts flushMs after the first queued message at the latest, and sooner once no
+  // message arrived for idleMs (a burst is over): under steady load batches stay large, while
+  // a quiet moment does not make the last messages of a burst wait out the whole window.
+  let firstAt = 0;
+  let lastAt = 0;
+  function onTimer() {
+    timer = undefined;
+    const now = performance.now();
+    const deadline = firstAt + flushMs;
+    if (now >= deadline || now - lastAt >= idleMs) return flush();
+    timer = { kind: "timeout", t: setTimeout(onTimer, Math.max(1, Math.min(idleMs - (now - lastAt), deadline - now))) };
+  }
+
   function schedule() {
     if (queuedRows >= maxRows && timer?.kind !== "immediate") {
       cancel();
@@ -160,76 +199,98 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     }
     // flushMs 0: flush on the next turn of the event loop (a publisher that waits for each
     // acknowledgement, like an external broker session, then gets one message per flush).
-    timer ??= flushMs === 0 ? { kind: "immediate", t: setImmediate(flush) } : { kind: "timeout", t: setTimeout(flush, flushMs) };
+    if (flushMs === 0) {
+      timer ??= { kind: "immediate", t: setImmediate(flush) };
+      return;
+    }
+    lastAt = performance.now();
+    if (!timer) {
+      firstAt = lastAt;
+      timer = { kind: "timeout", t: setTimeout(onTimer, idleMs) };
+    }
   }
 
-  function writeAll(items: Pending[]): { results: SubmitResult[]; inserted: Array<RowIn & { gatewayId: string }> } {
-    const inserted: Array<RowIn & { gatewayId: string }> = [];
+  function writeAll(items: Pending[]): { results: SubmitResult[]; inserted: RowIn[] } {
+    const inserted: RowIn[] = [];
     const results: SubmitResult[] = [];
-    const rollups = new Map<string, { pointId: number; bucket: number; min: number; max: number; sum: number; count: number; last: number; lastTs: number }>();
-    const latest = new Map<number, RowIn & { gatewayId: string; receivedAt: number }>();
+    // Keyed by point id; other buckets of the same point in this flush hang off `next` (rare:
+    // only when a flush spans a minute boundary or carries late readings).
+    const rollups = new Map<number, Rollup>();
+    const latest = new Map<number, { row: RowIn; gatewayId: string; receivedAt: number }>();
     const perGateway = new Map<string, { messages: number; accepted: number; duplicates: number; at: number }>();
     const rejections = new Map<string, { gatewayId: string; reason: string; count: number; at: number }>();
     const unmapped = new Map<string, { gatewayId: string; pointName: string; count: number; at: number }>();
 
-    for (const { batch } of items) {
+    for (let i = 0; i < items.length; i++) {
+      const batch = items[i].batch;
+      const rows = batch.rows;
       let accepted = 0;
-      for (const row of batch.rows) {
-        const r = insertReading.run({ pointId: row.pointId, ts: row.ts, value: row.value, text: row.text, quality: row.quality });
-        if (r.changes === 0) continue;
+      for (let j = 0; j < rows.length; j++) {
+        const row = rows[j];
+        if (insertReading.run(row.pointId, row.ts, row.value, row.text, row.quality).changes === 0) continue;
         accepted++;
-        const withGw = { ...row, gatewayId: batch.gatewayId };
-        inserted.push(withGw);
+        inserted.push(row);
         const prev = latest.get(row.pointId);
-        if (!prev || row.ts >= prev.ts) latest.set(row.pointId, { ...withGw, receivedAt: batch.receivedAtMs });
-        if (row.value !== null) {
-          const bucket = Math.floor(row.ts / MINUTE_MS) * MINUTE_MS;
-          const key = `${row.pointId}:${bucket}`;
-          const agg = rollups.get(key);
-          if (!agg) rollups.set(key, { pointId: row.pointId, bucket, min: row.value, max: row.value, sum: row.value, count: 1, last: row.value, lastTs: row.ts });
-          else {
-            agg.min = Math.min(agg.min, row.value);
-            agg.max = Math.max(agg.max, row.value);
-            agg.sum += row.value;
-            agg.count++;
-            if (row.ts >= agg.lastTs) {
-              agg.last = row.value;
-              agg.lastTs = row.ts;
-            }
+        if (!prev) latest.set(row.pointId, { row, gatewayId: batch.gatewayId, receivedAt: batch.receivedAtMs });
+        else if (row.ts >= prev.row.ts) {
+          prev.row = row;
+          prev.gatewayId = batch.gatewayId;
+          prev.receivedAt = batch.receivedAtMs;
+        }
+        const value = row.value;
+        if (value === null) continue;
+        const bucket = Math.floor(row.ts / MINUTE_MS) * MINUTE_MS;
+        const head = rollups.get(row.pointId);
+        let agg = head;
+        while (agg !== undefined && agg.bucket !== bucket) agg = agg.next;
+        if (agg === undefined) {
+          rollups.set(row.pointId, { pointId: row.pointId, bucket, min: value, max: value, sum: value, count: 1, last: value, lastTs: row.ts, next: head });
+        } else {
+          if (value < agg.min) agg.min = value;
+          if (value > agg.max) agg.max = value;
+          agg.sum += value;
+          agg.count++;
+          if (row.ts >= agg.lastTs) {
+            agg.last = value;
+            agg.lastTs = row.ts;
           }
         }
       }
-      const duplicates = batch.rows.length - accepted;
+      const duplicates = rows.length - accepted;
       results.push({ accepted, duplicates });
-      const g = perGateway.get(batch.gatewayId) ?? { messages: 0, accepted: 0, duplicates: 0, at: 0 };
+      let g = perGateway.get(batch.gatewayId);
+      if (!g) perGateway.set(batch.gatewayId, (g = { messages: 0, accepted: 0, duplicates: 0, at: 0 }));
       g.messages += batch.messages;
       g.accepted += accepted;
       g.duplicates += duplicates;
-      g.at = Math.max(g.at, batch.receivedAtMs);
-      perGateway.set(batch.gatewayId, g);
-      for (const [reason, n] of Object.entries(batch.rejections ?? {})) {
-        if (!n) continue;
-        const key = `${batch.gatewayId}\u0000${reason}`;
-        const e = rejections.get(key) ?? { gatewayId: batch.gatewayId, reason, count: 0, at: 0 };
-        e.count += n;
-        e.at = Math.max(e.at, batch.receivedAtMs);
-        rejections.set(key, e);
+      if (batch.receivedAtMs > g.at) g.at = batch.receivedAtMs;
+      if (batch.rejections) {
+        for (const [reason, n] of Object.entries(batch.rejections)) {
+          if (!n) continue;
+          const key = `${batch.gatewayId}\u0000${reason}`;
+          const e = rejections.get(key) ?? { gatewayId: batch.gatewayId, reason, count: 0, at: 0 };
+          e.count += n;
+          e.at = Math.max(e.at, batch.receivedAtMs);
+          rejections.set(key, e);
+        }
       }
-      for (const [pointName, n] of batch.unmapped ?? []) {
-        const key = `${batch.gatewayId}\u0000${pointName}`;
-        const e = unmapped.get(key) ?? { gatewayId: batch.gatewayId, pointName, count: 0, at: 0 };
-        e.count += n;
-        e.at = Math.max(e.at, batch.receivedAtMs);
-        unmapped.set(key, e);
+      if (batch.unmapped) {
+        for (const [pointName, n] of batch.unmapped) {
+          const key = `${batch.gatewayId}\u0000${pointName}`;
+          const e = unmapped.get(key) ?? { gatewayId: batch.gatewayId, pointName, count: 0, at: 0 };
+          e.count += n;
+          e.at = Math.max(e.at, batch.receivedAtMs);
+          unmapped.set(key, e);
+        }
       }
     }
-    for (const agg of rollups.values()) upsertRollup.run(agg);
-    for (const v of latest.values()) {
-      upsertLatest.run({ pointId: v.pointId, ts: v.ts, value: v.value, text: v.text, quality: v.quality, gatewayId: v.gatewayId, receivedAt: v.receivedAt });
+    for (const head of rollups.values()) {
+      for (let agg: Rollup | undefined = head; agg !== undefined; agg = agg.next) upsertRollup.run(agg.pointId, agg.bucket, agg.min, agg.max, agg.sum, agg.count, agg.last, agg.lastTs);
     }
-    for (const [id, g] of perGateway) bumpGateway.run({ id, messages: g.messages, accepted: g.accepted, duplicates: g.duplicates, at: g.at });
-    for (const e of rejections.values()) bumpRejection.run({ ...e, at: new Date(e.at) });
-    for (const e of unmapped.values()) bumpUnmapped.run({ ...e, at: new Date(e.at) });
+    for (const { row, gatewayId, receivedAt } of latest.values()) upsertLatest.run(row.pointId, row.ts, row.value, row.text, row.quality, gatewayId, receivedAt);
+    for (const [id, g] of perGateway) bumpGateway.run(g.messages, g.accepted, g.duplicates, g.at, id);
+    for (const e of rejections.values()) bumpRejection.run(e.gatewayId, e.reason, e.count, e.at);
+    for (const e of unmapped.values()) bumpUnmapped.run(e.gatewayId, e.pointName, e.count, e.at);
     return { results, inserted };
   }
 
@@ -242,7 +303,7 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     const started = performance.now();
     let outcome: ReturnType<typeof writeAll>;
     try {
-      outcome = db.transaction(() => writeAll(items));
+      outcome = transaction(items);
     } catch (err) {
       // Nothing of this flush is stored; no PUBACK goes out, so the publishers resend.
       log(`[ingest] flush of ${items.length} message(s) failed: ${String(err)}`);
@@ -275,6 +336,7 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     async close() {
       closed = true;
       flush();
+      await checkpointer?.stop();
     },
     stats: () => ({ ...stats, queued: queuedRows }),
   };

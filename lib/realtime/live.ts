@@ -79,14 +79,22 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
 
   return {
     onCommitted(rows) {
-      for (const r of rows) {
+      // Runs for every committed reading: rows of one message share a site, so the site's
+      // pending map is looked up only when the site changes.
+      let lastSite: string | undefined;
+      let site: Map<number, Value> | undefined;
+      for (let i = 0; i < rows.length; i++) {
+        const r = rows[i];
         const prev = latest.get(r.pointId);
         // Out-of-order readings are stored but do not replace a newer live value.
         if (prev && prev.tsMs > r.ts) continue;
         const v: Value = { pointId: r.pointId, tsMs: r.ts, value: r.live, quality: qualityNames[r.quality] };
         latest.set(r.pointId, v);
-        let site = pending.get(r.siteId);
-        if (!site) pending.set(r.siteId, (site = new Map()));
+        if (r.siteId !== lastSite || !site) {
+          lastSite = r.siteId;
+          site = pending.get(r.siteId);
+          if (!site) pending.set(r.siteId, (site = new Map()));
+        }
         site.set(r.pointId, v);
         if (!prev) statusDue = true;
       }

@@ -3,6 +3,10 @@
 // publish→PUBACK (= commit) and publish→browser-socket latency p50/p99, a 30-day trend request
 // time while ingestion runs, and the raw better-sqlite3 batched insert rate on the same table
 // shape and point count, measured in the same run. Settings: BENCH_* env vars below.
+// The headline figures are steady state: the first BENCH_WARMUP_SECONDS of publishing (first
+// sight of every point, rule monitors being built, JIT) are excluded and reported apart, with
+// a per-second timeline so a start-up tail is told apart from a steady one.
+import { execFileSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -25,6 +29,9 @@ const env = z
     BENCH_RATE: z.coerce.number().int().min(100).default(20_000),
     BENCH_SECONDS: z.coerce.number().int().min(3).default(20),
     BENCH_PER_MESSAGE: z.coerce.number().int().min(1).max(5000).default(20),
+    BENCH_WARMUP_SECONDS: z.coerce.number().int().min(0).default(5),
+    /** 1: print the per-second timeline. */
+    BENCH_TIMELINE: z.coerce.number().int().min(0).max(1).default(1),
   })
   .parse(process.env);
 
@@ -94,12 +101,34 @@ function rawInsertRate(pointCount: number, batch: number, rows: number): number 
 }
 
 const pct = (xs: number[], q: number) => (xs.length ? quantile(xs, q) : NaN);
+
+/** CPU seconds (user + system) a process used so far, from /proc (Linux only; NaN elsewhere). */
+const clockTicks = (() => {
+  try {
+    return Number(execFileSync("getconf", ["CLK_TCK"]).toString().trim()) || 100;
+  } catch {
+    return 100;
+  }
+})();
+function processCpuSeconds(pid: number | undefined): number {
+  try {
+    const stat = fs.readFileSync(`/proc/${pid}/stat`, "utf8");
+    const fields = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+    // Fields 14 and 15 of proc(5) (utime, stime); index 11 and 12 after the command name.
+    return (Number(fields[11]) + Number(fields[12])) / clockTicks;
+  } catch {
+    return NaN;
+  }
+}
 const fmt = (n: number) => (Number.isFinite(n) ? Math.round(n).toLocaleString("en-US") : "n/a");
 
 async function main() {
   const pointCount = env.BENCH_GATEWAYS * env.BENCH_POINTS_PER_GATEWAY;
   console.log(`Machine: ${os.cpus().length} × ${os.cpus()[0]?.model ?? "cpu"}, ${Math.round(os.totalmem() / 2 ** 30)} GB, Node ${process.version}`);
   console.log(`Setup: ${env.BENCH_GATEWAYS} gateways × ${env.BENCH_POINTS_PER_GATEWAY} points = ${pointCount} points; target ${env.BENCH_RATE} readings/s in ${env.BENCH_PER_MESSAGE}-reading messages for ${env.BENCH_SECONDS} s`);
+
+  // The server inherits this environment (tests/helpers/server.ts), so these can be varied per run.
+  console.log(`Server settings: LIVE_PUSH_MS=${process.env.LIVE_PUSH_MS ?? "default (200)"}, INGEST_FLUSH_MS=${process.env.INGEST_FLUSH_MS ?? "default (50)"}, INGEST_MAX_BATCH_ROWS=${process.env.INGEST_MAX_BATCH_ROWS ?? "default (5000)"}`);
 
   const raw1k = rawInsertRate(pointCount, 1000, 300_000);
   const raw5k = rawInsertRate(pointCount, 5000, 300_000);
@@ -117,12 +146,14 @@ async function main() {
       socket.once("connect_error", reject);
     });
     await new Promise((resolve) => socket.emit("board:join", resolve));
-    const socketLatency: number[] = [];
+    // [ms since publishing started, latency ms]
+    const socketSamples: Array<[number, number]> = [];
     let measuring = false;
+    let started = 0;
     socket.on("site:values", (p: { values: Array<{ tsMs: number }> }) => {
       if (!measuring) return;
       const now = Date.now();
-      for (const v of p.values) socketLatency.push(now - v.tsMs);
+      for (const v of p.values) socketSamples.push([now - started, now - v.tsMs]);
     });
 
     for (const g of gws) {
@@ -139,14 +170,23 @@ async function main() {
     const trendUrl = `${server.url}/api/points/1/series?from=${Date.now() - 30 * 86_400_000}&to=${Date.now()}&maxPoints=1000`;
     await fetch(trendUrl, { headers: { cookie: cookie! } });
 
-    const ackLatency: number[] = [];
+    const ackSamples: Array<[number, number]> = [];
+    const ackedPerSecond: number[] = [];
     let published = 0;
     let acked = 0;
     const perGatewayPerTick = (env.BENCH_RATE / env.BENCH_GATEWAYS) * 0.1; // readings per 100 ms
     const cursor = gws.map(() => 0);
     let carry = 0;
+    const warmupMs = env.BENCH_WARMUP_SECONDS * 1000;
+    const cpu: { server: number[]; client: number[] } = { server: [], client: [] };
+    let ackedAtSteadyStart = 0;
     measuring = true;
-    const started = Date.now();
+    started = Date.now();
+    const markSteady = setTimeout(() => {
+      ackedAtSteadyStart = acked;
+      cpu.server.push(processCpuSeconds(server.process.pid));
+      cpu.client.push(process.cpuUsage().user / 1e6 + process.cpuUsage().system / 1e6);
+    }, warmupMs);
     const tick = setInterval(() => {
       carry += perGatewayPerTick;
       const n = Math.floor(carry);
@@ -167,24 +207,32 @@ async function main() {
           clients[gi].publish(`liftline/${g.id}/readings`, JSON.stringify({ sentAt: new Date(now).toISOString(), readings }), { qos: 1 }, (err) => {
             if (err) return;
             acked += size;
-            ackLatency.push(performance.now() - t0);
+            const at = Date.now() - started;
+            ackSamples.push([at, performance.now() - t0]);
+            const sec = Math.floor(at / 1000);
+            ackedPerSecond[sec] = (ackedPerSecond[sec] ?? 0) + size;
           });
         }
       });
     }, 100);
 
-    const trendTimes: number[] = [];
+    const trendSamples: Array<[number, number]> = [];
     const trendTimer = setInterval(async () => {
+      const at = Date.now() - started;
       const t0 = performance.now();
       const res = await fetch(trendUrl, { headers: { cookie: cookie! } });
       await res.arrayBuffer();
-      trendTimes.push(performance.now() - t0);
-    }, 2000);
+      trendSamples.push([at, performance.now() - t0]);
+    }, 1000);
 
-    await new Promise((r) => setTimeout(r, env.BENCH_SECONDS * 1000));
+    await new Promise((r) => setTimeout(r, warmupMs + env.BENCH_SECONDS * 1000));
     clearInterval(tick);
     clearInterval(trendTimer);
+    clearTimeout(markSteady);
     const publishEnded = Date.now();
+    const ackedAtEnd = acked;
+    cpu.server.push(processCpuSeconds(server.process.pid));
+    cpu.client.push(process.cpuUsage().user / 1e6 + process.cpuUsage().system / 1e6);
     const until = Date.now() + 30_000;
     while (acked < published && Date.now() < until) await new Promise((r) => setTimeout(r, 100));
     const drained = Date.now();
@@ -197,16 +245,49 @@ async function main() {
     db.close();
     const seconds = (drained - started) / 1000;
     const sustained = committed / seconds;
+    const steadyS = env.BENCH_SECONDS;
+    const steadyRate = (ackedAtEnd - ackedAtSteadyStart) / steadyS;
+    const inSteady = (xs: Array<[number, number]>) => xs.filter(([t]) => t >= warmupMs && t < warmupMs + steadyS * 1000).map(([, v]) => v);
+    const inWarmup = (xs: Array<[number, number]>) => xs.filter(([t]) => t < warmupMs).map(([, v]) => v);
+    const all = (xs: Array<[number, number]>) => xs.map(([, v]) => v);
+    const ack = inSteady(ackSamples);
+    const sock = inSteady(socketSamples);
+    const trend = inSteady(trendSamples);
+    const serverCpuS = cpu.server[1] - cpu.server[0];
+    const clientCpuS = cpu.client[1] - cpu.client[0];
+    const lat = (xs: number[]) => `p50 ${pct(xs, 0.5).toFixed(0)} ms, p99 ${pct(xs, 0.99).toFixed(0)} ms, max ${xs.length ? xs.reduce((m, v) => (v > m ? v : m), -Infinity).toFixed(0) : "n/a"} ms`;
+
+    if (env.BENCH_TIMELINE) {
+      console.log("");
+      console.log("Timeline (s since publishing started: acked readings, PUBACK p50/p99, socket p50/p99, trend ms)");
+      const end = Math.ceil((drained - started) / 1000);
+      for (let sec = 0; sec < end; sec++) {
+        const win = (xs: Array<[number, number]>) => xs.filter(([t]) => t >= sec * 1000 && t < (sec + 1) * 1000).map(([, v]) => v);
+        const a = win(ackSamples);
+        const so = win(socketSamples);
+        const tr = win(trendSamples);
+        const mark = sec < env.BENCH_WARMUP_SECONDS ? " warm-up" : sec >= env.BENCH_WARMUP_SECONDS + steadyS ? " drain" : "";
+        console.log(
+          `  ${String(sec).padStart(3)}s ${fmt(ackedPerSecond[sec] ?? 0).padStart(7)}  ack ${pct(a, 0.5).toFixed(0).padStart(5)}/${pct(a, 0.99).toFixed(0).padStart(5)}  socket ${pct(so, 0.5).toFixed(0).padStart(5)}/${pct(so, 0.99).toFixed(0).padStart(5)}  trend ${tr.map((v) => v.toFixed(0)).join(",")}${mark}`,
+        );
+      }
+    }
     console.log("");
     console.log(`Published ${fmt(published)} readings in ${((publishEnded - started) / 1000).toFixed(1)} s; all acknowledged after ${((drained - started) / 1000).toFixed(1)} s (${fmt(acked)} acked)`);
     console.log(`Rejected by the server: ${fmt(rejected)}`);
-    console.log(`Committed: ${fmt(committed)} readings → sustained ${fmt(sustained)} readings/s (offered ${fmt(published / ((publishEnded - started) / 1000))}/s; ${((sustained / raw1k) * 100).toFixed(0)} % of the raw 1,000-row rate)`);
-    console.log(`Publish → PUBACK (after commit): p50 ${pct(ackLatency, 0.5).toFixed(0)} ms, p99 ${pct(ackLatency, 0.99).toFixed(0)} ms`);
-    console.log(`Publish → browser socket (site:values): p50 ${pct(socketLatency, 0.5).toFixed(0)} ms, p99 ${pct(socketLatency, 0.99).toFixed(0)} ms (${fmt(socketLatency.length)} values)`);
-    console.log(`30-day trend request while ingesting: p50 ${pct(trendTimes, 0.5).toFixed(0)} ms, max ${Math.max(...trendTimes).toFixed(0)} ms (${trendTimes.length} requests)`);
+    console.log(`Committed: ${fmt(committed)} readings → ${fmt(sustained)} readings/s over the whole run incl. warm-up and drain (offered ${fmt(published / ((publishEnded - started) / 1000))}/s)`);
+    console.log(`Steady state (after a ${env.BENCH_WARMUP_SECONDS} s warm-up, ${steadyS} s):`);
+    console.log(`  acknowledged (= committed) ${fmt(steadyRate)} readings/s, offered ${fmt(env.BENCH_RATE)}/s; ${((steadyRate / raw1k) * 100).toFixed(0)} % of the raw 1,000-row rate (a ratio of the offered load unless the server fell behind)`);
+    console.log(`  Publish → PUBACK (after commit): ${lat(ack)}`);
+    console.log(`  Publish → browser socket (site:values): ${lat(sock)} (${fmt(sock.length)} values)`);
+    console.log(`  30-day trend request while ingesting: ${lat(trend)} (${trend.length} requests)`);
+    console.log(`  CPU: server ${((serverCpuS / steadyS) * 100).toFixed(0)} % of one core (${((serverCpuS / Math.max(1, ackedAtEnd - ackedAtSteadyStart)) * 1e6).toFixed(1)} µs per reading), bench client ${((clientCpuS / steadyS) * 100).toFixed(0)} %`);
+    console.log(`Warm-up (first ${env.BENCH_WARMUP_SECONDS} s): PUBACK ${lat(inWarmup(ackSamples))}; socket ${lat(inWarmup(socketSamples))}`);
+    console.log(`Whole run: PUBACK ${lat(all(ackSamples))}; socket ${lat(all(socketSamples))}; trend ${lat(all(trendSamples))}`);
   } finally {
     for (const c of clients) c.end(true);
     await server.stop();
+    fs.rmSync(dataDir, { recursive: true, force: true });
   }
 }
 

@@ -1,9 +1,14 @@
-import { eq } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { equipment, points } from "@/db/schema";
 import type { Reading } from "@/lib/plant/site";
 import { isQuantityKey, type QuantityKey } from "@/lib/quantities";
 import type { AlarmService } from "./service";
+
+/** Longest stretch of rule checks between two turns of the event loop. */
+const SLICE_MS = 8;
+/** Backlog (readings) beyond which the feed evaluates synchronously again. */
+const MAX_QUEUED_READINGS = 200_000;
 
 /** A committed reading as ingestion reports it: canonical value, event time. */
 export interface CommittedReading {
@@ -21,35 +26,91 @@ export interface CommittedReading {
  */
 export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: readonly CommittedReading[]) => void {
   const byPoint = new Map<number, { tag: string; quantity: QuantityKey } | null>();
-  const lookUp = (pointId: number) => {
-    if (!byPoint.has(pointId)) {
-      const row = deps.db
-        .select({ tag: equipment.tag, quantity: points.quantity })
-        .from(points)
-        .innerJoin(equipment, eq(equipment.id, points.equipmentId))
-        .where(eq(points.id, pointId))
-        .get();
-      byPoint.set(pointId, row && isQuantityKey(row.quantity) ? { tag: row.tag, quantity: row.quantity } : null);
-    }
-    return byPoint.get(pointId)!;
+  const remember = (pointId: number, row: { tag: string; quantity: string } | undefined) => {
+    const p = row && isQuantityKey(row.quantity) ? { tag: row.tag, quantity: row.quantity } : null;
+    byPoint.set(pointId, p);
+    return p;
   };
+  // One query for every point up front: one query per new point cost ~20k queries in the
+  // first second of a large plant's ingestion, all on the event loop.
+  let loaded = false;
+  const loadAll = () => {
+    loaded = true;
+    const rows = deps.db.select({ pointId: points.id, tag: equipment.tag, quantity: points.quantity }).from(points).innerJoin(equipment, eq(equipment.id, points.equipmentId)).all();
+    for (const r of rows) remember(r.pointId, r);
+  };
+  // Points created later (a new point map) are looked up one by one, with a statement prepared once.
+  const one = deps.db
+    .select({ tag: equipment.tag, quantity: points.quantity })
+    .from(points)
+    .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+    .where(eq(points.id, sql.placeholder("pointId")))
+    .prepare();
+  const lookUp = (pointId: number) => {
+    const hit = byPoint.get(pointId);
+    if (hit !== undefined) return hit;
+    if (!loaded) {
+      loadAll();
+      const again = byPoint.get(pointId);
+      if (again !== undefined) return again;
+    }
+    return remember(pointId, one.get({ pointId }));
+  };
+
+  const evaluate = (siteId: string, readings: Reading[]) => {
+    try {
+      deps.service.ingest(siteId, readings);
+    } catch (err) {
+      // A rule failure must never stop ingestion; it is logged and the next batch tries again.
+      console.error(`[rules] ${siteId}: ${err instanceof Error ? err.stack : err}`);
+    }
+  };
+
+  // Rule checks run off the commit path, a few sites per turn of the event loop: every site's
+  // evaluation falls due in the same flush (they share the 5 s event-time step), and running
+  // all of them there held PUBACKs, socket pushes and page requests for hundreds of ms.
+  // Readings of one site stay in order; a Map keeps sites first-in, first-out.
+  const queued = new Map<string, Reading[]>();
+  let queuedReadings = 0;
+  let scheduled = false;
+  /** Evaluates queued sites until `untilMs` (performance.now()) has passed; Infinity for all. */
+  const evaluateQueued = (untilMs: number) => {
+    for (const [siteId, readings] of queued) {
+      queued.delete(siteId);
+      queuedReadings -= readings.length;
+      evaluate(siteId, readings);
+      if (performance.now() >= untilMs) break;
+    }
+  };
+  const drain = () => {
+    scheduled = false;
+    evaluateQueued(performance.now() + SLICE_MS);
+    if (queued.size > 0) schedule();
+  };
+  const schedule = () => {
+    if (scheduled) return;
+    scheduled = true;
+    setImmediate(drain);
+  };
+
   return (rows) => {
-    const perSite = new Map<string, Reading[]>();
+    let lastSite: string | undefined;
+    let list: Reading[] | undefined;
     for (const r of rows) {
       if (r.quality >= 2) continue;
       const p = lookUp(r.pointId);
       if (!p) continue;
-      const list = perSite.get(r.siteId) ?? [];
-      list.push({ tsMs: r.ts, equipment: p.tag, quantity: p.quantity, value: r.live });
-      perSite.set(r.siteId, list);
-    }
-    for (const [siteId, readings] of perSite) {
-      try {
-        deps.service.ingest(siteId, readings);
-      } catch (err) {
-        // A rule failure must never stop ingestion; it is logged and the next batch tries again.
-        console.error(`[rules] ${siteId}: ${err instanceof Error ? err.stack : err}`);
+      // Rows of one message share a site; skip the map lookup while it does not change.
+      if (r.siteId !== lastSite || !list) {
+        lastSite = r.siteId;
+        list = queued.get(r.siteId);
+        if (!list) queued.set(r.siteId, (list = []));
       }
+      list.push({ tsMs: r.ts, equipment: p.tag, quantity: p.quantity, value: r.live });
+      queuedReadings++;
     }
+    // If the rules fall this far behind, catch up here: ingestion slows instead of memory growing.
+    if (queuedReadings > MAX_QUEUED_READINGS) evaluateQueued(Infinity);
+    else if (queued.size > 0) schedule();
   };
 }

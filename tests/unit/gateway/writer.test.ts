@@ -53,4 +53,26 @@ describe("batch writer", () => {
     await expect(bad).rejects.toThrow();
     expect(db.$client.prepare("select count(*) as n from readings").get()).toEqual({ n: 0 });
   });
+
+  it("commits a burst soon after it ends, in one transaction, without waiting out the flush window", async () => {
+    const db = setup();
+    const w = createBatchWriter({ db, flushMs: 250, idleMs: 5 });
+    const t0 = performance.now();
+    // Three messages of one burst (one socket read) land in the same flush.
+    await Promise.all([1, 2, 3].map((i) => w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: i, rows: [row(i * 1000, i)] })));
+    expect(performance.now() - t0).toBeLessThan(200);
+    expect(w.stats().flushes).toBe(1);
+    await w.close();
+
+    // Messages that keep arriving inside the idle gap share one flush, started by the window.
+    const w2 = createBatchWriter({ db, flushMs: 100, idleMs: 50 });
+    const arrivals: Array<Promise<unknown>> = [];
+    for (let i = 0; i < 6; i++) {
+      arrivals.push(w2.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: 10 + i, rows: [row(10_000 + i * 1000, i)] }));
+      await new Promise((r) => setTimeout(r, 5));
+    }
+    await Promise.all(arrivals);
+    expect(w2.stats().flushes).toBe(1);
+    await w2.close();
+  });
 });
