@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { adminCookie, api, connectGateway, provisionGateway, putPointMap } from "../helpers/mqtt";
+import { api, connectGateway, provisionGateway, putPointMap } from "../helpers/mqtt";
 import { signIn, startServer, type TestServer } from "../helpers/server";
 
 // The alarm API against the real server: a controller fault published by a gateway raises an
@@ -8,31 +8,40 @@ let server: TestServer;
 const cookies: Record<string, string> = {};
 let alarmId: string;
 
-beforeAll(async () => {
-  server = await startServer();
-  for (const [who, email] of Object.entries({ admin: "admin@tallgrass.example", tech: "luis@tallgrass.example", owner: "facilities@harborview.example", otherOwner: "ops@quarryridge.example" })) {
-    cookies[who] = (await signIn(server.url, email)).cookie!;
-  }
-  const gw = await provisionGateway(server, await adminCookie(server), { siteId: "harborview-mob" });
-  const csv = "gateway_point,equipment,quantity,unit\nCH1-ALM,CH-1,chiller_alarm,bool\nCH1-FAULT,CH-1,fault_text,text\nCH1-RUN,CH-1,run_status,bool\n";
+/** Publishes a latched chiller alarm for `tag` through a fresh gateway; returns the raised alarm's id. */
+async function raiseChillerTrip(siteId: string, tag: string, fault: string): Promise<string> {
+  const gw = await provisionGateway(server, cookies.admin, { siteId });
+  const p = tag.replace("-", "");
+  const csv = `gateway_point,equipment,quantity,unit\n${p}-ALM,${tag},chiller_alarm,bool\n${p}-FAULT,${tag},fault_text,text\n${p}-RUN,${tag},run_status,bool\n`;
   expect((await putPointMap(server, cookies.admin, gw.gateway.id, csv)).status).toBe(200);
   const client = await connectGateway(server, gw);
   // Two samples 10 s apart: the rules evaluate every 5 s of event time.
   const t0 = Date.now() - 20_000;
   for (const [i, ts] of [t0, t0 + 10_000].entries()) {
+    const at = new Date(ts).toISOString();
     const readings = [
-      { point: "CH1-ALM", value: true, ts: new Date(ts).toISOString() },
-      { point: "CH1-FAULT", value: "High condenser pressure", ts: new Date(ts).toISOString() },
-      { point: "CH1-RUN", value: false, ts: new Date(ts).toISOString() },
+      { point: `${p}-ALM`, value: true, ts: at },
+      { point: `${p}-FAULT`, value: fault, ts: at },
+      { point: `${p}-RUN`, value: false, ts: at },
     ];
-    await client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ seq: i, sentAt: new Date(ts).toISOString(), readings }), { qos: 1 });
+    await client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ seq: i, sentAt: at, readings }), { qos: 1 });
   }
   await client.endAsync();
-  for (let i = 0; i < 50 && !alarmId; i++) {
-    const { body } = await api(server, cookies.tech, "/api/alarms?site=harborview-mob");
-    alarmId = body.alarms?.find((a: { ruleId: string }) => a.ruleId === "chiller_tripped")?.id;
-    if (!alarmId) await new Promise((r) => setTimeout(r, 200));
+  for (let i = 0; i < 50; i++) {
+    const { body } = await api(server, cookies.tech, `/api/alarms?site=${siteId}`);
+    const found = body.alarms?.find((a: { ruleId: string; equipment: string }) => a.ruleId === "chiller_tripped" && a.equipment === tag);
+    if (found) return found.id;
+    await new Promise((r) => setTimeout(r, 200));
   }
+  throw new Error(`no chiller_tripped alarm for ${siteId} ${tag}`);
+}
+
+beforeAll(async () => {
+  server = await startServer();
+  for (const [who, email] of Object.entries({ admin: "admin@tallgrass.example", tech: "luis@tallgrass.example", owner: "facilities@harborview.example", otherOwner: "ops@quarryridge.example" })) {
+    cookies[who] = (await signIn(server.url, email)).cookie!;
+  }
+  alarmId = await raiseChillerTrip("harborview-mob", "CH-1", "High condenser pressure");
   expect(alarmId, "the rules raised a chiller-tripped alarm").toBeTruthy();
 });
 afterAll(() => server?.stop());
@@ -100,6 +109,38 @@ describe("alarm API", () => {
     expect(alarm.shelveReason).toBe("Known fault, repair booked");
     expect(alarm.shelvedUntilMs - alarm.lastTransitionMs).toBe(30 * 60_000);
     expect((await post("tech", `/api/alarms/${alarmId}/unshelve`, {})).body.state).not.toBe("shelved");
+  });
+});
+
+describe("e-mailed acknowledge link", () => {
+  it("reaches the technician on call, acknowledges from a phone without signing in, and works only once", async () => {
+    const id = await raiseChillerTrip("millbrook-high", "CH-2", "Drive over-temperature");
+    // The demo rota puts Luis on call; the local SMTP sink keeps the message for the outbox.
+    let mail: { to: string; text: string } | undefined;
+    for (let i = 0; i < 50 && !mail; i++) {
+      const { body } = await api(server, cookies.admin, "/api/outbox");
+      mail = body.messages.find((m: { text: string }) => m.text.includes(`/alarms/${id}`));
+      if (!mail) await new Promise((r) => setTimeout(r, 200));
+    }
+    expect(mail?.to).toBe("luis@tallgrass.example");
+    const token = /\/ack\/([A-Za-z0-9_-]+)/.exec(mail!.text)![1];
+
+    const page = await fetch(`${server.url}/ack/${token}`);
+    expect(page.status).toBe(200);
+    expect(await page.text()).toContain("Acknowledge this alarm");
+
+    const first = await fetch(`${server.url}/api/ack-links/${token}`, { method: "POST" });
+    expect(first.status).toBe(200);
+    expect((await first.json()).state).toBe("acknowledged");
+    const { alarm } = (await api(server, cookies.tech, `/api/alarms/${id}`)).body;
+    expect(alarm.events.at(-1)).toMatchObject({ cause: "acknowledged", actor: "Luis Ferreira" });
+
+    const second = await fetch(`${server.url}/api/ack-links/${token}`, { method: "POST" });
+    expect(second.status).toBe(409);
+    expect((await second.json()).error.message).toMatch(/already used/);
+    expect((await fetch(`${server.url}/api/ack-links/not-a-real-token-not-a-real-token`, { method: "POST" })).status).toBe(404);
+    // The outbox is the admin's: others are refused.
+    expect((await api(server, cookies.tech, "/api/outbox")).status).toBe(403);
   });
 });
 
