@@ -1,37 +1,27 @@
-import type { Browser } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { hasChromium, launchBrowser, screenshot, signInAs, viewports, watchConsole } from "../helpers/browser";
-import { signIn, startServer, type TestServer } from "../helpers/server";
+import { describe, expect, it } from "vitest";
+import { hasChromium, useServerAndBrowser, screenshot, signInAs, viewports, watchConsole } from "../helpers/browser";
+import { signIn } from "../helpers/server";
 
 // The product's reason to exist, end to end: a simulated plant publishes over MQTT as a gateway,
 // the rules see the loops heading for a crossover, and the warning reaches the on-call
 // technician's board live; the building owner sees it read-only with the shared note.
-let server: TestServer;
-let browser: Browser;
 const SITE = "millbrook-high";
 const CROSSOVER_RULES = /crossover_risk|restart_race|loops_crossed/;
 
 describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () => {
-  beforeAll(async () => {
-    server = await startServer({ env: { LIFTLINE_SIMULATOR: "1" } });
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const env = useServerAndBrowser({ env: { LIFTLINE_SIMULATOR: "1" } });
 
   it("appears on the technician's board without a reload, is acknowledged with a shared note, and the owner sees it read-only", async () => {
-    const tech = await browser.newContext({ viewport: viewports.phone });
+    const tech = await env.browser.newContext({ viewport: viewports.phone });
     const page = await tech.newPage();
     const problems = watchConsole(page);
-    await signInAs(page, server.url, "luis@tallgrass.example");
+    await signInAs(page, env.server.url, "luis@tallgrass.example");
     const card = page.locator(`[data-testid=site-card][data-site=${SITE}]`);
     await card.waitFor();
 
     // An admin replays the power-blip incident on the school's plant at 120× (ends "now" in 90 s).
-    const admin = await signIn(server.url, "admin@tallgrass.example");
-    const start = await fetch(`${server.url}/api/simulator/${SITE}`, {
+    const admin = await signIn(env.server.url, "admin@tallgrass.example");
+    const start = await fetch(`${env.server.url}/api/simulator/${SITE}`, {
       method: "POST",
       headers: { cookie: admin.cookie!, "content-type": "application/json" },
       body: JSON.stringify({ scenario: "power-blip", speed: 120 }),
@@ -67,10 +57,10 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     await tech.close();
 
     // The owner: same warning in plain words, the shared note, no controls; the API refuses to act.
-    const owner = await browser.newContext({ viewport: viewports.phone });
+    const owner = await env.browser.newContext({ viewport: viewports.phone });
     const ownerPage = await owner.newPage();
-    await signInAs(ownerPage, server.url, "facilities@millbrook.example");
-    await ownerPage.goto(`${server.url}/sites/${SITE}`);
+    await signInAs(ownerPage, env.server.url, "facilities@millbrook.example");
+    await ownerPage.goto(`${env.server.url}/sites/${SITE}`);
     const ownerAlarm = ownerPage.locator("[data-testid=alarm-card][data-rule=crossover_risk]").first();
     await ownerAlarm.waitFor({ timeout: 30_000 });
     await expect.poll(() => ownerAlarm.getByTestId("alarm-note").textContent()).toContain("tower fan found in off");

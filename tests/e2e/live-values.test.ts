@@ -1,35 +1,25 @@
-import type { Browser } from "playwright-core";
 import { io } from "socket.io-client";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { hasChromium, launchBrowser, screenshot, signInAs, viewports } from "../helpers/browser";
+import { describe, expect, it } from "vitest";
+import { hasChromium, useServerAndBrowser, screenshot, signInAs, viewports } from "../helpers/browser";
 import { adminCookie, connectGateway, provisionGateway, putPointMap } from "../helpers/mqtt";
-import { signIn, startServer, type TestServer } from "../helpers/server";
+import { signIn } from "../helpers/server";
 
 // Live values from a gateway to the technician's screen, and room isolation between customers.
-let server: TestServer;
-let browser: Browser;
 
 describe.skipIf(!hasChromium)("live values in the browser", () => {
-  beforeAll(async () => {
-    server = await startServer();
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const env = useServerAndBrowser();
 
   it("a reading published over MQTT appears on the site page within a second", async () => {
-    const cookie = await adminCookie(server);
-    const gw = await provisionGateway(server, cookie, { siteId: "harborview-mob" });
-    const map = await putPointMap(server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nCH1-LCHWT,CH-1,chilled_water_leaving_temp,degF\n");
+    const cookie = await adminCookie(env.server);
+    const gw = await provisionGateway(env.server, cookie, { siteId: "harborview-mob" });
+    const map = await putPointMap(env.server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nCH1-LCHWT,CH-1,chilled_water_leaving_temp,degF\n");
     expect(map.status).toBe(200);
-    const client = await connectGateway(server, gw);
+    const client = await connectGateway(env.server, gw);
 
-    const context = await browser.newContext({ viewport: viewports.phone });
+    const context = await env.browser.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
-    await signInAs(page, server.url, "luis@tallgrass.example");
-    await page.goto(`${server.url}/sites/harborview-mob`);
+    await signInAs(page, env.server.url, "luis@tallgrass.example");
+    await page.goto(`${env.server.url}/sites/harborview-mob`);
     const cell = page.locator("[data-testid=point-row][data-equipment='CH-1'][data-point=chilled_water_leaving_temp] [data-testid=point-value]");
     await expect.poll(() => cell.textContent()).toBe("no data");
     // Give the page's socket time to join its site room before publishing.
@@ -48,8 +38,8 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
   });
 
   it("a customer's socket cannot join another customer's site room", async () => {
-    const { cookie } = await signIn(server.url, "facilities@harborview.example");
-    const socket = io(server.url, { extraHeaders: { cookie: cookie! }, transports: ["websocket"] });
+    const { cookie } = await signIn(env.server.url, "facilities@harborview.example");
+    const socket = io(env.server.url, { extraHeaders: { cookie: cookie! }, transports: ["websocket"] });
     await new Promise<void>((resolve, reject) => {
       socket.once("connect", () => resolve());
       socket.once("connect_error", reject);
@@ -64,7 +54,7 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
   });
 
   it("refuses a socket without a session", async () => {
-    const socket = io(server.url, { transports: ["websocket"], reconnection: false });
+    const socket = io(env.server.url, { transports: ["websocket"], reconnection: false });
     const error = await new Promise<Error>((resolve) => socket.once("connect_error", resolve));
     socket.disconnect();
     expect(error.message).toBe("unauthorized");

@@ -1,27 +1,16 @@
-import type { Browser } from "playwright-core";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { hasChromium, launchBrowser, screenshot, signInAs, viewports, watchConsole } from "../helpers/browser";
-import { startServer, type TestServer } from "../helpers/server";
+import { describe, expect, it } from "vitest";
+import { hasChromium, useServerAndBrowser, screenshot, signInAs, viewports, watchConsole } from "../helpers/browser";
 
-let server: TestServer;
-let browser: Browser;
 
 describe.skipIf(!hasChromium)("sign-in and the board in Chromium", () => {
-  beforeAll(async () => {
-    server = await startServer();
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const env = useServerAndBrowser();
 
   for (const [size, viewport] of Object.entries(viewports)) {
     it(`a technician signs in and sees all three sites (${size})`, async () => {
-      const context = await browser.newContext({ viewport });
+      const context = await env.browser.newContext({ viewport });
       const page = await context.newPage();
       const problems = watchConsole(page);
-      await signInAs(page, server.url, "luis@tallgrass.example");
+      await signInAs(page, env.server.url, "luis@tallgrass.example");
       const cards = page.getByTestId("site-card");
       await expect.poll(() => cards.count()).toBe(3);
       await expect.poll(() => page.getByTestId("viewer").textContent()).toContain("Technician");
@@ -36,13 +25,13 @@ describe.skipIf(!hasChromium)("sign-in and the board in Chromium", () => {
   }
 
   it("a customer sees only its own site, and another site's URL shows the not-found page", async () => {
-    const context = await browser.newContext({ viewport: viewports.phone });
+    const context = await env.browser.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
-    await signInAs(page, server.url, "facilities@millbrook.example");
+    await signInAs(page, env.server.url, "facilities@millbrook.example");
     await expect.poll(() => page.getByTestId("site-card").count()).toBe(1);
     expect(await page.getByTestId("site-card").textContent()).toContain("Millbrook High School");
     await screenshot(page, "board-customer-phone");
-    const res = await page.goto(`${server.url}/sites/harborview-mob`);
+    const res = await page.goto(`${env.server.url}/sites/harborview-mob`);
     expect(res?.status()).toBe(404);
     expect(await page.getByRole("heading", { level: 1 }).textContent()).toBe("Not found");
     await screenshot(page, "not-found-customer-phone");
@@ -50,19 +39,19 @@ describe.skipIf(!hasChromium)("sign-in and the board in Chromium", () => {
   });
 
   it("a wrong password shows a clear message and signing out returns to sign-in", async () => {
-    const context = await browser.newContext({ viewport: viewports.desktop });
+    const context = await env.browser.newContext({ viewport: viewports.desktop });
     const page = await context.newPage();
-    await page.goto(`${server.url}/sign-in`);
+    await page.goto(`${env.server.url}/sign-in`);
     await page.getByLabel("E-mail").fill("admin@tallgrass.example");
     await page.getByLabel("Password").fill("not-the-password");
     await page.getByRole("button", { name: "Sign in" }).click();
     await expect.poll(() => page.getByText("E-mail or password is incorrect").count()).toBe(1);
     expect(await page.locator("form [role=alert]").textContent()).toContain("E-mail or password is incorrect");
     await screenshot(page, "sign-in-error-desktop");
-    await signInAs(page, server.url, "admin@tallgrass.example");
+    await signInAs(page, env.server.url, "admin@tallgrass.example");
     await page.getByRole("button", { name: "Sign out" }).click();
     await page.waitForURL(/\/sign-in/);
-    const again = await page.goto(`${server.url}/`);
+    const again = await page.goto(`${env.server.url}/`);
     expect(new URL(again!.url()).pathname).toBe("/sign-in");
     await context.close();
   });

@@ -1,7 +1,8 @@
 import fs from "node:fs";
 import path from "node:path";
 import { chromium, type Browser, type Page } from "playwright-core";
-import { DEMO_PASSWORD, ROOT } from "./server";
+import { afterAll, beforeAll } from "vitest";
+import { DEMO_PASSWORD, ROOT, startServer, type StartOptions, type TestServer } from "./server";
 
 // Browser tests drive Debian's Chromium through playwright-core (no browser download).
 export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
@@ -45,4 +46,21 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   const file = path.join(SCREENSHOT_DIR, `${name}.png`);
   await page.screenshot({ path: file, fullPage: true });
   return file;
+}
+
+/**
+ * Starts a server and a browser for the enclosing describe block and stops both after it.
+ * Call inside `describe`; read `env.server` / `env.browser` inside tests.
+ */
+export function useServerAndBrowser(opts: StartOptions = {}): { server: TestServer; browser: Browser } {
+  const env = {} as { server: TestServer; browser: Browser };
+  beforeAll(async () => {
+    env.server = await startServer(opts);
+    env.browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await env.browser?.close();
+    await env.server?.stop();
+  });
+  return env;
 }
