@@ -2,7 +2,9 @@
 //   npm run simulate -- --scenario power-blip --offline --duration 3h --seed 7 [--events] [--start ISO]
 //   npm run simulate -- --site medical-office --print-point-map
 //   npm run simulate -- --site school --scenario power-blip --speed 30 --seed 7 --mqtt-url mqtt://localhost:1883 --username U --password P
+//   … --protocol sparkplug --group-id G --edge-node-id N   (a Sparkplug B 3.0 edge node instead of the JSON contract)
 import { parseArgs } from "node:util";
+import { z } from "zod";
 import { writeCsv } from "./csv";
 import { parseDurationS } from "./duration";
 import { startSimulatedGateway } from "./gateway-client";
@@ -10,6 +12,7 @@ import { getLayout, siteLayouts } from "./layout";
 import { pointMapCsv } from "./points";
 import { runScenario } from "./run";
 import { getScenario, scenarioNames, scenarios } from "./scenarios";
+import { sparkplugIdSchema, sparkplugPointMapCsv } from "./sparkplug-edge";
 
 const usage = `Usage: npm run simulate -- [options]
   --scenario <name>     ${scenarioNames.join(" | ")} (default normal-day)
@@ -22,14 +25,25 @@ const usage = `Usage: npm run simulate -- [options]
   --events              with --offline: add events as comment lines "# event,<ts>,<kind>,<equipment>,<message>"
   --start <ISO>         event time of scenario second 0 (default: so the run ends at "now")
   --print-point-map     print gateway_point,equipment,quantity,unit for the site and exit
+                        (with --protocol sparkplug: the Sparkplug names, {device}/{metric})
   --list                list scenarios and sites
   --speed <x>           online: simulated seconds per wall second (default 30)
   --mqtt-url <url>      online: broker (default mqtt://localhost:1883)
   --username <u>        online: gateway credentials (or LIFTLINE_GATEWAY_USERNAME)
   --password <p>        online: (or LIFTLINE_GATEWAY_PASSWORD)
   --gateway-id <id>     online: defaults to the username
+  --protocol <p>        online: json (default) | sparkplug (Sparkplug B 3.0 edge node)
+  --group-id <g>        sparkplug: the node's group id, as provisioned
+  --edge-node-id <n>    sparkplug: the node's edge node id, as provisioned
   --loop                online: replay the scenario when it ends
 `;
+
+/** --protocol and the Sparkplug ids (zod at the boundary); --group-id / --edge-node-id are required only online. */
+const protocolArgsSchema = z.discriminatedUnion("protocol", [
+  z.object({ protocol: z.literal("json"), groupId: z.undefined({ error: "only with --protocol sparkplug" }), edgeNodeId: z.undefined({ error: "only with --protocol sparkplug" }) }),
+  z.object({ protocol: z.literal("sparkplug"), groupId: sparkplugIdSchema.optional(), edgeNodeId: sparkplugIdSchema.optional() }),
+]);
+const flagOf: Record<string, string> = { protocol: "protocol", groupId: "group-id", edgeNodeId: "edge-node-id" };
 
 function fail(msg: string): never {
   process.stderr.write(`${msg}\n\n${usage}`);
@@ -57,6 +71,9 @@ function main(): void {
         username: { type: "string" },
         password: { type: "string" },
         "gateway-id": { type: "string" },
+        protocol: { type: "string", default: "json" },
+        "group-id": { type: "string" },
+        "edge-node-id": { type: "string" },
         loop: { type: "boolean", default: false },
         help: { type: "boolean", short: "h", default: false },
       },
@@ -75,8 +92,10 @@ function main(): void {
     return;
   }
   const layout = getLayout(args.site) ?? fail(`unknown site "${args.site}"`);
+  const wire = protocolArgsSchema.safeParse({ protocol: args.protocol, groupId: args["group-id"], edgeNodeId: args["edge-node-id"] });
+  if (!wire.success) fail(wire.error.issues.map((i) => `--${flagOf[String(i.path[0])] ?? String(i.path[0])}: ${i.message}`).join("; "));
   if (args["print-point-map"]) {
-    process.stdout.write(pointMapCsv(layout));
+    process.stdout.write(wire.data.protocol === "sparkplug" ? sparkplugPointMapCsv(layout) : pointMapCsv(layout));
     return;
   }
   let scenario;
@@ -129,11 +148,13 @@ function main(): void {
   const username = args.username ?? process.env.LIFTLINE_GATEWAY_USERNAME;
   const password = args.password ?? process.env.LIFTLINE_GATEWAY_PASSWORD;
   if (!username || !password) fail("online mode needs --username/--password (or LIFTLINE_GATEWAY_USERNAME / LIFTLINE_GATEWAY_PASSWORD), or use --offline");
+  if (wire.data.protocol === "sparkplug" && (!wire.data.groupId || !wire.data.edgeNodeId)) fail("--protocol sparkplug needs --group-id and --edge-node-id");
   const gw = startSimulatedGateway({
     mqttUrl: args["mqtt-url"],
     username,
     password,
     gatewayId: args["gateway-id"],
+    ...wire.data,
     scenario: scenario.name,
     speed: num("speed", args.speed),
     seed,

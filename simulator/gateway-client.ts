@@ -2,13 +2,16 @@
 //   liftline/{gatewayId}/readings  QoS 1  { seq, sentAt, readings: [{ point, value, ts, quality }] }
 //   liftline/{gatewayId}/status    retained "online", last will retained "offline"
 //   liftline/{gatewayId}/commands  drill commands (JSON, validated with zod) applied to the model
+// With `protocol: "sparkplug"` it is a Sparkplug B 3.0 edge node instead (sparkplug-edge.ts): births, DDATA by
+// alias, NCMD rebirth, DCMD writes as drill actions; no liftline/… topics then.
 // Exported as a function so the server process can run simulated gateways in-process.
 import mqtt, { type MqttClient } from "mqtt";
-import { actionOfCommand, drillCommandSchema } from "./actions-schema";
+import { actionOfCommand, drillCommandSchema, type DrillAction } from "./actions-schema";
 import { defaultLayout, equipmentOf, getLayout, type SiteLayout } from "./layout";
 import { pointName, wireValue } from "./points";
 import { PlantRunner, type RunSample, type SimEvent } from "./run";
 import { getScenario } from "./scenarios";
+import { SparkplugEdgeNode } from "./sparkplug-edge";
 import type { EquipmentKind } from "@/lib/quantities";
 
 export interface SimulatedGatewayOptions {
@@ -17,6 +20,11 @@ export interface SimulatedGatewayOptions {
   password: string;
   /** Defaults to the MQTT username. */
   gatewayId?: string;
+  /** Wire format: the Liftline JSON contract (default) or Sparkplug B 3.0. */
+  protocol?: "json" | "sparkplug";
+  /** Sparkplug only (required there): the node's group id and edge node id, as provisioned. */
+  groupId?: string;
+  edgeNodeId?: string;
   scenario: string;
   /** Simulated seconds per wall second. */
   speed: number;
@@ -39,6 +47,7 @@ export interface SimulatedGatewayOptions {
 
 export interface SimulatedGatewayStatus {
   gatewayId: string;
+  protocol: "json" | "sparkplug";
   scenario: string;
   connected: boolean;
   pass: number;
@@ -70,17 +79,36 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
   if (!(opts.speed > 0)) throw new Error("speed must be > 0");
   const topics = { readings: `liftline/${gatewayId}/readings`, status: `liftline/${gatewayId}/status`, commands: `liftline/${gatewayId}/commands` };
   const kinds = new Map<string, EquipmentKind>(equipmentOf(layout).map((e) => [e.tag, e.kind]));
+  const protocol = opts.protocol ?? "json";
+  if (protocol === "sparkplug" && (!opts.groupId || !opts.edgeNodeId)) throw new Error("Sparkplug needs groupId and edgeNodeId");
+  // Sparkplug: the node's ids are checked with zod by SparkplugEdgeNode; it publishes through this client.
+  const sp =
+    protocol === "sparkplug"
+      ? new SparkplugEdgeNode({
+          groupId: opts.groupId!,
+          edgeNodeId: opts.edgeNodeId!,
+          layout,
+          now,
+          publish: (m) =>
+            client.publish(m.topic, m.payload, { qos: m.qos, retain: false }, (err) => {
+              if (err) log(`[${gatewayId}] publish failed: ${err.message}`);
+            }),
+        })
+      : null;
 
   const client: MqttClient = mqtt.connect(opts.mqttUrl, {
     username: opts.username,
     password: opts.password,
     clientId: `liftline-sim-${gatewayId}-${Math.floor(Math.random() * 1e9).toString(36)}`,
+    // Sparkplug B 3.0 §2 [tck-id-principles-persistence-clean-session-311]: clean session; §5.4: the NDEATH is the will.
     clean: true,
     reconnectPeriod: 2000,
-    will: { topic: topics.status, payload: Buffer.from("offline"), qos: 1, retain: true },
+    will: sp ? sp.will() : { topic: topics.status, payload: Buffer.from("offline"), qos: 1, retain: true },
   });
 
   let connected = false;
+  /** Sparkplug: subscribed to NCMD/DCMD, so births may go out (§5.4: subscribe before the NBIRTH). */
+  let spReady = false;
   let seq = 0;
   let published = 0;
   let pass = 0;
@@ -108,6 +136,11 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
   newPass(firstStartMs);
 
   const publishSamples = (samples: RunSample[]) => {
+    if (sp) {
+      for (const s of samples) for (const e of s.events) record(e);
+      published += sp.publishSamples(samples);
+      return;
+    }
     const readings: Array<{ point: string; value: number | boolean | string; ts: string; quality: "good" }> = [];
     for (const s of samples) {
       for (const e of s.events) record(e);
@@ -123,13 +156,18 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
     }
   };
 
+  // A Sparkplug (re)birth asked for between samples goes out with the last values known.
+  const birthIfDue = () => {
+    if (sp?.birthPending) published += sp.publishSamples([]);
+  };
   const tick = () => {
-    if (!running || !connected) return;
+    if (!connected || (sp && !spReady)) return;
+    if (!running) return birthIfDue();
     // Simulated time follows the wall clock × speed, but event time never runs ahead of "now".
     const wantS = sim0S + ((now() - wall0) / 1000) * opts.speed;
     const capS = (now() - runner.startMs) / 1000;
     const untilS = Math.min(durationS, wantS, capS);
-    if (untilS <= runner.tS) return;
+    if (untilS <= runner.tS) return birthIfDue();
     const samples: RunSample[] = [];
     runner.advanceTo(untilS, (s) => samples.push(s));
     publishSamples(samples);
@@ -147,7 +185,15 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
 
   client.on("connect", () => {
     connected = true;
-    log(`[${gatewayId}] connected to ${opts.mqttUrl}`);
+    log(`[${gatewayId}] connected to ${opts.mqttUrl}${sp ? ` as Sparkplug edge node ${sp.groupId}/${sp.edgeNodeId} (bdSeq ${sp.bdSeq})` : ""}`);
+    if (sp) {
+      client.subscribe(sp.commandTopics, { qos: 1 }, (err) => {
+        if (err) log(`[${gatewayId}] subscribe failed: ${err.message}`);
+        sp.requestBirth();
+        spReady = true;
+      });
+      return;
+    }
     client.publish(topics.status, "online", { qos: 1, retain: true });
     client.subscribe(topics.commands, { qos: 1 }, (err) => {
       if (err) log(`[${gatewayId}] subscribe failed: ${err.message}`);
@@ -155,9 +201,33 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
   });
   client.on("close", () => {
     connected = false;
+    spReady = false;
+  });
+  // Sparkplug B 3.0 §5.4: every new CONNECT carries the next bdSeq in its will, and births follow it.
+  client.on("reconnect", () => {
+    if (!sp) return;
+    sp.reconnecting();
+    client.options.will = sp.will();
   });
   client.on("error", (err) => log(`[${gatewayId}] mqtt error: ${err.message}`));
+  const applyAction = (id: string | undefined, action: DrillAction) => {
+    if (!running) {
+      record({ tsMs: runner.startMs + runner.tS * 1000, kind: "action-refused", equipment: action.equipment, message: "Command refused: the scenario has finished" });
+      return;
+    }
+    log(`[${gatewayId}] command${id ? ` ${id}` : ""}: ${JSON.stringify(action)}`);
+    // Applied at the next step; the model logs acceptance or refusal with its reason.
+    runner.pushAction(action);
+  };
   client.on("message", (topic, payload) => {
+    if (sp) {
+      for (const o of sp.handleCommand(topic, payload)) {
+        if (o.kind === "rebirth") log(`[${gatewayId}] rebirth requested (NCMD Node Control/Rebirth)`);
+        else if (o.kind === "refused") record({ tsMs: runner.startMs + runner.tS * 1000, kind: "action-refused", equipment: o.equipment, message: o.message });
+        else if (o.kind === "action") applyAction(undefined, o.action);
+      }
+      return;
+    }
     if (topic !== topics.commands) return;
     let parsed: unknown;
     try {
@@ -172,20 +242,17 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
       return;
     }
     const { id, action } = actionOfCommand(result.data);
-    if (!running) {
-      record({ tsMs: runner.startMs + runner.tS * 1000, kind: "action-refused", equipment: action.equipment, message: "Command refused: the scenario has finished" });
-      return;
-    }
-    log(`[${gatewayId}] command${id ? ` ${id}` : ""}: ${JSON.stringify(action)}`);
-    // Applied at the next step; the model logs acceptance or refusal with its reason.
-    runner.pushAction(action);
+    applyAction(id, action);
   });
 
   return {
     async stop() {
       running = false;
       clearInterval(timer);
-      if (connected) {
+      if (connected && sp) {
+        // Sparkplug B 3.0 §5.5 [tck-id-operational-behavior-edge-node-intentional-disconnect-ndeath]: NDEATH, then DISCONNECT.
+        await new Promise<void>((resolve) => client.publish(sp.topic("NDEATH"), sp.deathPayload(), { qos: 1, retain: false }, () => resolve()));
+      } else if (connected) {
         await new Promise<void>((resolve) => client.publish(topics.status, "offline", { qos: 1, retain: true }, () => resolve()));
       }
       await client.endAsync();
@@ -193,6 +260,7 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
     status() {
       return {
         gatewayId,
+        protocol,
         scenario: opts.scenario,
         connected,
         pass,
