@@ -11,7 +11,10 @@ export interface PrunerOptions {
   clock: Clock;
   rawRetentionMs: number;
   rollupRetentionMs: number;
+  /** Time between passes (default one hour). */
   everyMs?: number;
+  /** Delay of the first pass after start (default 30 s, so start-up is not slowed). */
+  firstRunMs?: number;
   chunk?: number;
   log?: (line: string) => void;
 }
@@ -73,7 +76,7 @@ export function startPruner(opts: PrunerOptions): Pruner {
 
   const timer = setInterval(() => void runOnce().catch((err) => opts.log?.(`[prune] failed: ${String(err)}`)), opts.everyMs ?? 60 * 60_000);
   timer.unref();
-  const first = setTimeout(() => void runOnce().catch(() => {}), 30_000);
+  const first = setTimeout(() => void runOnce().catch((err) => opts.log?.(`[prune] failed: ${String(err)}`)), opts.firstRunMs ?? 30_000);
   first.unref();
 
   return {
