@@ -4,23 +4,22 @@ import { createServer, type IncomingMessage } from "node:http";
 import path from "node:path";
 import next from "next";
 import { migrateDb, openDb, setDb } from "./db/client";
-import { demoAccounts, seedDemo } from "./db/seed/demo";
-import { loadGatewayConfig } from "./gateway/config";
-import { startGatewaySide, type GatewaySide } from "./gateway/index";
 import { alarmSummaryBySite } from "./db/queries/alarms";
 import { siteDataStatuses } from "./db/queries/readings";
-import { SERVICE_ORG } from "./db/seed/demo";
+import { demoAccounts, seedDemo, SERVICE_ORG } from "./db/seed/demo";
+import { loadGatewayConfig } from "./gateway/config";
+import { startGatewaySide, type GatewaySide } from "./gateway/index";
 import { systemViewer } from "./lib/auth/viewer";
 import { createLivePublisher, type LivePublisher } from "./lib/realtime/live";
+import { createRealtimeServer } from "./lib/realtime/server";
 import { createRuleFeed } from "./lib/server/alarms/feed";
 import { startAlarmSystem } from "./lib/server/alarms/start";
 import { alarmSide } from "./lib/server/board/site-status";
-import { createSimulationManager, type SimulationManager } from "./lib/server/simulation/manager";
-import { createRealtimeServer } from "./lib/realtime/server";
 import { buildIfNeeded } from "./lib/server/build";
 import { loadConfig } from "./lib/server/config";
 import { setRuntime } from "./lib/server/runtime";
 import { resolveAuthSecret } from "./lib/server/secret";
+import { createSimulationManager, type SimulationManager } from "./lib/server/simulation/manager";
 
 process.env.NEXT_TELEMETRY_DISABLED = "1";
 
