@@ -1,4 +1,5 @@
 import convert from "convert-units";
+import { ATMOSPHERE_KPA, deltaKToDeltaF } from "./plant/units";
 import { canonicalUnits, quantities, type Measure, type QuantityKey } from "./quantities";
 
 // Unit handling at the two edges of the product: gateways send whatever their controllers
@@ -6,7 +7,7 @@ import { canonicalUnits, quantities, type Measure, type QuantityKey } from "./qu
 // Factors come from convert-units; tests check them against NIST SP 811.
 
 /** Standard atmosphere, 101.325 kPa (NIST SP 811 B.8), for gauge ↔ absolute. */
-export const STANDARD_ATMOSPHERE_KPA = 101.325;
+export const STANDARD_ATMOSPHERE_KPA = ATMOSPHERE_KPA;
 
 interface WireUnit {
   measure: Measure;
@@ -130,7 +131,7 @@ export function fromCanonical(value: number, measure: Measure, system: UnitSyste
 
 /** A temperature difference (ΔT, approach, margin) in the viewer's units: scale only, no offset. */
 export function deltaFromCanonical(deltaC: number, system: UnitSystem): number {
-  return system === "ip" ? deltaC * 1.8 : deltaC;
+  return system === "ip" ? deltaKToDeltaF(deltaC) : deltaC;
 }
 
 export function formatValue(value: number | boolean | string | null | undefined, measure: Measure, system: UnitSystem): string {

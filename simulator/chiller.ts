@@ -2,7 +2,7 @@
 // (start/stop, capacity, safeties, anti-recycle timers) and its physics (water side, refrigerant, drive).
 import { saturationPressureKPa } from "@/lib/refrigerant";
 import type { ChillerParams, ChillerState, FaultEntry, ModelEvent } from "./state";
-import { fToC, kPaAbsToPsig, waterHeatCapacityKJPerLK as cpW } from "./units";
+import { fToC, kPaAbsToPsig, waterHeatCapacityKJPerLK as cpW, kPaPerPsi } from "./units";
 
 /** Drive over-temperature trip 150 °F, cooling target 105 °F (common practice, from a field service call). */
 export const driveTripC = fToC(150);
@@ -10,7 +10,7 @@ const driveCoolingSetpointC = fToC(105);
 /** Proportional band of the drive-cooling solenoid, K (assumed). */
 const driveCoolingBandK = 3;
 /** Pressure difference at which the motor/drive liquid feed reaches full flow: 30 psid (assumed). */
-const fullCoolingDpKPa = 30 * 6.894757;
+const fullCoolingDpKPa = 30 * kPaPerPsi;
 /** Low evaporator pressure: saturated temperature below 33 °F for 30 s (common practice, freeze protection). */
 const lowEvapTripC = fToC(33);
 /** Chiller start differential above setpoint and low-load stop below it (common practice). */

@@ -2,7 +2,7 @@
 import { plantTons, type SiteLayout } from "./layout";
 import type { ChillerParams, PlantParams } from "./state";
 import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
-import { dFToK, fToC, galToL, gpmToLps, kWPerTon, psigToKPaAbs, waterHeatCapacityKJPerLK as cpW } from "./units";
+import { dFToK, fToC, galToL, gpmToLps, kPaPerPsi, kWPerTon, psigToKPaAbs, waterHeatCapacityKJPerLK as cpW } from "./units";
 
 /** Evaporator and condenser refrigerant approaches at full load: 1.5 °F and 2 °F (common practice for modern centrifugal chillers). */
 export const evapApproachDesignF = 1.5;
@@ -40,8 +40,8 @@ export function chillerParamsOf(layout: SiteLayout): ChillerParams[] {
       ratedInputKW,
       chwDesignLps,
       cwDesignLps,
-      evapDpDesignKPa: evapDpDesignPsid * 6.894757,
-      condDpDesignKPa: condDpDesignPsid * 6.894757,
+      evapDpDesignKPa: evapDpDesignPsid * kPaPerPsi,
+      condDpDesignKPa: condDpDesignPsid * kPaPerPsi,
       designLiftK,
       evapApproachK: dFToK(evapApproachDesignF),
       condApproachK: dFToK(condApproachDesignF),

@@ -1,4 +1,5 @@
-import type { UnitSystem } from "@/lib/units";
+import { KPA_PER_PSI } from "@/lib/plant/units";
+import { deltaFromCanonical, type UnitSystem } from "@/lib/units";
 
 // Display helpers shared by pages: durations, temperature differences and times.
 
@@ -15,12 +16,12 @@ export function formatDuration(seconds: number | null | undefined): string {
 /** A temperature difference (K) in the viewer's units: °F differences are 1.8 × K. */
 export function formatDelta(k: number | null | undefined, system: UnitSystem, digits = 1): string {
   if (k === null || k === undefined || !Number.isFinite(k)) return "—";
-  return system === "ip" ? `${(k * 1.8).toFixed(digits)} °F` : `${k.toFixed(digits)} K`;
+  return `${deltaFromCanonical(k, system).toFixed(digits)} ${system === "ip" ? "°F" : "K"}`;
 }
 
 export function formatPressureDelta(kPa: number | null | undefined, system: UnitSystem): string {
   if (kPa === null || kPa === undefined || !Number.isFinite(kPa)) return "—";
-  return system === "ip" ? `${(kPa / 6.894757).toFixed(1)} psi` : `${kPa.toFixed(0)} kPa`;
+  return system === "ip" ? `${(kPa / KPA_PER_PSI).toFixed(1)} psi` : `${kPa.toFixed(0)} kPa`;
 }
 
 export function formatClock(ms: number | null | undefined, timeZone?: string): string {
