@@ -1,8 +1,8 @@
 import { NextResponse, type NextRequest } from "next/server";
+import { SESSION_COOKIES } from "@/lib/auth/session";
 
 // Only a cheap redirect for visitors with no session cookie at all. Real authorization
 // happens where data is read (db/queries take the viewer); this is not a security layer.
-const SESSION_COOKIES = ["next-auth.session-token", "__Secure-next-auth.session-token"];
 
 export function proxy(request: NextRequest) {
   if (SESSION_COOKIES.some((name) => request.cookies.has(name))) return NextResponse.next();

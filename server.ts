@@ -9,6 +9,7 @@ import { siteDataStatuses } from "./db/queries/readings";
 import { demoAccounts, seedDemo, SERVICE_ORG } from "./db/seed/demo";
 import { loadGatewayConfig } from "./gateway/config";
 import { startGatewaySide, type GatewaySide } from "./gateway/index";
+import { CLIENT_ADDRESS_HEADER } from "./lib/auth/session";
 import { systemViewer } from "./lib/auth/viewer";
 import { createLivePublisher, type LivePublisher } from "./lib/realtime/live";
 import { createRealtimeServer } from "./lib/realtime/server";
@@ -23,7 +24,6 @@ import { createSimulationManager, type SimulationManager } from "./lib/server/si
 
 process.env.NEXT_TELEMETRY_DISABLED = "1";
 
-const CLIENT_ADDRESS_HEADER = "x-liftline-client-address";
 const log = (line: string) => console.log(line);
 
 const { config, gatewayConfig } = (() => {

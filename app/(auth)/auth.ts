@@ -4,14 +4,13 @@ import { redirect } from "next/navigation";
 import { getDb } from "@/db/client";
 import { verifyCredentials, getViewerById, normalizeEmail } from "@/db/queries/users";
 import { viewerForToken } from "@/db/queries/tokens";
+import { CLIENT_ADDRESS_HEADER } from "@/lib/auth/session";
 import { createSignInLimiter, type SignInLimiter } from "@/lib/auth/sign-in-limiter";
 import type { Viewer } from "@/lib/auth/viewer";
 import { AppError } from "@/lib/errors";
 import { loadConfig } from "@/lib/server/config";
 import { signInSchema } from "./schema";
 
-/** Set by server.ts from the TCP socket; any value a client sends is overwritten there. */
-export const CLIENT_ADDRESS_HEADER = "x-liftline-client-address";
 
 const globalForAuth = globalThis as unknown as { __liftlineSignInLimiter?: SignInLimiter };
 function limiter(): SignInLimiter {

@@ -4,6 +4,7 @@ import { Server } from "socket.io";
 import type { Db } from "@/db/client";
 import { canSeeSite, visibleSiteIds } from "@/db/queries/sites";
 import { getViewerById } from "@/db/queries/users";
+import { SESSION_COOKIES } from "@/lib/auth/session";
 import type { Viewer } from "@/lib/auth/viewer";
 import { joinSiteSchema, siteRoom, type ClientToServerEvents, type ServerToClientEvents } from "./events";
 
@@ -13,8 +14,6 @@ interface SocketData {
 
 export type RealtimeServer = Server<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
 
-// next-auth v4 cookie names: the __Secure- prefix is used when served over https.
-const SESSION_COOKIES = ["__Secure-next-auth.session-token", "next-auth.session-token"];
 
 function readCookie(header: string | undefined, name: string): string | undefined {
   if (!header) return undefined;

@@ -5,19 +5,15 @@ import { getAlarm } from "@/db/queries/alarms";
 import { peekAckLink } from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";
 import { AckLinkButton } from "@/components/alarms/ack-link-button";
+import { ackLinkRefusal as refusal, ACK_TOKEN_PATTERN } from "@/lib/oncall/ack-link";
 
 export const metadata: Metadata = { title: "Acknowledge alarm" };
 export const dynamic = "force-dynamic";
 
-const refusal = {
-  unknown: "This acknowledge link is not valid.",
-  expired: "This acknowledge link has expired.",
-  used: "This acknowledge link was already used.",
-} as const;
 
 function lookUp(token: string) {
   const db = getDb();
-  const link = /^[A-Za-z0-9_-]{20,100}$/.test(token) ? peekAckLink(db, token, Date.now()) : ({ ok: false, reason: "unknown" } as const);
+  const link = ACK_TOKEN_PATTERN.test(token) ? peekAckLink(db, token, Date.now()) : ({ ok: false, reason: "unknown" } as const);
   const viewer = link.ok ? getViewerById(db, link.userId) : null;
   const alarm = link.ok && viewer ? getAlarm(db, viewer, link.alarmId) : null;
   return { link, viewer, alarm };

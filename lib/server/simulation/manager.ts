@@ -5,10 +5,9 @@ import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } f
 import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
 import { newAlarm, type Alarm } from "@/lib/alarms";
 import { systemViewer } from "@/lib/auth/viewer";
-import { pointMapRows, getLayout, getScenario } from "@/simulator/index";
+import { parsePointMapCsv } from "@/gateway/point-map-csv";
+import { getLayout, getScenario, pointMapCsv } from "@/simulator/index";
 import { startSimulatedGateway, type SimulatedGateway, type SimulatedGatewayStatus } from "@/simulator/gateway-client";
-import type { QuantityKey } from "@/lib/quantities";
-import type { WireUnitCode } from "@/lib/units";
 
 // Demo mode's simulated plants: each demo site gets its own provisioned gateway, and a
 // simulator publishes through it over MQTT exactly like a real gateway box would.
@@ -65,8 +64,9 @@ export async function createSimulationManager(deps: {
     const layout = getLayout(site.layout)!;
     let gw = listGateways(db, systemAdmin, site.id).find((g) => g.name === SIMULATED_GATEWAY_NAME && !g.revokedAt);
     if (!gw) gw = (await createGateway(db, systemAdmin, { siteId: site.id, name: SIMULATED_GATEWAY_NAME, protocol: "json" })).gateway;
-    const rows = pointMapRows(layout).map((r, i) => ({ line: i + 2, gatewayPoint: r.gateway_point, equipmentTag: r.equipment, quantity: r.quantity as QuantityKey, unit: r.unit as WireUnitCode }));
-    const result = replacePointMap(db, systemAdmin, gw.id, rows, []);
+    // Through the same parser as an uploaded CSV, so the demo map is validated like any other.
+    const { rows, errors } = parsePointMapCsv(pointMapCsv(layout));
+    const result = replacePointMap(db, systemAdmin, gw.id, rows, errors);
     if (result.errors.length) log(`[sim] point map for ${site.id}: ${result.errors.length} rows refused, first: ${result.errors[0].message}`);
     gatewayIds.set(site.id, gw.id);
   }

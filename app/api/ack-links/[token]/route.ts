@@ -3,16 +3,12 @@ import { getDb } from "@/db/client";
 import { consumeAckLink } from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";
 import { AppError, isAppError } from "@/lib/errors";
+import { ackLinkRefusal as refusal, ACK_TOKEN_PATTERN } from "@/lib/oncall/ack-link";
 import { route } from "@/lib/server/http";
 import { requireAlarmService } from "@/lib/server/runtime";
 
-const tokenSchema = z.string().regex(/^[A-Za-z0-9_-]{20,100}$/);
+const tokenSchema = z.string().regex(ACK_TOKEN_PATTERN);
 
-const refusal = {
-  unknown: "This acknowledge link is not valid.",
-  expired: "This acknowledge link has expired. Open the alarm in Liftline instead.",
-  used: "This acknowledge link was already used.",
-} as const;
 
 // The e-mailed link is the credential: it names one alarm and one person, works once, and
 // expires. GET never acts (mail scanners prefetch links); the page POSTs here.
