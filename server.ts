@@ -5,7 +5,6 @@ import path from "node:path";
 import next from "next";
 import { migrateDb, openDb, setDb } from "./db/client";
 import { alarmSummaryBySite } from "./db/queries/alarms";
-import { siteDataStatuses } from "./db/queries/readings";
 import { demoAccounts, seedDemo, SERVICE_ORG } from "./db/seed/demo";
 import { loadGatewayConfig } from "./gateway/config";
 import { startGatewaySide, type GatewaySide } from "./gateway/index";
@@ -76,7 +75,6 @@ const io = createRealtimeServer(httpServer, { db, secret: authSecret });
 
 // The alarm side of each site's board status, read with the service company's full view.
 const staffViewer = systemViewer(SERVICE_ORG.id);
-const dataStatus = (siteId: string) => siteDataStatuses(db, Date.now(), siteId).get(siteId)?.data ?? "no_gateway";
 
 // Live values are pushed per site room after each commit; the gateway side is the broker
 // (embedded, or a client of MQTT_URL), ingest, the batched writer and retention.
@@ -93,7 +91,7 @@ const alarmSystem = await startAlarmSystem({
   db,
   config,
   publicUrl,
-  comms: (siteId) => ({ gatewayOnline: dataStatus(siteId) !== "offline" }),
+  comms: (siteId) => ({ gatewayOnline: live.dataStatus(siteId) !== "offline" }),
   onSiteChanged: (siteId, summary) => {
     // An evaluation without a transition changes nothing on the board; a transition does.
     if (summary !== null) return;
@@ -139,6 +137,7 @@ if (config.LIFTLINE_DEMO && config.LIFTLINE_SIMULATOR) {
       mqttUrl: `mqtt://127.0.0.1:${gatewaySide.mqttPort}`,
       log,
       onSiteReset: (siteId, pointIds) => {
+        gatewaySide.writer.forget(pointIds);
         live.forget(pointIds);
         alarmSystem.service.reload(siteId);
       },
@@ -149,7 +148,9 @@ setRuntime({
   status: () => ({ broker: { mode: gatewaySide.mode, ...gatewaySide.status() } }),
   alarms: alarmSystem.service,
   escalator: alarmSystem.escalator,
-  siteDataStatus: dataStatus,
+  siteDataStatus: (siteId) => live.dataStatus(siteId),
+  openRollups: (pointId) => gatewaySide.writer.openRollups(pointId),
+  latestValue: (pointId) => live.latest(pointId),
   simulation,
   sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
 });

@@ -133,7 +133,8 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
   setGatewayLink({
     changed(gatewayId, change) {
       registry.invalidate(gatewayId);
-      if (change !== "point_map") {
+      if (change !== "credentials") live.mappingChanged();
+      if (change !== "point_map" && change !== "provisioned") {
         const n = embedded?.disconnectGateway(gatewayId) ?? 0;
         if (n) log(`[mqtt] ${gatewayId}: ${change}; closed ${n} connection(s)`);
       }

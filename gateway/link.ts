@@ -2,7 +2,7 @@
 // reach the running gateway side through globalThis: a point-map change drops the cached map,
 // a revoke or rotation cuts the gateway's live connection.
 
-export type GatewayChange = "point_map" | "credentials" | "revoked";
+export type GatewayChange = "provisioned" | "point_map" | "credentials" | "revoked";
 
 export interface GatewayLink {
   changed(gatewayId: string, change: GatewayChange): void;

@@ -2,7 +2,8 @@ import type { Db } from "@/db/client";
 import { findSparkplugGatewayId, loadIngestGateway, type IngestGateway } from "@/db/queries/gateways";
 
 // Gateways and their point maps, cached for the hot path and dropped when an API call
-// changes them (gateway/link.ts). A short expiry covers changes made by another process.
+// changes them (gateway/link.ts). An expiry of minutes covers changes made by another process;
+// one of seconds reloaded a portfolio's 100,000 mapped points every few seconds.
 
 export interface GatewayRegistry {
   get(gatewayId: string): IngestGateway | null;
@@ -11,7 +12,7 @@ export interface GatewayRegistry {
 }
 
 export function createGatewayRegistry(deps: { db: Db; clock?: { now(): number }; ttlMs?: number }): GatewayRegistry {
-  const ttl = deps.ttlMs ?? 30_000;
+  const ttl = deps.ttlMs ?? 300_000;
   const now = () => deps.clock?.now() ?? Date.now();
   const cache = new Map<string, { expires: number; gw: IngestGateway | null }>();
   const sparkplugIds = new Map<string, string | null>();

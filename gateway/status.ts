@@ -39,3 +39,57 @@ export function siteDataState(input: { gateways: number; online: number; mappedP
   if (input.online === 0) return "offline";
   return input.freshPoints >= input.mappedPoints ? "live" : "stale";
 }
+
+export interface SiteStatusRow {
+  data: SiteDataState;
+  gateways: Map<string, { online: boolean; lastMessageAtMs: number | null }>;
+}
+
+export interface MappedPoint {
+  gatewayId: string;
+  pointId: number;
+  expectedIntervalS: number;
+}
+
+export interface GatewayPresence extends Omit<PresenceInput, "silenceMs"> {
+  gatewayId: string;
+  siteId: string;
+}
+
+/**
+ * Every listed site's data status from its gateways' presence and the event time of each
+ * mapped point's newest reading (from the database, or from the live publisher's memory).
+ */
+export function siteStatuses(input: {
+  siteIds: Iterable<string>;
+  presence: readonly GatewayPresence[];
+  mapped: readonly MappedPoint[];
+  latestTs: (pointId: number) => number | null | undefined;
+  nowMs: number;
+}): Map<string, SiteStatusRow> {
+  const byGateway = new Map<string, { mapped: number; fresh: number; slowest: number }>();
+  for (const m of input.mapped) {
+    let f = byGateway.get(m.gatewayId);
+    if (!f) byGateway.set(m.gatewayId, (f = { mapped: 0, fresh: 0, slowest: 0 }));
+    f.mapped++;
+    const ts = input.latestTs(m.pointId);
+    if (ts !== null && ts !== undefined && !isStale(ts, m.expectedIntervalS, input.nowMs)) f.fresh++;
+    if (m.expectedIntervalS > f.slowest) f.slowest = m.expectedIntervalS;
+  }
+  const acc = new Map<string, { gateways: number; online: number; mapped: number; fresh: number; rows: SiteStatusRow["gateways"] }>();
+  for (const id of input.siteIds) acc.set(id, { gateways: 0, online: 0, mapped: 0, fresh: 0, rows: new Map() });
+  for (const g of input.presence) {
+    const a = acc.get(g.siteId);
+    if (!a || g.revoked) continue;
+    const f = byGateway.get(g.gatewayId);
+    const online = isOnline({ ...g, silenceMs: silenceMs(f?.slowest) }, input.nowMs);
+    a.gateways++;
+    if (online) a.online++;
+    a.mapped += f?.mapped ?? 0;
+    a.fresh += f?.fresh ?? 0;
+    a.rows.set(g.gatewayId, { online, lastMessageAtMs: g.lastMessageAtMs });
+  }
+  const out = new Map<string, SiteStatusRow>();
+  for (const [id, a] of acc) out.set(id, { data: siteDataState({ gateways: a.gateways, online: a.online, mappedPoints: a.mapped, freshPoints: a.fresh }), gateways: a.rows });
+  return out;
+}

@@ -2,11 +2,17 @@ import { createRequire } from "node:module";
 import { Worker } from "node:worker_threads";
 import type { Db } from "@/db/client";
 import type { RejectionReason } from "./contract";
+import { createRollupBook, type MinuteAggregate } from "./rollups";
 
 // The batched writer: everything the ingest accepted (readings, counters, rejections) is
 // queued and written in one transaction per flush through prepared statements. A submit
 // resolves only after its transaction committed, which is what lets the broker hold the
 // QoS 1 PUBACK until then (MQTT 3.1.1 §4.3.2: the receiver owns the message once it acks).
+//
+// What is derived from readings is written behind them, in the same flush transactions: a
+// minute's rollup when the minute has closed (gateway/rollups.ts), the latest value of each
+// point every latestEveryMs. Each of them cost a b-tree page per point per flush when written
+// at every flush. Both are rebuilt from raw readings after an unclean stop.
 
 export interface Clock {
   now(): number;
@@ -57,6 +63,10 @@ export interface WriterOptions {
   log?: (line: string) => void;
   /** Interval of the background WAL checkpoint (file databases only); 0 turns it off. */
   checkpointMs?: number;
+  /** How long after a minute ends its rollup is written (readings arriving later are merged in). */
+  rollupGraceMs?: number;
+  /** How often latest values are written to `latest_values`; 0 writes them at every flush. */
+  latestEveryMs?: number;
 }
 
 export interface BatchWriter {
@@ -64,7 +74,11 @@ export interface BatchWriter {
   /** Writes everything queued now (synchronously). */
   flush(): void;
   close(): Promise<void>;
-  stats(): { flushes: number; rows: number; queued: number; lastFlushMs: number; maxFlushMs: number };
+  stats(): { flushes: number; rows: number; queued: number; lastFlushMs: number; maxFlushMs: number; openRollups: number; unwrittenLatest: number };
+  /** A point's minutes not yet in `readings_1m` (the series API adds them to trends). */
+  openRollups(pointId: number): MinuteAggregate[];
+  /** Drops what is held for these points (their stored history was replaced). */
+  forget(pointIds: readonly number[]): void;
 }
 
 interface Pending {
@@ -73,19 +87,13 @@ interface Pending {
   reject: (err: unknown) => void;
 }
 
-const MINUTE_MS = 60_000;
-
-interface Rollup {
-  pointId: number;
-  bucket: number;
-  min: number;
-  max: number;
-  sum: number;
-  count: number;
-  last: number;
-  lastTs: number;
-  next: Rollup | undefined;
+interface LatestEntry {
+  row: RowIn;
+  gatewayId: string;
+  receivedAt: number;
 }
+
+const CLOSED_CLEANLY = "closed_cleanly";
 
 // A PASSIVE checkpoint every 100 ms on its own connection in a worker thread: it copies
 // committed WAL pages back into the database (and fsyncs) while the event loop goes on
@@ -119,6 +127,8 @@ function startCheckpointer(file: string, everyMs: number, log: (line: string) =>
 
 export function createBatchWriter(opts: WriterOptions): BatchWriter {
   const { db } = opts;
+  const clock = opts.clock ?? systemClock;
+  const latestEveryMs = opts.latestEveryMs ?? 2000;
   const flushMs = opts.flushMs ?? 50;
   const maxRows = opts.maxRows ?? 5000;
   const idleMs = Math.max(1, Math.min(flushMs, opts.idleMs ?? 5));
@@ -129,17 +139,6 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   // placeholder filling and entity checks cost more than the inserts themselves.
   // Idempotent on (point_id, ts): a redelivered message adds nothing.
   const insertReading = sqlite.prepare("insert into readings (point_id, ts, value, text, quality) values (?, ?, ?, ?, ?) on conflict do nothing");
-  // SQLite evaluates every SET expression against the old row, so `last` compares old last_ts.
-  const upsertRollup = sqlite.prepare(
-    `insert into readings_1m (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, ?, ?, ?, ?, ?, ?)
-     on conflict (point_id, bucket) do update set
-       min = min(readings_1m.min, excluded.min),
-       max = max(readings_1m.max, excluded.max),
-       sum = readings_1m.sum + excluded.sum,
-       count = readings_1m.count + excluded.count,
-       last = case when excluded.last_ts >= readings_1m.last_ts then excluded.last else readings_1m.last end,
-       last_ts = max(readings_1m.last_ts, excluded.last_ts)`,
-  );
   const upsertLatest = sqlite.prepare(
     `insert into latest_values (point_id, ts, value, text, quality, gateway_id, received_at) values (?, ?, ?, ?, ?, ?, ?)
      on conflict (point_id) do update set
@@ -160,11 +159,36 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     `insert into gateway_unmapped_points (gateway_id, point_name, count, last_seen_at) values (?, ?, ?, ?)
      on conflict (gateway_id, point_name) do update set count = gateway_unmapped_points.count + excluded.count, last_seen_at = excluded.last_seen_at`,
   );
+  const readState = sqlite.prepare("select value from ingest_state where key = ?").pluck();
+  const writeState = sqlite.prepare("insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = excluded.value");
+  // After an unclean stop the newest reading of a point may be newer than its latest_values row.
+  const recoverLatest = sqlite.prepare(
+    `insert into latest_values (point_id, ts, value, text, quality, gateway_id, received_at)
+     select r.point_id, r.ts, r.value, r.text, r.quality, null, r.ts
+     from points p join readings r on r.point_id = p.id and r.ts = (select max(ts) from readings where point_id = p.id)
+     where true
+     on conflict (point_id) do update set ts = excluded.ts, value = excluded.value, text = excluded.text, quality = excluded.quality, received_at = excluded.received_at
+     where excluded.ts > latest_values.ts`,
+  );
+
+  const rollups = createRollupBook(sqlite, { graceMs: opts.rollupGraceMs ?? 10_000, nowMs: clock.now() });
+  if (readState.get(CLOSED_CLEANLY) === 0) {
+    const t0 = performance.now();
+    const pointIds = sqlite.prepare("select id from points").pluck().all() as number[];
+    const replayed = rollups.recover(pointIds);
+    const latest = recoverLatest.run().changes;
+    log(`[ingest] recovered from an unclean stop: ${replayed} readings of open rollup minutes, ${latest} latest values (${Math.round(performance.now() - t0)} ms)`);
+  }
+  writeState.run(CLOSED_CLEANLY, 0);
+  /** Committed rows' latest values not yet in latest_values. */
+  let unwrittenLatest = new Map<number, LatestEntry>();
+  let latestWrittenAt = clock.now();
+
   const checkpointMs = opts.checkpointMs ?? 100;
   const checkpointer = !sqlite.memory && sqlite.name && checkpointMs > 0 ? startCheckpointer(sqlite.name, checkpointMs, log) : undefined;
 
   // One BEGIN/COMMIT pair prepared once (better-sqlite3 caches them per transaction function).
-  const transaction = sqlite.transaction((items: Pending[]) => writeAll(items));
+  const transaction = sqlite.transaction((items: Pending[], plan: FlushPlan) => writeAll(items, plan));
 
   let queue: Pending[] = [];
   let queuedRows = 0;
@@ -210,13 +234,22 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     }
   }
 
-  function writeAll(items: Pending[]): { results: SubmitResult[]; inserted: RowIn[] } {
+  interface FlushPlan {
+    /** Rollup minutes before this are written now. */
+    sealLimit: number;
+    /** The latest values written in this transaction (null: not due). */
+    latest: Map<number, LatestEntry> | null;
+  }
+
+  function planFlush(): FlushPlan {
+    const now = clock.now();
+    const latestDue = unwrittenLatest.size > 0 && now - latestWrittenAt >= latestEveryMs;
+    return { sealLimit: rollups.limit(now), latest: latestDue ? unwrittenLatest : null };
+  }
+
+  function writeAll(items: Pending[], plan: FlushPlan): { results: SubmitResult[]; inserted: RowIn[] } {
     const inserted: RowIn[] = [];
     const results: SubmitResult[] = [];
-    // Keyed by point id; other buckets of the same point in this flush hang off `next` (rare:
-    // only when a flush spans a minute boundary or carries late readings).
-    const rollups = new Map<number, Rollup>();
-    const latest = new Map<number, { row: RowIn; gatewayId: string; receivedAt: number }>();
     const perGateway = new Map<string, { messages: number; accepted: number; duplicates: number; at: number }>();
     const rejections = new Map<string, { gatewayId: string; reason: string; count: number; at: number }>();
     const unmapped = new Map<string, { gatewayId: string; pointName: string; count: number; at: number }>();
@@ -230,31 +263,9 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
         if (insertReading.run(row.pointId, row.ts, row.value, row.text, row.quality).changes === 0) continue;
         accepted++;
         inserted.push(row);
-        const prev = latest.get(row.pointId);
-        if (!prev) latest.set(row.pointId, { row, gatewayId: batch.gatewayId, receivedAt: batch.receivedAtMs });
-        else if (row.ts >= prev.row.ts) {
-          prev.row = row;
-          prev.gatewayId = batch.gatewayId;
-          prev.receivedAt = batch.receivedAtMs;
-        }
-        const value = row.value;
-        if (value === null) continue;
-        const bucket = Math.floor(row.ts / MINUTE_MS) * MINUTE_MS;
-        const head = rollups.get(row.pointId);
-        let agg = head;
-        while (agg !== undefined && agg.bucket !== bucket) agg = agg.next;
-        if (agg === undefined) {
-          rollups.set(row.pointId, { pointId: row.pointId, bucket, min: value, max: value, sum: value, count: 1, last: value, lastTs: row.ts, next: head });
-        } else {
-          if (value < agg.min) agg.min = value;
-          if (value > agg.max) agg.max = value;
-          agg.sum += value;
-          agg.count++;
-          if (row.ts >= agg.lastTs) {
-            agg.last = value;
-            agg.lastTs = row.ts;
-          }
-        }
+        // A reading of a minute being sealed now (or sealed before) goes straight into its row;
+        // the rest join their open minute once this transaction has committed.
+        if (row.value !== null && row.ts < plan.sealLimit) rollups.writeLate(row.pointId, row.ts, row.value);
       }
       const duplicates = rows.length - accepted;
       results.push({ accepted, duplicates });
@@ -284,14 +295,41 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
         }
       }
     }
-    for (const head of rollups.values()) {
-      for (let agg: Rollup | undefined = head; agg !== undefined; agg = agg.next) upsertRollup.run(agg.pointId, agg.bucket, agg.min, agg.max, agg.sum, agg.count, agg.last, agg.lastTs);
+    rollups.writeSealed(plan.sealLimit);
+    if (plan.latest) {
+      for (const { row, gatewayId, receivedAt } of plan.latest.values()) upsertLatest.run(row.pointId, row.ts, row.value, row.text, row.quality, gatewayId, receivedAt);
     }
-    for (const { row, gatewayId, receivedAt } of latest.values()) upsertLatest.run(row.pointId, row.ts, row.value, row.text, row.quality, gatewayId, receivedAt);
     for (const [id, g] of perGateway) bumpGateway.run(g.messages, g.accepted, g.duplicates, g.at, id);
     for (const e of rejections.values()) bumpRejection.run(e.gatewayId, e.reason, e.count, e.at);
     for (const e of unmapped.values()) bumpUnmapped.run(e.gatewayId, e.pointName, e.count, e.at);
     return { results, inserted };
+  }
+
+  /** In-memory state follows only what committed: a failed transaction leaves it as it was. */
+  function afterCommit(plan: FlushPlan, items: Pending[], inserted: RowIn[]) {
+    rollups.markSealed(plan.sealLimit);
+    if (plan.latest) {
+      unwrittenLatest = new Map();
+      latestWrittenAt = clock.now();
+    }
+    let k = 0;
+    for (const p of items) {
+      const { gatewayId, receivedAtMs, rows } = p.batch;
+      // `inserted` keeps the order of the batches' rows, so it can be walked alongside them.
+      for (let j = 0; j < rows.length && k < inserted.length; j++) {
+        const row = inserted[k];
+        if (row !== rows[j]) continue;
+        k++;
+        if (row.value !== null && row.ts >= plan.sealLimit) rollups.add(row.pointId, row.ts, row.value);
+        const prev = unwrittenLatest.get(row.pointId);
+        if (!prev) unwrittenLatest.set(row.pointId, { row, gatewayId, receivedAt: receivedAtMs });
+        else if (row.ts >= prev.row.ts) {
+          prev.row = row;
+          prev.gatewayId = gatewayId;
+          prev.receivedAt = receivedAtMs;
+        }
+      }
+    }
   }
 
   function flush() {
@@ -301,15 +339,17 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     queue = [];
     queuedRows = 0;
     const started = performance.now();
+    const plan = planFlush();
     let outcome: ReturnType<typeof writeAll>;
     try {
-      outcome = transaction(items);
+      outcome = transaction(items, plan);
     } catch (err) {
       // Nothing of this flush is stored; no PUBACK goes out, so the publishers resend.
       log(`[ingest] flush of ${items.length} message(s) failed: ${String(err)}`);
       for (const p of items) p.reject(err);
       return;
     }
+    afterCommit(plan, items, outcome.inserted);
     const took = performance.now() - started;
     stats.flushes++;
     stats.rows += outcome.inserted.length;
@@ -323,6 +363,25 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     }
   }
 
+  /** Seals closed minutes and writes latest values when no readings arrive to carry them. */
+  function maintain(everything = false) {
+    if (queue.length > 0 && !everything) return;
+    const now = clock.now();
+    const plan = planFlush();
+    if (everything) {
+      plan.sealLimit = rollups.limitAll(now);
+      plan.latest = unwrittenLatest;
+    } else if (!rollups.sealDue(now) && !plan.latest) return;
+    try {
+      transaction([], plan);
+      afterCommit(plan, [], []);
+    } catch (err) {
+      log(`[ingest] writing rollups and latest values failed (retried later): ${String(err)}`);
+    }
+  }
+  const maintenance = setInterval(() => maintain(), 1000);
+  maintenance.unref();
+
   return {
     submit(batch) {
       if (closed) return Promise.reject(new Error("writer is closed"));
@@ -334,10 +393,20 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     },
     flush,
     async close() {
+      if (closed) return;
       closed = true;
+      clearInterval(maintenance);
       flush();
+      // A clean stop leaves nothing to rebuild: every open minute and latest value is written.
+      maintain(true);
+      writeState.run(CLOSED_CLEANLY, 1);
       await checkpointer?.stop();
     },
-    stats: () => ({ ...stats, queued: queuedRows }),
+    stats: () => ({ ...stats, queued: queuedRows, openRollups: rollups.size(), unwrittenLatest: unwrittenLatest.size }),
+    openRollups: (pointId) => rollups.openOf(pointId),
+    forget(pointIds) {
+      rollups.forget(pointIds);
+      for (const id of pointIds) unwrittenLatest.delete(id);
+    },
   };
 }

@@ -7,7 +7,7 @@ import type { Viewer } from "@/lib/auth/viewer";
 import { notFound } from "@/lib/errors";
 import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import { displayUnit, formatValue, fromCanonical } from "@/lib/units";
-import { isOnline, isStale, siteDataState, silenceMs, type SiteDataState } from "@/gateway/status";
+import { isStale, siteStatuses, type MappedPoint, type SiteDataState, type SiteStatusRow } from "@/gateway/status";
 
 // Reading data for screens: trends (raw or 1-minute rollups, bucketed with min/max so spikes
 // stay visible) and the latest value of every point with its age. Viewer-scoped.
@@ -63,7 +63,13 @@ function pointInfo(db: Db, viewer: Viewer, pointId: number): PointInfo {
   return { ...row, measure: q?.measure ?? "text" };
 }
 
-export function getSeries(db: Db, viewer: Viewer, pointId: number, q: SeriesQuery, opts: { nowMs: number; rawRetentionMs: number }): SeriesDto {
+export function getSeries(
+  db: Db,
+  viewer: Viewer,
+  pointId: number,
+  q: SeriesQuery,
+  opts: { nowMs: number; rawRetentionMs: number; openRollups?: (pointId: number) => readonly OpenMinute[] },
+): SeriesDto {
   const p = pointInfo(db, viewer, pointId);
   const system = viewer.unitSystem;
   const span = Math.max(1, q.toMs - q.fromMs);
@@ -126,20 +132,49 @@ export function getSeries(db: Db, viewer: Viewer, pointId: number, q: SeriesQuer
 
   // Rollup buckets are whole minutes, so the width is too.
   const w = Math.max(MINUTE_MS, Math.ceil(rawWidth / MINUTE_MS) * MINUTE_MS);
+  const fromBucket = Math.floor(q.fromMs / MINUTE_MS) * MINUTE_MS;
   const rows = db
     .select({
       t: sql<number>`(${readings1m.bucket} / ${sql.raw(String(w))}) * ${sql.raw(String(w))}`,
       min: sql<number>`min(${readings1m.min})`,
       max: sql<number>`max(${readings1m.max})`,
-      avg: sql<number>`sum(${readings1m.sum}) / sum(${readings1m.count})`,
+      sum: sql<number>`sum(${readings1m.sum})`,
       count: sql<number>`sum(${readings1m.count})`,
     })
     .from(readings1m)
-    .where(and(eq(readings1m.pointId, pointId), gte(readings1m.bucket, Math.floor(q.fromMs / MINUTE_MS) * MINUTE_MS), lt(readings1m.bucket, q.toMs)))
+    .where(and(eq(readings1m.pointId, pointId), gte(readings1m.bucket, fromBucket), lt(readings1m.bucket, q.toMs)))
     .groupBy(sql`1`)
     .orderBy(sql`1`)
     .all();
-  return columnar(base, "rollup_1m", w, rows, conv);
+  // Minutes still open in the ingest writer are not in readings_1m yet; they belong to the trend.
+  const open = (opts.openRollups?.(pointId) ?? []).filter((m) => m.bucket >= fromBucket && m.bucket < q.toMs);
+  const merged = open.length ? mergeMinutes(rows, open, w) : rows;
+  return columnar(base, "rollup_1m", w, merged.map((r) => ({ t: r.t, min: r.min, max: r.max, avg: r.sum / r.count, count: r.count })), conv);
+}
+
+export interface OpenMinute {
+  bucket: number;
+  min: number;
+  max: number;
+  sum: number;
+  count: number;
+}
+
+/** Adds open minutes to stored buckets of width `w` (both sorted by time). */
+function mergeMinutes(rows: Array<{ t: number; min: number; max: number; sum: number; count: number }>, open: readonly OpenMinute[], w: number) {
+  const byT = new Map(rows.map((r) => [r.t, { ...r }]));
+  for (const m of open) {
+    const t = Math.floor(m.bucket / w) * w;
+    const r = byT.get(t);
+    if (!r) byT.set(t, { t, min: m.min, max: m.max, sum: m.sum, count: m.count });
+    else {
+      r.min = Math.min(r.min, m.min);
+      r.max = Math.max(r.max, m.max);
+      r.sum += m.sum;
+      r.count += m.count;
+    }
+  }
+  return [...byT.values()].sort((a, b) => a.t - b.t);
 }
 
 function columnar(
@@ -197,7 +232,10 @@ function liveValue(measure: Measure, value: number | null, text: string | null):
   return value;
 }
 
-export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: number): SiteLatestDto {
+/** A point's newest committed value held in memory by the running server (latest_values lags it). */
+export type LatestInMemory = (pointId: number) => { tsMs: number; value: number | boolean | string; quality: "good" | "uncertain" | "bad" } | undefined;
+
+export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: number, inMemory?: LatestInMemory): SiteLatestDto {
   if (!canSeeSite(db, viewer, siteId)) throw notFound("No such site.");
   const rows = db
     .select({
@@ -220,9 +258,12 @@ export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: num
     .where(eq(equipment.siteId, siteId))
     .orderBy(asc(equipment.tag), asc(points.id))
     .all();
-  const out: LatestPointDto[] = rows.map((r) => {
-    const measure = quantities[r.quantity as QuantityKey]?.measure ?? "text";
-    const value = r.ts === null ? null : liveValue(measure, r.value, r.text);
+  const out: LatestPointDto[] = rows.map((stored) => {
+    const measure = quantities[stored.quantity as QuantityKey]?.measure ?? "text";
+    const mem = inMemory?.(stored.pointId);
+    const newer = mem !== undefined && (stored.ts === null || mem.tsMs >= stored.ts);
+    const r = newer ? { ...stored, ts: mem.tsMs, quality: qualityNames.indexOf(mem.quality) } : stored;
+    const value = newer ? mem.value : r.ts === null ? null : liveValue(measure, r.value, r.text);
     return {
       pointId: r.pointId,
       equipmentId: r.equipmentId,
@@ -261,47 +302,44 @@ export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: num
   };
 }
 
-export interface SiteStatusRow {
-  data: SiteDataState;
-  gateways: Map<string, { online: boolean; lastMessageAtMs: number | null }>;
-}
-
-/**
- * Data status of every site (or one): system function for the live publisher and the
- * latest-values API. One aggregate query over mapped points, not a scan of readings.
- */
-export function siteDataStatuses(db: Db, nowMs: number, onlySiteId?: string): Map<string, SiteStatusRow> {
-  const freshness = db
-    .select({
-      gatewayId: gatewayPointMaps.gatewayId,
-      mapped: sql<number>`count(*)`,
-      fresh: sql<number>`sum(case when ${latestValues.ts} >= ${nowMs} - 3000 * ${points.expectedIntervalS} then 1 else 0 end)`,
-      slowest: sql<number>`max(${points.expectedIntervalS})`,
-    })
+/** Points mapped through each gateway that is not revoked, with the event time of their newest stored reading. */
+export function mappedPoints(db: Db, onlySiteId?: string): Array<MappedPoint & { ts: number | null }> {
+  return db
+    .select({ gatewayId: gatewayPointMaps.gatewayId, pointId: gatewayPointMaps.pointId, expectedIntervalS: points.expectedIntervalS, ts: latestValues.ts })
     .from(gatewayPointMaps)
     .innerJoin(gateways, eq(gateways.id, gatewayPointMaps.gatewayId))
     .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
     .leftJoin(latestValues, eq(latestValues.pointId, gatewayPointMaps.pointId))
     .where(onlySiteId ? eq(gateways.siteId, onlySiteId) : undefined)
-    .groupBy(gatewayPointMaps.gatewayId)
     .all();
-  const byGateway = new Map(freshness.map((f) => [f.gatewayId, f]));
-  const acc = new Map<string, { gateways: number; online: number; mapped: number; fresh: number; rows: SiteStatusRow["gateways"] }>();
-  const siteIds = onlySiteId ? [onlySiteId] : db.select({ id: sites.id }).from(sites).all().map((s) => s.id);
-  for (const id of siteIds) acc.set(id, { gateways: 0, online: 0, mapped: 0, fresh: 0, rows: new Map() });
-  for (const g of listGatewayPresence(db)) {
-    const a = acc.get(g.siteId);
-    if (!a || g.revoked) continue;
-    const f = byGateway.get(g.gatewayId);
-    const online = isOnline({ ...g, silenceMs: silenceMs(f?.slowest) }, nowMs);
-    a.gateways++;
-    if (online) a.online++;
-    a.mapped += f?.mapped ?? 0;
-    a.fresh += f?.fresh ?? 0;
-    a.rows.set(g.gatewayId, { online, lastMessageAtMs: g.lastMessageAtMs });
+}
+
+export function allSiteIds(db: Db): string[] {
+  return db.select({ id: sites.id }).from(sites).all().map((s) => s.id);
+}
+
+/**
+ * Data status of every site (or one) from stored latest values, for the latest-values API. The
+ * running server's live publisher answers the same from memory (lib/realtime/live.ts).
+ */
+export function siteDataStatuses(db: Db, nowMs: number, onlySiteId?: string): Map<string, SiteStatusRow> {
+  const mapped = mappedPoints(db, onlySiteId);
+  const ts = new Map(mapped.map((m) => [m.pointId, m.ts]));
+  return siteStatuses({ siteIds: onlySiteId ? [onlySiteId] : allSiteIds(db), presence: listGatewayPresence(db), mapped, latestTs: (id) => ts.get(id), nowMs });
+}
+
+/** Every point's stored latest value as screens get it (booleans as booleans), to seed the live publisher. */
+export function storedLatestValues(db: Db): Array<{ pointId: number; tsMs: number; value: number | boolean | string; quality: (typeof qualityNames)[number] }> {
+  const rows = db
+    .select({ pointId: latestValues.pointId, ts: latestValues.ts, value: latestValues.value, text: latestValues.text, quality: latestValues.quality, quantity: points.quantity })
+    .from(latestValues)
+    .innerJoin(points, eq(points.id, latestValues.pointId))
+    .all();
+  const out = [];
+  for (const r of rows) {
+    const value = liveValue(quantities[r.quantity as QuantityKey]?.measure ?? "text", r.value, r.text);
+    if (value !== null) out.push({ pointId: r.pointId, tsMs: r.ts, value, quality: qualityNames[r.quality] ?? "bad" });
   }
-  const out = new Map<string, SiteStatusRow>();
-  for (const [id, a] of acc) out.set(id, { data: siteDataState({ gateways: a.gateways, online: a.online, mappedPoints: a.mapped, freshPoints: a.fresh }), gateways: a.rows });
   return out;
 }
 

@@ -148,3 +148,12 @@ export const latestValues = sqliteTable("latest_values", {
   gatewayId: text("gateway_id"),
   receivedAt: integer("received_at").notNull(),
 });
+
+/**
+ * Ingestion bookkeeping that must outlive the process: `rollups_sealed_before` (every stored
+ * reading of an earlier minute is in `readings_1m`) and `closed_cleanly` (0 while running).
+ */
+export const ingestState = sqliteTable("ingest_state", {
+  key: text("key").primaryKey(),
+  value: integer("value").notNull(),
+});

@@ -31,7 +31,11 @@ export interface ServerToClientEvents {
 export interface ClientToServerEvents {
   "site:join": (payload: JoinSite, ack: (res: Ack<{ siteId: string }>) => void) => void;
   "site:leave": (payload: JoinSite, ack: (res: Ack<{ siteId: string }>) => void) => void;
+  /** Status of every site the viewer may see (no values). */
   "board:join": (ack: (res: Ack<{ siteIds: string[] }>) => void) => void;
 }
 
+/** A site page's room: `site:values` and `site:status`. */
 export const siteRoom = (siteId: string) => `site:${siteId}`;
+/** The board's room for a site: `site:status` only, so a board of many plants is not sent every reading. */
+export const boardRoom = (siteId: string) => `board:${siteId}`;

@@ -1,11 +1,15 @@
 import type { Db } from "@/db/client";
-import { siteDataStatuses } from "@/db/queries/readings";
-import { siteRoom, type SiteStatus, type SiteValues } from "./events";
+import { listGatewayPresence } from "@/db/queries/gateways";
+import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
+import { siteStatuses, type MappedPoint, type SiteStatusRow } from "@/gateway/status";
+import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "./events";
 import type { RealtimeServer } from "./server";
 
 // Live values to browsers: the latest value per point is kept in memory, and each site room
 // gets at most one `site:values` per push interval with only the points that changed, so
-// the fan-out grows with sites watched, not with readings received.
+// the fan-out grows with sites watched, not with readings received. Site data status (live,
+// stale, offline) is worked out from the same memory: which points each gateway maps is
+// loaded once and again when a gateway or point map changes, never a scan per round.
 
 type Value = SiteValues["values"][number];
 
@@ -34,6 +38,13 @@ export interface LivePublisher {
   /** Re-evaluate site status soon (presence changed). */
   touch(siteId: string): void;
   latest(pointId: number): Value | undefined;
+  /**
+   * A site's data status as of the last status round (at most statusMs old, sooner after a
+   * presence change): rule checks ask for it on every evaluation, so it must not cost a query.
+   */
+  dataStatus(siteId: string): SiteStatus["data"];
+  /** A gateway was provisioned or revoked, or its point map replaced. */
+  mappingChanged(): void;
   /** Drops the remembered values of these points (a simulated site's timeline was replaced). */
   forget(pointIds: readonly number[]): void;
   flushNow(): void;
@@ -48,6 +59,20 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
   const pending = new Map<string, Map<number, Value>>();
   const lastStatus = new Map<string, string>();
   let statusDue = true;
+  let statuses: Map<string, SiteStatusRow> | undefined;
+  // Also reloaded now and then, for changes made without telling this process.
+  let mapping: { siteIds: string[]; mapped: MappedPoint[]; loadedAt: number } | undefined;
+  const MAPPING_TTL_MS = 60_000;
+
+  // What was stored before this start, so sites are not "stale" until every point reports again.
+  for (const v of storedLatestValues(opts.db)) latest.set(v.pointId, v);
+
+  function computeStatuses() {
+    const nowMs = now();
+    if (!mapping || nowMs - mapping.loadedAt > MAPPING_TTL_MS) mapping = { siteIds: allSiteIds(opts.db), mapped: mappedPoints(opts.db), loadedAt: nowMs };
+    statuses = siteStatuses({ siteIds: mapping.siteIds, presence: listGatewayPresence(opts.db), mapped: mapping.mapped, latestTs: (id) => latest.get(id)?.tsMs, nowMs });
+    return statuses;
+  }
 
   function pushValues() {
     if (pending.size === 0) return;
@@ -60,14 +85,13 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
 
   function pushStatus() {
     statusDue = false;
-    const statuses = siteDataStatuses(opts.db, now());
-    for (const [siteId, s] of statuses) {
+    for (const [siteId, s] of computeStatuses()) {
       const extras = opts.alarmSummary?.(siteId) ?? { worst: null, unacknowledged: 0 };
       const payload: SiteStatus = { siteId, data: s.data, ...extras };
       const key = JSON.stringify(payload);
       if (lastStatus.get(siteId) === key) continue;
       lastStatus.set(siteId, key);
-      opts.io.to(siteRoom(siteId)).emit("site:status", payload);
+      opts.io.to([siteRoom(siteId), boardRoom(siteId)]).emit("site:status", payload);
     }
   }
 
@@ -103,6 +127,13 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
       statusDue = true;
     },
     latest: (pointId) => latest.get(pointId),
+    dataStatus(siteId) {
+      return (statuses ?? computeStatuses()).get(siteId)?.data ?? "no_gateway";
+    },
+    mappingChanged() {
+      mapping = undefined;
+      statusDue = true;
+    },
     forget(pointIds) {
       for (const id of pointIds) latest.delete(id);
       statusDue = true;

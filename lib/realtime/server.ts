@@ -6,7 +6,7 @@ import { canSeeSite, visibleSiteIds } from "@/db/queries/sites";
 import { getViewerById } from "@/db/queries/users";
 import { SESSION_COOKIES } from "@/lib/auth/session";
 import type { Viewer } from "@/lib/auth/viewer";
-import { joinSiteSchema, siteRoom, type ClientToServerEvents, type ServerToClientEvents } from "./events";
+import { boardRoom, joinSiteSchema, siteRoom, type ClientToServerEvents, type ServerToClientEvents } from "./events";
 
 interface SocketData {
   viewer: Viewer;
@@ -67,7 +67,7 @@ export function createRealtimeServer(httpServer: HttpServer, deps: { db: Db; sec
     });
     socket.on("board:join", (ack) => {
       const siteIds = visibleSiteIds(deps.db, viewer);
-      for (const id of siteIds) void socket.join(siteRoom(id));
+      void socket.join(siteIds.map(boardRoom));
       if (typeof ack === "function") ack({ data: { siteIds } });
     });
   });

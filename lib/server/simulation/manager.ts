@@ -3,6 +3,7 @@ import type { Db } from "@/db/client";
 import { alarmEvents, alarms, equipment, latestValues, points, readings, readings1m } from "@/db/schema";
 import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } from "@/db/queries/gateways";
 import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
+import { notifyGatewayChanged } from "@/gateway/link";
 import { newAlarm, type Alarm } from "@/lib/alarms";
 import { systemViewer } from "@/lib/auth/viewer";
 import { parsePointMapCsv } from "@/gateway/point-map-csv";
@@ -68,6 +69,7 @@ export async function createSimulationManager(deps: {
     const { rows, errors } = parsePointMapCsv(pointMapCsv(layout));
     const result = replacePointMap(db, systemAdmin, gw.id, rows, errors);
     if (result.errors.length) log(`[sim] point map for ${site.id}: ${result.errors.length} rows refused, first: ${result.errors[0].message}`);
+    notifyGatewayChanged(gw.id, "point_map");
     gatewayIds.set(site.id, gw.id);
   }
 

@@ -5,6 +5,7 @@ import { getSeries } from "@/db/queries/readings";
 import { AppError } from "@/lib/errors";
 import { loadConfig } from "@/lib/server/config";
 import { route } from "@/lib/server/http";
+import { getRuntime } from "@/lib/server/runtime";
 
 export const dynamic = "force-dynamic";
 
@@ -28,5 +29,5 @@ export const GET = route<{ params: Promise<{ pointId: string }> }>(async (reques
   if (fromMs >= toMs) throw new AppError("bad_request", "`from` must be before `to`.");
   if (toMs - fromMs > MAX_SPAN_MS) throw new AppError("bad_request", "The range can be at most two years.");
   const rawRetentionMs = loadConfig().RAW_RETENTION_DAYS * 86_400_000;
-  return Response.json({ series: getSeries(getDb(), viewer, pointId, { fromMs, toMs, maxPoints: q.maxPoints }, { nowMs: now, rawRetentionMs }) });
+  return Response.json({ series: getSeries(getDb(), viewer, pointId, { fromMs, toMs, maxPoints: q.maxPoints }, { nowMs: now, rawRetentionMs, openRollups: getRuntime()?.openRollups }) });
 });

@@ -2,6 +2,7 @@ import { requireApiViewer } from "@/app/(auth)/auth";
 import { getDb } from "@/db/client";
 import { getSiteLatest } from "@/db/queries/readings";
 import { route } from "@/lib/server/http";
+import { getRuntime } from "@/lib/server/runtime";
 
 export const dynamic = "force-dynamic";
 
@@ -9,5 +10,5 @@ export const dynamic = "force-dynamic";
 export const GET = route<{ params: Promise<{ siteId: string }> }>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
   const { siteId } = await params;
-  return Response.json({ latest: getSiteLatest(getDb(), viewer, siteId, Date.now()) });
+  return Response.json({ latest: getSiteLatest(getDb(), viewer, siteId, Date.now(), getRuntime()?.latestValue) });
 });

@@ -1,0 +1,173 @@
+import type Database from "better-sqlite3";
+
+// 1-minute rollups (min/max/sum/count/last) kept in memory while their minute is open and
+// written to `readings_1m` once, when it has closed ("sealed"). Writing every open minute at
+// every flush cost a b-tree page per point per flush; a point reporting every 5 s now costs one
+// rollup row write a minute instead of twelve.
+//
+// Durability rests on raw readings, which are committed before any PUBACK: the watermark
+// `rollups_sealed_before` (ingest_state) is advanced in the same transaction that writes the
+// sealed minutes, and every stored reading of a minute before it is in `readings_1m`. After a
+// crash, `recover()` drops rollup rows at or after the watermark and rebuilds those minutes from
+// raw readings, so nothing is lost and nothing is counted twice. A reading that arrives for a
+// minute already sealed is merged into its row by the same upsert.
+
+const MINUTE_MS = 60_000;
+const WATERMARK = "rollups_sealed_before";
+
+export interface MinuteAggregate {
+  pointId: number;
+  bucket: number;
+  min: number;
+  max: number;
+  sum: number;
+  count: number;
+  last: number;
+  lastTs: number;
+}
+
+export interface RollupBook {
+  /** The seal limit at `nowMs`: minutes before it are written at this flush. */
+  limit(nowMs: number): number;
+  /** A limit past every open minute, for a clean stop. */
+  limitAll(nowMs: number): number;
+  /** Inside the flush's transaction: writes the open minutes before `limit` and the watermark. */
+  writeSealed(limit: number): void;
+  /** Inside the flush's transaction: a reading of a minute before the limit goes straight to its row. */
+  writeLate(pointId: number, ts: number, value: number): void;
+  /** After that transaction committed: drops what it wrote from memory, advances the watermark. */
+  markSealed(limit: number): void;
+  /** After a commit: a reading of a minute at or after the limit joins its open minute. */
+  add(pointId: number, ts: number, value: number): void;
+  /** Whether a flush at `nowMs` would write anything. */
+  sealDue(nowMs: number): boolean;
+  /** Minutes of a point not yet in `readings_1m`, oldest first. */
+  openOf(pointId: number): MinuteAggregate[];
+  /** Drops the open minutes of these points (their stored history was replaced). */
+  forget(pointIds: readonly number[]): void;
+  /** Rebuilds the open minutes from raw readings after an unclean stop. Returns readings replayed. */
+  recover(pointIds: readonly number[]): number;
+  /** Open (point, minute) aggregates held. */
+  size(): number;
+}
+
+export const bucketOf = (ts: number) => Math.floor(ts / MINUTE_MS) * MINUTE_MS;
+
+export function createRollupBook(sqlite: Database.Database, opts: { graceMs: number; nowMs: number }): RollupBook {
+  const { graceMs } = opts;
+  // Keyed by minute, then point: sealing takes whole minutes, and at any time only a few are open.
+  const open = new Map<number, Map<number, MinuteAggregate>>();
+  let lastBucket = NaN;
+  let lastMinute: Map<number, MinuteAggregate> | undefined;
+
+  const upsert = sqlite.prepare(
+    // SQLite evaluates every SET expression against the old row, so `last` compares old last_ts.
+    `insert into readings_1m (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, ?, ?, ?, ?, ?, ?)
+     on conflict (point_id, bucket) do update set
+       min = min(readings_1m.min, excluded.min),
+       max = max(readings_1m.max, excluded.max),
+       sum = readings_1m.sum + excluded.sum,
+       count = readings_1m.count + excluded.count,
+       last = case when excluded.last_ts >= readings_1m.last_ts then excluded.last else readings_1m.last end,
+       last_ts = max(readings_1m.last_ts, excluded.last_ts)`,
+  );
+  const readWatermark = sqlite.prepare("select value from ingest_state where key = ?").pluck();
+  const writeWatermark = sqlite.prepare("insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = max(value, excluded.value)");
+  let sealedBefore = readWatermark.get(WATERMARK) as number | undefined;
+  if (sealedBefore === undefined) {
+    // A new database, or one whose rollups were all written as readings arrived: nothing
+    // before now is missing from readings_1m.
+    sealedBefore = bucketOf(opts.nowMs - graceMs);
+    writeWatermark.run(WATERMARK, sealedBefore);
+  }
+
+  // Minutes before the limit are written at the next flush: those closed graceMs ago, and any
+  // before the watermark (the open minute after a clean stop sealed everything early).
+  const limit = (nowMs: number) => Math.max(bucketOf(nowMs - graceMs), sealedBefore!);
+
+  function add(pointId: number, ts: number, value: number) {
+    const bucket = bucketOf(ts);
+    let minute = bucket === lastBucket ? lastMinute : open.get(bucket);
+    if (!minute) open.set(bucket, (minute = new Map()));
+    lastBucket = bucket;
+    lastMinute = minute;
+    const agg = minute.get(pointId);
+    if (agg === undefined) {
+      minute.set(pointId, { pointId, bucket, min: value, max: value, sum: value, count: 1, last: value, lastTs: ts });
+      return;
+    }
+    if (value < agg.min) agg.min = value;
+    if (value > agg.max) agg.max = value;
+    agg.sum += value;
+    agg.count++;
+    if (ts >= agg.lastTs) {
+      agg.last = value;
+      agg.lastTs = ts;
+    }
+  }
+
+  function recover(pointIds: readonly number[]): number {
+    const from = sealedBefore!;
+    const drop = sqlite.prepare("delete from readings_1m where point_id = ? and bucket >= ?");
+    const raw = sqlite.prepare("select ts, value from readings where point_id = ? and ts >= ? and value is not null order by ts");
+    let replayed = 0;
+    sqlite.transaction(() => {
+      for (const id of pointIds) {
+        drop.run(id, from);
+        for (const r of raw.iterate(id, from) as IterableIterator<{ ts: number; value: number }>) {
+          add(id, r.ts, r.value);
+          replayed++;
+        }
+      }
+    })();
+    return replayed;
+  }
+
+  return {
+    limit,
+    limitAll(nowMs) {
+      let before = limit(nowMs);
+      for (const bucket of open.keys()) before = Math.max(before, bucket + MINUTE_MS);
+      return before;
+    },
+    writeSealed(before) {
+      for (const [bucket, minute] of open) {
+        if (bucket >= before) continue;
+        for (const a of minute.values()) upsert.run(a.pointId, a.bucket, a.min, a.max, a.sum, a.count, a.last, a.lastTs);
+      }
+      if (before > sealedBefore!) writeWatermark.run(WATERMARK, before);
+    },
+    writeLate(pointId, ts, value) {
+      upsert.run(pointId, bucketOf(ts), value, value, value, 1, value, ts);
+    },
+    markSealed(before) {
+      for (const bucket of open.keys()) if (bucket < before) open.delete(bucket);
+      lastBucket = NaN;
+      if (before > sealedBefore!) sealedBefore = before;
+    },
+    add,
+    sealDue(nowMs) {
+      const before = limit(nowMs);
+      if (before > sealedBefore!) return true;
+      for (const bucket of open.keys()) if (bucket < before) return true;
+      return false;
+    },
+    openOf(pointId) {
+      const out: MinuteAggregate[] = [];
+      for (const minute of open.values()) {
+        const a = minute.get(pointId);
+        if (a) out.push({ ...a });
+      }
+      return out.sort((a, b) => a.bucket - b.bucket);
+    },
+    forget(pointIds) {
+      for (const minute of open.values()) for (const id of pointIds) minute.delete(id);
+    },
+    recover,
+    size: () => {
+      let n = 0;
+      for (const minute of open.values()) n += minute.size;
+      return n;
+    },
+  };
+}
