@@ -9,13 +9,12 @@ import type { GatewayConfig } from "./config";
 import { connectExternalBroker, type ExternalBroker } from "./external";
 import { createIngest, type Ingest, type Presence } from "./ingest";
 import { setGatewayLink } from "./link";
-import { startPruner, type Pruner } from "./pruner";
 import { createGatewayRegistry } from "./registry";
 import { createSparkplugHost, encodeStatePayload, stateTopic } from "./sparkplug";
 import { createBatchWriter, systemClock, type BatchWriter, type Clock } from "./writer";
 
 // The gateway side of the server, assembled from its parts: broker (embedded or external),
-// ingest, batched writer, live publisher hook and pruner. server.ts calls this once.
+// ingest, batched writer (with retention pruning) and live publisher hook. server.ts calls this once.
 
 export interface GatewaySideOptions {
   db: Db;
@@ -35,7 +34,6 @@ export interface GatewaySide {
   mqttPort: number | null;
   ingest: Ingest;
   writer: BatchWriter;
-  pruner: Pruner;
   status(): { up: boolean; clients: number };
   /** Publishes a JSON message on a gateway's command topic, QoS 1 (the simulator's drills). */
   sendGatewayCommand(gatewayId: string, payload: unknown): void;
@@ -57,6 +55,7 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     flushMs: external ? 0 : opts.config.INGEST_FLUSH_MS,
     maxRows: opts.config.INGEST_MAX_BATCH_ROWS,
     onCommitted: (rows) => live.onCommitted(rows),
+    retention: { rawMs: rawRetentionMs, rollupMs: opts.config.ROLLUP_RETENTION_DAYS * DAY_MS },
     log,
   });
   const registry = createGatewayRegistry({ db, clock });
@@ -141,19 +140,16 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     },
   });
 
-  const pruner = startPruner({ db, clock, rawRetentionMs, rollupRetentionMs: opts.config.ROLLUP_RETENTION_DAYS * DAY_MS, log });
 
   return {
     mode: external ? "external" : "embedded",
     mqttPort: embedded?.port ?? null,
     ingest,
     writer,
-    pruner,
     status: () => (embedded ? { up: true, clients: embedded.connectedClients() } : { up: ext?.connected() ?? false, clients: 0 }),
     sendGatewayCommand: (gatewayId, payload) => sendCommand(`${TOPIC_ROOT}/${gatewayId}/commands`, Buffer.from(JSON.stringify(payload))),
     async close() {
       setGatewayLink(undefined);
-      pruner.stop();
       // Stop taking messages first, then commit what was accepted.
       await embedded?.close();
       await ext?.close();

@@ -41,14 +41,22 @@ export interface RollupBook {
   add(pointId: number, ts: number, value: number): void;
   /** Whether a flush at `nowMs` would write anything. */
   sealDue(nowMs: number): boolean;
-  /** Minutes of a point not yet in `readings_1m`, oldest first. */
-  openOf(pointId: number): MinuteAggregate[];
+  /**
+   * Minutes of a point not yet in `readings_1m`, oldest first, with the watermark at this moment:
+   * readings_1m has everything before it and nothing from it on but what these minutes hold.
+   */
+  openOf(pointId: number): OpenRollups;
   /** Drops the open minutes of these points (their stored history was replaced). */
   forget(pointIds: readonly number[]): void;
   /** Rebuilds the open minutes from raw readings after an unclean stop. Returns readings replayed. */
   recover(pointIds: readonly number[]): number;
   /** Open (point, minute) aggregates held. */
   size(): number;
+}
+
+export interface OpenRollups {
+  sealedBefore: number;
+  minutes: MinuteAggregate[];
 }
 
 export const bucketOf = (ts: number) => Math.floor(ts / MINUTE_MS) * MINUTE_MS;
@@ -158,7 +166,7 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
         const a = minute.get(pointId);
         if (a) out.push({ ...a });
       }
-      return out.sort((a, b) => a.bucket - b.bucket);
+      return { sealedBefore: sealedBefore!, minutes: out.sort((a, b) => a.bucket - b.bucket) };
     },
     forget(pointIds) {
       for (const minute of open.values()) for (const id of pointIds) minute.delete(id);

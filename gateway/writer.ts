@@ -2,17 +2,19 @@ import { createRequire } from "node:module";
 import { Worker } from "node:worker_threads";
 import type { Db } from "@/db/client";
 import type { RejectionReason } from "./contract";
-import { createRollupBook, type MinuteAggregate } from "./rollups";
+import { startPruner } from "./pruner";
+import type { OpenRollups } from "./rollups";
+import { createStore, type FlushDone, type FlushWire } from "./store";
+import type { FromStore, StoreWorkerData, ToStore } from "./store-worker";
 
 // The batched writer: everything the ingest accepted (readings, counters, rejections) is
-// queued and written in one transaction per flush through prepared statements. A submit
-// resolves only after its transaction committed, which is what lets the broker hold the
-// QoS 1 PUBACK until then (MQTT 3.1.1 §4.3.2: the receiver owns the message once it acks).
+// queued and written in one transaction per flush (gateway/store.ts). A submit resolves only
+// after its transaction committed, which is what lets the broker hold the QoS 1 PUBACK until
+// then (MQTT 3.1.1 §4.3.2: the receiver owns the message once it acks).
 //
-// What is derived from readings is written behind them, in the same flush transactions: a
-// minute's rollup when the minute has closed (gateway/rollups.ts), the latest value of each
-// point every latestEveryMs. Each of them cost a b-tree page per point per flush when written
-// at every flush. Both are rebuilt from raw readings after an unclean stop.
+// With a file database the transactions run on a worker thread of their own, one flush at a
+// time; messages that arrive meanwhile make the next flush larger. The event loop keeps MQTT,
+// rule checks, sockets and pages; on 2 cores the commits had taken a quarter of it.
 
 export interface Clock {
   now(): number;
@@ -67,33 +69,28 @@ export interface WriterOptions {
   rollupGraceMs?: number;
   /** How often latest values are written to `latest_values`; 0 writes them at every flush. */
   latestEveryMs?: number;
+  /** Where transactions run: "worker" (default for a file database) or "inline" (on the event loop). */
+  thread?: "worker" | "inline";
+  /** Retention pruning (gateway/pruner.ts), run beside the writes on the same thread. */
+  retention?: Retention;
+}
+
+export interface Retention {
+  rawMs: number;
+  rollupMs: number;
 }
 
 export interface BatchWriter {
   submit(batch: Batch): Promise<SubmitResult>;
-  /** Writes everything queued now (synchronously). */
+  /** Starts writing everything queued now (after the flush in progress, if any). */
   flush(): void;
   close(): Promise<void>;
   stats(): { flushes: number; rows: number; queued: number; lastFlushMs: number; maxFlushMs: number; openRollups: number; unwrittenLatest: number };
   /** A point's minutes not yet in `readings_1m` (the series API adds them to trends). */
-  openRollups(pointId: number): MinuteAggregate[];
+  openRollups(pointId: number): Promise<OpenRollups>;
   /** Drops what is held for these points (their stored history was replaced). */
   forget(pointIds: readonly number[]): void;
 }
-
-interface Pending {
-  batch: Batch;
-  resolve: (r: SubmitResult) => void;
-  reject: (err: unknown) => void;
-}
-
-interface LatestEntry {
-  row: RowIn;
-  gatewayId: string;
-  receivedAt: number;
-}
-
-const CLOSED_CLEANLY = "closed_cleanly";
 
 // A PASSIVE checkpoint every 100 ms on its own connection in a worker thread: it copies
 // committed WAL pages back into the database (and fsyncs) while the event loop goes on
@@ -125,70 +122,160 @@ function startCheckpointer(file: string, everyMs: number, log: (line: string) =>
   };
 }
 
+interface Pending {
+  batch: Batch;
+  resolve: (r: SubmitResult) => void;
+  reject: (err: unknown) => void;
+}
+
+/** Where a flush is committed: the same calls whether on this thread or the store worker. */
+interface StoreLink {
+  write(flush: FlushWire): Promise<FlushDone>;
+  maintain(nowMs: number): void;
+  openRollups(pointId: number): Promise<OpenRollups>;
+  forget(pointIds: readonly number[]): void;
+  close(nowMs: number): Promise<void>;
+  stats(): { openRollups: number; unwrittenLatest: number };
+}
+
+function inlineStore(db: Db, clock: Clock, options: { graceMs: number; latestEveryMs: number; nowMs: number; log: (line: string) => void; retention?: Retention }): StoreLink {
+  const store = createStore(db.$client, options);
+  const pruner = options.retention && startPruner({ db, clock, rawRetentionMs: options.retention.rawMs, rollupRetentionMs: options.retention.rollupMs, log: options.log });
+  return {
+    write: async (flush) => store.write(flush),
+    maintain(nowMs) {
+      try {
+        store.maintain(nowMs);
+      } catch (err) {
+        options.log(`[ingest] writing rollups and latest values failed (retried later): ${String(err)}`);
+      }
+    },
+    openRollups: async (pointId) => store.openRollups(pointId),
+    forget: (pointIds) => store.forget(pointIds),
+    close: async (nowMs) => {
+      pruner?.stop();
+      store.close(nowMs);
+    },
+    stats: () => store.stats(),
+  };
+}
+
+function workerStore(file: string, options: { graceMs: number; latestEveryMs: number; nowMs: () => number; log: (line: string) => void; retention?: Retention }): StoreLink {
+  const { log } = options;
+  const flushes = new Map<number, { resolve: (d: FlushDone) => void; reject: (err: Error) => void }>();
+  const lookups = new Map<number, (m: OpenRollups) => void>();
+  let lastStats = { openRollups: 0, unwrittenLatest: 0 };
+  let nextReq = 0;
+  let closing: (() => void) | undefined;
+  let worker: Worker;
+
+  function start() {
+    const data: StoreWorkerData = { file, graceMs: options.graceMs, latestEveryMs: options.latestEveryMs, nowMs: options.nowMs(), retention: options.retention };
+    worker = new Worker(new URL("./store-worker.mjs", import.meta.url), { workerData: data });
+    worker.on("message", (m: FromStore) => {
+      if (m.type === "log") log(m.line);
+      else if (m.type === "flushed") {
+        lastStats = m.stats;
+        flushes.get(m.id)?.resolve({ id: m.id, accepted: m.accepted, inserted: m.inserted });
+        flushes.delete(m.id);
+      } else if (m.type === "flushFailed") {
+        flushes.get(m.id)?.reject(new Error(m.error));
+        flushes.delete(m.id);
+      } else if (m.type === "openRollups") {
+        lookups.get(m.reqId)?.(m.open);
+        lookups.delete(m.reqId);
+      } else if (m.type === "closed") closing?.();
+    });
+    worker.on("error", (err) => log(`[ingest] store worker failed: ${err.stack ?? String(err)}`));
+    worker.on("exit", (code) => {
+      // Nothing it was writing is acknowledged; gateways resend. A new worker rebuilds what was
+      // held in memory from raw readings, as after any unclean stop.
+      for (const f of flushes.values()) f.reject(new Error(`store worker exited (${code})`));
+      flushes.clear();
+      for (const l of lookups.values()) l({ sealedBefore: Infinity, minutes: [] });
+      lookups.clear();
+      if (closing) return closing();
+      log(`[ingest] store worker exited with ${code}; starting another`);
+      start();
+    });
+  }
+  start();
+  const post = (m: ToStore, transfer: ArrayBuffer[] = []) => worker.postMessage(m, transfer);
+
+  return {
+    write: (flush) =>
+      new Promise<FlushDone>((resolve, reject) => {
+        flushes.set(flush.id, { resolve, reject });
+        post({ type: "flush", flush }, [flush.pointId.buffer as ArrayBuffer, flush.ts.buffer as ArrayBuffer, flush.value.buffer as ArrayBuffer, flush.quality.buffer as ArrayBuffer]);
+      }),
+    maintain: (nowMs) => post({ type: "maintain", nowMs }),
+    openRollups: (pointId) =>
+      new Promise<OpenRollups>((resolve) => {
+        const reqId = nextReq++;
+        lookups.set(reqId, resolve);
+        post({ type: "openRollups", reqId, pointId });
+      }),
+    forget: (pointIds) => post({ type: "forget", pointIds: [...pointIds] }),
+    close: (nowMs) =>
+      new Promise<void>((resolve) => {
+        closing = resolve;
+        post({ type: "close", nowMs });
+      }),
+    stats: () => lastStats,
+  };
+}
+
+/** The rows of a flush as columns, in submit order. */
+function encodeFlush(id: number, nowMs: number, items: readonly Pending[], rows: number): FlushWire {
+  const f: FlushWire = {
+    id,
+    nowMs,
+    pointId: new Int32Array(rows),
+    ts: new Float64Array(rows),
+    value: new Float64Array(rows),
+    quality: new Uint8Array(rows),
+    texts: [],
+    batches: [],
+  };
+  let i = 0;
+  for (const { batch } of items) {
+    for (const r of batch.rows) {
+      f.pointId[i] = r.pointId;
+      f.ts[i] = r.ts;
+      f.value[i] = r.value ?? NaN;
+      f.quality[i] = r.quality;
+      if (r.text !== null) f.texts.push([i, r.text]);
+      i++;
+    }
+    f.batches.push({
+      gatewayId: batch.gatewayId,
+      count: batch.rows.length,
+      messages: batch.messages,
+      receivedAtMs: batch.receivedAtMs,
+      rejections: batch.rejections,
+      unmapped: batch.unmapped ? [...batch.unmapped] : undefined,
+    });
+  }
+  return f;
+}
+
 export function createBatchWriter(opts: WriterOptions): BatchWriter {
   const { db } = opts;
   const clock = opts.clock ?? systemClock;
-  const latestEveryMs = opts.latestEveryMs ?? 2000;
   const flushMs = opts.flushMs ?? 50;
   const maxRows = opts.maxRows ?? 5000;
   const idleMs = Math.max(1, Math.min(flushMs, opts.idleMs ?? 5));
   const log = opts.log ?? (() => {});
   const sqlite = db.$client;
-
-  // Raw better-sqlite3 statements, prepared once: on the hot path Drizzle's per-call
-  // placeholder filling and entity checks cost more than the inserts themselves.
-  // Idempotent on (point_id, ts): a redelivered message adds nothing.
-  const insertReading = sqlite.prepare("insert into readings (point_id, ts, value, text, quality) values (?, ?, ?, ?, ?) on conflict do nothing");
-  const upsertLatest = sqlite.prepare(
-    `insert into latest_values (point_id, ts, value, text, quality, gateway_id, received_at) values (?, ?, ?, ?, ?, ?, ?)
-     on conflict (point_id) do update set
-       ts = excluded.ts, value = excluded.value, text = excluded.text, quality = excluded.quality,
-       gateway_id = excluded.gateway_id, received_at = excluded.received_at
-     where excluded.ts >= latest_values.ts`,
-  );
-  const bumpGateway = sqlite.prepare(
-    `update gateways set messages = messages + ?, readings_accepted = readings_accepted + ?, readings_duplicate = readings_duplicate + ?,
-       last_message_at = max(coalesce(last_message_at, 0), ?)
-     where id = ?`,
-  );
-  const bumpRejection = sqlite.prepare(
-    `insert into gateway_rejections (gateway_id, reason, count, last_at) values (?, ?, ?, ?)
-     on conflict (gateway_id, reason) do update set count = gateway_rejections.count + excluded.count, last_at = excluded.last_at`,
-  );
-  const bumpUnmapped = sqlite.prepare(
-    `insert into gateway_unmapped_points (gateway_id, point_name, count, last_seen_at) values (?, ?, ?, ?)
-     on conflict (gateway_id, point_name) do update set count = gateway_unmapped_points.count + excluded.count, last_seen_at = excluded.last_seen_at`,
-  );
-  const readState = sqlite.prepare("select value from ingest_state where key = ?").pluck();
-  const writeState = sqlite.prepare("insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = excluded.value");
-  // After an unclean stop the newest reading of a point may be newer than its latest_values row.
-  const recoverLatest = sqlite.prepare(
-    `insert into latest_values (point_id, ts, value, text, quality, gateway_id, received_at)
-     select r.point_id, r.ts, r.value, r.text, r.quality, null, r.ts
-     from points p join readings r on r.point_id = p.id and r.ts = (select max(ts) from readings where point_id = p.id)
-     where true
-     on conflict (point_id) do update set ts = excluded.ts, value = excluded.value, text = excluded.text, quality = excluded.quality, received_at = excluded.received_at
-     where excluded.ts > latest_values.ts`,
-  );
-
-  const rollups = createRollupBook(sqlite, { graceMs: opts.rollupGraceMs ?? 10_000, nowMs: clock.now() });
-  if (readState.get(CLOSED_CLEANLY) === 0) {
-    const t0 = performance.now();
-    const pointIds = sqlite.prepare("select id from points").pluck().all() as number[];
-    const replayed = rollups.recover(pointIds);
-    const latest = recoverLatest.run().changes;
-    log(`[ingest] recovered from an unclean stop: ${replayed} readings of open rollup minutes, ${latest} latest values (${Math.round(performance.now() - t0)} ms)`);
-  }
-  writeState.run(CLOSED_CLEANLY, 0);
-  /** Committed rows' latest values not yet in latest_values. */
-  let unwrittenLatest = new Map<number, LatestEntry>();
-  let latestWrittenAt = clock.now();
+  const file = sqlite.memory ? undefined : sqlite.name;
+  const storeOptions = { graceMs: opts.rollupGraceMs ?? 10_000, latestEveryMs: opts.latestEveryMs ?? 2000, log, retention: opts.retention };
+  const store =
+    file && (opts.thread ?? "worker") === "worker"
+      ? workerStore(file, { ...storeOptions, nowMs: () => clock.now() })
+      : inlineStore(db, clock, { ...storeOptions, nowMs: clock.now() });
 
   const checkpointMs = opts.checkpointMs ?? 100;
-  const checkpointer = !sqlite.memory && sqlite.name && checkpointMs > 0 ? startCheckpointer(sqlite.name, checkpointMs, log) : undefined;
-
-  // One BEGIN/COMMIT pair prepared once (better-sqlite3 caches them per transaction function).
-  const transaction = sqlite.transaction((items: Pending[], plan: FlushPlan) => writeAll(items, plan));
+  const checkpointer = file && checkpointMs > 0 ? startCheckpointer(file, checkpointMs, log) : undefined;
 
   let queue: Pending[] = [];
   let queuedRows = 0;
@@ -200,6 +287,10 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   };
   let closed = false;
   const stats = { flushes: 0, rows: 0, lastFlushMs: 0, maxFlushMs: 0 };
+  let nextId = 1;
+  /** The flush being committed; at most one at a time, the next one waits and grows meanwhile. */
+  let inFlight: Promise<void> | undefined;
+  let flushWhenDone = false;
 
   // A flush starts flushMs after the first queued message at the latest, and sooner once no
   // message arrived for idleMs (a burst is over): under steady load batches stay large, while
@@ -234,152 +325,59 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     }
   }
 
-  interface FlushPlan {
-    /** Rollup minutes before this are written now. */
-    sealLimit: number;
-    /** The latest values written in this transaction (null: not due). */
-    latest: Map<number, LatestEntry> | null;
-  }
-
-  function planFlush(): FlushPlan {
-    const now = clock.now();
-    const latestDue = unwrittenLatest.size > 0 && now - latestWrittenAt >= latestEveryMs;
-    return { sealLimit: rollups.limit(now), latest: latestDue ? unwrittenLatest : null };
-  }
-
-  function writeAll(items: Pending[], plan: FlushPlan): { results: SubmitResult[]; inserted: RowIn[] } {
+  function settle(items: readonly Pending[], done: FlushDone, started: number) {
     const inserted: RowIn[] = [];
-    const results: SubmitResult[] = [];
-    const perGateway = new Map<string, { messages: number; accepted: number; duplicates: number; at: number }>();
-    const rejections = new Map<string, { gatewayId: string; reason: string; count: number; at: number }>();
-    const unmapped = new Map<string, { gatewayId: string; pointName: string; count: number; at: number }>();
-
-    for (let i = 0; i < items.length; i++) {
-      const batch = items[i].batch;
-      const rows = batch.rows;
-      let accepted = 0;
-      for (let j = 0; j < rows.length; j++) {
-        const row = rows[j];
-        if (insertReading.run(row.pointId, row.ts, row.value, row.text, row.quality).changes === 0) continue;
-        accepted++;
-        inserted.push(row);
-        // A reading of a minute being sealed now (or sealed before) goes straight into its row;
-        // the rest join their open minute once this transaction has committed.
-        if (row.value !== null && row.ts < plan.sealLimit) rollups.writeLate(row.pointId, row.ts, row.value);
-      }
-      const duplicates = rows.length - accepted;
-      results.push({ accepted, duplicates });
-      let g = perGateway.get(batch.gatewayId);
-      if (!g) perGateway.set(batch.gatewayId, (g = { messages: 0, accepted: 0, duplicates: 0, at: 0 }));
-      g.messages += batch.messages;
-      g.accepted += accepted;
-      g.duplicates += duplicates;
-      if (batch.receivedAtMs > g.at) g.at = batch.receivedAtMs;
-      if (batch.rejections) {
-        for (const [reason, n] of Object.entries(batch.rejections)) {
-          if (!n) continue;
-          const key = `${batch.gatewayId}\u0000${reason}`;
-          const e = rejections.get(key) ?? { gatewayId: batch.gatewayId, reason, count: 0, at: 0 };
-          e.count += n;
-          e.at = Math.max(e.at, batch.receivedAtMs);
-          rejections.set(key, e);
-        }
-      }
-      if (batch.unmapped) {
-        for (const [pointName, n] of batch.unmapped) {
-          const key = `${batch.gatewayId}\u0000${pointName}`;
-          const e = unmapped.get(key) ?? { gatewayId: batch.gatewayId, pointName, count: 0, at: 0 };
-          e.count += n;
-          e.at = Math.max(e.at, batch.receivedAtMs);
-          unmapped.set(key, e);
-        }
-      }
-    }
-    rollups.writeSealed(plan.sealLimit);
-    if (plan.latest) {
-      for (const { row, gatewayId, receivedAt } of plan.latest.values()) upsertLatest.run(row.pointId, row.ts, row.value, row.text, row.quality, gatewayId, receivedAt);
-    }
-    for (const [id, g] of perGateway) bumpGateway.run(g.messages, g.accepted, g.duplicates, g.at, id);
-    for (const e of rejections.values()) bumpRejection.run(e.gatewayId, e.reason, e.count, e.at);
-    for (const e of unmapped.values()) bumpUnmapped.run(e.gatewayId, e.pointName, e.count, e.at);
-    return { results, inserted };
-  }
-
-  /** In-memory state follows only what committed: a failed transaction leaves it as it was. */
-  function afterCommit(plan: FlushPlan, items: Pending[], inserted: RowIn[]) {
-    rollups.markSealed(plan.sealLimit);
-    if (plan.latest) {
-      unwrittenLatest = new Map();
-      latestWrittenAt = clock.now();
-    }
-    let k = 0;
-    for (const p of items) {
-      const { gatewayId, receivedAtMs, rows } = p.batch;
-      // `inserted` keeps the order of the batches' rows, so it can be walked alongside them.
-      for (let j = 0; j < rows.length && k < inserted.length; j++) {
-        const row = inserted[k];
-        if (row !== rows[j]) continue;
-        k++;
-        if (row.value !== null && row.ts >= plan.sealLimit) rollups.add(row.pointId, row.ts, row.value);
-        const prev = unwrittenLatest.get(row.pointId);
-        if (!prev) unwrittenLatest.set(row.pointId, { row, gatewayId, receivedAt: receivedAtMs });
-        else if (row.ts >= prev.row.ts) {
-          prev.row = row;
-          prev.gatewayId = gatewayId;
-          prev.receivedAt = receivedAtMs;
-        }
-      }
+    let row = 0;
+    items.forEach((p, b) => {
+      const rows = p.batch.rows;
+      for (let j = 0; j < rows.length; j++, row++) if (done.inserted[row]) inserted.push(rows[j]);
+      p.resolve({ accepted: done.accepted[b], duplicates: rows.length - done.accepted[b] });
+    });
+    const took = performance.now() - started;
+    stats.flushes++;
+    stats.rows += inserted.length;
+    stats.lastFlushMs = took;
+    stats.maxFlushMs = Math.max(stats.maxFlushMs, took);
+    try {
+      opts.onCommitted?.(inserted);
+    } catch (err) {
+      log(`[ingest] after-commit listener failed: ${String(err)}`);
     }
   }
 
   function flush() {
     cancel();
     if (queue.length === 0) return;
+    if (inFlight) {
+      flushWhenDone = true;
+      return;
+    }
     const items = queue;
+    const rows = queuedRows;
     queue = [];
     queuedRows = 0;
     const started = performance.now();
-    const plan = planFlush();
-    let outcome: ReturnType<typeof writeAll>;
-    try {
-      outcome = transaction(items, plan);
-    } catch (err) {
-      // Nothing of this flush is stored; no PUBACK goes out, so the publishers resend.
-      log(`[ingest] flush of ${items.length} message(s) failed: ${String(err)}`);
-      for (const p of items) p.reject(err);
-      return;
-    }
-    afterCommit(plan, items, outcome.inserted);
-    const took = performance.now() - started;
-    stats.flushes++;
-    stats.rows += outcome.inserted.length;
-    stats.lastFlushMs = took;
-    stats.maxFlushMs = Math.max(stats.maxFlushMs, took);
-    items.forEach((p, i) => p.resolve(outcome.results[i]));
-    try {
-      opts.onCommitted?.(outcome.inserted);
-    } catch (err) {
-      log(`[ingest] after-commit listener failed: ${String(err)}`);
-    }
+    inFlight = store.write(encodeFlush(nextId++, clock.now(), items, rows)).then(
+      (done) => settle(items, done, started),
+      (err) => {
+        // Nothing of this flush is stored; no PUBACK goes out, so the publishers resend.
+        log(`[ingest] flush of ${items.length} message(s) failed: ${String(err)}`);
+        for (const p of items) p.reject(err);
+      },
+    );
+    void inFlight.finally(() => {
+      inFlight = undefined;
+      if (flushWhenDone || queuedRows >= maxRows) {
+        flushWhenDone = false;
+        flush();
+      }
+    });
   }
 
-  /** Seals closed minutes and writes latest values when no readings arrive to carry them. */
-  function maintain(everything = false) {
-    if (queue.length > 0 && !everything) return;
-    const now = clock.now();
-    const plan = planFlush();
-    if (everything) {
-      plan.sealLimit = rollups.limitAll(now);
-      plan.latest = unwrittenLatest;
-    } else if (!rollups.sealDue(now) && !plan.latest) return;
-    try {
-      transaction([], plan);
-      afterCommit(plan, [], []);
-    } catch (err) {
-      log(`[ingest] writing rollups and latest values failed (retried later): ${String(err)}`);
-    }
-  }
-  const maintenance = setInterval(() => maintain(), 1000);
+  // Seals closed minutes and writes latest values when no readings arrive to carry them.
+  const maintenance = setInterval(() => {
+    if (queue.length === 0 && !inFlight) store.maintain(clock.now());
+  }, 1000);
   maintenance.unref();
 
   return {
@@ -396,17 +394,16 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
       if (closed) return;
       closed = true;
       clearInterval(maintenance);
-      flush();
+      while (inFlight || queue.length) {
+        flush();
+        await inFlight;
+      }
       // A clean stop leaves nothing to rebuild: every open minute and latest value is written.
-      maintain(true);
-      writeState.run(CLOSED_CLEANLY, 1);
+      await store.close(clock.now());
       await checkpointer?.stop();
     },
-    stats: () => ({ ...stats, queued: queuedRows, openRollups: rollups.size(), unwrittenLatest: unwrittenLatest.size }),
-    openRollups: (pointId) => rollups.openOf(pointId),
-    forget(pointIds) {
-      rollups.forget(pointIds);
-      for (const id of pointIds) unwrittenLatest.delete(id);
-    },
+    stats: () => ({ ...stats, queued: queuedRows, ...store.stats() }),
+    openRollups: (pointId) => store.openRollups(pointId),
+    forget: (pointIds) => store.forget(pointIds),
   };
 }

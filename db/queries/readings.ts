@@ -68,7 +68,7 @@ export function getSeries(
   viewer: Viewer,
   pointId: number,
   q: SeriesQuery,
-  opts: { nowMs: number; rawRetentionMs: number; openRollups?: (pointId: number) => readonly OpenMinute[] },
+  opts: { nowMs: number; rawRetentionMs: number; open?: { sealedBefore: number; minutes: readonly OpenMinute[] } },
 ): SeriesDto {
   const p = pointInfo(db, viewer, pointId);
   const system = viewer.unitSystem;
@@ -142,12 +142,13 @@ export function getSeries(
       count: sql<number>`sum(${readings1m.count})`,
     })
     .from(readings1m)
-    .where(and(eq(readings1m.pointId, pointId), gte(readings1m.bucket, fromBucket), lt(readings1m.bucket, q.toMs)))
+    // Minutes from the writer's watermark on come from `open` (sealed since it was read, or not yet).
+    .where(and(eq(readings1m.pointId, pointId), gte(readings1m.bucket, fromBucket), lt(readings1m.bucket, Math.min(q.toMs, opts.open?.sealedBefore ?? Infinity))))
     .groupBy(sql`1`)
     .orderBy(sql`1`)
     .all();
   // Minutes still open in the ingest writer are not in readings_1m yet; they belong to the trend.
-  const open = (opts.openRollups?.(pointId) ?? []).filter((m) => m.bucket >= fromBucket && m.bucket < q.toMs);
+  const open = (opts.open?.minutes ?? []).filter((m) => m.bucket >= fromBucket && m.bucket < q.toMs);
   const merged = open.length ? mergeMinutes(rows, open, w) : rows;
   return columnar(base, "rollup_1m", w, merged.map((r) => ({ t: r.t, min: r.min, max: r.max, avg: r.sum / r.count, count: r.count })), conv);
 }

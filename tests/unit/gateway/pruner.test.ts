@@ -169,7 +169,8 @@ describe("retention pruner", () => {
     expect(count(db, "readings")).toBe(205_000);
 
     db.insert(gateways).values({ id: "gw-prune", siteId: "harborview-mob", name: "prune", protocol: "json", username: "gw-prune", passwordHash: "-" }).run();
-    const writer = createBatchWriter({ db, flushMs: 5, checkpointMs: 0 });
+    // Inline: the writer shares its thread with the pruner, as the store worker does in the server.
+    const writer = createBatchWriter({ db, flushMs: 5, checkpointMs: 0, thread: "inline" });
     const pruner = track(db, startPruner({ db, clock, rawRetentionMs: 14 * DAY_MS, rollupRetentionMs: 730 * DAY_MS }));
 
     // Readings keep arriving (point 100, every 5 ms) during the pass; each must commit soon.

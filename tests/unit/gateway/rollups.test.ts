@@ -90,15 +90,15 @@ function expectedMinutes(db: Db): MinuteRow[] {
 const roundSums = (rows: MinuteRow[]) => rows.map((r) => ({ ...r, sum: Math.round(r.sum * 1e6) / 1e6 }));
 
 describe("rollups written behind the readings", () => {
-  it("writes a minute once it has closed, merges a late reading into it, and shows open minutes to trends", async () => {
+  it.each(["worker", "inline"] as const)("writes a minute once it has closed, merges a late reading into it, and shows open minutes to trends (%s)", async (thread) => {
     const { db } = setup();
     const clock = { t: T0 };
-    const w = createBatchWriter({ db, clock: { now: () => clock.t }, flushMs: 1, checkpointMs: 0, rollupGraceMs: 10_000 });
+    const w = createBatchWriter({ db, clock: { now: () => clock.t }, flushMs: 1, checkpointMs: 0, rollupGraceMs: 10_000, thread });
     await publish(w, clock, T0, T0 + 150_000);
     // now = 14:02:25.5: 14:00 and 14:01 have closed (+10 s grace), 14:02 is open.
     const buckets = [...new Set(storedMinutes(db).map((r) => r.bucket))];
     expect(buckets).toEqual([T0, T0 + MINUTE_MS]);
-    const open = w.openRollups(1);
+    const open = (await w.openRollups(1)).minutes;
     expect(open.map((m) => [m.bucket, m.count])).toEqual([[T0 + 2 * MINUTE_MS, 6]]);
 
     // A reading 2 minutes late lands in its sealed minute in the same transaction.
@@ -107,7 +107,7 @@ describe("rollups written behind the readings", () => {
 
     // A 30-minute trend counts the open minute's readings too (si viewer: canonical units).
     const viewer = { ...systemViewer(SERVICE_ORG.id), unitSystem: "si" as const };
-    const series = getSeries(db, viewer, 1, { fromMs: T0 - 27 * MINUTE_MS, toMs: T0 + 3 * MINUTE_MS, maxPoints: 10 }, { nowMs: clock.t, rawRetentionMs: 14 * 86_400_000, openRollups: (id) => w.openRollups(id) });
+    const series = getSeries(db, viewer, 1, { fromMs: T0 - 27 * MINUTE_MS, toMs: T0 + 3 * MINUTE_MS, maxPoints: 10 }, { nowMs: clock.t, rawRetentionMs: 14 * 86_400_000, open: await w.openRollups(1) });
     expect(series.source).toBe("rollup_1m");
     expect(sum(series.count)).toBe(13 + 12 + 6);
     const without = getSeries(db, viewer, 1, { fromMs: T0 - 27 * MINUTE_MS, toMs: T0 + 3 * MINUTE_MS, maxPoints: 10 }, { nowMs: clock.t, rawRetentionMs: 14 * 86_400_000 });
@@ -122,7 +122,8 @@ describe("rollups written behind the readings", () => {
     const { file, db } = setup();
     const clock = { t: T0 };
     const logs: string[] = [];
-    const first = createBatchWriter({ db, clock: { now: () => clock.t }, flushMs: 1, checkpointMs: 0, latestEveryMs: 60_000 });
+    // On this thread, so closing its connection stops it dead, like a killed process.
+    const first = createBatchWriter({ db, clock: { now: () => clock.t }, flushMs: 1, checkpointMs: 0, latestEveryMs: 60_000, thread: "inline" });
     await publish(first, clock, T0, T0 + 150_000);
     expect(first.stats().openRollups).toBe(POINTS.length);
     expect(first.stats().unwrittenLatest).toBe(POINTS.length);
@@ -131,8 +132,9 @@ describe("rollups written behind the readings", () => {
 
     const db2 = reopen(file);
     const second = createBatchWriter({ db: db2, clock: { now: () => clock.t }, flushMs: 1, checkpointMs: 0, log: (l) => logs.push(l) });
+    expect((await second.openRollups(2)).minutes.map((m) => [m.bucket, m.count])).toEqual([[T0 + 2 * MINUTE_MS, 6]]);
+    // The worker's start-up log came before its answer.
     expect(logs.join("\n")).toMatch(/recovered from an unclean stop: 18 readings of open rollup minutes, 3 latest values/);
-    expect(second.openRollups(2).map((m) => [m.bucket, m.count])).toEqual([[T0 + 2 * MINUTE_MS, 6]]);
     await publish(second, clock, T0 + 150_000, T0 + 240_000);
     await second.close();
 

@@ -1,0 +1,79 @@
+import { parentPort, workerData } from "node:worker_threads";
+import { openDb } from "@/db/client";
+import { startPruner } from "./pruner";
+import type { OpenRollups } from "./rollups";
+import { createStore, type FlushWire } from "./store";
+
+// The thread that owns ingestion's write connection: flushes arrive as columns, are committed
+// here, and the answer (which rows were new) goes back to the event loop, which then sends the
+// PUBACKs. Commits, page writes, rollup sealing and retention pruning no longer hold up MQTT,
+// sockets or pages.
+
+export type ToStore =
+  | { type: "flush"; flush: FlushWire }
+  | { type: "maintain"; nowMs: number }
+  | { type: "openRollups"; reqId: number; pointId: number }
+  | { type: "forget"; pointIds: number[] }
+  | { type: "close"; nowMs: number };
+
+export type FromStore =
+  | { type: "log"; line: string }
+  | { type: "flushed"; id: number; accepted: Int32Array; inserted: Uint8Array; stats: { openRollups: number; unwrittenLatest: number } }
+  | { type: "flushFailed"; id: number; error: string }
+  | { type: "openRollups"; reqId: number; open: OpenRollups }
+  | { type: "closed" };
+
+export interface StoreWorkerData {
+  file: string;
+  graceMs: number;
+  latestEveryMs: number;
+  nowMs: number;
+  retention?: { rawMs: number; rollupMs: number };
+}
+
+const port = parentPort!;
+const data = workerData as StoreWorkerData;
+const send = (m: FromStore, transfer: ArrayBuffer[] = []) => port.postMessage(m, transfer);
+const log = (line: string) => send({ type: "log", line });
+
+const db = openDb(data.file);
+const store = createStore(db.$client, { graceMs: data.graceMs, latestEveryMs: data.latestEveryMs, nowMs: data.nowMs, log });
+// Retention deletes run here too, in slices between flushes, so they never wait on the lock.
+const pruner = data.retention && startPruner({ db, clock: { now: () => Date.now() }, rawRetentionMs: data.retention.rawMs, rollupRetentionMs: data.retention.rollupMs, log });
+
+port.on("message", (m: ToStore) => {
+  switch (m.type) {
+    case "flush":
+      try {
+        const done = store.write(m.flush);
+        send({ type: "flushed", id: done.id, accepted: done.accepted, inserted: done.inserted, stats: store.stats() }, [done.accepted.buffer as ArrayBuffer, done.inserted.buffer as ArrayBuffer]);
+      } catch (err) {
+        send({ type: "flushFailed", id: m.flush.id, error: String(err) });
+      }
+      return;
+    case "maintain":
+      try {
+        store.maintain(m.nowMs);
+      } catch (err) {
+        log(`[ingest] writing rollups and latest values failed (retried later): ${String(err)}`);
+      }
+      return;
+    case "openRollups":
+      send({ type: "openRollups", reqId: m.reqId, open: store.openRollups(m.pointId) });
+      return;
+    case "forget":
+      store.forget(m.pointIds);
+      return;
+    case "close":
+      pruner?.stop();
+      try {
+        store.close(m.nowMs);
+      } catch (err) {
+        log(`[ingest] final write of rollups and latest values failed; they are rebuilt at the next start: ${String(err)}`);
+      }
+      db.$client.close();
+      send({ type: "closed" });
+      port.close();
+      return;
+  }
+});
