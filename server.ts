@@ -84,7 +84,13 @@ const currentAlarmSummary = () => {
   if (Date.now() - alarmSummary.atMs > 1000) alarmSummary = { atMs: Date.now(), bySite: alarmSummaryBySite(db, staffViewer) };
   return alarmSummary.bySite;
 };
-const live = createLivePublisher({ io, db, pushMs: gatewayConfig.LIVE_PUSH_MS, alarmSummary: (siteId) => alarmSide(currentAlarmSummary(), siteId) });
+const live = createLivePublisher({
+  io,
+  db,
+  pushMs: gatewayConfig.LIVE_PUSH_MS,
+  watched: (room) => (io.sockets.adapter.rooms.get(room)?.size ?? 0) > 0,
+  alarmSummary: (siteId) => alarmSide(currentAlarmSummary(), siteId),
+});
 
 // Rule checks run on every committed reading, on event time; alarm changes refresh the board.
 const alarmSystem = await startAlarmSystem({

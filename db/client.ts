@@ -9,6 +9,10 @@ export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Data
 
 /**
  * Opens a database with the pragmas every connection needs.
+ * Two connections write: the event loop's and the ingest store worker's (gateway/store-worker.ts).
+ * Write transactions therefore begin IMMEDIATE (`{ behavior: "immediate" }`): a deferred one that
+ * read first cannot upgrade to a write once the other connection has committed
+ * (SQLITE_BUSY_SNAPSHOT, no busy wait), while an immediate one waits its turn (busy_timeout).
  * WAL lets page requests read while ingestion writes; synchronous=NORMAL in WAL mode
  * survives a process kill without losing committed transactions (a power loss can drop
  * the last few commits, see gateway/PROTOCOL.md).

@@ -252,7 +252,7 @@ export function saveAlarmChanges(
         .run();
       stored.push({ alarmId, record: t });
     }
-  });
+  }, { behavior: "immediate" });
   return stored;
 }
 

@@ -304,7 +304,7 @@ export function replacePointMap(db: Db, viewer: Viewer, id: string, rows: PointM
     }
     // Names now mapped are no longer "unmapped".
     tx.delete(gatewayUnmappedPoints).where(eq(gatewayUnmappedPoints.gatewayId, id)).run();
-  });
+  }, { behavior: "immediate" });
   return { accepted: resolved.length, errors: [] };
 }
 

@@ -155,6 +155,6 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
     const from = Date.now() - 3600_000;
     count(tx.insert(onCallShifts).values({ id: "demo-shift-1", startsAt: from, endsAt: from + weekMs, primaryUserId: "user-tech-1", backupUserId: "user-tech-2" }).onConflictDoNothing().run());
     count(tx.insert(onCallShifts).values({ id: "demo-shift-2", startsAt: from + weekMs, endsAt: from + 2 * weekMs, primaryUserId: "user-tech-2", backupUserId: "user-tech-1" }).onConflictDoNothing().run());
-  });
+  }, { behavior: "immediate" });
   return { inserted };
 }

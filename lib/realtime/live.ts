@@ -7,7 +7,9 @@ import type { RealtimeServer } from "./server";
 
 // Live values to browsers: the latest value per point is kept in memory, and each site room
 // gets at most one `site:values` per push interval with only the points that changed, so
-// the fan-out grows with sites watched, not with readings received. Site data status (live,
+// the fan-out grows with sites watched, not with readings received. A site quiet for a whole
+// interval is sent its values as soon as they commit (throttled on the leading edge), so a
+// plant reporting every few seconds is not made to wait for a shared tick. Site data status (live,
 // stale, offline) is worked out from the same memory: which points each gateway maps is
 // loaded once and again when a gateway or point map changes, never a scan per round.
 
@@ -25,10 +27,12 @@ export interface LivePublisherOptions {
   io: Pick<RealtimeServer, "to">;
   db: Db;
   clock?: { now(): number };
-  /** Coalescing window for `site:values` (a few per second at most). */
+  /** Shortest time between two `site:values` to one site (a few per second at most). */
   pushMs?: number;
   /** How often site data status is re-evaluated (stale after 3× interval, silence). */
   statusMs?: number;
+  /** Whether any browser is in a room; values for a site nobody watches are not encoded at all. */
+  watched?: (room: string) => boolean;
   /** The alarm side of `site:status`; another module owns it. */
   alarmSummary?: (siteId: string) => Pick<SiteStatus, "worst" | "unacknowledged">;
 }
@@ -57,6 +61,9 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
   const now = () => opts.clock?.now() ?? Date.now();
   const latest = new Map<number, Value>();
   const pending = new Map<string, Map<number, Value>>();
+  const pushMs = opts.pushMs ?? 200;
+  /** When each site's values were last sent (performance.now()). */
+  const lastPushed = new Map<string, number>();
   const lastStatus = new Map<string, string>();
   let statusDue = true;
   let statuses: Map<string, SiteStatusRow> | undefined;
@@ -74,13 +81,20 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
     return statuses;
   }
 
-  function pushValues() {
+  function pushSite(siteId: string, values: Map<number, Value>, at: number) {
+    pending.delete(siteId);
+    const room = siteRoom(siteId);
+    if (opts.watched && !opts.watched(room)) return;
+    lastPushed.set(siteId, at);
+    const payload: SiteValues = { siteId, values: [...values.values()] };
+    opts.io.to(room).emit("site:values", payload);
+  }
+
+  /** Sends every site whose interval has passed (`all`: every pending site). */
+  function pushValues(all = false) {
     if (pending.size === 0) return;
-    for (const [siteId, values] of pending) {
-      const payload: SiteValues = { siteId, values: [...values.values()] };
-      opts.io.to(siteRoom(siteId)).emit("site:values", payload);
-    }
-    pending.clear();
+    const at = performance.now();
+    for (const [siteId, values] of pending) if (all || at - (lastPushed.get(siteId) ?? -Infinity) >= pushMs) pushSite(siteId, values, at);
   }
 
   function pushStatus() {
@@ -95,7 +109,8 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
     }
   }
 
-  const valuesTimer = setInterval(pushValues, opts.pushMs ?? 200);
+  // Sites that were sent something less than pushMs ago wait here for the rest of their interval.
+  const valuesTimer = setInterval(pushValues, Math.max(10, Math.round(pushMs / 4)));
   const statusTimer = setInterval(pushStatus, opts.statusMs ?? 2000);
   // A presence change shows within a second instead of waiting for the next full round.
   const dueTimer = setInterval(() => statusDue && pushStatus(), 500);
@@ -112,8 +127,14 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
         const prev = latest.get(r.pointId);
         // Out-of-order readings are stored but do not replace a newer live value.
         if (prev && prev.tsMs > r.ts) continue;
-        const v: Value = { pointId: r.pointId, tsMs: r.ts, value: r.live, quality: qualityNames[r.quality] };
-        latest.set(r.pointId, v);
+        // Updated in place: one object per point for the life of the process, not one per
+        // reading for the garbage collector (a payload is serialised when it is emitted).
+        let v = prev;
+        if (v) {
+          v.tsMs = r.ts;
+          v.value = r.live;
+          v.quality = qualityNames[r.quality];
+        } else latest.set(r.pointId, (v = { pointId: r.pointId, tsMs: r.ts, value: r.live, quality: qualityNames[r.quality] }));
         if (r.siteId !== lastSite || !site) {
           lastSite = r.siteId;
           site = pending.get(r.siteId);
@@ -122,6 +143,7 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
         site.set(r.pointId, v);
         if (!prev) statusDue = true;
       }
+      pushValues();
     },
     touch() {
       statusDue = true;
@@ -139,7 +161,7 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
       statusDue = true;
     },
     flushNow() {
-      pushValues();
+      pushValues(true);
       pushStatus();
     },
     stop() {

@@ -26,7 +26,10 @@ export function commLost(ctx: RuleContext): Condition[] {
   );
   for (const e of ctx.site) {
     const lastMs = ctx.history.lastSeenAt(e.tag, ctx.nowMs);
-    const ageS = lastMs === null ? null : (ctx.nowMs - lastMs) / 1000;
+    // Equipment not heard from yet is timed from the site's first reading: just after a start
+    // a gateway has not sent every point, and that is not a lost link.
+    const sinceMs = lastMs ?? ctx.history.firstSeenAt();
+    const ageS = sinceMs === null ? null : (ctx.nowMs - sinceMs) / 1000;
     const stale = ctx.comms.staleEquipment ? ctx.comms.staleEquipment.includes(e.tag) : ageS === null || ageS > s.staleAfterS;
     // A gateway that is offline already says it; per-equipment staleness would only repeat it.
     const active = stale && !offline;

@@ -35,6 +35,8 @@ const env = z
     BENCH_SECONDS: z.coerce.number().int().min(3).default(20),
     BENCH_WARMUP_SECONDS: z.coerce.number().int().min(0).default(5),
     BENCH_PER_MESSAGE: z.coerce.number().int().min(1).max(5000).default(20),
+    /** How often each gateway publishes what it read since its last publish (portfolio phase); a multiple of 100. */
+    BENCH_GATEWAY_PUBLISH_MS: z.coerce.number().int().min(100).multipleOf(100).default(1000),
     /** Length of the capacity phase; 0 skips it. */
     BENCH_CAPACITY_SECONDS: z.coerce.number().int().min(0).default(15),
     /** Messages each gateway keeps unacknowledged during the capacity phase. */
@@ -45,6 +47,10 @@ const env = z
     BENCH_RAW_ROWS: z.coerce.number().int().min(10_000).default(1_000_000),
     /** 1: print the per-second timeline. */
     BENCH_TIMELINE: z.coerce.number().int().min(0).max(1).default(1),
+    /** 1: signal the server for a heap snapshot at the end of the portfolio phase (with LIFTLINE_TEST_NODE_ARGS=--heapsnapshot-signal=SIGUSR2). */
+    BENCH_HEAP_SNAPSHOT: z.coerce.number().int().min(0).max(1).default(0),
+    /** A file to write the server's own output to (e.g. with LIFTLINE_TEST_NODE_ARGS=--trace-gc). */
+    BENCH_SERVER_LOG: z.string().optional(),
   })
   .parse(process.env);
 
@@ -193,7 +199,7 @@ function makePublisher(g: BenchGateway, client: MqttClient) {
 async function main() {
   const pointCount = env.BENCH_GATEWAYS * env.BENCH_POINTS_PER_GATEWAY;
   console.log(`Machine: ${os.cpus().length} × ${os.cpus()[0]?.model ?? "cpu"}, ${Math.round(os.totalmem() / 2 ** 30)} GB, Node ${process.version}`);
-  console.log(`Setup: ${env.BENCH_GATEWAYS} gateways × ${env.BENCH_POINTS_PER_GATEWAY} points = ${fmt(pointCount)} points, ${env.BENCH_PER_MESSAGE} readings a message`);
+  console.log(`Setup: ${env.BENCH_GATEWAYS} gateways × ${env.BENCH_POINTS_PER_GATEWAY} points = ${fmt(pointCount)} points, at most ${env.BENCH_PER_MESSAGE} readings a message; in the portfolio phase each gateway publishes every ${env.BENCH_GATEWAY_PUBLISH_MS} ms`);
   console.log(`Server settings: LIVE_PUSH_MS=${process.env.LIVE_PUSH_MS ?? "default"}, INGEST_FLUSH_MS=${process.env.INGEST_FLUSH_MS ?? "default"}, INGEST_MAX_BATCH_ROWS=${process.env.INGEST_MAX_BATCH_ROWS ?? "default"}`);
 
   // The yardstick first, with the machine to itself.
@@ -270,23 +276,30 @@ async function main() {
       cpu.server.push(processCpuSeconds(server.process.pid));
       cpu.client.push(ownCpuSeconds());
     }, warmupMs);
-    const perGatewayPerTick = (env.BENCH_RATE / env.BENCH_GATEWAYS) * 0.1; // readings per 100 ms
-    let carry = 0;
+    // Each gateway publishes once per BENCH_GATEWAY_PUBLISH_MS what it read meanwhile, in
+    // messages of at most BENCH_PER_MESSAGE; gateways are spread evenly over that period.
+    const ticksPerPublish = env.BENCH_GATEWAY_PUBLISH_MS / 100;
+    const perGatewayPerPublish = (env.BENCH_RATE / env.BENCH_GATEWAYS) * (env.BENCH_GATEWAY_PUBLISH_MS / 1000);
+    const carry = publishers.map(() => 0);
+    let tickNo = 0;
     const tick = setInterval(() => {
-      carry += perGatewayPerTick;
-      const n = Math.floor(carry);
-      carry -= n;
-      for (const publish of publishers) {
+      const slot = tickNo++ % ticksPerPublish;
+      publishers.forEach((publish, g) => {
+        if (g % ticksPerPublish !== slot) return;
+        carry[g] += perGatewayPerPublish;
+        const n = Math.floor(carry[g]);
+        carry[g] -= n;
         for (let sent = 0; sent < n; sent += env.BENCH_PER_MESSAGE) {
           const size = Math.min(env.BENCH_PER_MESSAGE, n - sent);
           published += size;
           publish(size, onAck);
         }
-      }
+      });
     }, 100);
     await sleep(warmupMs + steadyMs);
     clearInterval(tick);
     clearTimeout(markSteady);
+    if (env.BENCH_HEAP_SNAPSHOT) server.process.kill("SIGUSR2");
     const ackedAtEnd = acked;
     cpu.server.push(processCpuSeconds(server.process.pid));
     cpu.client.push(ownCpuSeconds());
@@ -382,7 +395,10 @@ async function main() {
     const db = new Database(server.databasePath, { readonly: true });
     const committed = (db.prepare("select count(*) as n from readings").get() as { n: number }).n;
     const rejected = (db.prepare("select coalesce(sum(count), 0) as n from gateway_rejections").get() as { n: number }).n;
+    // Healthy plants should raise nothing; a storm of alarms would be measuring something else.
+    const raised = db.prepare("select rule_id as rule, count(*) as n from alarms where site_id like 'bench-%' and (condition_active = 1 or state != 'normal') group by rule_id").all() as Array<{ rule: string; n: number }>;
     db.close();
+    console.log(`Alarms on the bench plants: ${raised.length ? raised.map((r) => `${r.rule} × ${r.n}`).join(", ") : "none"}`);
     console.log("");
     console.log(`Stored: ${fmt(committed)} readings; rejected by the server: ${fmt(rejected)}`);
     console.log("Goals:");
@@ -394,6 +410,7 @@ async function main() {
   } finally {
     for (const c of clients) c.end(true);
     await server.stop();
+    if (env.BENCH_SERVER_LOG) fs.writeFileSync(env.BENCH_SERVER_LOG, server.output());
     fs.rmSync(dataDir, { recursive: true, force: true });
   }
 }

@@ -11,6 +11,12 @@ import path from "node:path";
 export const ROOT = path.resolve(import.meta.dirname, "..", "..");
 export const DEMO_PASSWORD = "test-demo-password";
 
+/**
+ * As in package.json's start script: a 64 MB young generation lets readings in flight (a flush,
+ * the worker's answer, the live push) die young instead of being promoted and collected again.
+ */
+export const SERVER_NODE_FLAGS = ["--max-semi-space-size=64"];
+
 export async function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const srv = net.createServer();
@@ -71,8 +77,9 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
   delete env.VITEST;
   delete env.VITEST_WORKER_ID;
   delete env.VITEST_POOL_ID;
-  // LIFTLINE_TEST_NODE_ARGS passes extra Node flags to the server (e.g. --cpu-prof for benchmarks).
-  const nodeArgs = (process.env.LIFTLINE_TEST_NODE_ARGS ?? "").split(" ").filter(Boolean);
+  // The Node flags of `npm start` (package.json), and LIFTLINE_TEST_NODE_ARGS for more (e.g.
+  // --cpu-prof for benchmarks).
+  const nodeArgs = [...SERVER_NODE_FLAGS, ...(process.env.LIFTLINE_TEST_NODE_ARGS ?? "").split(" ").filter(Boolean)];
   const child = spawn(process.execPath, [...nodeArgs, "--import", "tsx", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe"] });
   let out = "";
   child.stdout.on("data", (d) => (out += d));

@@ -102,7 +102,7 @@ export async function createSimulationManager(deps: {
         }
         tx.update(alarms).set({ state: "normal", conditionActive: false, machineJson: JSON.stringify(fresh), updatedAt: now() }).where(eq(alarms.id, row.id)).run();
       }
-    });
+    }, { behavior: "immediate" });
     deps.onSiteReset?.(siteId, pointIds);
   }
 

@@ -241,6 +241,13 @@ describe("communication lost (rule 9)", () => {
     expect(first).toBeLessThanOrEqual(90 + 310);
     expect(r.firstActivation("comm_lost:CH-1")).toBeNull();
   });
+
+  it("equipment never heard from is lost 5 min after the site's first reading, not at once (a start-up is not an outage)", () => {
+    const r = runFrames({ durationS: 900, frame: () => ({ silent: ["CT-1"] }) });
+    const first = secondsOf(r.firstActivation("comm_lost:CT-1"))!;
+    expect(first).toBeGreaterThan(300);
+    expect(first).toBeLessThanOrEqual(310);
+  });
 });
 
 describe("efficiency drift (rule 10)", () => {
