@@ -129,9 +129,11 @@ export function createIngest(deps: IngestDeps): Ingest {
     const sentAt = Date.parse(envelope.data.sentAt);
     const batch: Batch = { gatewayId: gw.gatewayId, rows: [], messages: 1, rejections: {}, receivedAtMs: now };
     const list = envelope.data.readings;
+    const parsedTs = { tsMs: NaN };
     for (let i = 0; i < list.length; i++) {
       // The common valid reading skips safeParse; anything else gets zod's verdict.
-      let r = fastReading(list[i]);
+      let r = fastReading(list[i], parsedTs);
+      let tsMs = parsedTs.tsMs;
       if (r === undefined) {
         const parsed = readingSchema.safeParse(list[i]);
         if (!parsed.success) {
@@ -139,8 +141,9 @@ export function createIngest(deps: IngestDeps): Ingest {
           continue;
         }
         r = parsed.data;
+        tsMs = r.ts !== undefined ? Date.parse(r.ts) : NaN;
       }
-      mapValue(gw, r.point, r.value, r.ts !== undefined ? Date.parse(r.ts) : sentAt, r.quality === undefined ? 0 : qualityCodes[r.quality], now, batch);
+      mapValue(gw, r.point, r.value, r.ts !== undefined ? tsMs : sentAt, r.quality === undefined ? 0 : qualityCodes[r.quality], now, batch);
     }
     return submit(batch);
   }

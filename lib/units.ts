@@ -68,13 +68,25 @@ const canonicalLib: Partial<Record<Measure, convert.Unit>> = {
   duration: "s",
 };
 
+/**
+ * Each wire unit's conversion to canonical as `value × scale + offset`, taken from convert-units
+ * once (every unit here is affine: a factor, plus an offset for °F and gauge pressures). A
+ * convert-units call per reading cost more than storing the reading.
+ */
+const toCanonicalAffine = Object.fromEntries(
+  wireUnitCodes.map((code) => {
+    const unit: WireUnit = wireUnits[code];
+    const target = canonicalLib[unit.measure];
+    const f = (v: number) => (!unit.lib || !target || unit.lib === target ? v : convert(v).from(unit.lib).to(target));
+    const offset = f(0) + (unit.gauge ? STANDARD_ATMOSPHERE_KPA : 0);
+    return [code, { scale: f(1) - f(0), offset }];
+  }),
+) as Record<WireUnitCode, { scale: number; offset: number }>;
+
 /** A numeric reading in a wire unit, in its measure's canonical unit. */
 export function toCanonical(value: number, code: WireUnitCode): number {
-  const unit: WireUnit = wireUnits[code];
-  const target = canonicalLib[unit.measure];
-  if (!unit.lib || !target) return value;
-  const converted = unit.lib === target ? value : convert(value).from(unit.lib).to(target);
-  return unit.gauge ? converted + STANDARD_ATMOSPHERE_KPA : converted;
+  const a = toCanonicalAffine[code];
+  return value * a.scale + a.offset;
 }
 
 export type UnitSystem = "ip" | "si";

@@ -1,12 +1,13 @@
 import { describe, expect, it } from "vitest";
-import { fastReading, MAX_POINT_NAME, MAX_TEXT_VALUE, readingSchema } from "@/gateway/contract";
+import { canonicalIsoMs, fastReading, MAX_POINT_NAME, MAX_TEXT_VALUE, readingSchema } from "@/gateway/contract";
 
 // The ingest checks each reading with fastReading and asks readingSchema only when it declines.
 // Parity: fastReading may accept only what the schema accepts, with the same data, so the
 // combined verdict (and so every rejection reason and counter) is exactly the schema's.
 
+const out = { tsMs: NaN };
 const verdict = (raw: unknown) => {
-  const fast = fastReading(raw);
+  const fast = fastReading(raw, out);
   if (fast !== undefined) return { success: true, data: fast };
   const r = readingSchema.safeParse(raw);
   return r.success ? { success: true, data: r.data } : { success: false };
@@ -68,7 +69,7 @@ const good: Array<[string, unknown]> = [
 describe("fastReading parity with readingSchema", () => {
   it.each(bad)("rejects as the schema does: %s", (_name, raw) => {
     expect(schemaVerdict(raw).success).toBe(false);
-    expect(fastReading(raw)).toBeUndefined();
+    expect(fastReading(raw, out)).toBeUndefined();
     expect(verdict(raw)).toEqual(schemaVerdict(raw));
   });
 
@@ -84,7 +85,7 @@ describe("fastReading parity with readingSchema", () => {
       { point: "CH1-RUN", value: false },
       { point: "CT1-MODE", value: "auto", ts, quality: "good" },
     ]) {
-      expect(fastReading(raw)).toEqual(readingSchema.parse(raw));
+      expect(fastReading(raw, out)).toEqual(readingSchema.parse(raw));
     }
   });
 
@@ -95,7 +96,7 @@ describe("fastReading parity with readingSchema", () => {
     const pick = <T>(xs: readonly T[]) => xs[Math.floor(rnd() * xs.length)];
     const points = ["CH1-KW", "", "P".repeat(MAX_POINT_NAME), "P".repeat(MAX_POINT_NAME + 1), 5, null, undefined];
     const values = [1, -0, 1.5e308, Number.NaN, true, "auto", "", "x".repeat(MAX_TEXT_VALUE + 1), null, {}, [], undefined];
-    const times = [ts, "2026-12-01T14:02:59+01:00", "2026-13-01T00:00:00Z", "2026-12-01 14:02:59Z", "", 0, null, undefined];
+    const times = [ts, "2026-12-01T14:02:59+01:00", "2026-13-01T00:00:00Z", "2026-12-01 14:02:59Z", "2026-02-29T00:00:00.000Z", "2024-02-29T23:59:59.999Z", "", 0, null, undefined];
     const qualities = ["good", "uncertain", "bad", "Good", "", 1, null, undefined];
     const extras = [undefined, undefined, undefined, ["unit", "kW"], ["seq", 1]] as const;
     for (let i = 0; i < 5000; i++) {
@@ -107,10 +108,52 @@ describe("fastReading parity with readingSchema", () => {
       }
       const extra = pick(extras);
       if (extra) raw[extra[0]] = extra[1];
-      const fast = fastReading(raw);
+      const fast = fastReading(raw, out);
       const s = schemaVerdict(raw);
       if (fast !== undefined) expect({ i, ...s }).toEqual({ i, success: true, data: fast });
+      if (fast?.ts !== undefined) expect({ i, tsMs: out.tsMs }).toEqual({ i, tsMs: Date.parse(fast.ts) });
       expect({ i, ...verdict(raw) }).toEqual({ i, ...s });
     }
+  });
+});
+
+// Event time read by hand for the common form must be exactly what zod accepts and what
+// Date.parse (the ECMAScript date-time string format, ECMA-262 §21.4.1.32) reads.
+describe("canonical ISO time", () => {
+  const cases = [
+    ts,
+    "2026-01-01T00:00:00.000Z",
+    "1999-12-31T23:59:59.999Z",
+    "2000-02-29T12:00:00.000Z", // leap (divisible by 400)
+    "2100-02-29T12:00:00.000Z", // not leap (century)
+    "2028-02-29T12:00:00.000Z", // leap
+    "2026-02-29T12:00:00.000Z", // not leap
+    "2026-04-31T12:00:00.000Z",
+    "2026-04-30T12:00:00.000Z",
+    "2026-00-10T12:00:00.000Z",
+    "2026-13-10T12:00:00.000Z",
+    "2026-12-00T12:00:00.000Z",
+    "2026-12-01T24:00:00.000Z",
+    "2026-12-01T23:60:00.000Z",
+    "2026-12-01T23:59:60.000Z",
+    "2026-12-01T14:02:59.5Z",
+    "2026-12-01T14:02:59Z",
+    "2026-12-01t14:02:59.500Z",
+    "2026-12-01T14:02:59.500z",
+    "2026-12-01T14:02:59,500Z",
+    "2026-1a-01T14:02:59.500Z",
+    "+02026-12-01T14:02:59.500",
+  ];
+  it.each(cases)("%s", (t) => {
+    const fast = canonicalIsoMs(t);
+    const accepted = readingSchema.safeParse({ point: "P", value: 1, ts: t }).success;
+    if (!Number.isNaN(fast)) {
+      expect(accepted).toBe(true);
+      expect(fast).toBe(Date.parse(t));
+    }
+    // Whatever the hand reader declines, the reading's verdict and time still match zod's.
+    const r = fastReading({ point: "P", value: 1, ts: t }, out);
+    expect(r !== undefined).toBe(accepted);
+    if (r) expect(out.tsMs).toBe(Date.parse(t));
   });
 });
