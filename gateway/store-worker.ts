@@ -27,6 +27,7 @@ export interface StoreWorkerData {
   file: string;
   graceMs: number;
   latestEveryMs: number;
+  derivedRowsPerFlush?: number;
   nowMs: number;
   retention?: { rawMs: number; rollupMs: number };
 }
@@ -37,7 +38,7 @@ const send = (m: FromStore, transfer: ArrayBuffer[] = []) => port.postMessage(m,
 const log = (line: string) => send({ type: "log", line });
 
 const db = openDb(data.file);
-const store = createStore(db.$client, { graceMs: data.graceMs, latestEveryMs: data.latestEveryMs, nowMs: data.nowMs, log });
+const store = createStore(db.$client, { graceMs: data.graceMs, latestEveryMs: data.latestEveryMs, derivedRowsPerFlush: data.derivedRowsPerFlush, nowMs: data.nowMs, log });
 // Retention deletes run here too, in slices between flushes, so they never wait on the lock.
 const pruner = data.retention && startPruner({ db, clock: { now: () => Date.now() }, rawRetentionMs: data.retention.rawMs, rollupRetentionMs: data.retention.rollupMs, log });
 

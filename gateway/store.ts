@@ -1,5 +1,5 @@
 import type Database from "better-sqlite3";
-import { createRollupBook, type OpenRollups } from "./rollups";
+import { createRollupBook, type OpenRollups, type SealProgress } from "./rollups";
 
 // The SQL side of the batched writer: one transaction per flush through prepared statements,
 // on whichever thread owns the write connection (gateway/store-worker.ts for a file database,
@@ -45,6 +45,8 @@ export interface FlushDone {
 export interface StoreOptions {
   graceMs: number;
   latestEveryMs: number;
+  /** Rollup and latest-value rows one transaction writes at most, of each (default 5,000). */
+  derivedRowsPerFlush?: number;
   nowMs: number;
   log: (line: string) => void;
 }
@@ -123,29 +125,40 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
   const latest = new Map<number, LatestEntry>();
   let unwritten: number[] = [];
   let latestWrittenAt = opts.nowMs;
+  /** A backlog of latest values is being written, a budget per flush. */
+  let draining = false;
+  // What one transaction writes of derived rows at most (each kind), so no flush waits long.
+  const budget = opts.derivedRowsPerFlush ?? 5000;
 
   interface Plan {
     sealLimit: number;
     writeLatest: boolean;
+    /** Filled in by the transaction. */
+    sealed?: SealProgress;
+    latestWritten?: number;
   }
-  const plan = (nowMs: number): Plan => ({ sealLimit: rollups.limit(nowMs), writeLatest: unwritten.length > 0 && nowMs - latestWrittenAt >= opts.latestEveryMs });
+  const plan = (nowMs: number): Plan => ({ sealLimit: rollups.limit(nowMs), writeLatest: unwritten.length > 0 && (draining || nowMs - latestWrittenAt >= opts.latestEveryMs) });
 
-  function writeDerived(p: Plan) {
-    rollups.writeSealed(p.sealLimit);
+  function writeDerived(p: Plan, everything = false) {
+    p.sealed = rollups.writeSealed(p.sealLimit, everything ? Infinity : budget);
     if (!p.writeLatest) return;
-    for (const id of unwritten) {
+    const n = everything ? unwritten.length : Math.min(budget, unwritten.length);
+    for (let i = 0; i < n; i++) {
+      const id = unwritten[i];
       const e = latest.get(id)!;
       upsertLatest.run(id, e.ts, e.value, e.text, e.quality, e.gatewayId, e.receivedAt);
     }
+    p.latestWritten = n;
   }
 
   /** In-memory state follows only what committed: a failed transaction leaves it as it was. */
   function afterCommit(p: Plan, nowMs: number) {
-    rollups.markSealed(p.sealLimit);
-    if (p.writeLatest) {
-      for (const id of unwritten) latest.get(id)!.dirty = false;
-      unwritten = [];
-      latestWrittenAt = nowMs;
+    if (p.sealed) rollups.markSealed(p.sealed);
+    if (p.latestWritten) {
+      for (let i = 0; i < p.latestWritten; i++) latest.get(unwritten[i])!.dirty = false;
+      unwritten = p.latestWritten === unwritten.length ? [] : unwritten.slice(p.latestWritten);
+      draining = unwritten.length > 0;
+      if (!draining) latestWrittenAt = nowMs;
     }
   }
 
@@ -203,7 +216,7 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
     for (const e of rejections.values()) bumpRejection.run(e.gatewayId, e.reason, e.count, e.at);
     for (const e of unmapped.values()) bumpUnmapped.run(e.gatewayId, e.pointName, e.count, e.at);
   });
-  const maintainTx = sqlite.transaction((p: Plan) => writeDerived(p));
+  const maintainTx = sqlite.transaction((p: Plan, everything: boolean) => writeDerived(p, everything));
 
   function remember(f: FlushWire, inserted: Uint8Array, sealLimit: number) {
     const cursor = { t: 0 };
@@ -251,7 +264,7 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
         p.sealLimit = rollups.limitAll(nowMs);
         p.writeLatest = unwritten.length > 0;
       } else if (!rollups.sealDue(nowMs) && !p.writeLatest) return;
-      maintainTx(p);
+      maintainTx(p, everything);
       afterCommit(p, nowMs);
     },
     openRollups: (pointId) => rollups.openOf(pointId),

@@ -69,6 +69,8 @@ export interface WriterOptions {
   rollupGraceMs?: number;
   /** How often latest values are written to `latest_values`; 0 writes them at every flush. */
   latestEveryMs?: number;
+  /** Rollup and latest-value rows one transaction writes at most, of each (default 5,000). */
+  derivedRowsPerFlush?: number;
   /** Where transactions run: "worker" (default for a file database) or "inline" (on the event loop). */
   thread?: "worker" | "inline";
   /** Retention pruning (gateway/pruner.ts), run beside the writes on the same thread. */
@@ -138,7 +140,9 @@ interface StoreLink {
   stats(): { openRollups: number; unwrittenLatest: number };
 }
 
-function inlineStore(db: Db, clock: Clock, options: { graceMs: number; latestEveryMs: number; nowMs: number; log: (line: string) => void; retention?: Retention }): StoreLink {
+type StoreSettings = { graceMs: number; latestEveryMs: number; derivedRowsPerFlush?: number; log: (line: string) => void; retention?: Retention };
+
+function inlineStore(db: Db, clock: Clock, options: StoreSettings & { nowMs: number }): StoreLink {
   const store = createStore(db.$client, options);
   const pruner = options.retention && startPruner({ db, clock, rawRetentionMs: options.retention.rawMs, rollupRetentionMs: options.retention.rollupMs, log: options.log });
   return {
@@ -160,7 +164,7 @@ function inlineStore(db: Db, clock: Clock, options: { graceMs: number; latestEve
   };
 }
 
-function workerStore(file: string, options: { graceMs: number; latestEveryMs: number; nowMs: () => number; log: (line: string) => void; retention?: Retention }): StoreLink {
+function workerStore(file: string, options: StoreSettings & { nowMs: () => number }): StoreLink {
   const { log } = options;
   const flushes = new Map<number, { resolve: (d: FlushDone) => void; reject: (err: Error) => void }>();
   const lookups = new Map<number, (m: OpenRollups) => void>();
@@ -170,7 +174,7 @@ function workerStore(file: string, options: { graceMs: number; latestEveryMs: nu
   let worker: Worker;
 
   function start() {
-    const data: StoreWorkerData = { file, graceMs: options.graceMs, latestEveryMs: options.latestEveryMs, nowMs: options.nowMs(), retention: options.retention };
+    const data: StoreWorkerData = { file, graceMs: options.graceMs, latestEveryMs: options.latestEveryMs, derivedRowsPerFlush: options.derivedRowsPerFlush, nowMs: options.nowMs(), retention: options.retention };
     worker = new Worker(new URL("./store-worker.mjs", import.meta.url), { workerData: data });
     worker.on("message", (m: FromStore) => {
       if (m.type === "log") log(m.line);
@@ -268,7 +272,7 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   const log = opts.log ?? (() => {});
   const sqlite = db.$client;
   const file = sqlite.memory ? undefined : sqlite.name;
-  const storeOptions = { graceMs: opts.rollupGraceMs ?? 10_000, latestEveryMs: opts.latestEveryMs ?? 2000, log, retention: opts.retention };
+  const storeOptions: StoreSettings = { graceMs: opts.rollupGraceMs ?? 10_000, latestEveryMs: opts.latestEveryMs ?? 2000, derivedRowsPerFlush: opts.derivedRowsPerFlush, log, retention: opts.retention };
   const store =
     file && (opts.thread ?? "worker") === "worker"
       ? workerStore(file, { ...storeOptions, nowMs: () => clock.now() })

@@ -241,9 +241,16 @@ async function main() {
     );
     const publishers = gws.map((g, i) => makePublisher(g, clients.find((c) => c.options.clientId === g.id) ?? clients[i]));
 
-    // Warm the series route (a development server compiles it on first use).
+    // Warm the series route (a development server compiles it on first use), then time it idle.
     const trendUrl = `${server.url}/api/points/1/series?from=${Date.now() - 30 * 86_400_000}&to=${Date.now()}&maxPoints=1000`;
     await fetch(trendUrl, { headers: { cookie: cookie! } });
+    const idleTrend: number[] = [];
+    for (let i = 0; i < 20; i++) {
+      const t0 = performance.now();
+      await (await fetch(trendUrl, { headers: { cookie: cookie! } })).arrayBuffer();
+      idleTrend.push(performance.now() - t0);
+    }
+    console.log(`30-day trend request with no ingestion: ${lat(idleTrend)}`);
     const trendSamples: Samples = [];
     const trendTimer = setInterval(async () => {
       const at = Date.now() - phaseStart;

@@ -118,6 +118,26 @@ describe("rollups written behind the readings", () => {
     expect(db.$client.prepare("select value from ingest_state where key = 'closed_cleanly'").pluck().get()).toBe(1);
   });
 
+  it("writes a closed minute a few aggregates per flush, and trends count it exactly once meanwhile", async () => {
+    const { db } = setup();
+    const clock = { t: T0 };
+    const w = createBatchWriter({ db, clock: { now: () => clock.t }, flushMs: 1, checkpointMs: 0, derivedRowsPerFlush: 2, thread: "inline" });
+    const viewer = { ...systemViewer(SERVICE_ORG.id), unitSystem: "si" as const };
+    const trendCount = async () => sum(getSeries(db, viewer, 3, { fromMs: T0 - 27 * MINUTE_MS, toMs: T0 + 3 * MINUTE_MS, maxPoints: 10 }, { nowMs: clock.t, rawRetentionMs: 14 * 86_400_000, open: await w.openRollups(3) }).count);
+    const stored = () => (db.$client.prepare("select count(*) from readings where point_id = 3").pluck().get() as number);
+    await publish(w, clock, T0, T0 + 75_000);
+    // 14:00 has closed; its 3 aggregates go out 2 per flush while readings keep coming.
+    for (let ts = T0 + 75_000; ts < T0 + 90_000; ts += 5000) {
+      expect(await trendCount()).toBe(stored());
+      clock.t = ts + 500;
+      await w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: clock.t, rows: [row(1, ts)] });
+    }
+    expect(await trendCount()).toBe(stored());
+    expect(storedMinutes(db).filter((r) => r.bucket === T0).length).toBe(3);
+    await w.close();
+    expect(roundSums(storedMinutes(db))).toEqual(roundSums(expectedMinutes(db)));
+  });
+
   it("rebuilds open minutes and latest values from raw readings after an unclean stop, counting each reading once", async () => {
     const { file, db } = setup();
     const clock = { t: T0 };
