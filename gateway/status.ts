@@ -56,32 +56,40 @@ export interface GatewayPresence extends Omit<PresenceInput, "silenceMs"> {
   siteId: string;
 }
 
-/**
- * Every listed site's data status from its gateways' presence and the event time of each
- * mapped point's newest reading (from the database, or from the live publisher's memory).
- */
-export function siteStatuses(input: {
-  siteIds: Iterable<string>;
-  presence: readonly GatewayPresence[];
-  mapped: readonly MappedPoint[];
-  latestTs: (pointId: number) => number | null | undefined;
-  nowMs: number;
-}): Map<string, SiteStatusRow> {
-  const byGateway = new Map<string, { mapped: number; fresh: number; slowest: number }>();
-  for (const m of input.mapped) {
+export interface GatewayFreshness {
+  mapped: number;
+  fresh: number;
+  /** The longest expected interval among its points, seconds. */
+  slowest: number;
+}
+
+/** Mapped and fresh point counts per gateway, from each point's newest event time. */
+export function freshnessByGateway(mapped: readonly MappedPoint[], latestTs: (pointId: number) => number | null | undefined, nowMs: number): Map<string, GatewayFreshness> {
+  const byGateway = new Map<string, GatewayFreshness>();
+  for (const m of mapped) {
     let f = byGateway.get(m.gatewayId);
     if (!f) byGateway.set(m.gatewayId, (f = { mapped: 0, fresh: 0, slowest: 0 }));
     f.mapped++;
-    const ts = input.latestTs(m.pointId);
-    if (ts !== null && ts !== undefined && !isStale(ts, m.expectedIntervalS, input.nowMs)) f.fresh++;
+    const ts = latestTs(m.pointId);
+    if (ts !== null && ts !== undefined && !isStale(ts, m.expectedIntervalS, nowMs)) f.fresh++;
     if (m.expectedIntervalS > f.slowest) f.slowest = m.expectedIntervalS;
   }
+  return byGateway;
+}
+
+/** Every listed site's data status from its gateways' presence and the freshness of their points. */
+export function siteStatuses(input: {
+  siteIds: Iterable<string>;
+  presence: readonly GatewayPresence[];
+  freshness: ReadonlyMap<string, GatewayFreshness>;
+  nowMs: number;
+}): Map<string, SiteStatusRow> {
   const acc = new Map<string, { gateways: number; online: number; mapped: number; fresh: number; rows: SiteStatusRow["gateways"] }>();
   for (const id of input.siteIds) acc.set(id, { gateways: 0, online: 0, mapped: 0, fresh: 0, rows: new Map() });
   for (const g of input.presence) {
     const a = acc.get(g.siteId);
     if (!a || g.revoked) continue;
-    const f = byGateway.get(g.gatewayId);
+    const f = input.freshness.get(g.gatewayId);
     const online = isOnline({ ...g, silenceMs: silenceMs(f?.slowest) }, input.nowMs);
     a.gateways++;
     if (online) a.online++;

@@ -7,7 +7,7 @@ import type { Viewer } from "@/lib/auth/viewer";
 import { notFound } from "@/lib/errors";
 import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import { displayUnit, formatValue, fromCanonical } from "@/lib/units";
-import { isStale, siteStatuses, type MappedPoint, type SiteDataState, type SiteStatusRow } from "@/gateway/status";
+import { freshnessByGateway, isStale, siteStatuses, type MappedPoint, type SiteDataState, type SiteStatusRow } from "@/gateway/status";
 
 // Reading data for screens: trends (raw or 1-minute rollups, bucketed with min/max so spikes
 // stay visible) and the latest value of every point with its age. Viewer-scoped.
@@ -326,7 +326,7 @@ export function allSiteIds(db: Db): string[] {
 export function siteDataStatuses(db: Db, nowMs: number, onlySiteId?: string): Map<string, SiteStatusRow> {
   const mapped = mappedPoints(db, onlySiteId);
   const ts = new Map(mapped.map((m) => [m.pointId, m.ts]));
-  return siteStatuses({ siteIds: onlySiteId ? [onlySiteId] : allSiteIds(db), presence: listGatewayPresence(db), mapped, latestTs: (id) => ts.get(id), nowMs });
+  return siteStatuses({ siteIds: onlySiteId ? [onlySiteId] : allSiteIds(db), presence: listGatewayPresence(db), freshness: freshnessByGateway(mapped, (id) => ts.get(id), nowMs), nowMs });
 }
 
 /** Every point's stored latest value as screens get it (booleans as booleans), to seed the live publisher. */

@@ -1,7 +1,7 @@
 import type { Db } from "@/db/client";
 import { listGatewayPresence } from "@/db/queries/gateways";
 import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
-import { siteStatuses, type MappedPoint, type SiteStatusRow } from "@/gateway/status";
+import { isStale, siteStatuses, type GatewayFreshness, type SiteStatusRow } from "@/gateway/status";
 import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "./events";
 import type { RealtimeServer } from "./server";
 
@@ -68,7 +68,23 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
   let statusDue = true;
   let statuses: Map<string, SiteStatusRow> | undefined;
   // Also reloaded now and then, for changes made without telling this process.
-  let mapping: { siteIds: string[]; mapped: MappedPoint[]; loadedAt: number } | undefined;
+  // Each gateway's mapped points as columns: a portfolio has 100,000 of them, counted every round.
+  let mapping: { siteIds: string[]; gateways: Map<string, { pointIds: Int32Array; intervalsS: Float64Array; slowest: number }>; loadedAt: number } | undefined;
+
+  function loadMapping(nowMs: number) {
+    const rows = mappedPoints(opts.db);
+    const lists = new Map<string, Array<{ pointId: number; expectedIntervalS: number }>>();
+    for (const r of rows) {
+      let l = lists.get(r.gatewayId);
+      if (!l) lists.set(r.gatewayId, (l = []));
+      l.push(r);
+    }
+    const gateways = new Map<string, { pointIds: Int32Array; intervalsS: Float64Array; slowest: number }>();
+    for (const [id, l] of lists) {
+      gateways.set(id, { pointIds: Int32Array.from(l, (p) => p.pointId), intervalsS: Float64Array.from(l, (p) => p.expectedIntervalS), slowest: l.reduce((m, p) => Math.max(m, p.expectedIntervalS), 0) });
+    }
+    return { siteIds: allSiteIds(opts.db), gateways, loadedAt: nowMs };
+  }
   const MAPPING_TTL_MS = 60_000;
 
   // What was stored before this start, so sites are not "stale" until every point reports again.
@@ -76,8 +92,17 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
 
   function computeStatuses() {
     const nowMs = now();
-    if (!mapping || nowMs - mapping.loadedAt > MAPPING_TTL_MS) mapping = { siteIds: allSiteIds(opts.db), mapped: mappedPoints(opts.db), loadedAt: nowMs };
-    statuses = siteStatuses({ siteIds: mapping.siteIds, presence: listGatewayPresence(opts.db), mapped: mapping.mapped, latestTs: (id) => latest.get(id)?.tsMs, nowMs });
+    if (!mapping || nowMs - mapping.loadedAt > MAPPING_TTL_MS) mapping = loadMapping(nowMs);
+    const freshness = new Map<string, GatewayFreshness>();
+    for (const [id, g] of mapping.gateways) {
+      let fresh = 0;
+      for (let i = 0; i < g.pointIds.length; i++) {
+        const v = latest.get(g.pointIds[i]);
+        if (v && !isStale(v.tsMs, g.intervalsS[i], nowMs)) fresh++;
+      }
+      freshness.set(id, { mapped: g.pointIds.length, fresh, slowest: g.slowest });
+    }
+    statuses = siteStatuses({ siteIds: mapping.siteIds, presence: listGatewayPresence(opts.db), freshness, nowMs });
     return statuses;
   }
 

@@ -77,12 +77,23 @@ export function marginSeries(ctx: RuleContext, chiller: Equipment, windowS: numb
   const fromMs = ctx.nowMs - windowS * 1000;
   const chw = ctx.history.numbers(chiller.tag, "chilled_water_entering_temp", fromMs, ctx.nowMs);
   const cws = ctx.history.numbers(cw.tag, cw.q, fromMs, ctx.nowMs);
-  const times = [...new Set([...chw.map((s) => s.tsMs), ...cws.map((s) => s.tsMs)])].sort((a, b) => a - b);
+  // One walk over both series in time order, carrying each one's latest value (a reading
+  // before the window counts until the window's first). Called for every chiller at every
+  // evaluation over an hour of readings, so no per-time lookups.
+  const before = (tag: string, q: QuantityKey) => {
+    const v = ctx.history.latestAt(tag, q, fromMs - 1)?.value;
+    return typeof v === "number" ? v : undefined;
+  };
+  let a = before(cw.tag, cw.q);
+  let b = before(chiller.tag, "chilled_water_entering_temp");
   const out: TimedValue[] = [];
-  for (const t of times) {
-    const a = ctx.history.latestAt(cw.tag, cw.q, t);
-    const b = ctx.history.latestAt(chiller.tag, "chilled_water_entering_temp", t);
-    if (a && b && typeof a.value === "number" && typeof b.value === "number") out.push({ tsMs: t, value: crossoverMarginK(a.value, b.value) });
+  let i = 0;
+  let j = 0;
+  while (i < cws.length || j < chw.length) {
+    const t = Math.min(i < cws.length ? cws[i].tsMs : Infinity, j < chw.length ? chw[j].tsMs : Infinity);
+    while (i < cws.length && cws[i].tsMs === t) a = cws[i++].value;
+    while (j < chw.length && chw[j].tsMs === t) b = chw[j++].value;
+    if (a !== undefined && b !== undefined) out.push({ tsMs: t, value: crossoverMarginK(a, b) });
   }
   return out;
 }

@@ -142,7 +142,10 @@ export function createAlarmService(deps: {
     ingest(siteId, readings) {
       if (!readings.length) return;
       const s = state(siteId);
-      const sorted = [...readings].sort((a, b) => a.tsMs - b.tsMs);
+      // Usually already in event-time order; copied and sorted only when not.
+      let ordered = true;
+      for (let i = 1; i < readings.length && ordered; i++) ordered = readings[i - 1].tsMs <= readings[i].tsMs;
+      const sorted = ordered ? readings : [...readings].sort((a, b) => a.tsMs - b.tsMs);
       s.monitor.ingest(sorted);
       const newest = sorted[sorted.length - 1].tsMs;
       if (newest > s.latestEventMs) {

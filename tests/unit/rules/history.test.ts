@@ -1,5 +1,7 @@
 import { describe, expect, it } from "vitest";
 import type { ReadingValue } from "@/lib/plant/site";
+import { crossoverMarginK } from "@/lib/plant/crossover";
+import { marginSeries, type RuleContext } from "@/lib/rules/context";
 import { ReadingHistory } from "@/lib/rules/history";
 
 // The rule history keeps samples in typed arrays; this checks it against the plainest model
@@ -77,5 +79,34 @@ describe("rule history in typed arrays", () => {
     const seq = [false, false, true, true, false, true];
     seq.forEach((v, i) => h.add({ tsMs: i * 1000, equipment: "CH-1", quantity: "run_status", value: v }));
     expect(h.edges("CH-1", "run_status", 10_000)).toEqual({ rises: [2000, 5000], falls: [4000] });
+  });
+});
+
+// The crossover margin series walks both temperature series once; its definition is "at every
+// time either input was read in the window, CW entering minus CHW entering, each at its latest
+// value at that time" (a reading before the window counts). Checked against that definition,
+// evaluated point by point, on random streams with gaps and equal times.
+describe("crossover margin series", () => {
+  it.each([4, 5])("matches the point-by-point definition (seed %i)", (seed) => {
+    const random = rng(seed);
+    const h = new ReadingHistory();
+    const site = [{ tag: "CH-1", kind: "chiller" as const }];
+    let t = 1_700_000_000_000;
+    for (let i = 0; i < 600; i++) {
+      t += 1000 * (1 + Math.floor(random() * 8));
+      if (random() < 0.7) h.add({ tsMs: t, equipment: "CH-1", quantity: "chilled_water_entering_temp", value: 10 + random() * 10 });
+      if (random() < 0.7) h.add({ tsMs: t + (random() < 0.3 ? 0 : 500), equipment: "CH-1", quantity: "condenser_water_entering_temp", value: 12 + random() * 20 });
+    }
+    const ctx = { site, history: h, nowMs: t - 30_000 } as unknown as RuleContext;
+    const windowS = 900;
+    const fromMs = ctx.nowMs - windowS * 1000;
+    const times = [...new Set([...h.numbers("CH-1", "chilled_water_entering_temp", fromMs, ctx.nowMs), ...h.numbers("CH-1", "condenser_water_entering_temp", fromMs, ctx.nowMs)].map((s) => s.tsMs))].sort((x, y) => x - y);
+    const expected = times.flatMap((at) => {
+      const cw = h.latestAt("CH-1", "condenser_water_entering_temp", at);
+      const chw = h.latestAt("CH-1", "chilled_water_entering_temp", at);
+      return cw && chw ? [{ tsMs: at, value: crossoverMarginK(cw.value as number, chw.value as number) }] : [];
+    });
+    expect(expected.length).toBeGreaterThan(50);
+    expect(marginSeries(ctx, site[0], windowS)).toEqual(expected);
   });
 });
