@@ -53,6 +53,37 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     expect(board).toEqual({ data: { siteIds: ["harborview-mob"] } });
   });
 
+  it("a board socket is sent site status but not every reading; a site page's socket gets the readings", async () => {
+    const cookie = await adminCookie(env.server);
+    const gw = await provisionGateway(env.server, cookie, { siteId: "quarry-ridge-dh2", name: "Board rooms" });
+    expect((await putPointMap(env.server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nKW,CH-1,compressor_power,kW\n")).status).toBe(200);
+    const connect = async () => {
+      const socket = io(env.server.url, { extraHeaders: { cookie }, transports: ["websocket"] });
+      await new Promise<void>((resolve, reject) => {
+        socket.once("connect", () => resolve());
+        socket.once("connect_error", reject);
+      });
+      return socket;
+    };
+    const board = await connect();
+    const sitePage = await connect();
+    const seen = { board: { values: 0, status: 0 }, site: { values: 0 } };
+    board.on("site:values", () => seen.board.values++);
+    board.on("site:status", () => seen.board.status++);
+    sitePage.on("site:values", (p: { siteId: string }) => p.siteId === "quarry-ridge-dh2" && seen.site.values++);
+    await board.emitWithAck("board:join");
+    await sitePage.emitWithAck("site:join", { siteId: "quarry-ridge-dh2" });
+    const client = await connectGateway(env.server, gw);
+    await client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ sentAt: new Date().toISOString(), readings: [{ point: "KW", value: 250 }] }), { qos: 1 });
+    await expect.poll(() => seen.site.values, { timeout: 2000 }).toBeGreaterThan(0);
+    // The new gateway's presence changes the board status within a status round.
+    await expect.poll(() => seen.board.status, { timeout: 5000 }).toBeGreaterThan(0);
+    expect(seen.board.values).toBe(0);
+    await client.endAsync();
+    board.disconnect();
+    sitePage.disconnect();
+  });
+
   it("refuses a socket without a session", async () => {
     const socket = io(env.server.url, { transports: ["websocket"], reconnection: false });
     const error = await new Promise<Error>((resolve) => socket.once("connect_error", resolve));
