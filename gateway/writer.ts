@@ -172,8 +172,12 @@ function workerStore(file: string, options: StoreSettings & { nowMs: () => numbe
   let nextReq = 0;
   let closing: (() => void) | undefined;
   let worker: Worker;
+  let startedAt = 0;
+  /** Set when a worker died right after starting: another would too, so writes are refused. */
+  let broken: Error | undefined;
 
   function start() {
+    startedAt = Date.now();
     const data: StoreWorkerData = { file, graceMs: options.graceMs, latestEveryMs: options.latestEveryMs, derivedRowsPerFlush: options.derivedRowsPerFlush, nowMs: options.nowMs(), retention: options.retention };
     worker = new Worker(new URL("./store-worker.mjs", import.meta.url), { workerData: data });
     worker.on("message", (m: FromStore) => {
@@ -199,6 +203,11 @@ function workerStore(file: string, options: StoreSettings & { nowMs: () => numbe
       for (const l of lookups.values()) l({ sealedBefore: Infinity, minutes: [] });
       lookups.clear();
       if (closing) return closing();
+      if (Date.now() - startedAt < 5000) {
+        broken = new Error(`the store worker exited with ${code} right after starting`);
+        log(`[ingest] ${broken.message}; readings are refused (not acknowledged) until the server restarts`);
+        return;
+      }
       log(`[ingest] store worker exited with ${code}; starting another`);
       start();
     });
@@ -209,6 +218,7 @@ function workerStore(file: string, options: StoreSettings & { nowMs: () => numbe
   return {
     write: (flush) =>
       new Promise<FlushDone>((resolve, reject) => {
+        if (broken) return reject(broken);
         flushes.set(flush.id, { resolve, reject });
         post({ type: "flush", flush }, [flush.pointId.buffer as ArrayBuffer, flush.ts.buffer as ArrayBuffer, flush.value.buffer as ArrayBuffer, flush.quality.buffer as ArrayBuffer]);
       }),
@@ -223,6 +233,7 @@ function workerStore(file: string, options: StoreSettings & { nowMs: () => numbe
     close: (nowMs) =>
       new Promise<void>((resolve) => {
         closing = resolve;
+        if (broken) return resolve();
         post({ type: "close", nowMs });
       }),
     stats: () => lastStats,
