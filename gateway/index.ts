@@ -64,7 +64,7 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
 
   function presence(gw: Pick<IngestGateway, "gatewayId" | "siteId">, state: Presence, atMs: number) {
     setGatewayState(db, gw.gatewayId, state, new Date(atMs));
-    live.touch(gw.siteId);
+    live.presenceChanged(gw.siteId);
   }
 
   const ingest = createIngest({

@@ -41,6 +41,12 @@ export interface LivePublisher {
   onCommitted(rows: LiveRow[]): void;
   /** Re-evaluate site status soon (presence changed). */
   touch(siteId: string): void;
+  /**
+   * A gateway connected or went away: the next status question is answered afresh rather than
+   * from the last round, so rule checks (which may run many evaluations a second while a
+   * gateway catches up on buffered readings) never judge a link by a status from before it.
+   */
+  presenceChanged(siteId: string): void;
   latest(pointId: number): Value | undefined;
   /**
    * A site's data status as of the last status round (at most statusMs old, sooner after a
@@ -172,6 +178,10 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
     },
     touch() {
       statusDue = true;
+    },
+    presenceChanged() {
+      statusDue = true;
+      statuses = undefined;
     },
     latest: (pointId) => latest.get(pointId),
     dataStatus(siteId) {
