@@ -284,7 +284,7 @@ export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: num
       mapped: r.mapped === 1,
     };
   });
-  const status = siteDataStatuses(db, nowMs, siteId).get(siteId);
+  const status = siteDataStatus(db, nowMs, siteId);
   const gws = db
     .select({ id: gateways.id, name: gateways.name, protocol: gateways.protocol, revokedAt: gateways.revokedAt })
     .from(gateways)
@@ -320,13 +320,13 @@ export function allSiteIds(db: Db): string[] {
 }
 
 /**
- * Data status of every site (or one) from stored latest values, for the latest-values API. The
- * running server's live publisher answers the same from memory (lib/realtime/live.ts).
+ * A site's data status from stored latest values, for the latest-values API. The running
+ * server's live publisher answers the same for every site from memory (lib/realtime/live.ts).
  */
-export function siteDataStatuses(db: Db, nowMs: number, onlySiteId?: string): Map<string, SiteStatusRow> {
-  const mapped = mappedPoints(db, onlySiteId);
+export function siteDataStatus(db: Db, nowMs: number, siteId: string): SiteStatusRow | undefined {
+  const mapped = mappedPoints(db, siteId);
   const ts = new Map(mapped.map((m) => [m.pointId, m.ts]));
-  return siteStatuses({ siteIds: onlySiteId ? [onlySiteId] : allSiteIds(db), presence: listGatewayPresence(db), freshness: freshnessByGateway(mapped, (id) => ts.get(id), nowMs), nowMs });
+  return siteStatuses({ siteIds: [siteId], presence: listGatewayPresence(db), freshness: freshnessByGateway(mapped, (id) => ts.get(id), nowMs), nowMs }).get(siteId);
 }
 
 /** Every point's stored latest value as screens get it (booleans as booleans), to seed the live publisher. */

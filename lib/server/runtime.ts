@@ -15,7 +15,7 @@ export interface Runtime {
   /** A point's 1-minute rollups still open in the ingest writer (not yet in readings_1m). */
   openRollups?: (pointId: number) => Promise<{ sealedBefore: number; minutes: ReadonlyArray<{ bucket: number; min: number; max: number; sum: number; count: number }> }>;
   /** The newest committed value of a point, held in memory (latest_values is written behind it). */
-  latestValue?: (pointId: number) => { tsMs: number; value: number | boolean | string; quality: "good" | "uncertain" | "bad" } | undefined;
+  latestValue?: import("@/db/queries/readings").LatestInMemory;
   /** Demo mode's simulated gateways (absent when LIFTLINE_SIMULATOR=0 or not in demo mode). */
   simulation?: import("./simulation/manager").SimulationManager;
   /** Publishes a command to a gateway's command topic (the simulator's drills). */
