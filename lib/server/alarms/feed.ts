@@ -8,7 +8,7 @@ import type { AlarmService } from "./service";
 /**
  * Longest stretch of rule checks between two turns of the event loop: a page request waits a
  * turn at each of its awaits, so long turns add up. Under the portfolio benchmark a 30-day trend
- * request's p99 was 66–311 ms in three runs with 8 ms slices, 65–77 ms in two with 3 ms.
+ * request's p99 was 64–311 ms over eleven runs with 8 ms slices, 65–157 ms over four with 3 ms.
  */
 const SLICE_MS = 3;
 /** Backlog (readings) beyond which the feed evaluates synchronously again. */
