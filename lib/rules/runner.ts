@@ -52,7 +52,19 @@ export interface SiteMonitor {
 
 export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; retentionS?: number; alarms?: AlarmBook }): SiteMonitor {
   const settings = args.settings ?? defaultRuleSettings;
-  const history = new ReadingHistory(args.retentionS ?? Math.max(2 * 3600, settings.efficiencyDrift.averagingWindowS + 600));
+  // The longest look back any rule (or the site page's 1 h margin trend) takes, plus slack: a
+  // portfolio holds this much of every point in memory (2 h had been ~2.3 GB for 100,000 points).
+  const lookBackS = Math.max(
+    3600,
+    settings.crossoverRisk.fitWindowS,
+    settings.crossoverRisk.slowFitWindowS,
+    settings.towerFan.riseWindowS,
+    settings.headPressure.riseWindowS,
+    settings.driveTemperature.fitWindowS,
+    settings.powerEvent.windowS + settings.powerEvent.holdS,
+    settings.efficiencyDrift.averagingWindowS,
+  );
+  const history = new ReadingHistory(args.retentionS ?? lookBackS + 600);
   let previous: Condition[] = [];
   const delays = new Map<string, DelayState>();
   let book: AlarmBook = args.alarms ?? emptyAlarmBook();

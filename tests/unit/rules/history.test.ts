@@ -3,6 +3,8 @@ import type { ReadingValue } from "@/lib/plant/site";
 import { crossoverMarginK } from "@/lib/plant/crossover";
 import { marginSeries, type RuleContext } from "@/lib/rules/context";
 import { ReadingHistory } from "@/lib/rules/history";
+import { createSiteMonitor } from "@/lib/rules/runner";
+import { parseRuleSettings } from "@/lib/rules/settings";
 
 // The rule history keeps samples in typed arrays; this checks it against the plainest model
 // (a sorted array of objects, pruned the same way) on random streams: mostly in order, some
@@ -108,5 +110,13 @@ describe("crossover margin series", () => {
     });
     expect(expected.length).toBeGreaterThan(50);
     expect(marginSeries(ctx, site[0], windowS)).toEqual(expected);
+  });
+});
+
+describe("how much history a site monitor keeps", () => {
+  it("the longest look-back of its rules (or the 1 h margin trend) plus 10 min: 70 min by default, longer when a setting asks", () => {
+    expect(createSiteMonitor({ site: [] }).history.retentionS).toBe(70 * 60);
+    const settings = parseRuleSettings({ efficiencyDrift: { averagingWindowS: 3 * 3600 } });
+    expect(createSiteMonitor({ site: [], settings }).history.retentionS).toBe(3 * 3600 + 600);
   });
 });
