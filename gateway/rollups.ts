@@ -1,4 +1,5 @@
 import type Database from "better-sqlite3";
+import { ingestState } from "./ingest-state";
 
 // 1-minute rollups (min/max/sum/count/last) kept in memory while their minute is open and
 // written to `readings_1m` once, when it has closed ("sealed"). Writing every open minute at
@@ -13,7 +14,7 @@ import type Database from "better-sqlite3";
 // minute already sealed is merged into its row by the same upsert.
 
 const MINUTE_MS = 60_000;
-const WATERMARK = "rollups_sealed_before";
+const WATERMARK = "rollups_sealed_before" as const;
 
 export interface MinuteAggregate {
   pointId: number;
@@ -93,19 +94,16 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
        last = case when excluded.last_ts >= readings_1m.last_ts then excluded.last else readings_1m.last end,
        last_ts = max(readings_1m.last_ts, excluded.last_ts)`,
   );
-  const readWatermark = sqlite.prepare("select value from ingest_state where key = ?").pluck();
-  const writeWatermark = sqlite.prepare("insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = max(value, excluded.value)");
-  let sealedBefore = readWatermark.get(WATERMARK) as number | undefined;
-  if (sealedBefore === undefined) {
-    // A new database, or one whose rollups were all written as readings arrived: nothing
-    // before now is missing from readings_1m.
-    sealedBefore = bucketOf(opts.nowMs - graceMs);
-    writeWatermark.run(WATERMARK, sealedBefore);
-  }
+  const state = ingestState(sqlite);
+  const stored = state.get(WATERMARK);
+  // A new database, or one whose rollups were all written as readings arrived: nothing before
+  // now is missing from readings_1m.
+  let sealedBefore = stored ?? bucketOf(opts.nowMs - graceMs);
+  if (stored === undefined) state.raise(WATERMARK, sealedBefore);
 
   // Minutes before the limit are written at the next flush: those closed graceMs ago, and any
   // before the watermark (the open minute after a clean stop sealed everything early).
-  const limit = (nowMs: number) => Math.max(bucketOf(nowMs - graceMs), sealedBefore!);
+  const limit = (nowMs: number) => Math.max(bucketOf(nowMs - graceMs), sealedBefore);
 
   function add(pointId: number, ts: number, value: number) {
     const bucket = bucketOf(ts);
@@ -129,7 +127,7 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
   }
 
   function recover(pointIds: readonly number[]): number {
-    const from = sealedBefore!;
+    const from = sealedBefore;
     const drop = sqlite.prepare("delete from readings_1m where point_id = ? and bucket >= ?");
     const raw = sqlite.prepare("select ts, value from readings where point_id = ? and ts >= ? and value is not null order by ts");
     let replayed = 0;
@@ -172,8 +170,8 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
           break;
         }
       }
-      if (watermark > sealedBefore!) writeWatermark.run(WATERMARK, watermark);
-      return { written, sealedBefore: Math.max(watermark, sealedBefore!) };
+      if (watermark > sealedBefore) state.raise(WATERMARK, watermark);
+      return { written, sealedBefore: Math.max(watermark, sealedBefore) };
     },
     writeLate(pointId, ts, value) {
       upsert.run(pointId, bucketOf(ts), value, value, value, 1, value, ts);
@@ -194,7 +192,7 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
     add,
     sealDue(nowMs) {
       const before = limit(nowMs);
-      if (before > sealedBefore! || sealing.size > 0) return true;
+      if (before > sealedBefore || sealing.size > 0) return true;
       for (const bucket of open.keys()) if (bucket < before) return true;
       return false;
     },
@@ -204,7 +202,7 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
         const a = minute.get(pointId);
         if (a) out.push({ ...a });
       }
-      return { sealedBefore: sealedBefore!, minutes: out.sort((a, b) => a.bucket - b.bucket) };
+      return { sealedBefore, minutes: out.sort((a, b) => a.bucket - b.bucket) };
     },
     forget(pointIds) {
       for (const minute of open.values()) for (const id of pointIds) minute.delete(id);

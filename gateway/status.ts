@@ -63,12 +63,21 @@ export interface GatewayFreshness {
   slowest: number;
 }
 
-/** Mapped and fresh point counts per gateway, from each point's newest event time. */
+/**
+ * Mapped and fresh point counts per gateway, from each point's newest event time. Runs over a
+ * portfolio's 100,000 mapped points every status round: rows grouped by gateway (as
+ * `mappedPoints` returns them) cost one map lookup per gateway, not per point.
+ */
 export function freshnessByGateway(mapped: readonly MappedPoint[], latestTs: (pointId: number) => number | null | undefined, nowMs: number): Map<string, GatewayFreshness> {
   const byGateway = new Map<string, GatewayFreshness>();
+  let lastGateway: string | undefined;
+  let f: GatewayFreshness | undefined;
   for (const m of mapped) {
-    let f = byGateway.get(m.gatewayId);
-    if (!f) byGateway.set(m.gatewayId, (f = { mapped: 0, fresh: 0, slowest: 0 }));
+    if (m.gatewayId !== lastGateway || !f) {
+      lastGateway = m.gatewayId;
+      f = byGateway.get(m.gatewayId);
+      if (!f) byGateway.set(m.gatewayId, (f = { mapped: 0, fresh: 0, slowest: 0 }));
+    }
     f.mapped++;
     const ts = latestTs(m.pointId);
     if (ts !== null && ts !== undefined && !isStale(ts, m.expectedIntervalS, nowMs)) f.fresh++;

@@ -53,11 +53,7 @@ port.on("message", (m: ToStore) => {
       }
       return;
     case "maintain":
-      try {
-        store.maintain(m.nowMs);
-      } catch (err) {
-        log(`[ingest] writing rollups and latest values failed (retried later): ${String(err)}`);
-      }
+      store.maintain(m.nowMs);
       return;
     case "openRollups":
       send({ type: "openRollups", reqId: m.reqId, open: store.openRollups(m.pointId) });

@@ -1,4 +1,5 @@
 import type Database from "better-sqlite3";
+import { ingestState } from "./ingest-state";
 import { createRollupBook, type OpenRollups, type SealProgress } from "./rollups";
 
 // The SQL side of the batched writer: one transaction per flush through prepared statements,
@@ -53,8 +54,8 @@ export interface StoreOptions {
 
 export interface Store {
   write(flush: FlushWire): FlushDone;
-  /** Seals closed minutes and writes due latest values when no readings carry them; `everything` for a clean stop. */
-  maintain(nowMs: number, everything?: boolean): void;
+  /** Seals closed minutes and writes due latest values when no readings carry them; a failure is logged and retried next time. */
+  maintain(nowMs: number): void;
   openRollups(pointId: number): OpenRollups;
   forget(pointIds: readonly number[]): void;
   /** Writes everything held and marks the stop clean (nothing to rebuild at the next start). */
@@ -73,10 +74,10 @@ interface LatestEntry {
   dirty: boolean;
 }
 
-const CLOSED_CLEANLY = "closed_cleanly";
-
 export function createStore(sqlite: Database.Database, opts: StoreOptions): Store {
   const { log } = opts;
+  // Raw better-sqlite3 statements, prepared once: on the hot path Drizzle's per-call
+  // placeholder filling and entity checks cost more than the inserts themselves.
   // Idempotent on (point_id, ts): a redelivered message adds nothing.
   const insertReading = sqlite.prepare("insert into readings (point_id, ts, value, text, quality) values (?, ?, ?, ?, ?) on conflict do nothing");
   const upsertLatest = sqlite.prepare(
@@ -99,8 +100,7 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
     `insert into gateway_unmapped_points (gateway_id, point_name, count, last_seen_at) values (?, ?, ?, ?)
      on conflict (gateway_id, point_name) do update set count = gateway_unmapped_points.count + excluded.count, last_seen_at = excluded.last_seen_at`,
   );
-  const readState = sqlite.prepare("select value from ingest_state where key = ?").pluck();
-  const writeState = sqlite.prepare("insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = excluded.value");
+  const state = ingestState(sqlite);
   // After an unclean stop the newest reading of a point may be newer than its latest_values row.
   const recoverLatest = sqlite.prepare(
     `insert into latest_values (point_id, ts, value, text, quality, gateway_id, received_at)
@@ -112,14 +112,14 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
   );
 
   const rollups = createRollupBook(sqlite, { graceMs: opts.graceMs, nowMs: opts.nowMs });
-  if (readState.get(CLOSED_CLEANLY) === 0) {
+  if (state.get("closed_cleanly") === 0) {
     const t0 = performance.now();
     const pointIds = sqlite.prepare("select id from points").pluck().all() as number[];
     const replayed = rollups.recover(pointIds);
     const latest = recoverLatest.run().changes;
     log(`[ingest] recovered from an unclean stop: ${replayed} readings of open rollup minutes, ${latest} latest values (${Math.round(performance.now() - t0)} ms)`);
   }
-  writeState.run(CLOSED_CLEANLY, 0);
+  state.set("closed_cleanly", 0);
 
   /** Committed rows' latest values not yet in latest_values; entries are reused, not reallocated. */
   const latest = new Map<number, LatestEntry>();
@@ -162,25 +162,20 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
     }
   }
 
-  /** The text of a state or text row; `cursor` walks `texts` forward as rows are visited in order. */
-  function textOf(f: FlushWire, row: number, cursor: { t: number }): string | null {
-    while (cursor.t < f.texts.length && f.texts[cursor.t][0] < row) cursor.t++;
-    return cursor.t < f.texts.length && f.texts[cursor.t][0] === row ? f.texts[cursor.t][1] : null;
-  }
+  /** A row's number, or null for state and text points (NaN on the wire). */
+  const numberAt = (f: FlushWire, row: number) => (Number.isNaN(f.value[row]) ? null : f.value[row]);
 
-  const flushTx = sqlite.transaction((f: FlushWire, p: Plan, inserted: Uint8Array, accepted: Int32Array) => {
+  const flushTx = sqlite.transaction((f: FlushWire, texts: ReadonlyMap<number, string>, p: Plan, inserted: Uint8Array, accepted: Int32Array) => {
     const perGateway = new Map<string, { messages: number; accepted: number; duplicates: number; at: number }>();
     const rejections = new Map<string, { gatewayId: string; reason: string; count: number; at: number }>();
     const unmapped = new Map<string, { gatewayId: string; pointName: string; count: number; at: number }>();
-    const cursor = { t: 0 };
     let row = 0;
     for (let b = 0; b < f.batches.length; b++) {
       const batch = f.batches[b];
       let n = 0;
       for (const end = row + batch.count; row < end; row++) {
-        const v = f.value[row];
-        const value = Number.isNaN(v) ? null : v;
-        const text = value === null ? textOf(f, row, cursor) : null;
+        const value = numberAt(f, row);
+        const text = value === null ? (texts.get(row) ?? null) : null;
         if (insertReading.run(f.pointId[row], f.ts[row], value, text, f.quality[row]).changes === 0) continue;
         inserted[row] = 1;
         n++;
@@ -218,17 +213,25 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
   });
   const maintainTx = sqlite.transaction((p: Plan, everything: boolean) => writeDerived(p, everything));
 
-  function remember(f: FlushWire, inserted: Uint8Array, sealLimit: number) {
-    const cursor = { t: 0 };
+  function maintain(nowMs: number, everything: boolean) {
+    const p = plan(nowMs);
+    if (everything) {
+      p.sealLimit = rollups.limitAll(nowMs);
+      p.writeLatest = unwritten.length > 0;
+    } else if (!rollups.sealDue(nowMs) && !p.writeLatest) return;
+    maintainTx(p, everything);
+    afterCommit(p, nowMs);
+  }
+
+  function remember(f: FlushWire, texts: ReadonlyMap<number, string>, inserted: Uint8Array, sealLimit: number) {
     let row = 0;
     for (const batch of f.batches) {
       for (const end = row + batch.count; row < end; row++) {
         if (!inserted[row]) continue;
         const id = f.pointId[row];
         const ts = f.ts[row];
-        const v = f.value[row];
-        const value = Number.isNaN(v) ? null : v;
-        const text = value === null ? textOf(f, row, cursor) : null;
+        const value = numberAt(f, row);
+        const text = value === null ? (texts.get(row) ?? null) : null;
         if (value !== null && ts >= sealLimit) rollups.add(id, ts, value);
         let e = latest.get(id);
         if (!e) latest.set(id, (e = { ts, value, text, quality: f.quality[row], gatewayId: batch.gatewayId, receivedAt: batch.receivedAtMs, dirty: false }));
@@ -251,21 +254,20 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
   return {
     write(f) {
       const p = plan(f.nowMs);
+      const texts = new Map(f.texts);
       const inserted = new Uint8Array(f.pointId.length);
       const accepted = new Int32Array(f.batches.length);
-      flushTx(f, p, inserted, accepted);
+      flushTx(f, texts, p, inserted, accepted);
       afterCommit(p, f.nowMs);
-      remember(f, inserted, p.sealLimit);
+      remember(f, texts, inserted, p.sealLimit);
       return { id: f.id, accepted, inserted };
     },
-    maintain(nowMs, everything = false) {
-      const p = plan(nowMs);
-      if (everything) {
-        p.sealLimit = rollups.limitAll(nowMs);
-        p.writeLatest = unwritten.length > 0;
-      } else if (!rollups.sealDue(nowMs) && !p.writeLatest) return;
-      maintainTx(p, everything);
-      afterCommit(p, nowMs);
+    maintain(nowMs) {
+      try {
+        maintain(nowMs, false);
+      } catch (err) {
+        log(`[ingest] writing rollups and latest values failed (retried later): ${String(err)}`);
+      }
     },
     openRollups: (pointId) => rollups.openOf(pointId),
     forget(pointIds) {
@@ -275,8 +277,8 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
       unwritten = unwritten.filter((id) => !gone.has(id));
     },
     close(nowMs) {
-      this.maintain(nowMs, true);
-      writeState.run(CLOSED_CLEANLY, 1);
+      maintain(nowMs, true);
+      state.set("closed_cleanly", 1);
     },
     stats: () => ({ openRollups: rollups.size(), unwrittenLatest: unwritten.length }),
   };

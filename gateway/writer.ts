@@ -147,13 +147,7 @@ function inlineStore(db: Db, clock: Clock, options: StoreSettings & { nowMs: num
   const pruner = options.retention && startPruner({ db, clock, rawRetentionMs: options.retention.rawMs, rollupRetentionMs: options.retention.rollupMs, log: options.log });
   return {
     write: async (flush) => store.write(flush),
-    maintain(nowMs) {
-      try {
-        store.maintain(nowMs);
-      } catch (err) {
-        options.log(`[ingest] writing rollups and latest values failed (retried later): ${String(err)}`);
-      }
-    },
+    maintain: (nowMs) => store.maintain(nowMs),
     openRollups: async (pointId) => store.openRollups(pointId),
     forget: (pointIds) => store.forget(pointIds),
     close: async (nowMs) => {

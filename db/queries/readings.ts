@@ -303,7 +303,7 @@ export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: num
   };
 }
 
-/** Points mapped through each gateway that is not revoked, with the event time of their newest stored reading. */
+/** Points mapped through each gateway, grouped by gateway, with the event time of their newest stored reading. */
 export function mappedPoints(db: Db, onlySiteId?: string): Array<MappedPoint & { ts: number | null }> {
   return db
     .select({ gatewayId: gatewayPointMaps.gatewayId, pointId: gatewayPointMaps.pointId, expectedIntervalS: points.expectedIntervalS, ts: latestValues.ts })
@@ -312,6 +312,7 @@ export function mappedPoints(db: Db, onlySiteId?: string): Array<MappedPoint & {
     .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
     .leftJoin(latestValues, eq(latestValues.pointId, gatewayPointMaps.pointId))
     .where(onlySiteId ? eq(gateways.siteId, onlySiteId) : undefined)
+    .orderBy(gatewayPointMaps.gatewayId)
     .all();
 }
 

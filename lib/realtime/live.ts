@@ -1,7 +1,7 @@
 import type { Db } from "@/db/client";
 import { listGatewayPresence } from "@/db/queries/gateways";
 import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
-import { isStale, siteStatuses, type GatewayFreshness, type SiteStatusRow } from "@/gateway/status";
+import { freshnessByGateway, siteStatuses, type MappedPoint, type SiteStatusRow } from "@/gateway/status";
 import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "./events";
 import type { RealtimeServer } from "./server";
 
@@ -39,7 +39,7 @@ export interface LivePublisherOptions {
 
 export interface LivePublisher {
   onCommitted(rows: LiveRow[]): void;
-  /** Re-evaluate site status soon (presence changed). */
+  /** Re-evaluate site status soon (an alarm changed; presence has presenceChanged). */
   touch(siteId: string): void;
   /**
    * A gateway connected or went away: the next status question is answered afresh rather than
@@ -73,41 +73,18 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
   const lastStatus = new Map<string, string>();
   let statusDue = true;
   let statuses: Map<string, SiteStatusRow> | undefined;
-  // Also reloaded now and then, for changes made without telling this process.
-  // Each gateway's mapped points as columns: a portfolio has 100,000 of them, counted every round.
-  let mapping: { siteIds: string[]; gateways: Map<string, { pointIds: Int32Array; intervalsS: Float64Array; slowest: number }>; loadedAt: number } | undefined;
-
-  function loadMapping(nowMs: number) {
-    const rows = mappedPoints(opts.db);
-    const lists = new Map<string, Array<{ pointId: number; expectedIntervalS: number }>>();
-    for (const r of rows) {
-      let l = lists.get(r.gatewayId);
-      if (!l) lists.set(r.gatewayId, (l = []));
-      l.push(r);
-    }
-    const gateways = new Map<string, { pointIds: Int32Array; intervalsS: Float64Array; slowest: number }>();
-    for (const [id, l] of lists) {
-      gateways.set(id, { pointIds: Int32Array.from(l, (p) => p.pointId), intervalsS: Float64Array.from(l, (p) => p.expectedIntervalS), slowest: l.reduce((m, p) => Math.max(m, p.expectedIntervalS), 0) });
-    }
-    return { siteIds: allSiteIds(opts.db), gateways, loadedAt: nowMs };
-  }
+  // Which points each gateway maps: loaded once, again on mappingChanged(), and now and then for
+  // changes made without telling this process.
   const MAPPING_TTL_MS = 60_000;
+  let mapping: { siteIds: string[]; mapped: MappedPoint[]; loadedAt: number } | undefined;
 
   // What was stored before this start, so sites are not "stale" until every point reports again.
   for (const v of storedLatestValues(opts.db)) latest.set(v.pointId, v);
 
   function computeStatuses() {
     const nowMs = now();
-    if (!mapping || nowMs - mapping.loadedAt > MAPPING_TTL_MS) mapping = loadMapping(nowMs);
-    const freshness = new Map<string, GatewayFreshness>();
-    for (const [id, g] of mapping.gateways) {
-      let fresh = 0;
-      for (let i = 0; i < g.pointIds.length; i++) {
-        const v = latest.get(g.pointIds[i]);
-        if (v && !isStale(v.tsMs, g.intervalsS[i], nowMs)) fresh++;
-      }
-      freshness.set(id, { mapped: g.pointIds.length, fresh, slowest: g.slowest });
-    }
+    if (!mapping || nowMs - mapping.loadedAt > MAPPING_TTL_MS) mapping = { siteIds: allSiteIds(opts.db), mapped: mappedPoints(opts.db), loadedAt: nowMs };
+    const freshness = freshnessByGateway(mapping.mapped, (id) => latest.get(id)?.tsMs, nowMs);
     statuses = siteStatuses({ siteIds: mapping.siteIds, presence: listGatewayPresence(opts.db), freshness, nowMs });
     return statuses;
   }

@@ -7,6 +7,7 @@ import { migrateDb, openDb, type Db } from "@/db/client";
 import { getSeries } from "@/db/queries/readings";
 import { gateways } from "@/db/schema";
 import { SERVICE_ORG, seedDemo } from "@/db/seed/demo";
+import type { MinuteAggregate } from "@/gateway/rollups";
 import { createBatchWriter, type BatchWriter, type RowIn } from "@/gateway/writer";
 import { systemViewer } from "@/lib/auth/viewer";
 
@@ -58,15 +59,8 @@ async function publish(w: BatchWriter, clock: { t: number }, fromMs: number, toM
   }
 }
 
-interface MinuteRow {
-  pointId: number;
-  bucket: number;
-  min: number;
-  max: number;
-  sum: number;
-  count: number;
-  last: number;
-}
+/** A stored minute as the reference computes it (which reading was last is checked, not when). */
+type MinuteRow = Omit<MinuteAggregate, "lastTs">;
 
 function storedMinutes(db: Db): MinuteRow[] {
   return db.$client.prepare("select point_id as pointId, bucket, min, max, sum, count, last from readings_1m order by point_id, bucket").all() as MinuteRow[];
