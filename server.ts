@@ -155,7 +155,6 @@ setRuntime({
   alarms: alarmSystem.service,
   escalator: alarmSystem.escalator,
   siteDataStatus: (siteId) => live.dataStatus(siteId),
-  openRollups: (pointId) => gatewaySide.writer.openRollups(pointId),
   latestValue: (pointId) => live.latest(pointId),
   simulation,
   sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),

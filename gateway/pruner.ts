@@ -2,7 +2,7 @@ import type { Db } from "@/db/client";
 import { allPointIds } from "@/db/queries/readings";
 import type { Clock } from "./writer";
 
-// Retention: raw readings for RAW_RETENTION_DAYS (14 by default), 1-minute rollups two years.
+// Retention: raw readings for RAW_RETENTION_DAYS (14 by default), 1-minute and 1-hour rollups two years.
 // Runs in small chunks, a few ms of work at a time with a pause between, so an ingestion flush
 // never waits for more than one slice and the pass never takes more than part of the CPU.
 
@@ -36,7 +36,7 @@ export function startPruner(opts: PrunerOptions): Pruner {
 
   // Prepared once per pruner: the primary key is (point_id, ts|bucket), so each call is a range
   // delete of one point, never a table scan. A pass over 20k points used to prepare 40k statements.
-  const statements = (["readings", "readings_1m"] as const).map((table) => {
+  const statements = (["readings", "readings_1m", "readings_1h"] as const).map((table) => {
     const col = table === "readings" ? "ts" : "bucket";
     return opts.db.$client.prepare<[number, number, number, number]>(
       `delete from ${table} where point_id = ? and ${col} in (select ${col} from ${table} where point_id = ? and ${col} < ? order by ${col} limit ?)`,
@@ -49,6 +49,7 @@ export function startPruner(opts: PrunerOptions): Pruner {
     const plan = [
       { stmt: statements[0], before: now - opts.rawRetentionMs, key: "readings" },
       { stmt: statements[1], before: now - opts.rollupRetentionMs, key: "rollups" },
+      { stmt: statements[2], before: now - opts.rollupRetentionMs, key: "rollups" },
     ] as const;
     let sliceEnds = performance.now() + SLICE_MS;
     for (const pointId of allPointIds(opts.db)) {

@@ -12,8 +12,14 @@ import { ingestState } from "./ingest-state";
 // crash, `recover()` drops rollup rows at or after the watermark and rebuilds those minutes from
 // raw readings, so nothing is lost and nothing is counted twice. A reading that arrives for a
 // minute already sealed is merged into its row by the same upsert.
+//
+// Every minute written is also added to its hour in `readings_1h` (same transaction), so long
+// trends read hours. An hour is complete once the watermark has passed its end; the hour the
+// watermark is in may hold part of a minute written just before a crash, so recovery rebuilds
+// it from its stored minutes.
 
 const MINUTE_MS = 60_000;
+export const HOUR_MS = 3_600_000;
 const WATERMARK = "rollups_sealed_before" as const;
 
 export interface MinuteAggregate {
@@ -47,11 +53,6 @@ export interface RollupBook {
   add(pointId: number, ts: number, value: number): void;
   /** Whether a flush at `nowMs` would write anything. */
   sealDue(nowMs: number): boolean;
-  /**
-   * Minutes of a point not yet in `readings_1m`, oldest first, with the watermark at this moment:
-   * readings_1m has everything before it and nothing from it on but what these minutes hold.
-   */
-  openOf(pointId: number): OpenRollups;
   /** Drops the open minutes of these points (their stored history was replaced). */
   forget(pointIds: readonly number[]): void;
   /** Rebuilds the open minutes from raw readings after an unclean stop. Returns readings replayed. */
@@ -66,12 +67,41 @@ export interface SealProgress {
   sealedBefore: number;
 }
 
-export interface OpenRollups {
-  sealedBefore: number;
-  minutes: MinuteAggregate[];
-}
-
 export const bucketOf = (ts: number) => Math.floor(ts / MINUTE_MS) * MINUTE_MS;
+export const hourOf = (ts: number) => Math.floor(ts / HOUR_MS) * HOUR_MS;
+
+// SQLite evaluates every SET expression against the old row, so `last` compares old last_ts.
+const upsertSql = (table: "readings_1m" | "readings_1h") =>
+  `insert into ${table} (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, ?, ?, ?, ?, ?, ?)
+   on conflict (point_id, bucket) do update set
+     min = min(${table}.min, excluded.min),
+     max = max(${table}.max, excluded.max),
+     sum = ${table}.sum + excluded.sum,
+     count = ${table}.count + excluded.count,
+     last = case when excluded.last_ts >= ${table}.last_ts then excluded.last else ${table}.last end,
+     last_ts = max(${table}.last_ts, excluded.last_ts)`;
+
+/**
+ * Rewrites a point's hours from the one holding `fromMs` on out of its stored minutes, after
+ * minutes from `fromMs` on were dropped (crash recovery, a replaced simulated timeline). Run
+ * inside the caller's transaction.
+ */
+export function hourRebuilder(sqlite: Database.Database): (pointId: number, fromMs: number) => void {
+  const drop = sqlite.prepare("delete from readings_1h where point_id = ? and bucket >= ?");
+  const refill = sqlite.prepare(
+    `insert into readings_1h (point_id, bucket, min, max, sum, count, last, last_ts)
+     select point_id, (bucket / ${HOUR_MS}) * ${HOUR_MS}, min(min), max(max), sum(sum), sum(count),
+       (select l.last from readings_1m l where l.point_id = @p and l.bucket >= @hour and l.bucket < @hour + ${HOUR_MS} order by l.last_ts desc, l.bucket desc limit 1),
+       max(last_ts)
+     from readings_1m where point_id = @p and bucket >= @hour and bucket < @hour + ${HOUR_MS}
+     group by 1, 2`,
+  );
+  return (pointId, fromMs) => {
+    const hour = hourOf(fromMs);
+    drop.run(pointId, hour);
+    refill.run({ p: pointId, hour });
+  };
+}
 
 export function createRollupBook(sqlite: Database.Database, opts: { graceMs: number; nowMs: number }): RollupBook {
   const { graceMs } = opts;
@@ -83,17 +113,12 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
   let lastBucket = NaN;
   let lastMinute: Map<number, MinuteAggregate> | undefined;
 
-  const upsert = sqlite.prepare(
-    // SQLite evaluates every SET expression against the old row, so `last` compares old last_ts.
-    `insert into readings_1m (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, ?, ?, ?, ?, ?, ?)
-     on conflict (point_id, bucket) do update set
-       min = min(readings_1m.min, excluded.min),
-       max = max(readings_1m.max, excluded.max),
-       sum = readings_1m.sum + excluded.sum,
-       count = readings_1m.count + excluded.count,
-       last = case when excluded.last_ts >= readings_1m.last_ts then excluded.last else readings_1m.last end,
-       last_ts = max(readings_1m.last_ts, excluded.last_ts)`,
-  );
+  const upsertMinute = sqlite.prepare(upsertSql("readings_1m"));
+  const upsertHour = sqlite.prepare(upsertSql("readings_1h"));
+  const upsert = (pointId: number, bucket: number, min: number, max: number, sum: number, count: number, last: number, lastTs: number) => {
+    upsertMinute.run(pointId, bucket, min, max, sum, count, last, lastTs);
+    upsertHour.run(pointId, hourOf(bucket), min, max, sum, count, last, lastTs);
+  };
   const state = ingestState(sqlite);
   const stored = state.get(WATERMARK);
   // A new database, or one whose rollups were all written as readings arrived: nothing before
@@ -129,11 +154,13 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
   function recover(pointIds: readonly number[]): number {
     const from = sealedBefore;
     const drop = sqlite.prepare("delete from readings_1m where point_id = ? and bucket >= ?");
+    const rebuildHours = hourRebuilder(sqlite);
     const raw = sqlite.prepare("select ts, value from readings where point_id = ? and ts >= ? and value is not null order by ts");
     let replayed = 0;
     sqlite.transaction(() => {
       for (const id of pointIds) {
         drop.run(id, from);
+        rebuildHours(id, from);
         for (const r of raw.iterate(id, from) as IterableIterator<{ ts: number; value: number }>) {
           add(id, r.ts, r.value);
           replayed++;
@@ -161,7 +188,7 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
         const upTo = Math.min(s.aggs.length, s.stored + left);
         for (let i = s.stored; i < upTo; i++) {
           const a = s.aggs[i];
-          upsert.run(a.pointId, a.bucket, a.min, a.max, a.sum, a.count, a.last, a.lastTs);
+          upsert(a.pointId, a.bucket, a.min, a.max, a.sum, a.count, a.last, a.lastTs);
         }
         left -= upTo - s.stored;
         written.push([bucket, upTo]);
@@ -174,7 +201,7 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
       return { written, sealedBefore: Math.max(watermark, sealedBefore) };
     },
     writeLate(pointId, ts, value) {
-      upsert.run(pointId, bucketOf(ts), value, value, value, 1, value, ts);
+      upsert(pointId, bucketOf(ts), value, value, value, 1, value, ts);
     },
     markSealed(progress) {
       for (const [bucket, upTo] of progress.written) {
@@ -195,14 +222,6 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
       if (before > sealedBefore || sealing.size > 0) return true;
       for (const bucket of open.keys()) if (bucket < before) return true;
       return false;
-    },
-    openOf(pointId) {
-      const out: MinuteAggregate[] = [];
-      for (const minute of open.values()) {
-        const a = minute.get(pointId);
-        if (a) out.push({ ...a });
-      }
-      return { sealedBefore, minutes: out.sort((a, b) => a.bucket - b.bucket) };
     },
     forget(pointIds) {
       for (const minute of open.values()) for (const id of pointIds) minute.delete(id);

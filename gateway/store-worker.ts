@@ -1,7 +1,6 @@
 import { parentPort, workerData } from "node:worker_threads";
 import { openDb } from "@/db/client";
 import { startPruner } from "./pruner";
-import type { OpenRollups } from "./rollups";
 import { createStore, type FlushWire } from "./store";
 
 // The thread that owns ingestion's write connection: flushes arrive as columns, are committed
@@ -12,7 +11,6 @@ import { createStore, type FlushWire } from "./store";
 export type ToStore =
   | { type: "flush"; flush: FlushWire }
   | { type: "maintain"; nowMs: number }
-  | { type: "openRollups"; reqId: number; pointId: number }
   | { type: "forget"; pointIds: number[] }
   | { type: "close"; nowMs: number };
 
@@ -20,7 +18,6 @@ export type FromStore =
   | { type: "log"; line: string }
   | { type: "flushed"; id: number; accepted: Int32Array; inserted: Uint8Array; stats: { openRollups: number; unwrittenLatest: number } }
   | { type: "flushFailed"; id: number; error: string }
-  | { type: "openRollups"; reqId: number; open: OpenRollups }
   | { type: "closed" };
 
 export interface StoreWorkerData {
@@ -54,9 +51,6 @@ port.on("message", (m: ToStore) => {
       return;
     case "maintain":
       store.maintain(m.nowMs);
-      return;
-    case "openRollups":
-      send({ type: "openRollups", reqId: m.reqId, open: store.openRollups(m.pointId) });
       return;
     case "forget":
       store.forget(m.pointIds);

@@ -1,6 +1,6 @@
 import type Database from "better-sqlite3";
 import { ingestState } from "./ingest-state";
-import { createRollupBook, type OpenRollups, type SealProgress } from "./rollups";
+import { createRollupBook, type SealProgress } from "./rollups";
 
 // The SQL side of the batched writer: one transaction per flush through prepared statements,
 // on whichever thread owns the write connection (gateway/store-worker.ts for a file database,
@@ -56,7 +56,6 @@ export interface Store {
   write(flush: FlushWire): FlushDone;
   /** Seals closed minutes and writes due latest values when no readings carry them; a failure is logged and retried next time. */
   maintain(nowMs: number): void;
-  openRollups(pointId: number): OpenRollups;
   forget(pointIds: readonly number[]): void;
   /** Writes everything held and marks the stop clean (nothing to rebuild at the next start). */
   close(nowMs: number): void;
@@ -269,7 +268,6 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
         log(`[ingest] writing rollups and latest values failed (retried later): ${String(err)}`);
       }
     },
-    openRollups: (pointId) => rollups.openOf(pointId),
     forget(pointIds) {
       rollups.forget(pointIds);
       const gone = new Set(pointIds);

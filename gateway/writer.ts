@@ -3,7 +3,6 @@ import { Worker } from "node:worker_threads";
 import type { Db } from "@/db/client";
 import type { RejectionReason } from "./contract";
 import { startPruner } from "./pruner";
-import type { OpenRollups } from "./rollups";
 import { createStore, type FlushDone, type FlushWire } from "./store";
 import type { FromStore, StoreWorkerData, ToStore } from "./store-worker";
 
@@ -88,8 +87,6 @@ export interface BatchWriter {
   flush(): void;
   close(): Promise<void>;
   stats(): { flushes: number; rows: number; queued: number; lastFlushMs: number; maxFlushMs: number; openRollups: number; unwrittenLatest: number };
-  /** A point's minutes not yet in `readings_1m` (the series API adds them to trends). */
-  openRollups(pointId: number): Promise<OpenRollups>;
   /** Drops what is held for these points (their stored history was replaced). */
   forget(pointIds: readonly number[]): void;
 }
@@ -134,7 +131,6 @@ interface Pending {
 interface StoreLink {
   write(flush: FlushWire): Promise<FlushDone>;
   maintain(nowMs: number): void;
-  openRollups(pointId: number): Promise<OpenRollups>;
   forget(pointIds: readonly number[]): void;
   close(nowMs: number): Promise<void>;
   stats(): { openRollups: number; unwrittenLatest: number };
@@ -148,7 +144,6 @@ function inlineStore(db: Db, clock: Clock, options: StoreSettings & { nowMs: num
   return {
     write: async (flush) => store.write(flush),
     maintain: (nowMs) => store.maintain(nowMs),
-    openRollups: async (pointId) => store.openRollups(pointId),
     forget: (pointIds) => store.forget(pointIds),
     close: async (nowMs) => {
       pruner?.stop();
@@ -161,9 +156,7 @@ function inlineStore(db: Db, clock: Clock, options: StoreSettings & { nowMs: num
 function workerStore(file: string, options: StoreSettings & { nowMs: () => number }): StoreLink {
   const { log } = options;
   const flushes = new Map<number, { resolve: (d: FlushDone) => void; reject: (err: Error) => void }>();
-  const lookups = new Map<number, (m: OpenRollups) => void>();
   let lastStats = { openRollups: 0, unwrittenLatest: 0 };
-  let nextReq = 0;
   let closing: (() => void) | undefined;
   let worker: Worker;
   let startedAt = 0;
@@ -183,9 +176,6 @@ function workerStore(file: string, options: StoreSettings & { nowMs: () => numbe
       } else if (m.type === "flushFailed") {
         flushes.get(m.id)?.reject(new Error(m.error));
         flushes.delete(m.id);
-      } else if (m.type === "openRollups") {
-        lookups.get(m.reqId)?.(m.open);
-        lookups.delete(m.reqId);
       } else if (m.type === "closed") closing?.();
     });
     worker.on("error", (err) => log(`[ingest] store worker failed: ${err.stack ?? String(err)}`));
@@ -194,8 +184,6 @@ function workerStore(file: string, options: StoreSettings & { nowMs: () => numbe
       // held in memory from raw readings, as after any unclean stop.
       for (const f of flushes.values()) f.reject(new Error(`store worker exited (${code})`));
       flushes.clear();
-      for (const l of lookups.values()) l({ sealedBefore: Infinity, minutes: [] });
-      lookups.clear();
       if (closing) return closing();
       if (Date.now() - startedAt < 5000) {
         broken = new Error(`the store worker exited with ${code} right after starting`);
@@ -217,12 +205,6 @@ function workerStore(file: string, options: StoreSettings & { nowMs: () => numbe
         post({ type: "flush", flush }, [flush.pointId.buffer as ArrayBuffer, flush.ts.buffer as ArrayBuffer, flush.value.buffer as ArrayBuffer, flush.quality.buffer as ArrayBuffer]);
       }),
     maintain: (nowMs) => post({ type: "maintain", nowMs }),
-    openRollups: (pointId) =>
-      new Promise<OpenRollups>((resolve) => {
-        const reqId = nextReq++;
-        lookups.set(reqId, resolve);
-        post({ type: "openRollups", reqId, pointId });
-      }),
     forget: (pointIds) => post({ type: "forget", pointIds: [...pointIds] }),
     close: (nowMs) =>
       new Promise<void>((resolve) => {
@@ -412,7 +394,6 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
       await checkpointer?.stop();
     },
     stats: () => ({ ...stats, queued: queuedRows, ...store.stats() }),
-    openRollups: (pointId) => store.openRollups(pointId),
     forget: (pointIds) => store.forget(pointIds),
   };
 }

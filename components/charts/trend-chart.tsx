@@ -97,7 +97,7 @@ export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { si
       <div ref={box} className="w-full overflow-hidden rounded-lg border border-line bg-panel p-2" data-testid="trend" role="img" aria-label={`Trend of ${label}`} />
       {data ? (
         <p className="text-xs text-muted">
-          {data.series.source === "raw" ? "Raw readings" : "1-minute rollups"}
+          {data.series.source === "raw" ? "Raw readings" : data.series.source === "rollup_1h" ? "1-hour rollups" : "1-minute rollups"}
           {data.series.bucketMs ? `, ${Math.round(data.series.bucketMs / 1000)} s buckets (min/max band, average line)` : ""}. Drag to zoom, double-click to reset.
         </p>
       ) : null}

@@ -1,6 +1,7 @@
+import type Database from "better-sqlite3";
 import { and, asc, eq, gte, lt, sql } from "drizzle-orm";
 import type { Db } from "../client";
-import { equipment, gatewayPointMaps, gateways, latestValues, points, readings, readings1m, sites } from "../schema";
+import { equipment, gatewayPointMaps, gateways, latestValues, points, readings, sites } from "../schema";
 import { canSeeSite } from "./sites";
 import { listGatewayPresence } from "./gateways";
 import type { Viewer } from "@/lib/auth/viewer";
@@ -13,6 +14,7 @@ import { freshnessByGateway, isStale, siteStatuses, type MappedPoint, type SiteD
 // stay visible) and the latest value of every point with its age. Viewer-scoped.
 
 const MINUTE_MS = 60_000;
+const HOUR_MS = 3_600_000;
 const qualityNames = ["good", "uncertain", "bad"] as const;
 
 export interface SeriesQuery {
@@ -30,7 +32,7 @@ export interface SeriesDto {
   unitSystem: "ip" | "si";
   from: string;
   to: string;
-  source: "raw" | "rollup_1m";
+  source: "raw" | "rollup_1m" | "rollup_1h";
   /** Bucket width; null when every raw reading is returned as is. */
   bucketMs: number | null;
   /** Columnar: time[i] (ms since epoch, bucket start) goes with min[i], max[i], avg[i], count[i]. */
@@ -68,7 +70,7 @@ export function getSeries(
   viewer: Viewer,
   pointId: number,
   q: SeriesQuery,
-  opts: { nowMs: number; rawRetentionMs: number; open?: { sealedBefore: number; minutes: readonly OpenMinute[] } },
+  opts: { nowMs: number; rawRetentionMs: number },
 ): SeriesDto {
   const p = pointInfo(db, viewer, pointId);
   const system = viewer.unitSystem;
@@ -130,52 +132,83 @@ export function getSeries(
     return columnar(base, "raw", w, rows, conv);
   }
 
-  // Rollup buckets are whole minutes, so the width is too.
-  const w = Math.max(MINUTE_MS, Math.ceil(rawWidth / MINUTE_MS) * MINUTE_MS);
-  const fromBucket = Math.floor(q.fromMs / MINUTE_MS) * MINUTE_MS;
-  const rows = db
-    .select({
-      t: sql<number>`(${readings1m.bucket} / ${sql.raw(String(w))}) * ${sql.raw(String(w))}`,
-      min: sql<number>`min(${readings1m.min})`,
-      max: sql<number>`max(${readings1m.max})`,
-      sum: sql<number>`sum(${readings1m.sum})`,
-      count: sql<number>`sum(${readings1m.count})`,
-    })
-    .from(readings1m)
-    // Minutes from the writer's watermark on come from `open` (sealed since it was read, or not yet).
-    .where(and(eq(readings1m.pointId, pointId), gte(readings1m.bucket, fromBucket), lt(readings1m.bucket, Math.min(q.toMs, opts.open?.sealedBefore ?? Infinity))))
-    .groupBy(sql`1`)
-    .orderBy(sql`1`)
-    .all();
-  // Minutes still open in the ingest writer are not in readings_1m yet; they belong to the trend.
-  const open = (opts.open?.minutes ?? []).filter((m) => m.bucket >= fromBucket && m.bucket < q.toMs);
-  const merged = open.length ? mergeMinutes(rows, open, w) : rows;
-  return columnar(base, "rollup_1m", w, merged.map((r) => ({ t: r.t, min: r.min, max: r.max, avg: r.sum / r.count, count: r.count })), conv);
+  // A range of many hours reads hourly rollups (720 rows for 30 days instead of 43,200
+  // minutes) as long as that still gives at least half the buckets asked for.
+  const tier = Math.ceil(span / HOUR_MS) * 2 >= q.maxPoints ? HOUR_MS : MINUTE_MS;
+  // Buckets are whole minutes (or hours), so the width is too.
+  const w = Math.max(tier, Math.ceil(rawWidth / tier) * tier);
+  const rows = rollupBuckets(db.$client, pointId, Math.floor(q.fromMs / tier) * tier, q.toMs, w, tier);
+  return columnar(base, tier === HOUR_MS ? "rollup_1h" : "rollup_1m", w, rows.map((r) => ({ t: r.t, min: r.min, max: r.max, avg: r.sum / r.count, count: r.count })), conv);
 }
 
-export interface OpenMinute {
-  bucket: number;
-  min: number;
-  max: number;
-  sum: number;
-  count: number;
+type Bucket = { t: number; min: number; max: number; sum: number; count: number };
+
+// Statements prepared once per connection: a trend request runs three of them.
+const bucketStatements = new WeakMap<Database.Database, ReturnType<typeof prepareBucketStatements>>();
+function prepareBucketStatements(sqlite: Database.Database) {
+  // The width is cast: a bound JS number arrives as REAL and the division would not floor.
+  const rollup = (table: string) =>
+    sqlite.prepare<{ p: number; from: number; to: number; w: number }, Bucket>(
+      `select (bucket / cast(@w as integer)) * cast(@w as integer) as t, min(min) as min, max(max) as max, sum(sum) as sum, sum(count) as count
+       from ${table} where point_id = @p and bucket >= @from and bucket < @to group by 1 order by 1`,
+    );
+  return {
+    watermark: sqlite.prepare<[], number>("select value from ingest_state where key = 'rollups_sealed_before'").pluck(),
+    hours: rollup("readings_1h"),
+    minutes: rollup("readings_1m"),
+    raw: sqlite.prepare<{ p: number; from: number; to: number; w: number }, Bucket>(
+      `select (ts / cast(@w as integer)) * cast(@w as integer) as t, min(value) as min, max(value) as max, sum(value) as sum, count(value) as count
+       from readings where point_id = @p and ts >= @from and ts < @to and value is not null group by 1 order by 1`,
+    ),
+  };
 }
 
-/** Adds open minutes to stored buckets of width `w` (both sorted by time). */
-function mergeMinutes(rows: Array<{ t: number; min: number; max: number; sum: number; count: number }>, open: readonly OpenMinute[], w: number) {
-  const byT = new Map(rows.map((r) => [r.t, { ...r }]));
-  for (const m of open) {
-    const t = Math.floor(m.bucket / w) * w;
-    const r = byT.get(t);
-    if (!r) byT.set(t, { t, min: m.min, max: m.max, sum: m.sum, count: m.count });
+/**
+ * A point's buckets of width `w` over [fromMs, toMs) from rollups, in one read transaction so
+ * the watermark and the rows are one snapshot. readings_1m holds every minute before the
+ * watermark; hours are complete up to the hour the watermark is in; from the watermark on
+ * (minutes still open in the ingest writer, or part-way written) the buckets are aggregated
+ * from raw readings, a few minutes of one point. Asking the store worker for its open minutes
+ * instead waited behind whatever flush it was committing.
+ */
+function rollupBuckets(sqlite: Database.Database, pointId: number, fromMs: number, toMs: number, w: number, tier: number): Bucket[] {
+  let st = bucketStatements.get(sqlite);
+  if (!st) bucketStatements.set(sqlite, (st = prepareBucketStatements(sqlite)));
+  const s = st;
+  return sqlite.transaction(() => {
+    const sealedBefore = s.watermark.get() ?? Infinity;
+    // Where each source ends: hours up to the watermark's hour, minutes up to the watermark.
+    const hoursEnd = tier === HOUR_MS ? Math.min(toMs, Math.floor(sealedBefore / HOUR_MS) * HOUR_MS) : fromMs;
+    const minutesEnd = Math.min(toMs, sealedBefore);
+    let out = hoursEnd > fromMs ? s.hours.all({ p: pointId, from: fromMs, to: hoursEnd, w }) : [];
+    const minutesFrom = Math.max(fromMs, hoursEnd);
+    if (minutesEnd > minutesFrom) out = mergeBuckets(out, s.minutes.all({ p: pointId, from: minutesFrom, to: minutesEnd, w }));
+    const rawFrom = Math.max(fromMs, sealedBefore);
+    if (toMs > rawFrom) out = mergeBuckets(out, s.raw.all({ p: pointId, from: rawFrom, to: toMs, w }));
+    return out;
+  })();
+}
+
+/** Two bucket lists of one width, each sorted by time and from adjacent ranges, as one series. */
+function mergeBuckets(a: Bucket[], b: Bucket[]): Bucket[] {
+  if (a.length === 0) return b;
+  if (b.length === 0) return a;
+  const out: Bucket[] = [];
+  let i = 0;
+  let j = 0;
+  while (i < a.length || j < b.length) {
+    const x = a[i];
+    const y = b[j];
+    if (y === undefined || (x !== undefined && x.t < y.t)) out.push(a[i++]);
+    else if (x === undefined || y.t < x.t) out.push(b[j++]);
     else {
-      r.min = Math.min(r.min, m.min);
-      r.max = Math.max(r.max, m.max);
-      r.sum += m.sum;
-      r.count += m.count;
+      // The bucket where one source ends and the next begins holds rows of both.
+      out.push({ t: x.t, min: Math.min(x.min, y.min), max: Math.max(x.max, y.max), sum: x.sum + y.sum, count: x.count + y.count });
+      i++;
+      j++;
     }
   }
-  return [...byT.values()].sort((a, b) => a.t - b.t);
+  return out;
 }
 
 function columnar(
@@ -348,15 +381,4 @@ export function storedLatestValues(db: Db): Array<{ pointId: number; tsMs: numbe
 /** All point ids, for the pruner to walk one primary-key range at a time. */
 export function allPointIds(db: Db): number[] {
   return db.select({ id: points.id }).from(points).orderBy(asc(points.id)).all().map((p) => p.id);
-}
-
-/**
- * Background pruning of one point's old rows, at most `limit` per call. The primary key is
- * (point_id, ts), so this is a range delete, never a table scan.
- */
-export function pruneChunk(db: Db, table: "readings" | "readings_1m", pointId: number, beforeMs: number, limit = 5000): number {
-  const col = table === "readings" ? "ts" : "bucket";
-  return db.$client
-    .prepare(`delete from ${table} where point_id = ? and ${col} in (select ${col} from ${table} where point_id = ? and ${col} < ? order by ${col} limit ?)`)
-    .run(pointId, pointId, beforeMs, limit).changes;
 }

@@ -3,7 +3,7 @@ import { index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from
 import { points, sites } from "./core";
 
 // Site gateways, their point maps, and the readings they deliver.
-// `readings` and `readings_1m` are WITHOUT ROWID tables (a custom migration rebuilds them):
+// `readings`, `readings_1m` and `readings_1h` are WITHOUT ROWID tables (custom migrations):
 // their primary key is the only index they need, and the rows are stored in it.
 
 const createdAt = () =>
@@ -125,6 +125,28 @@ export const readings1m = sqliteTable(
       .notNull()
       .references(() => points.id, { onDelete: "cascade" }),
     /** Start of the minute, ms. */
+    bucket: integer("bucket").notNull(),
+    min: real("min").notNull(),
+    max: real("max").notNull(),
+    sum: real("sum").notNull(),
+    count: integer("count").notNull(),
+    last: real("last").notNull(),
+    lastTs: integer("last_ts").notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.pointId, t.bucket] })],
+);
+
+/**
+ * 1-hour rollups, kept beside the minutes so a month-long trend reads 720 rows instead of
+ * 43,200. Each sealed minute is added to its hour in the same transaction (gateway/rollups.ts).
+ */
+export const readings1h = sqliteTable(
+  "readings_1h",
+  {
+    pointId: integer("point_id")
+      .notNull()
+      .references(() => points.id, { onDelete: "cascade" }),
+    /** Start of the hour, ms. */
     bucket: integer("bucket").notNull(),
     min: real("min").notNull(),
     max: real("max").notNull(),

@@ -12,8 +12,6 @@ export interface Runtime {
   alarms?: import("./alarms/service").AlarmService;
   /** Whether a site's data is live, stale, offline or has no gateway at all. */
   siteDataStatus?: (siteId: string) => "live" | "stale" | "offline" | "no_gateway";
-  /** A point's 1-minute rollups still open in the ingest writer (not yet in readings_1m). */
-  openRollups?: (pointId: number) => Promise<{ sealedBefore: number; minutes: ReadonlyArray<{ bucket: number; min: number; max: number; sum: number; count: number }> }>;
   /** The newest committed value of a point, held in memory (latest_values is written behind it). */
   latestValue?: import("@/db/queries/readings").LatestInMemory;
   /** Demo mode's simulated gateways (absent when LIFTLINE_SIMULATOR=0 or not in demo mode). */

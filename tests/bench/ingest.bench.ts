@@ -87,6 +87,25 @@ interface BenchGateway {
   names: string[];
   /** Base value of each point; numbers get ±0.2 % scatter on the wire. */
   values: Array<number | boolean>;
+  /** The trend requests' point: the first this gateway maps. */
+  firstPointId: number;
+}
+
+/**
+ * 30 days of 1-minute rollups for the point the trend requests read (43,200 rows, a daily
+ * swing of ±3 % around its design value), so the request reads what a month of history costs.
+ * The minutes up to now come from the running ingestion (open minutes from raw readings).
+ */
+function seedTrendHistory(sqlite: Database.Database, pointId: number, base: number) {
+  const MINUTE_MS = 60_000;
+  const end = Math.floor((Date.now() - 60_000) / MINUTE_MS) * MINUTE_MS;
+  const insert = sqlite.prepare("insert into readings_1m (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, ?, ?, ?, ?, ?, ?)");
+  sqlite.transaction(() => {
+    for (let bucket = end - 30 * 86_400_000; bucket < end; bucket += MINUTE_MS) {
+      const v = base * (1 + 0.03 * Math.sin((2 * Math.PI * bucket) / 86_400_000));
+      insert.run(pointId, bucket, v * 0.998, v * 1.002, v * 12, 12, v, bucket + 55_000);
+    }
+  })();
 }
 
 function prepareDatabase(file: string): BenchGateway[] {
@@ -107,6 +126,7 @@ function prepareDatabase(file: string): BenchGateway[] {
       tx.insert(gateways).values({ id, siteId, name: `Bench ${g}`, protocol: "json", username: id, passwordHash: hash }).run();
       const names: string[] = [];
       const values: Array<number | boolean> = [];
+      let firstPointId = 0;
       for (let e = 0; names.length < env.BENCH_POINTS_PER_GATEWAY; e++) {
         const equipmentId = `${siteId}:CH-${e + 1}`;
         tx.insert(equipment).values({ id: equipmentId, siteId, tag: `CH-${e + 1}`, name: `Chiller ${e + 1}`, kind: "chiller" }).run();
@@ -117,6 +137,7 @@ function prepareDatabase(file: string): BenchGateway[] {
             .values({ equipmentId, key, quantity: key, unit: canonicalUnitOf(key), brickClass: quantities[key].brickClass, expectedIntervalS: 5 })
             .returning({ id: points.id })
             .get();
+          if (names.length === 0) firstPointId = p.id;
           const name = `P${names.length}`;
           names.push(name);
           values.push(design.get(key) ?? 0);
@@ -124,9 +145,10 @@ function prepareDatabase(file: string): BenchGateway[] {
           tx.insert(gatewayPointMaps).values({ gatewayId: id, gatewayPoint: name, pointId: p.id, unit }).run();
         }
       }
-      gws.push({ id, siteId, names, values });
+      gws.push({ id, siteId, names, values, firstPointId });
     }
   });
+  seedTrendHistory(db.$client, gws[0].firstPointId, typeof gws[0].values[0] === "number" ? gws[0].values[0] : 1);
   db.$client.close();
   return gws;
 }
@@ -256,8 +278,9 @@ async function main() {
     const publishers = gws.map((g, i) => makePublisher(g, clients.find((c) => c.options.clientId === g.id) ?? clients[i]));
 
     // Warm the series route (a development server compiles it on first use), then time it idle.
-    const trendUrl = `${server.url}/api/points/1/series?from=${Date.now() - 30 * 86_400_000}&to=${Date.now()}&maxPoints=1000`;
-    await fetch(trendUrl, { headers: { cookie: cookie! } });
+    const trendUrl = `${server.url}/api/points/${gws[0].firstPointId}/series?from=${Date.now() - 30 * 86_400_000}&to=${Date.now()}&maxPoints=1000`;
+    const first = (await (await fetch(trendUrl, { headers: { cookie: cookie! } })).json()) as { series: { time: number[]; count: number[] } };
+    console.log(`30-day trend of point ${gws[0].firstPointId}: ${first.series.time.length} buckets over ${fmt(first.series.count.reduce((a, b) => a + b, 0))} readings`);
     const idleTrend: number[] = [];
     for (let i = 0; i < 20; i++) {
       const t0 = performance.now();

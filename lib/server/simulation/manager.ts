@@ -4,6 +4,7 @@ import { alarmEvents, alarms, equipment, latestValues, points, readings, reading
 import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } from "@/db/queries/gateways";
 import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
 import { notifyGatewayChanged } from "@/gateway/link";
+import { hourRebuilder } from "@/gateway/rollups";
 import { newAlarm, type Alarm } from "@/lib/alarms";
 import { systemViewer } from "@/lib/auth/viewer";
 import { parsePointMapCsv } from "@/gateway/point-map-csv";
@@ -90,6 +91,8 @@ export async function createSimulationManager(deps: {
       if (pointIds.length) {
         tx.delete(readings).where(and(inArray(readings.pointId, pointIds), gte(readings.ts, fromMs))).run();
         tx.delete(readings1m).where(and(inArray(readings1m.pointId, pointIds), gte(readings1m.bucket, fromMs - 60_000))).run();
+        const rebuildHours = hourRebuilder(db.$client);
+        for (const id of pointIds) rebuildHours(id, fromMs - 60_000);
         tx.delete(latestValues).where(inArray(latestValues.pointId, pointIds)).run();
       }
       for (const row of tx.select().from(alarms).where(eq(alarms.siteId, siteId)).all()) {

@@ -54,10 +54,11 @@ function insertRaw(db: Db, rows: Array<[pointId: number, ts: number]>) {
   })();
 }
 
+/** The same buckets in both rollup tables (the pruner treats minutes and hours alike). */
 function insertRollups(db: Db, rows: Array<[pointId: number, bucket: number]>) {
-  const st = db.$client.prepare("insert into readings_1m (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, 1, 2, 3, 2, 2, ?)");
+  const st = ["readings_1m", "readings_1h"].map((t) => db.$client.prepare(`insert into ${t} (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, 1, 2, 3, 2, 2, ?)`));
   db.$client.transaction(() => {
-    for (const [p, b] of rows) st.run(p, b, b + 30_000);
+    for (const [p, b] of rows) for (const s of st) s.run(p, b, b + 30_000);
   })();
 }
 
@@ -113,8 +114,8 @@ describe("retention pruner", () => {
     const pruner = track(db, startPruner({ db, clock, rawRetentionMs: 14 * DAY_MS, rollupRetentionMs: 730 * DAY_MS }));
     const removed = await pruner.runOnce();
 
-    // 3 points × 2 old raw readings + point 3's one; 3 points × 2 old rollups.
-    expect(removed).toEqual({ readings: 7, rollups: 6 });
+    // 3 points × 2 old raw readings + point 3's one; 3 points × 2 old rollups, minutes and hours.
+    expect(removed).toEqual({ readings: 7, rollups: 12 });
     for (const p of [1, 2, 207]) {
       expect(rawTs(db, p)).toEqual(rawKept);
       expect(rollupBuckets(db, p)).toEqual(rollKept);
@@ -122,6 +123,7 @@ describe("retention pruner", () => {
     expect(rawTs(db, 3)).toEqual([]);
     expect(count(db, "readings")).toBe(3 * rawKept.length);
     expect(count(db, "readings_1m")).toBe(3 * rollKept.length);
+    expect(count(db, "readings_1h")).toBe(3 * rollKept.length);
     expect(db.$client.prepare("select * from latest_values order by point_id").all()).toEqual(latestBefore);
 
     // A second pass finds nothing more to do.
@@ -148,7 +150,7 @@ describe("retention pruner", () => {
     while (lines.length === 0 && performance.now() < until) await new Promise((r) => setTimeout(r, 10));
     expect(rawTs(db, 5)).toEqual([NOW - 3 * DAY_MS, NOW - 2 * DAY_MS]);
     expect(rollupBuckets(db, 5)).toEqual([NOW - 30 * DAY_MS, NOW - 10 * DAY_MS]);
-    expect(lines).toEqual(["[prune] removed 1 raw readings and 1 rollups past retention"]);
+    expect(lines).toEqual(["[prune] removed 1 raw readings and 2 rollups past retention"]);
   });
 
   it("prunes a 200k-row backlog in short slices while ingestion goes on", async () => {

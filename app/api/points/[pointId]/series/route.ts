@@ -5,7 +5,6 @@ import { getSeries } from "@/db/queries/readings";
 import { AppError } from "@/lib/errors";
 import { loadConfig } from "@/lib/server/config";
 import { route } from "@/lib/server/http";
-import { getRuntime } from "@/lib/server/runtime";
 
 export const dynamic = "force-dynamic";
 
@@ -29,7 +28,5 @@ export const GET = route<{ params: Promise<{ pointId: string }> }>(async (reques
   if (fromMs >= toMs) throw new AppError("bad_request", "`from` must be before `to`.");
   if (toMs - fromMs > MAX_SPAN_MS) throw new AppError("bad_request", "The range can be at most two years.");
   const rawRetentionMs = loadConfig().RAW_RETENTION_DAYS * 86_400_000;
-  // Minutes still open in the ingest writer are part of the trend.
-  const open = await getRuntime()?.openRollups?.(pointId);
-  return Response.json({ series: getSeries(getDb(), viewer, pointId, { fromMs, toMs, maxPoints: q.maxPoints }, { nowMs: now, rawRetentionMs, open }) });
+  return Response.json({ series: getSeries(getDb(), viewer, pointId, { fromMs, toMs, maxPoints: q.maxPoints }, { nowMs: now, rawRetentionMs }) });
 });
