@@ -68,11 +68,18 @@ export interface GatewayFreshness {
  * portfolio's 100,000 mapped points every status round: rows grouped by gateway (as
  * `mappedPoints` returns them) cost one map lookup per gateway, not per point.
  */
-export function freshnessByGateway(mapped: readonly MappedPoint[], latestTs: (pointId: number) => number | null | undefined, nowMs: number): Map<string, GatewayFreshness> {
-  const byGateway = new Map<string, GatewayFreshness>();
+export function freshnessByGateway(
+  mapped: readonly MappedPoint[],
+  latestTs: (pointId: number) => number | null | undefined,
+  nowMs: number,
+  /** A part of `mapped` only, added to `into` (the live publisher spreads a round over several turns). */
+  part: { from: number; to: number; into: Map<string, GatewayFreshness> } = { from: 0, to: mapped.length, into: new Map() },
+): Map<string, GatewayFreshness> {
+  const byGateway = part.into;
   let lastGateway: string | undefined;
   let f: GatewayFreshness | undefined;
-  for (const m of mapped) {
+  for (let i = part.from; i < part.to; i++) {
+    const m = mapped[i];
     if (m.gatewayId !== lastGateway || !f) {
       lastGateway = m.gatewayId;
       f = byGateway.get(m.gatewayId);

@@ -69,6 +69,16 @@ const canonicalLib: Partial<Record<Measure, convert.Unit>> = {
 };
 
 /**
+ * An affine conversion's factor and offset, to 15 significant digits: f(1) − f(0) carries
+ * float noise in the last digits (1.7999999999999972 for °C → °F) that would otherwise show up
+ * in every converted value. Published factors have fewer digits than that (NIST SP 811 App. B).
+ */
+function affine(f: (v: number) => number): { scale: number; offset: number } {
+  const round = (x: number) => Number(x.toPrecision(15));
+  return { scale: round(f(1) - f(0)), offset: round(f(0)) };
+}
+
+/**
  * Each wire unit's conversion to canonical as `value × scale + offset`, taken from convert-units
  * once (every unit here is affine: a factor, plus an offset for °F and gauge pressures). A
  * convert-units call per reading cost more than storing the reading.
@@ -78,8 +88,8 @@ const toCanonicalAffine = Object.fromEntries(
     const unit: WireUnit = wireUnits[code];
     const target = canonicalLib[unit.measure];
     const f = (v: number) => (!unit.lib || !target || unit.lib === target ? v : convert(v).from(unit.lib).to(target));
-    const offset = f(0) + (unit.gauge ? STANDARD_ATMOSPHERE_KPA : 0);
-    return [code, { scale: f(1) - f(0), offset }];
+    const { scale, offset } = affine(f);
+    return [code, { scale, offset: offset + (unit.gauge ? STANDARD_ATMOSPHERE_KPA : 0) }];
   }),
 ) as Record<WireUnitCode, { scale: number; offset: number }>;
 
@@ -133,12 +143,28 @@ export function displayUnit(measure: Measure, system: UnitSystem): string {
 }
 
 /** A canonical value in the viewer's unit system (numbers only). */
+/** Canonical to display as `value × scale + offset`, from convert-units once per system and measure (a trend converts thousands of values). */
+const fromCanonicalAffine = Object.fromEntries(
+  (["ip", "si"] as const).map((system) => [
+    system,
+    Object.fromEntries(
+      (Object.keys(displayUnits[system]) as Measure[]).map((measure) => {
+        const unit = displayUnits[system][measure];
+        const source = canonicalLib[measure];
+        const f = (value: number) => {
+          if (!unit.lib || !source) return value;
+          const absolute = unit.gauge ? value - STANDARD_ATMOSPHERE_KPA : value;
+          return unit.lib === source ? absolute : convert(absolute).from(source).to(unit.lib);
+        };
+        return [measure, affine(f)];
+      }),
+    ),
+  ]),
+) as Record<UnitSystem, Record<Measure, { scale: number; offset: number }>>;
+
 export function fromCanonical(value: number, measure: Measure, system: UnitSystem): number {
-  const unit = displayUnits[system][measure];
-  const source = canonicalLib[measure];
-  if (!unit.lib || !source) return value;
-  const absolute = unit.gauge ? value - STANDARD_ATMOSPHERE_KPA : value;
-  return unit.lib === source ? absolute : convert(absolute).from(source).to(unit.lib);
+  const a = fromCanonicalAffine[system][measure];
+  return value * a.scale + a.offset;
 }
 
 /** A temperature difference (ΔT, approach, margin) in the viewer's units: scale only, no offset. */

@@ -1,7 +1,7 @@
 import type { Db } from "@/db/client";
 import { listGatewayPresence } from "@/db/queries/gateways";
 import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
-import { freshnessByGateway, siteStatuses, type MappedPoint, type SiteStatusRow } from "@/gateway/status";
+import { freshnessByGateway, siteStatuses, type GatewayFreshness, type MappedPoint, type SiteStatusRow } from "@/gateway/status";
 import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "./events";
 import type { RealtimeServer } from "./server";
 
@@ -57,11 +57,12 @@ export interface LivePublisher {
   mappingChanged(): void;
   /** Drops the remembered values of these points (a simulated site's timeline was replaced). */
   forget(pointIds: readonly number[]): void;
-  flushNow(): void;
   stop(): void;
 }
 
 const qualityNames = ["good", "uncertain", "bad"] as const;
+/** Longest stretch of a status round between two turns of the event loop. */
+const STATUS_SLICE_MS = 2;
 
 export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
   const now = () => opts.clock?.now() ?? Date.now();
@@ -81,11 +82,39 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
   // What was stored before this start, so sites are not "stale" until every point reports again.
   for (const v of storedLatestValues(opts.db)) latest.set(v.pointId, v);
 
+  const latestTs = (id: number) => latest.get(id)?.tsMs;
+  function currentMapping(nowMs: number) {
+    if (!mapping || nowMs - mapping.loadedAt > MAPPING_TTL_MS) mapping = { siteIds: allSiteIds(opts.db), mapped: mappedPoints(opts.db), loadedAt: nowMs };
+    return mapping;
+  }
+
+  /** All at once: when a status is asked for and none is current (after a presence change). */
   function computeStatuses() {
     const nowMs = now();
-    if (!mapping || nowMs - mapping.loadedAt > MAPPING_TTL_MS) mapping = { siteIds: allSiteIds(opts.db), mapped: mappedPoints(opts.db), loadedAt: nowMs };
-    const freshness = freshnessByGateway(mapping.mapped, (id) => latest.get(id)?.tsMs, nowMs);
-    statuses = siteStatuses({ siteIds: mapping.siteIds, presence: listGatewayPresence(opts.db), freshness, nowMs });
+    const m = currentMapping(nowMs);
+    statuses = siteStatuses({ siteIds: m.siteIds, presence: listGatewayPresence(opts.db), freshness: freshnessByGateway(m.mapped, latestTs, nowMs), nowMs });
+    return statuses;
+  }
+
+  /**
+   * A status round spread over turns of the event loop, STATUS_SLICE_MS of work at a time: over
+   * a portfolio's 100,000 mapped points a round took 15–30 ms, which every request that arrived
+   * meanwhile waited out.
+   */
+  async function computeStatusesInSlices() {
+    const nowMs = now();
+    const m = currentMapping(nowMs);
+    const into = new Map<string, GatewayFreshness>();
+    const step = 5000;
+    let until = performance.now() + STATUS_SLICE_MS;
+    for (let from = 0; from < m.mapped.length; from += step) {
+      freshnessByGateway(m.mapped, latestTs, nowMs, { from, to: Math.min(m.mapped.length, from + step), into });
+      if (performance.now() >= until) {
+        await new Promise((resolve) => setImmediate(resolve));
+        until = performance.now() + STATUS_SLICE_MS;
+      }
+    }
+    statuses = siteStatuses({ siteIds: m.siteIds, presence: listGatewayPresence(opts.db), freshness: into, nowMs });
     return statuses;
   }
 
@@ -98,16 +127,23 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
     opts.io.to(room).emit("site:values", payload);
   }
 
-  /** Sends every site whose interval has passed (`all`: every pending site). */
-  function pushValues(all = false) {
+  /** Sends every site whose interval has passed. */
+  function pushValues() {
     if (pending.size === 0) return;
     const at = performance.now();
-    for (const [siteId, values] of pending) if (all || at - (lastPushed.get(siteId) ?? -Infinity) >= pushMs) pushSite(siteId, values, at);
+    for (const [siteId, values] of pending) if (at - (lastPushed.get(siteId) ?? -Infinity) >= pushMs) pushSite(siteId, values, at);
   }
 
+  let statusRound: Promise<void> | undefined;
   function pushStatus() {
+    statusRound ??= emitStatus()
+      .catch((err) => console.error(`[live] status round failed: ${err instanceof Error ? err.stack : err}`))
+      .finally(() => (statusRound = undefined));
+  }
+
+  async function emitStatus() {
     statusDue = false;
-    for (const [siteId, s] of computeStatuses()) {
+    for (const [siteId, s] of await computeStatusesInSlices()) {
       const extras = opts.alarmSummary?.(siteId) ?? { worst: null, unacknowledged: 0 };
       const payload: SiteStatus = { siteId, data: s.data, ...extras };
       const key = JSON.stringify(payload);
@@ -171,10 +207,6 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
     forget(pointIds) {
       for (const id of pointIds) latest.delete(id);
       statusDue = true;
-    },
-    flushNow() {
-      pushValues(true);
-      pushStatus();
     },
     stop() {
       for (const t of [valuesTimer, statusTimer, dueTimer]) clearInterval(t);

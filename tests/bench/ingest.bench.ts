@@ -92,7 +92,7 @@ interface BenchGateway {
 }
 
 /**
- * 30 days of 1-minute rollups for the point the trend requests read (43,200 rows, a daily
+ * 30 days of 1-minute rollups (43,200 rows) and their hours for the point the trend requests read (a daily
  * swing of ±3 % around its design value), so the request reads what a month of history costs.
  * The minutes up to now come from the running ingestion (open minutes from raw readings).
  */
@@ -105,6 +105,13 @@ function seedTrendHistory(sqlite: Database.Database, pointId: number, base: numb
       const v = base * (1 + 0.03 * Math.sin((2 * Math.PI * bucket) / 86_400_000));
       insert.run(pointId, bucket, v * 0.998, v * 1.002, v * 12, 12, v, bucket + 55_000);
     }
+    // Their hours, as the writer keeps them beside the minutes.
+    sqlite
+      .prepare(
+        `insert into readings_1h (point_id, bucket, min, max, sum, count, last, last_ts)
+         select point_id, (bucket / 3600000) * 3600000 as hour, min(min), max(max), sum(sum), sum(count), sum(sum) / sum(count), max(last_ts) from readings_1m where point_id = ? group by 1, 2`,
+      )
+      .run(pointId);
   })();
 }
 
