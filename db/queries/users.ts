@@ -1,6 +1,6 @@
 import { randomUUID } from "node:crypto";
 import bcrypt from "bcryptjs";
-import { eq } from "drizzle-orm";
+import { and, eq } from "drizzle-orm";
 import type { Db } from "../client";
 import { users, type NewUser } from "../schema";
 import type { Role, Viewer } from "@/lib/auth/viewer";
@@ -37,8 +37,9 @@ export async function verifyCredentials(db: Db, email: string, password: string)
   return viewer;
 }
 
+/** An account that may act now: a disabled one is no viewer (its sessions, links and pages stop). */
 export function getViewerById(db: Db, userId: string): Viewer | null {
-  return db.select(viewerColumns).from(users).where(eq(users.id, userId)).get() ?? null;
+  return db.select(viewerColumns).from(users).where(and(eq(users.id, userId), eq(users.disabled, false))).get() ?? null;
 }
 
 export interface CreateUserInput {

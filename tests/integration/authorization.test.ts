@@ -136,6 +136,23 @@ describe("API tokens", () => {
     expect(after.status).toBe(401);
   });
 
+  it("a session cookie altered by one character is refused, and a disabled account's session stops on its next request", async () => {
+    // The session cookie's value is a sealed token; flipping one character of it breaks the seal.
+    const altered = cookies.technician.replace(/=([^;]*?)(.)(;|$)/, (_m, head: string, last: string, end: string) => `=${head}${last === "A" ? "B" : "A"}${end}`);
+    expect(altered).not.toBe(cookies.technician);
+    expect((await fetch(`${server.url}/api/sites`, { headers: { cookie: altered } })).status).toBe(401);
+    expect((await call("technician", "/api/sites")).status).toBe(200);
+    const db = new Database(server.databasePath);
+    try {
+      db.prepare("update users set disabled = 1 where email = ?").run(accounts.technician);
+      expect((await call("technician", "/api/sites")).status).toBe(401);
+    } finally {
+      db.prepare("update users set disabled = 0 where email = ?").run(accounts.technician);
+      db.close();
+    }
+    expect((await call("technician", "/api/sites")).status).toBe(200);
+  });
+
   it("refuse a made-up token and a malformed header", async () => {
     expect((await call({ bearer: "llt_not-a-real-token" }, "/api/sites")).status).toBe(401);
     expect((await fetch(server.url + "/api/sites", { headers: { authorization: "Basic abc" } })).status).toBe(401);
