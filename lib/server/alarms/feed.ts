@@ -11,8 +11,6 @@ import type { AlarmService } from "./service";
  * request's p99 was 64–311 ms over eleven runs with 8 ms slices, 65–157 ms over four with 3 ms.
  */
 const SLICE_MS = 3;
-/** Backlog (readings) beyond which the feed evaluates synchronously again. */
-const MAX_QUEUED_READINGS = 200_000;
 
 /** A committed reading as ingestion reports it: canonical value, event time. */
 export interface CommittedReading {
@@ -61,35 +59,32 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
     return remember(pointId, one.get({ pointId }));
   };
 
-  const evaluate = (siteId: string, readings: Reading[]) => {
+  const guarded = (siteId: string, work: () => void) => {
     try {
-      deps.service.ingest(siteId, readings);
+      work();
     } catch (err) {
       // A rule failure must never stop ingestion; it is logged and the next batch tries again.
       console.error(`[rules] ${siteId}: ${err instanceof Error ? err.stack : err}`);
     }
   };
 
-  // Rule checks run off the commit path, a few sites per turn of the event loop: every site's
-  // evaluation falls due in the same flush (they share the 5 s event-time step), and running
-  // all of them there held PUBACKs, socket pushes and page requests for hundreds of ms.
-  // Readings of one site stay in order; a Map keeps sites first-in, first-out.
-  const queued = new Map<string, Reading[]>();
-  let queuedReadings = 0;
+  // Readings go into each site's history as they commit (cheap: typed arrays); the rule checks
+  // run off the commit path, a few sites per turn of the event loop: every site's evaluation
+  // falls due in the same flush (they share the 5 s event-time step), and running all of them
+  // there held PUBACKs, socket pushes and page requests for hundreds of ms. Only site ids wait,
+  // not readings: queued reading objects lived long enough to be copied by every young-generation
+  // collection, whose pauses were the longest waits a page request met under load.
+  const due = new Set<string>();
   let scheduled = false;
-  /** Evaluates queued sites until `untilMs` (performance.now()) has passed; Infinity for all. */
-  const evaluateQueued = (untilMs: number) => {
-    for (const [siteId, readings] of queued) {
-      queued.delete(siteId);
-      queuedReadings -= readings.length;
-      evaluate(siteId, readings);
-      if (performance.now() >= untilMs) break;
-    }
-  };
   const drain = () => {
     scheduled = false;
-    evaluateQueued(performance.now() + SLICE_MS);
-    if (queued.size > 0) schedule();
+    const until = performance.now() + SLICE_MS;
+    for (const siteId of due) {
+      due.delete(siteId);
+      guarded(siteId, () => deps.service.evaluateDue(siteId));
+      if (performance.now() >= until) break;
+    }
+    if (due.size > 0) schedule();
   };
   const schedule = () => {
     if (scheduled) return;
@@ -97,6 +92,7 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
     setImmediate(drain);
   };
 
+  const bySite = new Map<string, Reading[]>();
   return (rows) => {
     let lastSite: string | undefined;
     let list: Reading[] | undefined;
@@ -107,14 +103,13 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
       // Rows of one message share a site; skip the map lookup while it does not change.
       if (r.siteId !== lastSite || !list) {
         lastSite = r.siteId;
-        list = queued.get(r.siteId);
-        if (!list) queued.set(r.siteId, (list = []));
+        list = bySite.get(r.siteId);
+        if (!list) bySite.set(r.siteId, (list = []));
       }
       list.push({ tsMs: r.ts, equipment: p.tag, quantity: p.quantity, value: r.live });
-      queuedReadings++;
     }
-    // If the rules fall this far behind, catch up here: ingestion slows instead of memory growing.
-    if (queuedReadings > MAX_QUEUED_READINGS) evaluateQueued(Infinity);
-    else if (queued.size > 0) schedule();
+    for (const [siteId, readings] of bySite) guarded(siteId, () => deps.service.record(siteId, readings) && due.add(siteId));
+    bySite.clear();
+    if (due.size > 0) schedule();
   };
 }

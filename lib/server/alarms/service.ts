@@ -30,7 +30,12 @@ export interface SiteEvaluationSummary {
 }
 
 export interface AlarmService {
+  /** record() then evaluateDue(): readings in, rules run when enough event time passed. */
   ingest(siteId: string, readings: readonly Reading[]): void;
+  /** Adds readings to the site's history; true when an evaluation is due (evaluateDue). */
+  record(siteId: string, readings: readonly Reading[]): boolean;
+  /** Runs the rule checks if a step of event time passed since the last evaluation. */
+  evaluateDue(siteId: string): void;
   /** Evaluates now even if little event time passed (tests, and the wall-clock timer). */
   evaluate(siteId: string, atMs?: number): SiteEvaluationSummary | null;
   command(viewer: Viewer, alarmId: string, command: AlarmCommand): { alarmId: string; state: string };
@@ -138,22 +143,33 @@ export function createAlarmService(deps: {
     return summary;
   }
 
+  function record(siteId: string, readings: readonly Reading[]): boolean {
+    if (!readings.length) return false;
+    const s = state(siteId);
+    // Usually already in event-time order; copied and sorted only when not.
+    let ordered = true;
+    for (let i = 1; i < readings.length && ordered; i++) ordered = readings[i - 1].tsMs <= readings[i].tsMs;
+    const sorted = ordered ? readings : [...readings].sort((a, b) => a.tsMs - b.tsMs);
+    s.monitor.ingest(sorted);
+    const newest = sorted[sorted.length - 1].tsMs;
+    if (newest > s.latestEventMs) {
+      s.latestEventMs = newest;
+      s.latestWallMs = deps.clock();
+    }
+    return s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS;
+  }
+
+  function evaluateDue(siteId: string) {
+    const s = sites.get(siteId);
+    if (s && s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS) evaluateAt(siteId, s, s.latestEventMs);
+  }
+
   return {
     ingest(siteId, readings) {
-      if (!readings.length) return;
-      const s = state(siteId);
-      // Usually already in event-time order; copied and sorted only when not.
-      let ordered = true;
-      for (let i = 1; i < readings.length && ordered; i++) ordered = readings[i - 1].tsMs <= readings[i].tsMs;
-      const sorted = ordered ? readings : [...readings].sort((a, b) => a.tsMs - b.tsMs);
-      s.monitor.ingest(sorted);
-      const newest = sorted[sorted.length - 1].tsMs;
-      if (newest > s.latestEventMs) {
-        s.latestEventMs = newest;
-        s.latestWallMs = deps.clock();
-      }
-      if (s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS) evaluateAt(siteId, s, s.latestEventMs);
+      if (record(siteId, readings)) evaluateDue(siteId);
     },
+    record,
+    evaluateDue,
     evaluate(siteId, atMs) {
       const s = state(siteId);
       const at = atMs ?? (Number.isFinite(s.latestEventMs) ? s.latestEventMs : deps.clock());
