@@ -20,7 +20,7 @@ export interface BrokerAuth {
  * sends PUBACK only after this callback, so holding it until the readings are committed
  * means an acknowledged reading is a stored reading.
  */
-export type PublishGate = (identity: ClientIdentity, packet: PublishPacket) => Promise<void>;
+export type PublishGate = (identity: ClientIdentity, packet: PublishPacket) => Promise<unknown>;
 
 export interface EmbeddedBrokerOptions {
   host: string;

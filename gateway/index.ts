@@ -99,10 +99,8 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
       host: opts.host,
       port: opts.mqttPort,
       auth: createGatewayAuth({ db, internal }),
-      onPublish: async (identity, packet) => {
-        if (identity.kind !== "gateway") return;
-        await ingest.handle(identity.gatewayId, packet.topic, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload));
-      },
+      onPublish: (identity, packet) =>
+        identity.kind !== "gateway" ? Promise.resolve() : ingest.handle(identity.gatewayId, packet.topic, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload)),
       onRefusedPublish: (identity, topic) => {
         if (identity.kind === "gateway") {
           log(`[mqtt] ${identity.gatewayId} may not publish on ${topic}; disconnecting`);
