@@ -91,7 +91,7 @@ describe("JSON gateway ingest", () => {
     expect(p.stale).toBe(true); // 50 s old at a 5 s expected interval: older than 3×
   });
 
-  it("picks 1-minute rollups for long ranges and keeps spikes as bucket min/max", async () => {
+  it("picks 1-minute or 1-hour rollups for long ranges and keeps spikes as bucket min/max", async () => {
     const base = Math.floor((Date.now() - 3 * 3_600_000) / 60_000) * 60_000;
     const readings = [];
     for (let m = 0; m < 30; m++) {
@@ -100,14 +100,20 @@ describe("JSON gateway ingest", () => {
     await publishQos1(clientA, topicOf(gwA), readingsMessage(readings));
     const site = await api(server, admin, `/api/sites/${SITE}`);
     const kwId = site.body.site.equipment.find((e: { tag: string }) => e.tag === "CH-1").points.find((p: { key: string }) => p.key === "compressor_power").id;
-    const res = await api(server, admin, `/api/points/${kwId}/series?from=${base}&to=${base + 24 * 3_600_000}&maxPoints=10`);
-    expect(res.status).toBe(200);
-    const s = res.body.series;
-    expect(s.source).toBe("rollup_1m");
-    expect(s.time.length).toBeLessThanOrEqual(10);
-    expect(Math.max(...s.max)).toBe(900);
-    expect(Math.min(...s.min)).toBe(200);
-    expect(s.count.reduce((a: number, b: number) => a + b, 0)).toBe(180);
+    // 24 h in 10 buckets reads hours; 3 h in 100 buckets reads minutes (108 s wide → 2 min).
+    for (const [hours, maxPoints, source] of [
+      [24, 10, "rollup_1h"],
+      [3, 100, "rollup_1m"],
+    ] as const) {
+      const res = await api(server, admin, `/api/points/${kwId}/series?from=${base}&to=${base + hours * 3_600_000}&maxPoints=${maxPoints}`);
+      expect(res.status).toBe(200);
+      const s = res.body.series;
+      expect(s.source).toBe(source);
+      expect(s.time.length).toBeLessThanOrEqual(maxPoints);
+      expect(Math.max(...s.max)).toBe(900);
+      expect(Math.min(...s.min)).toBe(200);
+      expect(s.count.reduce((a: number, b: number) => a + b, 0)).toBe(180);
+    }
   });
 
   it("lets a customer read its own site's series and latest values, never another site's", async () => {
