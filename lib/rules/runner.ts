@@ -74,7 +74,10 @@ export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; r
     ingest: (readings) => history.addAll(readings),
     evaluate(nowMs, comms) {
       const { conditions, snapshot } = evaluateRules({ site: args.site, history, settings, nowMs, comms, previous });
-      previous = conditions;
+      // Only the active ones are read back (dead bands). Holding every condition, messages and
+      // all, until the next evaluation 5 s later made ~60 KB per site outlive young-generation
+      // collections, which then copied it: at 400 sites, most of what those pauses copied.
+      previous = conditions.filter((c) => c.active);
       const delayed = conditions.map((c) => {
         const key = `${c.ruleId}:${c.equipment}`;
         const d = stepDelay(delays.get(key), c.active, nowMs, delaysFor(settings, c.ruleId));
