@@ -6,6 +6,7 @@ import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 import type { SeriesDto } from "@/db/queries/readings";
 import { fetchJson } from "@/lib/client/fetcher";
+import { formatDuration } from "@/lib/client/format";
 import type { Measure } from "@/lib/quantities";
 import { fromCanonical, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
@@ -98,7 +99,7 @@ export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { si
       {data ? (
         <p className="text-xs text-muted">
           {data.series.source === "raw" ? "Raw readings" : data.series.source === "rollup_1h" ? "1-hour rollups" : "1-minute rollups"}
-          {data.series.bucketMs ? `, ${Math.round(data.series.bucketMs / 1000)} s buckets (min/max band, average line)` : ""}. Drag to zoom, double-click to reset.
+          {data.series.bucketMs ? `, ${formatDuration(data.series.bucketMs / 1000)} buckets (min/max band, average line)` : ""}. Drag to zoom, double-click to reset.
         </p>
       ) : null}
     </div>

@@ -10,7 +10,7 @@ export function formatDuration(seconds: number | null | undefined): string {
   const m = Math.round(s / 60);
   if (m < 90) return `${m} min`;
   const h = Math.floor(m / 60);
-  return `${h} h ${m % 60} min`;
+  return m % 60 ? `${h} h ${m % 60} min` : `${h} h`;
 }
 
 /** A temperature difference (K) in the viewer's units: °F differences are 1.8 × K. */
