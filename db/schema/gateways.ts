@@ -117,46 +117,34 @@ export const readings = sqliteTable(
   (t) => [primaryKey({ columns: [t.pointId, t.ts] })],
 );
 
-/** 1-minute rollups of numeric readings, maintained as readings are stored; avg = sum / count. */
-export const readings1m = sqliteTable(
-  "readings_1m",
-  {
-    pointId: integer("point_id")
-      .notNull()
-      .references(() => points.id, { onDelete: "cascade" }),
-    /** Start of the minute, ms. */
-    bucket: integer("bucket").notNull(),
-    min: real("min").notNull(),
-    max: real("max").notNull(),
-    sum: real("sum").notNull(),
-    count: integer("count").notNull(),
-    last: real("last").notNull(),
-    lastTs: integer("last_ts").notNull(),
-  },
-  (t) => [primaryKey({ columns: [t.pointId, t.bucket] })],
-);
+/** The columns of a rollup table: one row per point and bucket; avg = sum / count. */
+const rollupTable = (name: "readings_1m" | "readings_1h") =>
+  sqliteTable(
+    name,
+    {
+      pointId: integer("point_id")
+        .notNull()
+        .references(() => points.id, { onDelete: "cascade" }),
+      /** Start of the bucket (minute or hour), ms. */
+      bucket: integer("bucket").notNull(),
+      min: real("min").notNull(),
+      max: real("max").notNull(),
+      sum: real("sum").notNull(),
+      count: integer("count").notNull(),
+      last: real("last").notNull(),
+      lastTs: integer("last_ts").notNull(),
+    },
+    (t) => [primaryKey({ columns: [t.pointId, t.bucket] })],
+  );
+
+/** 1-minute rollups of numeric readings, written when their minute closes (gateway/rollups.ts). */
+export const readings1m = rollupTable("readings_1m");
 
 /**
  * 1-hour rollups, kept beside the minutes so a month-long trend reads 720 rows instead of
- * 43,200. Each sealed minute is added to its hour in the same transaction (gateway/rollups.ts).
+ * 43,200. Each minute written is added to its hour in the same transaction.
  */
-export const readings1h = sqliteTable(
-  "readings_1h",
-  {
-    pointId: integer("point_id")
-      .notNull()
-      .references(() => points.id, { onDelete: "cascade" }),
-    /** Start of the hour, ms. */
-    bucket: integer("bucket").notNull(),
-    min: real("min").notNull(),
-    max: real("max").notNull(),
-    sum: real("sum").notNull(),
-    count: integer("count").notNull(),
-    last: real("last").notNull(),
-    lastTs: integer("last_ts").notNull(),
-  },
-  (t) => [primaryKey({ columns: [t.pointId, t.bucket] })],
-);
+export const readings1h = rollupTable("readings_1h");
 
 /** The newest reading per point (by event time), so pages never scan `readings`. */
 export const latestValues = sqliteTable("latest_values", {

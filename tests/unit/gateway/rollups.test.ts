@@ -66,12 +66,12 @@ function storedMinutes(db: Db): MinuteRow[] {
   return db.$client.prepare("select point_id as pointId, bucket, min, max, sum, count, last from readings_1m order by point_id, bucket").all() as MinuteRow[];
 }
 
-/** The reference: every minute of every point from the raw rows, with simple-statistics. */
-function expectedMinutes(db: Db): MinuteRow[] {
+/** The reference: every bucket of `widthMs` of every point from the raw rows, with simple-statistics. */
+function expectedBuckets(db: Db, widthMs: number): MinuteRow[] {
   const raw = db.$client.prepare("select point_id as pointId, ts, value from readings where value is not null order by point_id, ts").all() as Array<{ pointId: number; ts: number; value: number }>;
   const groups = new Map<string, { pointId: number; bucket: number; values: number[]; last: number }>();
   for (const r of raw) {
-    const bucket = Math.floor(r.ts / MINUTE_MS) * MINUTE_MS;
+    const bucket = Math.floor(r.ts / widthMs) * widthMs;
     const key = `${r.pointId}:${bucket}`;
     const g = groups.get(key) ?? { pointId: r.pointId, bucket, values: [], last: r.value };
     g.values.push(r.value);
@@ -80,6 +80,7 @@ function expectedMinutes(db: Db): MinuteRow[] {
   }
   return [...groups.values()].map((g) => ({ pointId: g.pointId, bucket: g.bucket, min: min(g.values), max: max(g.values), sum: sum(g.values), count: g.values.length, last: g.last }));
 }
+const expectedMinutes = (db: Db) => expectedBuckets(db, MINUTE_MS);
 
 const roundSums = (rows: MinuteRow[]) => rows.map((r) => ({ ...r, sum: Math.round(r.sum * 1e6) / 1e6 }));
 
@@ -87,22 +88,7 @@ const HOUR_MS = 3_600_000;
 function storedHours(db: Db): MinuteRow[] {
   return db.$client.prepare("select point_id as pointId, bucket, min, max, sum, count, last from readings_1h order by point_id, bucket").all() as MinuteRow[];
 }
-/** The reference for hours: the raw rows of each hour, with simple-statistics. */
-function expectedHours(db: Db): MinuteRow[] {
-  const minutes = expectedMinutes(db);
-  const raw = db.$client.prepare("select point_id as pointId, ts, value from readings where value is not null order by point_id, ts").all() as Array<{ pointId: number; ts: number; value: number }>;
-  const groups = new Map<string, { pointId: number; bucket: number; values: number[]; last: number }>();
-  for (const r of raw) {
-    const bucket = Math.floor(r.ts / HOUR_MS) * HOUR_MS;
-    const key = `${r.pointId}:${bucket}`;
-    const g = groups.get(key) ?? { pointId: r.pointId, bucket, values: [], last: r.value };
-    g.values.push(r.value);
-    g.last = r.value;
-    groups.set(key, g);
-  }
-  expect(minutes.length).toBeGreaterThan(0);
-  return [...groups.values()].map((g) => ({ pointId: g.pointId, bucket: g.bucket, min: min(g.values), max: max(g.values), sum: sum(g.values), count: g.values.length, last: g.last }));
-}
+const expectedHours = (db: Db) => expectedBuckets(db, HOUR_MS);
 
 describe("rollups written behind the readings", () => {
   it.each(["worker", "inline"] as const)("writes a minute once it has closed, merges a late reading into it, and shows open minutes to trends (%s)", async (thread) => {
