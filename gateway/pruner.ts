@@ -2,7 +2,8 @@ import type { Db } from "@/db/client";
 import { allPointIds } from "@/db/queries/readings";
 import type { Clock } from "./writer";
 
-// Retention: raw readings for RAW_RETENTION_DAYS (14 by default), 1-minute and 1-hour rollups two years.
+// Retention: raw readings for RAW_RETENTION_DAYS (14 by default), 1-minute and 1-hour rollups two
+// years (their tables are walked once a day, raw readings at every pass).
 // Runs in small chunks, a few ms of work at a time with a pause between, so an ingestion flush
 // never waits for more than one slice and the pass never takes more than part of the CPU.
 
@@ -28,11 +29,16 @@ export interface Pruner {
 const SLICE_MS = 5;
 const PAUSE_MS = 10;
 const pause = () => new Promise<void>((resolve) => setTimeout(resolve, PAUSE_MS));
+/** Rollup tables are walked at most this often (raw readings at every pass). */
+const ROLLUP_PASS_EVERY_MS = 24 * 3_600_000;
 
 export function startPruner(opts: PrunerOptions): Pruner {
   const chunk = opts.chunk ?? 2000;
   let running: Promise<{ readings: number; rollups: number }> | null = null;
   let stopped = false;
+  // Rollups are kept two years; walking their two tables for every point each hour cost the
+  // store worker twice the raw readings' pass for nothing. Once a day is plenty.
+  let rollupsPrunedAt = -Infinity;
 
   // Prepared once per pruner: the primary key is (point_id, ts|bucket), so each call is a range
   // delete of one point, never a table scan. A pass over 20k points used to prepare 40k statements.
@@ -46,11 +52,16 @@ export function startPruner(opts: PrunerOptions): Pruner {
   async function pass() {
     const now = opts.clock.now();
     const totals = { readings: 0, rollups: 0 };
+    const rollupsDue = now - rollupsPrunedAt >= ROLLUP_PASS_EVERY_MS;
     const plan = [
-      { stmt: statements[0], before: now - opts.rawRetentionMs, key: "readings" },
-      { stmt: statements[1], before: now - opts.rollupRetentionMs, key: "rollups" },
-      { stmt: statements[2], before: now - opts.rollupRetentionMs, key: "rollups" },
-    ] as const;
+      { stmt: statements[0], before: now - opts.rawRetentionMs, key: "readings" as const },
+      ...(rollupsDue
+        ? [
+            { stmt: statements[1], before: now - opts.rollupRetentionMs, key: "rollups" as const },
+            { stmt: statements[2], before: now - opts.rollupRetentionMs, key: "rollups" as const },
+          ]
+        : []),
+    ];
     let sliceEnds = performance.now() + SLICE_MS;
     for (const pointId of allPointIds(opts.db)) {
       for (const { stmt, before, key } of plan) {
@@ -66,6 +77,7 @@ export function startPruner(opts: PrunerOptions): Pruner {
         }
       }
     }
+    if (rollupsDue) rollupsPrunedAt = now;
     if (totals.readings || totals.rollups) opts.log?.(`[prune] removed ${totals.readings} raw readings and ${totals.rollups} rollups past retention`);
     return totals;
   }

@@ -130,6 +130,21 @@ describe("retention pruner", () => {
     expect(await pruner.runOnce()).toEqual({ readings: 0, rollups: 0 });
   });
 
+  it("walks the rollup tables once a day, raw readings at every pass", async () => {
+    const db = setup();
+    const t = { now: NOW };
+    const pruner = track(db, startPruner({ db, clock: { now: () => t.now }, rawRetentionMs: 14 * DAY_MS, rollupRetentionMs: 730 * DAY_MS, firstRunMs: 3_600_000 }));
+    expect(await pruner.runOnce()).toEqual({ readings: 0, rollups: 0 });
+    // An hour later a rollup and a raw reading are past retention: only the reading goes.
+    t.now = NOW + 3_600_000;
+    insertRaw(db, [[1, t.now - 15 * DAY_MS]]);
+    insertRollups(db, [[1, t.now - 731 * DAY_MS]]);
+    expect(await pruner.runOnce()).toEqual({ readings: 1, rollups: 0 });
+    // A day after the first pass the rollup tables are walked again.
+    t.now = NOW + 24 * 3_600_000;
+    expect(await pruner.runOnce()).toEqual({ readings: 0, rollups: 2 });
+  });
+
   it("honours configured retentions and starts its passes on its own", async () => {
     const db = setup();
     // RAW_RETENTION_DAYS=3, ROLLUP_RETENTION_DAYS=30
