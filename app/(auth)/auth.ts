@@ -1,12 +1,12 @@
 import { getServerSession, type NextAuthOptions } from "next-auth";
-import { decode } from "next-auth/jwt";
 import CredentialsProvider from "next-auth/providers/credentials";
 import { cookies } from "next/headers";
 import { redirect } from "next/navigation";
 import { getDb } from "@/db/client";
 import { verifyCredentials, getViewerById, normalizeEmail } from "@/db/queries/users";
 import { viewerForToken } from "@/db/queries/tokens";
-import { CLIENT_ADDRESS_HEADER } from "@/lib/auth/session";
+import { CLIENT_ADDRESS_HEADER, SESSION_COOKIES } from "@/lib/auth/session";
+import { userIdFromSessionToken } from "@/lib/auth/session-token";
 import { createSignInLimiter, type SignInLimiter } from "@/lib/auth/sign-in-limiter";
 import type { Viewer } from "@/lib/auth/viewer";
 import { AppError } from "@/lib/errors";
@@ -73,31 +73,16 @@ export const authOptions: NextAuthOptions = {
   },
 };
 
-// Decoded session tokens by their cookie value, until they expire. Decoding goes to the crypto
-// thread pool several times, and under ingestion load every such round trip waits its turn of
-// the event loop: caching cut a trend request's tail. The token is sealed and immutable, so its
-// decoding never changes; the viewer is still re-read from the database on every request.
-const decodedSessions = new Map<string, { userId: string; expMs: number }>();
-const DECODED_SESSIONS_MAX = 1000;
-
 async function sessionUserId(): Promise<string | null> {
   const secret = authOptions.secret;
   const jar = await cookies();
-  const name = `${process.env.NEXTAUTH_URL?.startsWith("https://") ? "__Secure-" : ""}next-auth.session-token`;
-  const token = jar.get(name)?.value;
+  const name = SESSION_COOKIES.find((n) => jar.has(n));
   // No secret, or a token split over several cookies: next-auth's own reading.
-  if (!secret || (!token && jar.get(`${name}.0`))) {
+  if (!secret || (!name && SESSION_COOKIES.some((n) => jar.has(`${n}.0`)))) {
     const session = await getServerSession(authOptions);
     return session?.user?.id ?? null;
   }
-  if (!token) return null;
-  const known = decodedSessions.get(token);
-  if (known && known.expMs > Date.now()) return known.userId;
-  const payload = await decode({ token, secret }).catch(() => null);
-  if (!payload?.sub || typeof payload.exp !== "number") return null;
-  if (decodedSessions.size >= DECODED_SESSIONS_MAX) decodedSessions.delete(decodedSessions.keys().next().value!);
-  decodedSessions.set(token, { userId: payload.sub, expMs: payload.exp * 1000 });
-  return payload.sub;
+  return name ? userIdFromSessionToken(jar.get(name)!.value, secret) : null;
 }
 
 /** The signed-in viewer, re-read from the database so a disabled account stops at once. */

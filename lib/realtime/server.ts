@@ -1,5 +1,5 @@
 import type { Server as HttpServer } from "node:http";
-import { decode } from "next-auth/jwt";
+import { userIdFromSessionToken } from "@/lib/auth/session-token";
 import { Server } from "socket.io";
 import type { Db } from "@/db/client";
 import { canSeeSite, visibleSiteIds } from "@/db/queries/sites";
@@ -29,8 +29,8 @@ export async function viewerFromCookie(db: Db, cookieHeader: string | undefined,
   for (const name of SESSION_COOKIES) {
     const token = readCookie(cookieHeader, name);
     if (!token) continue;
-    const jwt = await decode({ token, secret }).catch(() => null);
-    if (jwt?.sub) return getViewerById(db, jwt.sub);
+    const userId = await userIdFromSessionToken(token, secret);
+    if (userId) return getViewerById(db, userId);
   }
   return null;
 }

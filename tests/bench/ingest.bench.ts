@@ -23,6 +23,7 @@ import { z } from "zod";
 import { migrateDb, openDb } from "@/db/client";
 import { equipment, gatewayPointMaps, gateways, organizations, points, sites } from "@/db/schema";
 import { seedDemo } from "@/db/seed/demo";
+import { hourOf, hourRebuilder } from "@/gateway/rollups";
 import { canonicalUnitOf, pointsByKind, quantities, type QuantityKey } from "@/lib/quantities";
 import { runScenario } from "@/simulator";
 import { DEMO_PASSWORD, signIn, startServer } from "../helpers/server";
@@ -106,12 +107,8 @@ function seedTrendHistory(sqlite: Database.Database, pointId: number, base: numb
       insert.run(pointId, bucket, v * 0.998, v * 1.002, v * 12, 12, v, bucket + 55_000);
     }
     // Their hours, as the writer keeps them beside the minutes.
-    sqlite
-      .prepare(
-        `insert into readings_1h (point_id, bucket, min, max, sum, count, last, last_ts)
-         select point_id, (bucket / 3600000) * 3600000 as hour, min(min), max(max), sum(sum), sum(count), sum(sum) / sum(count), max(last_ts) from readings_1m where point_id = ? group by 1, 2`,
-      )
-      .run(pointId);
+    const rebuildHours = hourRebuilder(sqlite);
+    for (let hour = hourOf(end - 30 * 86_400_000); hour < end; hour += 3_600_000) rebuildHours(pointId, hour);
   })();
 }
 
