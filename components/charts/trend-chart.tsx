@@ -19,6 +19,11 @@ function rangeStartMs(range: RangeLabel): number {
   return Math.floor(Date.now() / 60_000) * 60_000 - ranges[range] * 1000;
 }
 
+/** The chosen range in seconds (uPlot's x unit): from its start up to now, or the newest value. */
+function windowOf(fromMs: number, xs: ArrayLike<number>): [number, number] {
+  return [fromMs / 1000, Math.max(Date.now() / 1000, xs.length ? xs[xs.length - 1] : 0)];
+}
+
 /**
  * One point's trend: min/max band (spikes stay visible) and average, over a chosen range,
  * appending live values as they arrive. Drag across the chart to zoom; double-click to reset.
@@ -48,39 +53,71 @@ export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { si
     },
   );
 
-  useEffect(() => {
+  // The stored series plus live values newer than its last bucket, as uPlot's columns (x in seconds).
+  const columns = useMemo((): uPlot.AlignedData | null => {
     const s = data?.series;
-    if (!s || !box.current) return;
+    if (!s) return null;
+    const lastT = s.time.length ? s.time[s.time.length - 1] : 0;
+    const tail = live.filter(([t]) => t > lastT);
+    return [
+      [...s.time, ...tail.map(([t]) => t)].map((t) => t / 1000),
+      [...s.min, ...tail.map(([, v]) => v)],
+      [...s.max, ...tail.map(([, v]) => v)],
+      [...s.avg, ...tail.map(([, v]) => v)],
+    ];
+  }, [data, live]);
+
+  // A new plot per fetched series; live values extend it in place, so a zoom survives them.
+  // Its x scale is the chosen range, not the data's extent: a new point's month holds a bucket
+  // or two, and uPlot's own range for so few points spans years.
+  const series = data?.series;
+  const fromMs = view.fromMs;
+  const builtFor = useRef<{ series: SeriesDto; label: string } | null>(null);
+  useEffect(() => {
+    const unit = series?.unit;
+    if (!series || !unit || !columns || !box.current) return;
+    const existing = plot.current;
+    if (existing && builtFor.current?.series === series && builtFor.current.label === label) {
+      // An unzoomed view follows now; a zoomed one stays where it is.
+      const following = (existing.scales.x.max ?? 0) >= windowOf(fromMs, existing.data[0])[1] - 1;
+      existing.setData(columns, false);
+      if (following) existing.setScale("x", { min: existing.scales.x.min ?? fromMs / 1000, max: windowOf(fromMs, columns[0])[1] });
+      else existing.redraw();
+      return;
+    }
     let disposed = false;
     void import("uplot").then(({ default: UPlot }) => {
       if (disposed || !box.current) return;
-      const lastT = s.time.length ? s.time[s.time.length - 1] : 0;
-      const tail = live.filter(([t]) => t > lastT);
-      const xs = [...s.time, ...tail.map(([t]) => t)].map((t) => t / 1000);
-      const avg = [...s.avg, ...tail.map(([, v]) => v)];
-      const min = [...s.min, ...tail.map(([, v]) => v)];
-      const max = [...s.max, ...tail.map(([, v]) => v)];
+      const showRange = (u: uPlot) => {
+        const [min, max] = windowOf(fromMs, u.data[0]);
+        u.setScale("x", { min, max });
+      };
       const opts: uPlot.Options = {
         width: box.current.clientWidth || 600,
         height: 280,
         scales: { x: { time: true } },
-        axes: [{ font: "11px Inter, sans-serif" }, { label: s.unit, font: "11px Inter, sans-serif", size: 56 }],
+        axes: [{ font: "11px Inter, sans-serif" }, { label: unit, font: "11px Inter, sans-serif", size: 56 }],
         series: [
           {},
           { label: "min", stroke: "#8a8f96", width: 1 },
           { label: "max", stroke: "#8a8f96", width: 1 },
-          { label: `${label} (${s.unit})`, stroke: "#1f2328", width: 2 },
+          { label: `${label} (${unit})`, stroke: "#1f2328", width: 2 },
         ],
         bands: [{ series: [2, 1], fill: "rgba(138,143,150,0.2)" }],
-        cursor: { drag: { x: true, y: false } },
+        // Drag to zoom; a double-click goes back to the chosen range (uPlot's own reset fits the data).
+        cursor: { drag: { x: true, y: false }, bind: { dblclick: (u) => () => (showRange(u), null) } },
+        // The shown time span as an attribute (seconds), for tests: uPlot draws its axes on a canvas.
+        hooks: { setScale: [(u, scaleKey) => void (scaleKey === "x" && (u.root.dataset.xRange = `${u.scales.x.min},${u.scales.x.max}`))] },
       };
       plot.current?.destroy();
-      plot.current = new UPlot(opts, [xs, min, max, avg], box.current);
+      plot.current = new UPlot(opts, columns, box.current);
+      builtFor.current = { series, label };
+      showRange(plot.current);
     });
     return () => {
       disposed = true;
     };
-  }, [data, live, label]);
+  }, [series, label, columns, fromMs]);
 
   useEffect(() => () => plot.current?.destroy(), []);
 

@@ -1,7 +1,7 @@
 import { io } from "socket.io-client";
 import { describe, expect, it } from "vitest";
 import { hasChromium, useServerAndBrowser, screenshot, signInAs, viewports } from "../helpers/browser";
-import { adminCookie, connectGateway, provisionGateway, putPointMap } from "../helpers/mqtt";
+import { adminCookie, api, connectGateway, provisionGateway, putPointMap } from "../helpers/mqtt";
 import { signIn } from "../helpers/server";
 
 // Live values from a gateway to the technician's screen, and room isolation between customers.
@@ -82,6 +82,55 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     await client.endAsync();
     board.disconnect();
     sitePage.disconnect();
+  });
+
+  it("a point's 30-day trend spans the chosen 30 days; a zoom survives live values and a double-click goes back", async () => {
+    const cookie = await adminCookie(env.server);
+    const gw = await provisionGateway(env.server, cookie, { siteId: "harborview-mob", name: "Trend range" });
+    expect((await putPointMap(env.server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nCH1-ECWT,CH-1,condenser_water_entering_temp,degF\n")).status).toBe(200);
+    const client = await connectGateway(env.server, gw);
+    const publish = (value: number) => client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ sentAt: new Date().toISOString(), readings: [{ point: "CH1-ECWT", value }] }), { qos: 1 });
+    await publish(82.1);
+    const latest = await api(env.server, cookie, "/api/sites/harborview-mob/latest");
+    const point = (latest.body as { latest: { points: Array<{ pointId: number; equipmentTag: string; key: string }> } }).latest.points.find((p) => p.equipmentTag === "CH-1" && p.key === "condenser_water_entering_temp")!;
+
+    const context = await env.browser.newContext({ viewport: viewports.desktop });
+    const page = await context.newPage();
+    await signInAs(page, env.server.url, "luis@tallgrass.example");
+    await page.goto(`${env.server.url}/sites/harborview-mob/points/${point.pointId}`);
+    await page.getByRole("button", { name: "30 d" }).click();
+    const chart = page.locator("[data-testid=trend] .uplot");
+    const shown = async () => {
+      const [min, max] = ((await chart.getAttribute("data-x-range")) ?? "0,0").split(",").map(Number);
+      return { min, max, spanS: max - min };
+    };
+    // The whole month up to now, however little of it has readings (uPlot alone fitted a lone bucket into years).
+    const MONTH_S = 30 * 86_400;
+    // From the start of the minute 30 days ago (cacheable requests) up to now.
+    const isMonth = (spanS: number) => spanS >= MONTH_S && spanS < MONTH_S + 120;
+    await expect.poll(async () => isMonth((await shown()).spanS), { timeout: 5000 }).toBe(true);
+    expect(Math.abs((await shown()).max - Date.now() / 1000)).toBeLessThan(120);
+
+    // Drag across the middle fifth of the plot: a zoom.
+    const over = page.locator("[data-testid=trend] .u-over");
+    const area = (await over.boundingBox())!;
+    await page.mouse.move(area.x + area.width * 0.4, area.y + area.height / 2);
+    await page.mouse.down();
+    await page.mouse.move(area.x + area.width * 0.6, area.y + area.height / 2, { steps: 5 });
+    await page.mouse.up();
+    await expect.poll(async () => (await shown()).spanS, { timeout: 2000 }).toBeLessThan(0.3 * MONTH_S);
+    const zoomed = await shown();
+
+    // A live value arrives while zoomed: the view stays put.
+    await publish(82.6);
+    await page.waitForTimeout(1500);
+    expect(await shown()).toEqual(zoomed);
+
+    await over.dblclick();
+    await expect.poll(async () => isMonth((await shown()).spanS), { timeout: 2000 }).toBe(true);
+    await screenshot(page, "trend-30d-desktop");
+    await client.endAsync();
+    await context.close();
   });
 
   it("refuses a socket without a session", async () => {
