@@ -7,7 +7,7 @@ import type { ChillerSnapshot } from "@/lib/plant/snapshot";
 import type { TimeToCrossoverResult } from "@/lib/plant/crossover";
 import { QUALIFIED_CAUTION, type Condition } from "./condition";
 import { bool, chillerCalledFor, chillersOf, str, type RuleContext } from "./context";
-import { fmtDelta, fmtDuration } from "./format";
+import { fmtDelta, fmtDuration, fmtRate } from "./format";
 import { makeCondition } from "./make-condition";
 
 function chillerView(ctx: RuleContext, chiller: Equipment): ChillerSnapshot | undefined {
@@ -78,7 +78,7 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag}: condenser water is only ${fmtDelta(n.marginK ?? 0)} above chilled water and closing at ${(n.closingRateKPerMin ?? 0).toFixed(2)} K/min; the loops cross ${when}${band}.`
+          ? `${chiller.tag}: condenser water is only ${fmtDelta(n.marginK ?? 0)} above chilled water and closing at ${fmtRate(n.closingRateKPerMin ?? 0)}; the loops cross ${when}${band}.`
           : `${chiller.tag}: crossover margin ${n.marginK === null ? "unknown" : fmtDelta(n.marginK)}, not closing toward a crossover.`,
         ownerMessage: active
           ? `The cooling plant is drifting toward a condition that can stop the chiller from restarting. Expected ${when}.`

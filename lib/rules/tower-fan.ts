@@ -4,7 +4,7 @@
 import { fitTrend } from "@/lib/plant/trend";
 import { QUALIFIED_CAUTION, type Condition } from "./condition";
 import { bool, num, str, type RuleContext } from "./context";
-import { fmtDelta, fmtTemp } from "./format";
+import { fmtDelta, fmtRate, fmtTemp } from "./format";
 import { makeCondition } from "./make-condition";
 
 export function towerFanNotRunning(ctx: RuleContext): Condition[] {
@@ -38,7 +38,7 @@ export function towerFanNotRunning(ctx: RuleContext): Condition[] {
           priority: s.priority,
           atMs: ctx.nowMs,
           technicianMessage: active
-            ? `${tower.tag}: ${problem} while condenser water is ${fmtTemp(waterC)}, ${fmtDelta(aboveK)} above setpoint${riseKPerMin !== null ? ` and rising ${riseKPerMin.toFixed(2)} K/min` : ""}.`
+            ? `${tower.tag}: ${problem} while condenser water is ${fmtTemp(waterC)}, ${fmtDelta(aboveK)} above setpoint${riseKPerMin !== null ? ` and rising ${fmtRate(riseKPerMin)}` : ""}.`
             : `${tower.tag}: fan ${problem ?? "normal"}; condenser water ${fmtTemp(waterC)}.`,
           ownerMessage: active
             ? "A cooling-tower fan is not running when it is needed; the chiller may shut down on high pressure."
