@@ -73,16 +73,20 @@ export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { si
   const series = data?.series;
   const fromMs = view.fromMs;
   const builtFor = useRef<{ series: SeriesDto; label: string } | null>(null);
+  /** The x maximum this component last set; anything else means the viewer zoomed. */
+  const followedMax = useRef<number | null>(null);
   useEffect(() => {
     const unit = series?.unit;
     if (!series || !unit || !columns || !box.current) return;
     const existing = plot.current;
     if (existing && builtFor.current?.series === series && builtFor.current.label === label) {
       // An unzoomed view follows now; a zoomed one stays where it is.
-      const following = (existing.scales.x.max ?? 0) >= windowOf(fromMs, existing.data[0])[1] - 1;
+      const following = followedMax.current !== null && Math.abs((existing.scales.x.max ?? 0) - followedMax.current) < 0.5;
       existing.setData(columns, false);
-      if (following) existing.setScale("x", { min: existing.scales.x.min ?? fromMs / 1000, max: windowOf(fromMs, columns[0])[1] });
-      else existing.redraw();
+      if (!following) return existing.redraw();
+      const max = windowOf(fromMs, columns[0])[1];
+      existing.setScale("x", { min: existing.scales.x.min ?? fromMs / 1000, max });
+      followedMax.current = max;
       return;
     }
     let disposed = false;
@@ -91,6 +95,8 @@ export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { si
       const showRange = (u: uPlot) => {
         const [min, max] = windowOf(fromMs, u.data[0]);
         u.setScale("x", { min, max });
+        // What was asked for: uPlot applies a scale change on its next commit.
+        followedMax.current = max;
       };
       const opts: uPlot.Options = {
         width: box.current.clientWidth || 600,

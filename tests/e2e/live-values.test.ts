@@ -84,7 +84,7 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     sitePage.disconnect();
   });
 
-  it("a point's 30-day trend spans the chosen 30 days; a zoom survives live values and a double-click goes back", async () => {
+  it("a point's 30-day trend spans the chosen 30 days and follows live values; a zoom survives them and a double-click goes back", async () => {
     const cookie = await adminCookie(env.server);
     const gw = await provisionGateway(env.server, cookie, { siteId: "harborview-mob", name: "Trend range" });
     expect((await putPointMap(env.server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nCH1-ECWT,CH-1,condenser_water_entering_temp,degF\n")).status).toBe(200);
@@ -110,6 +110,13 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     const isMonth = (spanS: number) => spanS >= MONTH_S && spanS < MONTH_S + 120;
     await expect.poll(async () => isMonth((await shown()).spanS), { timeout: 5000 }).toBe(true);
     expect(Math.abs((await shown()).max - Date.now() / 1000)).toBeLessThan(120);
+
+    // Unzoomed, the view follows now as live values arrive.
+    const before = await shown();
+    await page.waitForTimeout(2000);
+    await publish(82.4);
+    await expect.poll(async () => (await shown()).max - before.max, { timeout: 3000 }).toBeGreaterThan(1.5);
+    expect((await shown()).min).toBe(before.min);
 
     // Drag across the middle fifth of the plot: a zoom.
     const over = page.locator("[data-testid=trend] .u-over");
