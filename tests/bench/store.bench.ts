@@ -4,7 +4,7 @@
 // running beside it as in the server.
 //
 // Shape of the load: 400 gateways × 250 points = 100,000 points; messages of 20 consecutive
-// points of one gateway arrive in random gateway order (as from gateways publishing at once),
+// points of one gateway (BENCH_STORE_PER_MESSAGE) arrive in random gateway order (as from gateways publishing at once),
 // 40,000 rows a flush (what one flush holds when the server is saturated). The table is
 // first filled with BENCH_STORE_PREFILL readings in the same order, so each flush adds a row to
 // leaves spread over the whole b-tree — the case the 1,000-row raw yardstick of
@@ -26,12 +26,14 @@ const env = z
     BENCH_STORE_FLUSH_ROWS: z.coerce.number().int().min(20).default(40_000),
     /** Page sizes to compare, comma-separated; 0 means the project's own (db/client.ts). */
     BENCH_STORE_PAGE_SIZES: z.string().default("4096,0"),
+    /** Consecutive points of one gateway per message: 20, or 250 for a plant's whole scan. */
+    BENCH_STORE_PER_MESSAGE: z.coerce.number().int().min(1).max(250).default(20),
   })
   .parse(process.env);
 
 const GATEWAYS = 400;
 const POINTS_PER_GATEWAY = 250;
-const PER_MESSAGE = 20;
+const PER_MESSAGE = env.BENCH_STORE_PER_MESSAGE;
 
 /** Rows in arrival order: a random gateway's next 20 points per message, each point's ts one step on per round. */
 function arrivals(startMs: number) {
