@@ -4,8 +4,40 @@ import { useEffect, useRef } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 
-/** A small uPlot line with an optional zero line (the crossover), client-only. */
-export function Sparkline({ xs, ys, label, height = 90, zeroLine = false }: { xs: number[]; ys: number[]; label: string; height?: number; zeroLine?: boolean }) {
+/** The dashed line at zero: where the loops cross. */
+function drawZeroLine(u: uPlot) {
+  const y = u.valToPos(0, "y", true);
+  if (y < u.bbox.top || y > u.bbox.top + u.bbox.height) return;
+  u.ctx.save();
+  u.ctx.strokeStyle = "#b42318";
+  u.ctx.setLineDash([4, 4]);
+  u.ctx.beginPath();
+  u.ctx.moveTo(u.bbox.left, y);
+  u.ctx.lineTo(u.bbox.left + u.bbox.width, y);
+  u.ctx.stroke();
+  u.ctx.restore();
+}
+
+/**
+ * A small uPlot line with an optional zero line (the crossover), client-only. `xRangeMs` fixes
+ * the time axis to the window the values come from: uPlot's own fit of one or two points spans years.
+ */
+export function Sparkline({
+  xs,
+  ys,
+  label,
+  height = 90,
+  zeroLine = false,
+  xRangeMs,
+}: {
+  xs: number[];
+  ys: number[];
+  label: string;
+  height?: number;
+  zeroLine?: boolean;
+  xRangeMs?: readonly [number, number];
+}) {
+  const [fromMs, toMs] = xRangeMs ?? [null, null];
   const box = useRef<HTMLDivElement>(null);
   const plot = useRef<uPlot | null>(null);
 
@@ -19,27 +51,14 @@ export function Sparkline({ xs, ys, label, height = 90, zeroLine = false }: { xs
         height,
         legend: { show: false },
         cursor: { show: false },
-        scales: { x: { time: true } },
+        scales: { x: fromMs !== null && toMs !== null ? { time: true, range: (): uPlot.Range.MinMax => [fromMs / 1000, toMs / 1000] } : { time: true } },
         axes: [{ size: 28, font: "11px Inter, sans-serif" }, { size: 40, font: "11px Inter, sans-serif" }],
         series: [{}, { label, stroke: "#1f2328", width: 1.5 }],
-        hooks: zeroLine
-          ? {
-              draw: [
-                (u) => {
-                  const y = u.valToPos(0, "y", true);
-                  if (y < u.bbox.top || y > u.bbox.top + u.bbox.height) return;
-                  u.ctx.save();
-                  u.ctx.strokeStyle = "#b42318";
-                  u.ctx.setLineDash([4, 4]);
-                  u.ctx.beginPath();
-                  u.ctx.moveTo(u.bbox.left, y);
-                  u.ctx.lineTo(u.bbox.left + u.bbox.width, y);
-                  u.ctx.stroke();
-                  u.ctx.restore();
-                },
-              ],
-            }
-          : {},
+        hooks: {
+          // The shown time span as an attribute (seconds), for tests: uPlot draws its axes on a canvas.
+          setScale: [(u, scaleKey) => void (scaleKey === "x" && (u.root.dataset.xRange = `${u.scales.x.min},${u.scales.x.max}`))],
+          ...(zeroLine ? { draw: [drawZeroLine] } : {}),
+        },
       };
       plot.current?.destroy();
       plot.current = new UPlot(opts, [xs.map((x) => x / 1000), ys], box.current);
@@ -47,7 +66,7 @@ export function Sparkline({ xs, ys, label, height = 90, zeroLine = false }: { xs
     return () => {
       disposed = true;
     };
-  }, [xs, ys, label, height, zeroLine]);
+  }, [xs, ys, label, height, zeroLine, fromMs, toMs]);
 
   useEffect(() => () => plot.current?.destroy(), []);
 

@@ -16,6 +16,9 @@ function crossoverText(c: ChillerSnapshot): string {
   return "not enough data yet";
 }
 
+/** The margin trend's window: the hour up to the site's latest event time (app/api/sites/[siteId]/derived asks for 3,600 s). */
+const hourEndingAt = (endMs: number): [number, number] => [endMs - 3_600_000, endMs];
+
 function Row({ label, value, testId }: { label: string; value: string; testId?: string }) {
   return (
     <div className="flex justify-between gap-3 border-t border-line/60 py-1 first:border-t-0">
@@ -61,7 +64,13 @@ export function DerivedPanel({
           {marginTrend[c.tag]?.tsMs.length ? (
             <div className="mt-3">
               <p className="text-xs text-muted">Crossover margin, last hour ({unitSystem === "ip" ? "°F" : "K"}); dashed line = loops crossed</p>
-              <Sparkline xs={marginTrend[c.tag].tsMs} ys={marginTrend[c.tag].marginK.map((k) => k * scale)} label={`${c.tag} crossover margin trend`} zeroLine />
+              <Sparkline
+                xs={marginTrend[c.tag].tsMs}
+                ys={marginTrend[c.tag].marginK.map((k) => k * scale)}
+                xRangeMs={hourEndingAt(Math.max(marginTrend[c.tag].tsMs.at(-1) ?? 0, c.inputsToMs ?? snapshot.atMs))}
+                label={`${c.tag} crossover margin trend`}
+                zeroLine
+              />
             </div>
           ) : null}
           <p className="mt-2 text-xs text-muted">As of {formatClock(c.inputsToMs ?? snapshot.atMs, timeZone)} site time</p>

@@ -39,6 +39,10 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     await alarm.waitFor({ timeout: 30_000 });
     await expect.poll(() => alarm.getByTestId("caution").textContent()).toContain("qualified technicians");
     await screenshot(page, "site-crossover-technician-phone");
+    // The margin sparkline's time axis is the last hour, however few values it has yet.
+    const spark = page.locator("[data-testid=chiller-derived] [role=img] .uplot").first();
+    const [fromS, toS] = ((await spark.getAttribute("data-x-range")) ?? "0,0").split(",").map(Number);
+    expect(toS - fromS).toBe(3600);
 
     await alarm.getByRole("button", { name: "Add note" }).click();
     await alarm.getByLabel("Note", { exact: true }).fill("On my way; tower fan found in off, putting it back to auto.");
