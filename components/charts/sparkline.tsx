@@ -29,6 +29,7 @@ export function Sparkline({
   height = 90,
   zeroLine = false,
   xRangeMs,
+  timeZone,
 }: {
   xs: number[];
   ys: number[];
@@ -36,6 +37,8 @@ export function Sparkline({
   height?: number;
   zeroLine?: boolean;
   xRangeMs?: readonly [number, number];
+  /** The site's IANA time zone for the time axis (the browser's when absent). */
+  timeZone?: string;
 }) {
   const [fromMs, toMs] = xRangeMs ?? [null, null];
   const box = useRef<HTMLDivElement>(null);
@@ -50,6 +53,7 @@ export function Sparkline({
         width,
         height,
         legend: { show: false },
+        ...(timeZone ? { tzDate: (ts: number) => UPlot.tzDate(new Date(ts * 1000), timeZone) } : {}),
         cursor: { show: false },
         scales: { x: fromMs !== null && toMs !== null ? { time: true, range: (): uPlot.Range.MinMax => [fromMs / 1000, toMs / 1000] } : { time: true } },
         axes: [{ size: 28, font: "11px Inter, sans-serif" }, { size: 40, font: "11px Inter, sans-serif" }],
@@ -66,7 +70,7 @@ export function Sparkline({
     return () => {
       disposed = true;
     };
-  }, [xs, ys, label, height, zeroLine, fromMs, toMs]);
+  }, [xs, ys, label, height, zeroLine, fromMs, toMs, timeZone]);
 
   useEffect(() => () => plot.current?.destroy(), []);
 

@@ -28,7 +28,22 @@ function windowOf(fromMs: number, xs: ArrayLike<number>): [number, number] {
  * One point's trend: min/max band (spikes stay visible) and average, over a chosen range,
  * appending live values as they arrive. Drag across the chart to zoom; double-click to reset.
  */
-export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { siteId: string; pointId: number; measure: Measure; unitSystem: UnitSystem; label: string }) {
+export function TrendChart({
+  siteId,
+  pointId,
+  measure,
+  unitSystem,
+  label,
+  timeZone,
+}: {
+  siteId: string;
+  pointId: number;
+  measure: Measure;
+  unitSystem: UnitSystem;
+  label: string;
+  /** The site's IANA time zone: the time axis reads in site time, as the rest of the product does. */
+  timeZone: string;
+}) {
   const [view, setView] = useState(() => ({ range: "1 h" as RangeLabel, fromMs: rangeStartMs("1 h") }));
   const range = view.range;
   const box = useRef<HTMLDivElement>(null);
@@ -102,6 +117,7 @@ export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { si
         width: box.current.clientWidth || 600,
         height: 280,
         scales: { x: { time: true } },
+        tzDate: (ts) => UPlot.tzDate(new Date(ts * 1000), timeZone),
         axes: [{ font: "11px Inter, sans-serif" }, { label: unit, font: "11px Inter, sans-serif", size: 56 }],
         series: [
           {},
@@ -123,7 +139,7 @@ export function TrendChart({ siteId, pointId, measure, unitSystem, label }: { si
     return () => {
       disposed = true;
     };
-  }, [series, label, columns, fromMs]);
+  }, [series, label, columns, fromMs, timeZone]);
 
   useEffect(() => () => plot.current?.destroy(), []);
 

@@ -69,6 +69,7 @@ export function DerivedPanel({
                 ys={marginTrend[c.tag].marginK.map((k) => k * scale)}
                 xRangeMs={hourEndingAt(Math.max(marginTrend[c.tag].tsMs.at(-1) ?? 0, c.inputsToMs ?? snapshot.atMs))}
                 label={`${c.tag} crossover margin trend`}
+                timeZone={timeZone}
                 zeroLine
               />
             </div>

@@ -60,7 +60,7 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
               <h3 className="mb-1 text-sm font-semibold">
                 {alarm.equipment} {c.label}
               </h3>
-              <TrendChart siteId={site.id} pointId={c.id} measure={c.measure} unitSystem={viewer.unitSystem} label={c.label} />
+              <TrendChart siteId={site.id} pointId={c.id} measure={c.measure} unitSystem={viewer.unitSystem} label={c.label} timeZone={site.timeZone} />
             </div>
           ))}
         </section>
