@@ -107,7 +107,7 @@ const timer = setInterval(() => {
 parentPort.once("message", () => { clearInterval(timer); db.close(); parentPort.close(); });
 `;
 
-function startCheckpointer(file: string, everyMs: number, log: (line: string) => void): { stop(): Promise<void> } {
+export function startCheckpointer(file: string, everyMs: number, log: (line: string) => void): { stop(): Promise<void> } {
   const worker = new Worker(checkpointWorkerSource, { eval: true, workerData: { driver: createRequire(import.meta.url).resolve("better-sqlite3"), file, everyMs } });
   worker.unref();
   worker.on("error", (err) => log(`[ingest] background checkpoint stopped: ${String(err)}`));
@@ -115,6 +115,8 @@ function startCheckpointer(file: string, everyMs: number, log: (line: string) =>
     stop: () =>
       new Promise<void>((resolve) => {
         worker.once("exit", () => resolve());
+        // Waited for now: keep the process up until it has closed its connection.
+        worker.ref();
         worker.postMessage("stop");
         setTimeout(() => void worker.terminate(), 2000).unref();
       }),

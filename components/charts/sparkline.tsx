@@ -3,6 +3,7 @@
 import { useEffect, useRef } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
+import { exposeXRange, siteTimeZone } from "./uplot-options";
 
 /** The dashed line at zero: where the loops cross. */
 function drawZeroLine(u: uPlot) {
@@ -53,14 +54,13 @@ export function Sparkline({
         width,
         height,
         legend: { show: false },
-        ...(timeZone ? { tzDate: (ts: number) => UPlot.tzDate(new Date(ts * 1000), timeZone) } : {}),
+        ...(timeZone ? siteTimeZone(UPlot, timeZone) : {}),
         cursor: { show: false },
         scales: { x: fromMs !== null && toMs !== null ? { time: true, range: (): uPlot.Range.MinMax => [fromMs / 1000, toMs / 1000] } : { time: true } },
         axes: [{ size: 28, font: "11px Inter, sans-serif" }, { size: 40, font: "11px Inter, sans-serif" }],
         series: [{}, { label, stroke: "#1f2328", width: 1.5 }],
         hooks: {
-          // The shown time span as an attribute (seconds), for tests: uPlot draws its axes on a canvas.
-          setScale: [(u, scaleKey) => void (scaleKey === "x" && (u.root.dataset.xRange = `${u.scales.x.min},${u.scales.x.max}`))],
+          setScale: [exposeXRange],
           ...(zeroLine ? { draw: [drawZeroLine] } : {}),
         },
       };

@@ -10,6 +10,7 @@ import { formatDuration } from "@/lib/client/format";
 import type { Measure } from "@/lib/quantities";
 import { fromCanonical, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
+import { exposeXRange, siteTimeZone } from "./uplot-options";
 
 export const ranges = { "1 h": 3600, "24 h": 86_400, "7 d": 7 * 86_400, "30 d": 30 * 86_400 } as const;
 type RangeLabel = keyof typeof ranges;
@@ -117,7 +118,7 @@ export function TrendChart({
         width: box.current.clientWidth || 600,
         height: 280,
         scales: { x: { time: true } },
-        tzDate: (ts) => UPlot.tzDate(new Date(ts * 1000), timeZone),
+        ...siteTimeZone(UPlot, timeZone),
         axes: [{ font: "11px Inter, sans-serif" }, { label: unit, font: "11px Inter, sans-serif", size: 56 }],
         series: [
           {},
@@ -128,8 +129,7 @@ export function TrendChart({
         bands: [{ series: [2, 1], fill: "rgba(138,143,150,0.2)" }],
         // Drag to zoom; a double-click goes back to the chosen range (uPlot's own reset fits the data).
         cursor: { drag: { x: true, y: false }, bind: { dblclick: (u) => () => (showRange(u), null) } },
-        // The shown time span as an attribute (seconds), for tests: uPlot draws its axes on a canvas.
-        hooks: { setScale: [(u, scaleKey) => void (scaleKey === "x" && (u.root.dataset.xRange = `${u.scales.x.min},${u.scales.x.max}`))] },
+        hooks: { setScale: [exposeXRange] },
       };
       plot.current?.destroy();
       plot.current = new UPlot(opts, columns, box.current);

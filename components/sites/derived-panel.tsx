@@ -16,8 +16,7 @@ function crossoverText(c: ChillerSnapshot): string {
   return "not enough data yet";
 }
 
-/** The margin trend's window: the hour up to the site's latest event time (app/api/sites/[siteId]/derived asks for 3,600 s). */
-const hourEndingAt = (endMs: number): [number, number] => [endMs - 3_600_000, endMs];
+const windowEndingAt = (endMs: number, windowS: number): [number, number] => [endMs - windowS * 1000, endMs];
 
 function Row({ label, value, testId }: { label: string; value: string; testId?: string }) {
   return (
@@ -33,11 +32,14 @@ function Row({ label, value, testId }: { label: string; value: string; testId?: 
 export function DerivedPanel({
   snapshot,
   marginTrend,
+  marginTrendWindowS,
   unitSystem,
   timeZone,
 }: {
   snapshot: SiteSnapshot | null;
   marginTrend: Record<string, { tsMs: number[]; marginK: number[] }>;
+  /** The window the API took the margin trend from, ending at the site's latest event time. */
+  marginTrendWindowS: number;
   unitSystem: UnitSystem;
   timeZone: string;
 }) {
@@ -67,7 +69,7 @@ export function DerivedPanel({
               <Sparkline
                 xs={marginTrend[c.tag].tsMs}
                 ys={marginTrend[c.tag].marginK.map((k) => k * scale)}
-                xRangeMs={hourEndingAt(Math.max(marginTrend[c.tag].tsMs.at(-1) ?? 0, c.inputsToMs ?? snapshot.atMs))}
+                xRangeMs={windowEndingAt(Math.max(marginTrend[c.tag].tsMs.at(-1) ?? 0, c.inputsToMs ?? snapshot.atMs), marginTrendWindowS)}
                 label={`${c.tag} crossover margin trend`}
                 timeZone={timeZone}
                 zeroLine

@@ -9,7 +9,7 @@ import { AlarmCard } from "@/components/alarms/alarm-card";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { DerivedPanel } from "./derived-panel";
 
-type Derived = { snapshot: SiteSnapshot | null; marginTrend: Record<string, { tsMs: number[]; marginK: number[] }> };
+type Derived = { snapshot: SiteSnapshot | null; marginTrend: Record<string, { tsMs: number[]; marginK: number[] }>; marginTrendWindowS: number };
 
 /** The site's active warnings and the numbers behind them, refreshed live. */
 export function SiteWarnings({ siteId, canAct, unitSystem, timeZone }: { siteId: string; canAct: boolean; unitSystem: UnitSystem; timeZone: string }) {
@@ -45,7 +45,7 @@ export function SiteWarnings({ siteId, canAct, unitSystem, timeZone }: { siteId:
           <h2 id="derived-title" className="mb-2 text-lg font-semibold">
             Plant numbers
           </h2>
-          <DerivedPanel snapshot={derived.data?.snapshot ?? null} marginTrend={derived.data?.marginTrend ?? {}} unitSystem={unitSystem} timeZone={timeZone} />
+          <DerivedPanel snapshot={derived.data?.snapshot ?? null} marginTrend={derived.data?.marginTrend ?? {}} marginTrendWindowS={derived.data?.marginTrendWindowS ?? 0} unitSystem={unitSystem} timeZone={timeZone} />
         </section>
       ) : null}
     </div>

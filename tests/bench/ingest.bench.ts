@@ -27,6 +27,7 @@ import { hourOf, hourRebuilder } from "@/gateway/rollups";
 import { canonicalUnitOf, pointsByKind, quantities, type QuantityKey } from "@/lib/quantities";
 import { runScenario } from "@/simulator";
 import { DEMO_PASSWORD, signIn, startServer } from "../helpers/server";
+import { seedRawPoints } from "./raw-table";
 
 const env = z
   .object({
@@ -163,11 +164,7 @@ function rawInsertRate(pointCount: number, batch: number, rows: number): number 
   const db = openDb(path.join(dir, "raw.db"));
   migrateDb(db);
   const sqlite: Database.Database = db.$client;
-  sqlite.exec("insert into organizations (id, name, kind) values ('o','o','customer'); insert into sites (id,name,organization_id,kind,address,time_zone) values ('s','s','o','k','a','UTC'); insert into equipment (id, site_id, tag, name, kind) values ('e','s','T','n','chiller')");
-  const ip = sqlite.prepare("insert into points (equipment_id, key, quantity, unit, brick_class) values ('e', ?, 'compressor_power', 'kW', 'x')");
-  sqlite.transaction(() => {
-    for (let i = 0; i < pointCount; i++) ip.run(`k${i}`);
-  })();
+  seedRawPoints(sqlite, pointCount);
   const ins = sqlite.prepare("insert or ignore into readings (point_id, ts, value, text, quality) values (?, ?, ?, null, 0)");
   const tx = sqlite.transaction((start: number) => {
     for (let i = start; i < start + batch; i++) ins.run((i % pointCount) + 1, 1_700_000_000_000 + Math.floor(i / pointCount) * 1000, i * 0.5);

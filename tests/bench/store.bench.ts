@@ -10,14 +10,14 @@
 // leaves spread over the whole b-tree — the case the 1,000-row raw yardstick of
 // `bench:ingest` (sequential points, a fresh table) does not see.
 import fs from "node:fs";
-import { createRequire } from "node:module";
 import os from "node:os";
 import path from "node:path";
-import { Worker } from "node:worker_threads";
 import Database from "better-sqlite3";
 import { z } from "zod";
 import { migrateDb, openDb } from "@/db/client";
 import { createStore, type FlushWire } from "@/gateway/store";
+import { startCheckpointer } from "@/gateway/writer";
+import { seedRawPoints } from "./raw-table";
 
 const env = z
   .object({
@@ -68,13 +68,7 @@ async function run(pageSize: number) {
   const db = openDb(file);
   migrateDb(db);
   const sqlite = db.$client;
-  sqlite.exec(
-    "insert into organizations (id, name, kind) values ('o','o','customer'); insert into sites (id,name,organization_id,kind,address,time_zone) values ('s','s','o','k','a','UTC'); insert into equipment (id, site_id, tag, name, kind) values ('e','s','T','n','chiller')",
-  );
-  const insertPoint = sqlite.prepare("insert into points (equipment_id, key, quantity, unit, brick_class) values ('e', ?, 'compressor_power', 'kW', 'x')");
-  sqlite.transaction(() => {
-    for (let i = 0; i < GATEWAYS * POINTS_PER_GATEWAY; i++) insertPoint.run(`k${i}`);
-  })();
+  seedRawPoints(sqlite, GATEWAYS * POINTS_PER_GATEWAY);
   // Readings near now, so they join open rollup minutes as live ones do.
   const next = arrivals(Date.now());
   const prefill = sqlite.prepare("insert into readings (point_id, ts, value, text, quality) values (?, ?, ?, null, 0)");
@@ -88,12 +82,8 @@ async function run(pageSize: number) {
   sqlite.pragma("wal_checkpoint(TRUNCATE)");
   const prefillS = (performance.now() - t0) / 1000;
 
-  // The server's background checkpoint (gateway/writer.ts): PASSIVE every 100 ms on its own connection.
-  const checkpointer = new Worker(
-    `const { workerData } = require("node:worker_threads"); const D = require(workerData.driver); const db = new D(workerData.file); db.pragma("busy_timeout = 1000");
-     setInterval(() => { try { db.pragma("wal_checkpoint(PASSIVE)"); } catch {} }, 100);`,
-    { eval: true, workerData: { driver: createRequire(import.meta.url).resolve("better-sqlite3"), file } },
-  );
+  // The server's background checkpoint, as the writer runs it: PASSIVE every 100 ms on its own connection.
+  const checkpointer = startCheckpointer(file, 100, console.log);
   const store = createStore(sqlite, { graceMs: 10_000, latestEveryMs: 2000, nowMs: Date.now(), log: console.log });
   const flushRows = env.BENCH_STORE_FLUSH_ROWS;
   const flushMs: number[] = [];
@@ -116,7 +106,7 @@ async function run(pageSize: number) {
   const seconds = (performance.now() - t0) / 1000;
   const actualPage = sqlite.pragma("page_size", { simple: true }) as number;
   const walMb = fs.statSync(`${file}-wal`).size / 1e6;
-  await checkpointer.terminate();
+  await checkpointer.stop();
   sqlite.close();
   fs.rmSync(dir, { recursive: true, force: true });
   flushMs.sort((a, b) => a - b);

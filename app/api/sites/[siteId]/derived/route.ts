@@ -15,5 +15,5 @@ export const GET = route<{ params: Promise<{ siteId: string }> }>(async (request
   const service = getRuntime()?.alarms;
   const snapshot = service?.snapshot(siteId) ?? null;
   const marginTrend = service?.marginTrend(siteId, TREND_WINDOW_S) ?? {};
-  return Response.json({ snapshot, marginTrend });
+  return Response.json({ snapshot, marginTrend, marginTrendWindowS: TREND_WINDOW_S });
 });
