@@ -14,7 +14,12 @@ export interface PrunerOptions {
   rollupRetentionMs: number;
   /** Time between passes (default one hour). */
   everyMs?: number;
-  /** Delay of the first pass after start (default 30 s, so start-up is not slowed). */
+  /**
+   * Delay of the first pass after start (default 10 min). Right after a restart gateways send
+   * what they buffered meanwhile, ingestion runs flat out, and a pass over 100,000 points took
+   * 6 % of the store thread then (tests/bench/ingest.bench.ts); readings a few minutes past
+   * retention can wait.
+   */
   firstRunMs?: number;
   chunk?: number;
   log?: (line: string) => void;
@@ -89,7 +94,7 @@ export function startPruner(opts: PrunerOptions): Pruner {
 
   const timer = setInterval(() => void runOnce().catch((err) => opts.log?.(`[prune] failed: ${String(err)}`)), opts.everyMs ?? 60 * 60_000);
   timer.unref();
-  const first = setTimeout(() => void runOnce().catch((err) => opts.log?.(`[prune] failed: ${String(err)}`)), opts.firstRunMs ?? 30_000);
+  const first = setTimeout(() => void runOnce().catch((err) => opts.log?.(`[prune] failed: ${String(err)}`)), opts.firstRunMs ?? 10 * 60_000);
   first.unref();
 
   return {

@@ -46,8 +46,8 @@ const MAX_EDGES = 64;
  * given a string (state and text points) keeps its values in a plain array beside the times.
  */
 class Series {
-  private ts = new Float64Array(16);
-  private num = new Float64Array(16);
+  private ts = new Float64Array(64);
+  private num = new Float64Array(64);
   private other: ReadingValue[] | null = null;
   private kind: "number" | "boolean" | null = null;
   private head = 0;
@@ -128,7 +128,7 @@ class Series {
       if (this.other) this.other = this.other.slice(this.head, this.tail);
       else this.num.copyWithin(0, this.head, this.tail);
     } else {
-      const size = Math.ceil(this.ts.length * 1.5);
+      const size = this.ts.length * 2;
       const ts = new Float64Array(size);
       ts.set(this.ts.subarray(this.head, this.tail));
       this.ts = ts;
