@@ -123,7 +123,7 @@ class Series {
   private reserve() {
     if (this.tail < this.ts.length) return;
     const n = this.length;
-    if (n + 1 <= this.ts.length * 0.75) {
+    if (n + 1 <= this.ts.length * 0.875) {
       this.ts.copyWithin(0, this.head, this.tail);
       if (this.other) this.other = this.other.slice(this.head, this.tail);
       else this.num.copyWithin(0, this.head, this.tail);
