@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { hasChromium, useServerAndBrowser, screenshot, signInAs, viewports, watchConsole } from "../helpers/browser";
+import { hasChromium, useServerAndBrowser, screenshot, shownXRange, signInAs, viewports, watchConsole } from "../helpers/browser";
 import { signIn } from "../helpers/server";
 
 // The product's reason to exist, end to end: a simulated plant publishes over MQTT as a gateway,
@@ -41,8 +41,7 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     await screenshot(page, "site-crossover-technician-phone");
     // The margin sparkline's time axis is the last hour, however few values it has yet.
     const spark = page.locator("[data-testid=chiller-derived] [role=img] .uplot").first();
-    const [fromS, toS] = ((await spark.getAttribute("data-x-range")) ?? "0,0").split(",").map(Number);
-    expect(toS - fromS).toBe(3600);
+    expect((await shownXRange(spark)).spanS).toBe(3600);
 
     await alarm.getByRole("button", { name: "Add note" }).click();
     await alarm.getByLabel("Note", { exact: true }).fill("On my way; tower fan found in off, putting it back to auto.");

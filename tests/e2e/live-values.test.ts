@@ -1,6 +1,6 @@
 import { io } from "socket.io-client";
 import { describe, expect, it } from "vitest";
-import { hasChromium, useServerAndBrowser, screenshot, signInAs, viewports } from "../helpers/browser";
+import { hasChromium, useServerAndBrowser, screenshot, shownXRange, signInAs, viewports } from "../helpers/browser";
 import { adminCookie, api, connectGateway, provisionGateway, putPointMap } from "../helpers/mqtt";
 import { signIn } from "../helpers/server";
 
@@ -100,10 +100,7 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     await page.goto(`${env.server.url}/sites/harborview-mob/points/${point.pointId}`);
     await page.getByRole("button", { name: "30 d" }).click();
     const chart = page.locator("[data-testid=trend] .uplot");
-    const shown = async () => {
-      const [min, max] = ((await chart.getAttribute("data-x-range")) ?? "0,0").split(",").map(Number);
-      return { min, max, spanS: max - min };
-    };
+    const shown = () => shownXRange(chart);
     // The whole month up to now, however little of it has readings (uPlot alone fitted a lone bucket into years).
     const MONTH_S = 30 * 86_400;
     // From the start of the minute 30 days ago (cacheable requests) up to now.

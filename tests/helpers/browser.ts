@@ -1,6 +1,6 @@
 import fs from "node:fs";
 import path from "node:path";
-import { chromium, type Browser, type Page } from "playwright-core";
+import { chromium, type Browser, type Locator, type Page } from "playwright-core";
 import { afterAll, beforeAll } from "vitest";
 import { DEMO_PASSWORD, ROOT, startServer, type StartOptions, type TestServer } from "./server";
 
@@ -39,6 +39,12 @@ export async function signInAs(page: Page, baseUrl: string, email: string, passw
   await page.getByLabel("Password").fill(password);
   await page.getByRole("button", { name: "Sign in" }).click();
   await page.waitForURL(`${baseUrl}/`);
+}
+
+/** The time span (Unix seconds) a uPlot chart shows, as components/charts/uplot-options.ts exposes it. */
+export async function shownXRange(chart: Locator): Promise<{ min: number; max: number; spanS: number }> {
+  const [min, max] = ((await chart.getAttribute("data-x-range")) ?? "0,0").split(",").map(Number);
+  return { min, max, spanS: max - min };
 }
 
 export async function screenshot(page: Page, name: string): Promise<string> {
