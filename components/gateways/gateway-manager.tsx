@@ -14,10 +14,11 @@ import { formatDateTime } from "@/lib/client/format";
 type Credentials = { username: string; password: string; gateway: GatewayDto };
 type MapResult = { accepted: number; errors: Array<{ line: number; message: string }> };
 
-const when = (iso: string | null) => (iso ? formatDateTime(Date.parse(iso)) : "never");
+/** In the site's time, as the rest of the product reads times. */
+const when = (iso: string | null, timeZone: string) => (iso ? `${formatDateTime(Date.parse(iso), timeZone)} site time` : "never");
 
 /** A site's gateways: provision, rotate, revoke, upload point maps, and read their counters. */
-export function GatewayManager({ siteId }: { siteId: string }) {
+export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone: string }) {
   const { data, mutate } = useSWR<{ gateways: GatewayDto[] }>(`/api/gateways?site=${encodeURIComponent(siteId)}`, fetchJson, { refreshInterval: 5000 });
   const [secret, setSecret] = useState<Credentials | null>(null);
   const [message, setMessage] = useState<string | null>(null);
@@ -86,7 +87,7 @@ export function GatewayManager({ siteId }: { siteId: string }) {
             <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-sm sm:grid-cols-4">
               <div>
                 <dt className="text-muted">Last message</dt>
-                <dd>{when(g.status.lastMessageAt)}</dd>
+                <dd>{when(g.status.lastMessageAt, timeZone)}</dd>
               </div>
               <div>
                 <dt className="text-muted">Messages</dt>
@@ -115,7 +116,7 @@ export function GatewayManager({ siteId }: { siteId: string }) {
                 <ul className="mt-1 font-mono text-xs">
                   {g.unmapped.map((u) => (
                     <li key={u.point}>
-                      {u.point} — {u.count} reading(s), last {when(u.lastSeenAt)}
+                      {u.point} — {u.count} reading(s), last {when(u.lastSeenAt, timeZone)}
                     </li>
                   ))}
                 </ul>

@@ -25,7 +25,7 @@ export default async function SiteGatewaysPage({ params }: { params: Promise<{ s
       <p className="mb-4 max-w-prose text-muted">
         Each gateway connects to Liftline&apos;s MQTT broker with its own credentials and may publish only on its own topics. The wire contract is in <code>gateway/PROTOCOL.md</code>.
       </p>
-      <GatewayManager siteId={site.id} />
+      <GatewayManager siteId={site.id} timeZone={site.timeZone} />
     </section>
   );
 }
