@@ -61,9 +61,10 @@ export interface WriterOptions {
   /** A flush starts at once when this many rows are queued. */
   maxRows?: number;
   /**
-   * Flushes handed to the store before the first is answered (default 2). The store runs them
-   * in order; with a second one waiting it starts on it while the event loop settles the first
-   * (PUBACKs, live values, rule history) instead of idling until the next flush arrives.
+   * Flushes handed to the store worker before the first is answered (default 2; 1 inline). The
+   * worker runs them in order; with a second one waiting it starts on it while the event loop
+   * settles the first (PUBACKs, live values, rule history) instead of idling until the next
+   * flush arrives.
    */
   maxFlushesInFlight?: number;
   /** Called after each commit with the rows that were new (duplicates left out). */
@@ -269,10 +270,8 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   const sqlite = db.$client;
   const file = sqlite.memory ? undefined : sqlite.name;
   const storeOptions: StoreSettings = { graceMs: opts.rollupGraceMs ?? 10_000, latestEveryMs: opts.latestEveryMs ?? 2000, derivedRowsPerFlush: opts.derivedRowsPerFlush, log, retention: opts.retention };
-  const store =
-    file && (opts.thread ?? "worker") === "worker"
-      ? workerStore(file, { ...storeOptions, nowMs: () => clock.now() })
-      : inlineStore(db, clock, { ...storeOptions, nowMs: clock.now() });
+  const onWorker = file !== undefined && (opts.thread ?? "worker") === "worker";
+  const store = onWorker ? workerStore(file, { ...storeOptions, nowMs: () => clock.now() }) : inlineStore(db, clock, { ...storeOptions, nowMs: clock.now() });
 
   const checkpointMs = opts.checkpointMs ?? 100;
   const checkpointer = file && checkpointMs > 0 ? startCheckpointer(file, checkpointMs, log) : undefined;
@@ -291,7 +290,8 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   /** Flushes handed to the store and not yet settled; beyond maxInFlight the next one waits and grows meanwhile. */
   let inFlight = 0;
   let lastFlush: Promise<void> = Promise.resolve();
-  const maxInFlight = opts.maxFlushesInFlight ?? 2;
+  // Inline, a flush commits before write() returns: a second one in flight would gain nothing.
+  const maxInFlight = opts.maxFlushesInFlight ?? (onWorker ? 2 : 1);
   let flushWhenDone = false;
 
   // A flush starts flushMs after the first queued message at the latest, and sooner once no
