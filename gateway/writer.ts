@@ -12,9 +12,8 @@ import type { FromStore, StoreWorkerData, ToStore } from "./store-worker";
 // then (MQTT 3.1.1 §4.3.2: the receiver owns the message once it acks).
 //
 // With a file database the transactions run on a worker thread of their own, one flush at a
-// time, with the next one already handed over; messages that arrive meanwhile make the one
-// after larger. The event loop keeps MQTT, rule checks, sockets and pages; on 2 cores the
-// commits had taken a quarter of it.
+// time; messages that arrive meanwhile make the next flush larger. The event loop keeps MQTT,
+// rule checks, sockets and pages; on 2 cores the commits had taken a quarter of it.
 
 export interface Clock {
   now(): number;
@@ -60,13 +59,6 @@ export interface WriterOptions {
   idleMs?: number;
   /** A flush starts at once when this many rows are queued. */
   maxRows?: number;
-  /**
-   * Flushes handed to the store worker before the first is answered (default 2; 1 inline). The
-   * worker runs them in order; with a second one waiting it starts on it while the event loop
-   * settles the first (PUBACKs, live values, rule history) instead of idling until the next
-   * flush arrives.
-   */
-  maxFlushesInFlight?: number;
   /** Called after each commit with the rows that were new (duplicates left out). */
   onCommitted?: (inserted: RowIn[]) => void;
   log?: (line: string) => void;
@@ -91,7 +83,7 @@ export interface Retention {
 
 export interface BatchWriter {
   submit(batch: Batch): Promise<SubmitResult>;
-  /** Starts writing everything queued now (once fewer than maxFlushesInFlight are in progress). */
+  /** Starts writing everything queued now (after the flush in progress, if any). */
   flush(): void;
   close(): Promise<void>;
   stats(): { flushes: number; rows: number; queued: number; lastFlushMs: number; maxFlushMs: number; openRollups: number; unwrittenLatest: number };
@@ -270,8 +262,10 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   const sqlite = db.$client;
   const file = sqlite.memory ? undefined : sqlite.name;
   const storeOptions: StoreSettings = { graceMs: opts.rollupGraceMs ?? 10_000, latestEveryMs: opts.latestEveryMs ?? 2000, derivedRowsPerFlush: opts.derivedRowsPerFlush, log, retention: opts.retention };
-  const onWorker = file !== undefined && (opts.thread ?? "worker") === "worker";
-  const store = onWorker ? workerStore(file, { ...storeOptions, nowMs: () => clock.now() }) : inlineStore(db, clock, { ...storeOptions, nowMs: clock.now() });
+  const store =
+    file && (opts.thread ?? "worker") === "worker"
+      ? workerStore(file, { ...storeOptions, nowMs: () => clock.now() })
+      : inlineStore(db, clock, { ...storeOptions, nowMs: clock.now() });
 
   const checkpointMs = opts.checkpointMs ?? 100;
   const checkpointer = file && checkpointMs > 0 ? startCheckpointer(file, checkpointMs, log) : undefined;
@@ -287,11 +281,8 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   let closed = false;
   const stats = { flushes: 0, rows: 0, lastFlushMs: 0, maxFlushMs: 0 };
   let nextId = 1;
-  /** Flushes handed to the store and not yet settled; beyond maxInFlight the next one waits and grows meanwhile. */
-  let inFlight = 0;
-  let lastFlush: Promise<void> = Promise.resolve();
-  // Inline, a flush commits before write() returns: a second one in flight would gain nothing.
-  const maxInFlight = opts.maxFlushesInFlight ?? (onWorker ? 2 : 1);
+  /** The flush being committed; at most one at a time, the next one waits and grows meanwhile. */
+  let inFlight: Promise<void> | undefined;
   let flushWhenDone = false;
 
   // A flush starts flushMs after the first queued message at the latest, and sooner once no
@@ -350,7 +341,7 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   function flush() {
     cancel();
     if (queue.length === 0) return;
-    if (inFlight >= maxInFlight) {
+    if (inFlight) {
       flushWhenDone = true;
       return;
     }
@@ -359,8 +350,7 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     queue = [];
     queuedRows = 0;
     const started = performance.now();
-    inFlight++;
-    const p = store.write(encodeFlush(nextId++, clock.now(), items, rows)).then(
+    inFlight = store.write(encodeFlush(nextId++, clock.now(), items, rows)).then(
       (done) => settle(items, done, started),
       (err) => {
         // Nothing of this flush is stored; no PUBACK goes out, so the publishers resend.
@@ -368,9 +358,8 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
         for (const p of items) p.reject(err);
       },
     );
-    lastFlush = p;
-    void p.finally(() => {
-      inFlight--;
+    void inFlight.finally(() => {
+      inFlight = undefined;
       if (flushWhenDone || queuedRows >= maxRows) {
         flushWhenDone = false;
         flush();
@@ -380,7 +369,7 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
 
   // Seals closed minutes and writes latest values when no readings arrive to carry them.
   const maintenance = setInterval(() => {
-    if (queue.length === 0 && inFlight === 0) store.maintain(clock.now());
+    if (queue.length === 0 && !inFlight) store.maintain(clock.now());
   }, 1000);
   maintenance.unref();
 
@@ -398,9 +387,9 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
       if (closed) return;
       closed = true;
       clearInterval(maintenance);
-      while (inFlight > 0 || queue.length) {
+      while (inFlight || queue.length) {
         flush();
-        await lastFlush;
+        await inFlight;
       }
       // A clean stop leaves nothing to rebuild: every open minute and latest value is written.
       await store.close(clock.now());

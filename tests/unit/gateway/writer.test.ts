@@ -1,6 +1,3 @@
-import fs from "node:fs";
-import os from "node:os";
-import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { migrateDb, openDb } from "@/db/client";
 import { gateways } from "@/db/schema";
@@ -77,45 +74,5 @@ describe("batch writer", () => {
     await Promise.all(arrivals);
     expect(w2.stats().flushes).toBe(1);
     await w2.close();
-  });
-
-  it("with a second flush waiting at the store worker, settles flushes in order, finds duplicates across them and fails only the bad one", async () => {
-    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "liftline-writer-"));
-    try {
-      const file = path.join(dir, "liftline.db");
-      const db = openDb(file);
-      migrateDb(db);
-      seedDemo(db, "unit-test-password");
-      db.insert(gateways).values({ id: "gw-unit", siteId: "harborview-mob", name: "unit", protocol: "json", username: "gw-unit", passwordHash: "-" }).run();
-      const committed: number[] = [];
-      // flushMs 0: each message submitted in its own turn of the loop is handed over on the next
-      // one, so messages 0 and 1 are two flushes at the worker at once; later ones queue behind.
-      const w = createBatchWriter({ db, flushMs: 0, maxFlushesInFlight: 2, onCommitted: (rows) => committed.push(...rows.map((r) => r.ts)) });
-      const message = (k: number, pointId = 1) => Array.from({ length: 50 }, (_, i) => ({ ...row(k * 25_000 + i * 1000, i), pointId }));
-      const results: Array<Promise<unknown>> = [];
-      for (let k = 0; k < 8; k++) {
-        // Message 1 names a point that does not exist: its transaction fails, alone.
-        results.push(w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: k, rows: message(k, k === 1 ? 999_999 : 1) }).catch((err: Error) => err));
-        await new Promise((r) => setImmediate(r));
-      }
-      const settled = await Promise.all(results);
-      // Each message overlaps the one before by half (25 s steps, 50 s long), so half of it
-      // duplicates rows stored by an earlier flush, however the queued ones were grouped.
-      expect(settled.map((r) => (r instanceof Error ? "failed" : r))).toEqual([
-        { accepted: 50, duplicates: 0 },
-        "failed",
-        // Message 2 overlaps message 1, which was not stored: all of it is new.
-        { accepted: 50, duplicates: 0 },
-        ...[3, 4, 5, 6, 7].map(() => ({ accepted: 25, duplicates: 25 })),
-      ]);
-      // Committed rows reach listeners in the order they were submitted.
-      expect(committed).toEqual([...committed].sort((a, b) => a - b));
-      expect(committed).toHaveLength(50 + 50 + 5 * 25);
-      expect(db.$client.prepare("select count(*) as n from readings where point_id = 1").get()).toEqual({ n: 50 + 50 + 5 * 25 });
-      await w.close();
-      db.$client.close();
-    } finally {
-      fs.rmSync(dir, { recursive: true, force: true });
-    }
   });
 });
