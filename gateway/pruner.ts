@@ -92,9 +92,10 @@ export function startPruner(opts: PrunerOptions): Pruner {
     return running;
   }
 
-  const timer = setInterval(() => void runOnce().catch((err) => opts.log?.(`[prune] failed: ${String(err)}`)), opts.everyMs ?? 60 * 60_000);
+  const runLogged = () => void runOnce().catch((err) => opts.log?.(`[prune] failed: ${String(err)}`));
+  const timer = setInterval(runLogged, opts.everyMs ?? 60 * 60_000);
   timer.unref();
-  const first = setTimeout(() => void runOnce().catch((err) => opts.log?.(`[prune] failed: ${String(err)}`)), opts.firstRunMs ?? 10 * 60_000);
+  const first = setTimeout(runLogged, opts.firstRunMs ?? 10 * 60_000);
   first.unref();
 
   return {

@@ -29,7 +29,7 @@ const stateFilters = [
   { value: "suppressed_by_design,out_of_service", label: "Suppressed / out of service" },
 ];
 
-export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name: string; timeZone: string }>; canAct: boolean }) {
+export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name: string }>; canAct: boolean }) {
   const [site, setSite] = useState("");
   const [state, setState] = useState(stateFilters[0].value);
   const [priority, setPriority] = useState("");
@@ -38,10 +38,8 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
   const { data, error, mutate } = useSWR<{ alarms: AlarmDto[] }>(`/api/alarms${query ? `?${query}` : ""}`, fetchJson);
   useSiteEvents("board", { onStatus: () => void mutate(), onReconnect: () => void mutate() });
 
-  const columns = useMemo(() => {
-    // Times read in each alarm's site time, as on the site page and the alarm's own page.
-    const zoneOf = new Map(sites.map((s) => [s.id, s.timeZone]));
-    return [
+  const columns = useMemo(
+    () => [
       column.accessor("priority", { header: "Priority", cell: (c) => <PriorityBadge priority={c.getValue()} /> }),
       column.accessor("siteName", { header: "Site", meta: { className: "hidden sm:table-cell" } }),
       column.accessor("equipment", { header: "Equipment", meta: { className: "hidden sm:table-cell" } }),
@@ -60,11 +58,13 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
       column.accessor("state", { header: "State", cell: (c) => (canAct ? stateLabel : ownerStateLabel)[c.getValue()] ?? c.getValue() }),
       column.accessor("lastTransitionMs", {
         header: "Last change (site time)",
-        cell: (c) => formatDateTime(c.getValue(), zoneOf.get(c.row.original.siteId)),
+        // In each alarm's site time, as on the site page and the alarm's own page.
+        cell: (c) => formatDateTime(c.getValue(), c.row.original.siteTimeZone),
         meta: { className: "hidden md:table-cell" },
       }),
-    ];
-  }, [canAct, sites]);
+    ],
+    [canAct],
+  );
   const table = useReactTable({ data: data?.alarms ?? [], columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
 
   const select = "min-h-11 rounded border border-line bg-panel px-2";

@@ -18,6 +18,8 @@ export interface AlarmDto {
   id: string;
   siteId: string;
   siteName: string;
+  /** The site's IANA zone: alarm times read in site time wherever they are listed. */
+  siteTimeZone: string;
   ruleId: string;
   equipment: string;
   priority: number;
@@ -60,6 +62,7 @@ const dtoColumns = {
   id: alarms.id,
   siteId: alarms.siteId,
   siteName: sites.name,
+  siteTimeZone: sites.timeZone,
   ruleId: alarms.ruleId,
   equipment: alarms.equipment,
   priority: alarms.priority,

@@ -211,6 +211,7 @@ async function serverIdle(pid: number | undefined) {
   for (let before = processCpuSeconds(pid); Date.now() < until; ) {
     await sleep(1000);
     const now = processCpuSeconds(pid);
+    // Also done when CPU time cannot be read (NaN off Linux): nothing to wait for then.
     if (!(now - before >= 0.1)) return;
     before = now;
   }

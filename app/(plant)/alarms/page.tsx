@@ -10,7 +10,7 @@ export const dynamic = "force-dynamic";
 
 export default async function AlarmsPage() {
   const viewer = await requirePageViewer();
-  const sites = listSites(getDb(), viewer).map((s) => ({ id: s.id, name: s.name, timeZone: s.timeZone }));
+  const sites = listSites(getDb(), viewer).map((s) => ({ id: s.id, name: s.name }));
   return (
     <section>
       <h1 className="mb-4 text-2xl font-semibold">Alarms</h1>
