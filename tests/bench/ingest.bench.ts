@@ -262,8 +262,8 @@ async function main() {
   // a table as empty as the server's, and three more for each capacity run once the server has
   // stopped, on a table holding as many readings as the server's did when that run began. Each
   // capacity run is compared with the median of its own trials: raw inserts slow down as the
-  // table grows (on this VM from about 760,000 rows/s into an empty table to about 200,000 rows/s
-  // with 6.7 million readings in it), so a yardstick on an empty table measured a regime the
+  // table grows (on this VM from about 760,000 rows/s into an empty table to about 230,000 rows/s
+  // with 6.6 million readings in it), so a yardstick on an empty table measured a regime the
   // server was no longer in. The ratios against the empty table's trials are printed too.
   const template = rawTemplate(pointCount);
   const spread = (xs: number[]) => xs.map(fmt).join(", ");
