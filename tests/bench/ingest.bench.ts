@@ -160,7 +160,6 @@ function prepareDatabase(file: string): BenchGateway[] {
   return gws;
 }
 
-/** Raw better-sqlite3 on the migrated table shape: batched INSERTs spread over the same points, in the order gateways send them. */
 const pct = (xs: number[], q: number) => (xs.length ? quantile(xs, q) : NaN);
 const fmt = (n: number) => (Number.isFinite(n) ? Math.round(n).toLocaleString("en-US") : "n/a");
 const lat = (xs: number[]) => `p50 ${pct(xs, 0.5).toFixed(0)} ms, p99 ${pct(xs, 0.99).toFixed(0)} ms, max ${xs.length ? xs.reduce((m, v) => (v > m ? v : m), -Infinity).toFixed(0) : "n/a"} ms`;
@@ -276,7 +275,7 @@ async function main() {
     console.log(
       `Raw better-sqlite3 insert ${when} (same table, ${fmt(pointCount)} points, ${fmt(tableRows)} readings already stored, ${fmt(env.BENCH_RAW_ROWS)} rows inserted, WAL, synchronous=NORMAL, background checkpoint): 1,000-row transactions ${spread(k1)} rows/s; 5,000-row transactions ${spread(k5)} rows/s`,
     );
-    return { k1: quantile(k1, 0.5), k5: quantile(k5, 0.5), k1Trials: k1 };
+    return { k1: quantile(k1, 0.5), k5: quantile(k5, 0.5) };
   };
   const emptyTable = await yardstick("into an empty table, before the server starts", 0);
 
