@@ -333,7 +333,7 @@ async function main() {
       const at = Date.now() - phaseStart;
       const t0 = performance.now();
       try {
-        // One retry: the first request after a yardstick trial may find its kept-alive socket closed.
+        // One retry: the first request after a pause (below) may find its kept-alive socket closed.
         const res = await fetch(trendUrl, { headers: { cookie: cookie! } }).catch(() => fetch(trendUrl, { headers: { cookie: cookie! } }));
         await res.arrayBuffer();
         if (!res.ok) throw new Error(`HTTP ${res.status}`);
@@ -433,6 +433,8 @@ async function main() {
     const capacities: Array<{ perMessage: number; rate: number; tableRows: number }> = [];
     for (const perMessage of env.BENCH_CAPACITY_SECONDS > 0 ? env.BENCH_CAPACITY_PER_MESSAGE : []) {
       console.log("");
+      // No trend requests while waiting for the server to go idle (they would keep it busy)
+      // and while the bench blocks on counting the table.
       trendPaused = true;
       await serverIdle(server.process.pid);
       const tableRows = storedReadings(server.databasePath);
