@@ -18,7 +18,7 @@ import os from "node:os";
 import path from "node:path";
 import bcrypt from "bcryptjs";
 import Database from "better-sqlite3";
-import mqtt, { type MqttClient } from "mqtt";
+import mqtt from "mqtt";
 import { quantile } from "simple-statistics";
 import { io as ioClient } from "socket.io-client";
 import { z } from "zod";
@@ -29,6 +29,7 @@ import { hourOf, hourRebuilder } from "@/gateway/rollups";
 import { canonicalUnitOf, pointsByKind, quantities, type QuantityKey } from "@/lib/quantities";
 import { runScenario } from "@/simulator";
 import { DEMO_PASSWORD, signIn, startServer } from "../helpers/server";
+import { connectBenchGateway, type BenchGatewayConnection } from "./light-gateway";
 import { growTemplate, rawInsertRate, rawTemplate } from "./raw-table";
 
 const env = z
@@ -62,6 +63,11 @@ const env = z
     BENCH_WATCHED_SITES: z.coerce.number().int().min(1).default(20),
     /** Rows of the raw insert yardstick. */
     BENCH_RAW_ROWS: z.coerce.number().int().min(10_000).default(1_000_000),
+    /**
+     * The gateways' MQTT client: "packet" writes mqtt-packet frames on plain sockets
+     * (light-gateway.ts), "mqttjs" is the mqtt.js client, which costs the shared cores more.
+     */
+    BENCH_CLIENT: z.enum(["packet", "mqttjs"]).default("packet"),
     /** 1: print the per-second timeline. */
     BENCH_TIMELINE: z.coerce.number().int().min(0).max(1).default(1),
     /** 1: signal the server for a heap snapshot at the end of the portfolio phase (with LIFTLINE_TEST_NODE_ARGS=--heapsnapshot-signal=SIGUSR2). */
@@ -217,7 +223,7 @@ type Samples = Array<[number, number]>;
  * One gateway's publisher: readings cycle through its points; a point's timestamp only repeats
  * after a full cycle, and it is the publish time, so a socket update's age is its latency.
  */
-function makePublisher(g: BenchGateway, client: MqttClient) {
+function makePublisher(g: BenchGateway, client: BenchGatewayConnection) {
   let cursor = 0;
   // The JSON is written as text, not built as objects and stringified: the bench client shares
   // the 2 cores with the server, and every cycle it spends is one the server does not get.
@@ -245,16 +251,28 @@ function makePublisher(g: BenchGateway, client: MqttClient) {
     }
     body += "]}";
     const t0 = performance.now();
-    client.publish(topic, body, { qos: 1 }, (err) => {
-      if (!err) onAck(count, performance.now() - t0);
-    });
+    client.publish(topic, body, () => onAck(count, performance.now() - t0));
   };
+}
+
+function connectGateway(url: string, id: string): Promise<BenchGatewayConnection> {
+  if (env.BENCH_CLIENT === "packet") return connectBenchGateway(url, { clientId: id, username: id, password: PASSWORD });
+  return new Promise((resolve, reject) => {
+    const c = mqtt.connect(url, { username: id, password: PASSWORD, clientId: id, protocolVersion: 4, reconnectPeriod: 0, connectTimeout: 120_000 });
+    c.once("error", reject);
+    c.once("connect", () =>
+      resolve({
+        publish: (topic, payload, onAck) => c.publish(topic, payload, { qos: 1 }, (err) => (err ? undefined : onAck())),
+        end: () => c.end(true),
+      }),
+    );
+  });
 }
 
 async function main() {
   const pointCount = env.BENCH_GATEWAYS * env.BENCH_POINTS_PER_GATEWAY;
   console.log(`Machine: ${os.cpus().length} × ${os.cpus()[0]?.model ?? "cpu"}, ${Math.round(os.totalmem() / 2 ** 30)} GB, Node ${process.version}`);
-  console.log(`Setup: ${env.BENCH_GATEWAYS} gateways × ${env.BENCH_POINTS_PER_GATEWAY} points = ${fmt(pointCount)} points, at most ${env.BENCH_PER_MESSAGE} readings a message; in the portfolio phase each gateway publishes every ${env.BENCH_GATEWAY_PUBLISH_MS} ms`);
+  console.log(`Setup: ${env.BENCH_GATEWAYS} gateways × ${env.BENCH_POINTS_PER_GATEWAY} points = ${fmt(pointCount)} points, at most ${env.BENCH_PER_MESSAGE} readings a message; in the portfolio phase each gateway publishes every ${env.BENCH_GATEWAY_PUBLISH_MS} ms; gateway client: ${env.BENCH_CLIENT === "packet" ? "mqtt-packet frames on plain sockets" : "mqtt.js"}`);
   console.log(`Server settings: LIVE_PUSH_MS=${process.env.LIVE_PUSH_MS ?? "default"}, INGEST_FLUSH_MS=${process.env.INGEST_FLUSH_MS ?? "default"}, INGEST_MAX_BATCH_ROWS=${process.env.INGEST_MAX_BATCH_ROWS ?? "default"}`);
 
   // The yardstick, with the machine to itself: three trials of each transaction size now, on
@@ -282,7 +300,7 @@ async function main() {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), "liftline-bench-"));
   const gws = prepareDatabase(path.join(dataDir, "liftline.db"));
   const server = await startServer({ dataDir, env: { GATEWAY_MAX_MSGS_PER_S: "100000" } });
-  const clients: MqttClient[] = [];
+  const clients: BenchGatewayConnection[] = [];
   try {
     const { cookie } = await signIn(server.url, "admin@tallgrass.example");
     // The measuring browser: site pages of a sample of plants, each in its own room.
@@ -300,18 +318,8 @@ async function main() {
       for (const v of p.values) socketSamples.push([now - phaseStart, now - v.tsMs]);
     });
 
-    await Promise.all(
-      gws.map(
-        (g) =>
-          new Promise<void>((resolve, reject) => {
-            const c = mqtt.connect(server.mqttUrl, { username: g.id, password: PASSWORD, clientId: g.id, protocolVersion: 4, reconnectPeriod: 0, connectTimeout: 120_000 });
-            c.once("connect", () => resolve());
-            c.once("error", reject);
-            clients.push(c);
-          }),
-      ),
-    );
-    const publishers = gws.map((g, i) => makePublisher(g, clients.find((c) => c.options.clientId === g.id) ?? clients[i]));
+    clients.push(...(await Promise.all(gws.map((g) => connectGateway(server.mqttUrl, g.id)))));
+    const publishers = gws.map((g, i) => makePublisher(g, clients[i]));
 
     // Warm the series route (a development server compiles it on first use), then time it idle.
     const trendUrl = `${server.url}/api/points/${gws[0].firstPointId}/series?from=${Date.now() - 30 * 86_400_000}&to=${Date.now()}&maxPoints=1000`;
@@ -505,7 +513,7 @@ async function main() {
     // The rest needs the machine to itself: the server stops, then the yardstick on tables the
     // size of the server's at the start of each capacity run. (Run between the phases, its
     // minute of silence raised a lost-communication alarm on every bench plant.)
-    for (const c of clients) c.end(true);
+    for (const c of clients) c.end();
     await server.stop();
     const ratios = [];
     for (const c of capacities) {
@@ -526,7 +534,7 @@ async function main() {
     const trendMax = Math.max(...trend);
     console.log(`  30-day trend ≤ 50 ms while ingesting (portfolio phase): ${trendMax <= 50 && portfolioTrendFailures === 0 ? "met" : "NOT met"} (max ${trendMax.toFixed(0)} ms${portfolioTrendFailures ? `, ${portfolioTrendFailures} requests failed` : ""})`);
   } finally {
-    for (const c of clients) c.end(true);
+    for (const c of clients) c.end();
     await server.stop();
     if (env.BENCH_SERVER_LOG) fs.writeFileSync(env.BENCH_SERVER_LOG, server.output());
     fs.rmSync(dataDir, { recursive: true, force: true });

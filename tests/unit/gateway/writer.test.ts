@@ -43,6 +43,28 @@ describe("batch writer", () => {
     expect(db.$client.prepare("select ts, value from latest_values where point_id = 1").get()).toEqual({ ts: minute + 50_000, value: 2 });
   });
 
+  it("hands the after-commit listener exactly the new rows as submitted: numbers, booleans, states and texts", async () => {
+    const db = setup();
+    const seen: RowIn[] = [];
+    // maxRows 100 starts the queue's columns at 1,024 rows, so the first batch makes them grow.
+    const w = createBatchWriter({ db, flushMs: 5, maxRows: 100, onCommitted: (rows) => seen.push(...rows) });
+    const site = "harborview-mob";
+    const rows: RowIn[] = [];
+    for (let i = 0; i < 1500; i++) {
+      const ts = 60_000 * 2000 + i * 1000;
+      const k = i % 4;
+      if (k === 0) rows.push({ pointId: 1, siteId: site, ts, value: i / 8, text: null, quality: 0, live: i / 8 });
+      else if (k === 1) rows.push({ pointId: 2, siteId: site, ts, value: i % 8 === 1 ? 1 : 0, text: null, quality: 1, live: i % 8 === 1 });
+      else if (k === 2) rows.push({ pointId: 3, siteId: site, ts, value: null, text: "running", quality: 0, live: "running" });
+      else rows.push({ pointId: 4, siteId: site, ts, value: null, text: `fault ${i}`, quality: 2, live: `fault ${i}` });
+    }
+    expect(await w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: 1, rows: rows.slice(0, 1200) })).toEqual({ accepted: 1200, duplicates: 0 });
+    // Overlaps the first by 100 rows: those are duplicates and are not handed on again.
+    expect(await w.submit({ gatewayId: "gw-unit", messages: 1, receivedAtMs: 2, rows: rows.slice(1100) })).toEqual({ accepted: 300, duplicates: 100 });
+    expect(seen).toEqual(rows);
+    await w.close();
+  });
+
   it("rejects every submit of a flush whose transaction fails, so nothing is acknowledged", async () => {
     const db = setup();
     const w = createBatchWriter({ db, flushMs: 5 });

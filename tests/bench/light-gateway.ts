@@ -1,0 +1,65 @@
+import net from "node:net";
+import { generate, parser, type Packet } from "mqtt-packet";
+
+// The benchmark's gateways: an MQTT 3.1.1 client that does only what a bench gateway needs
+// (CONNECT, QoS 1 PUBLISH, PUBACK by packet id), with packets written by mqtt-packet, the
+// codec aedes and mqtt.js themselves use. The load generator shares this machine's 2 cores
+// with the server, so each cycle it spends is one the server does not get: in short 20-reading
+// capacity runs the bench process used 44–53 % of a core with mqtt.js (its stores, streams and
+// a writev per publish) and 30–32 % with this. The test suite's gateways stay real mqtt.js and
+// sparkplug-client clients.
+
+export interface BenchGatewayConnection {
+  /** QoS 1 publish; `onAck` runs when its PUBACK arrives. */
+  publish(topic: string, payload: string, onAck: () => void): void;
+  end(): void;
+}
+
+export function connectBenchGateway(url: string, opts: { clientId: string; username: string; password: string; timeoutMs?: number }): Promise<BenchGatewayConnection> {
+  const { hostname, port } = new URL(url);
+  return new Promise((resolve, reject) => {
+    const socket = net.connect({ host: hostname, port: Number(port), noDelay: true });
+    const incoming = parser({ protocolVersion: 4 });
+    // MQTT 3.1.1 §2.3.1: a packet id is in use until its PUBACK; ids are 1..65535.
+    const waiting: Array<(() => void) | undefined> = new Array(65_536);
+    let nextId = 1;
+    let connected = false;
+    const timer = setTimeout(() => fail(new Error(`${opts.clientId}: no CONNACK in time`)), opts.timeoutMs ?? 120_000);
+    const fail = (err: Error) => {
+      clearTimeout(timer);
+      socket.destroy();
+      reject(err);
+    };
+
+    incoming.on("packet", (p: Packet) => {
+      if (p.cmd === "puback") {
+        const done = waiting[p.messageId!];
+        waiting[p.messageId!] = undefined;
+        done?.();
+      } else if (p.cmd === "connack") {
+        clearTimeout(timer);
+        if (p.returnCode !== 0) return fail(new Error(`${opts.clientId}: CONNACK return code ${p.returnCode}`));
+        connected = true;
+        resolve({
+          publish(topic, payload, onAck) {
+            let id = nextId;
+            // Skip ids still waiting (only after 65,535 publishes without their PUBACK).
+            while (waiting[id]) id = (id % 65_535) + 1;
+            nextId = (id % 65_535) + 1;
+            waiting[id] = onAck;
+            socket.write(generate({ cmd: "publish", topic, payload, qos: 1, messageId: id, retain: false, dup: false }));
+          },
+          end: () => socket.destroy(),
+        });
+      }
+    });
+    incoming.on("error", (err) => (connected ? socket.destroy(err) : fail(err)));
+    socket.on("data", (chunk) => incoming.parse(chunk));
+    socket.on("error", (err) => (connected ? undefined : fail(err)));
+    socket.on("close", () => (connected ? undefined : fail(new Error(`${opts.clientId}: connection closed before CONNACK`))));
+    socket.once("connect", () =>
+      // keepalive 0: no PINGREQ (MQTT 3.1.1 §3.1.2.10); the bench's connections are always busy.
+      socket.write(generate({ cmd: "connect", protocolId: "MQTT", protocolVersion: 4, clientId: opts.clientId, clean: true, keepalive: 0, username: opts.username, password: Buffer.from(opts.password) })),
+    );
+  });
+}
