@@ -73,7 +73,15 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
     NEXT_TELEMETRY_DISABLED: "1",
     ...opts.env,
   };
-  if (env.NODE_ENV === "development") env.LIFTLINE_DIST_DIR = `.next-test/${path.basename(dataDir)}`;
+  if (env.NODE_ENV === "development") {
+    const distDir = `.next-test/${path.basename(dataDir)}`;
+    env.LIFTLINE_DIST_DIR = distDir;
+    // Next adds each build folder's type paths to the tsconfig it reads; a throwaway one that
+    // extends the project's keeps those lines out of tsconfig.json.
+    fs.mkdirSync(path.join(ROOT, ".next-test"), { recursive: true });
+    env.LIFTLINE_TSCONFIG = `${distDir}.tsconfig.json`;
+    fs.writeFileSync(path.join(ROOT, env.LIFTLINE_TSCONFIG), JSON.stringify({ extends: "../tsconfig.json" }, null, 2));
+  }
   delete env.VITEST;
   delete env.VITEST_WORKER_ID;
   delete env.VITEST_POOL_ID;
@@ -121,6 +129,7 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
       child.kill(signal);
       await exited;
       if (env.LIFTLINE_DIST_DIR) fs.rmSync(path.join(ROOT, env.LIFTLINE_DIST_DIR), { recursive: true, force: true });
+      if (env.LIFTLINE_TSCONFIG) fs.rmSync(path.join(ROOT, env.LIFTLINE_TSCONFIG), { force: true });
     },
   };
 }
