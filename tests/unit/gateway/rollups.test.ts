@@ -163,6 +163,10 @@ describe("rollups written behind the readings", () => {
     expect(s.bucketMs).toBe(HOUR_MS);
     expect(s.time).toEqual([T0, T0 + HOUR_MS, T0 + 2 * HOUR_MS]);
     expect(s.count).toEqual([120, 120, 60]);
+    // Averages come rounded to 0.001 of the unit (the readings themselves have three decimals).
+    for (const v of [...s.min, ...s.max, ...s.avg]) expect(Math.round(v * 1000) / 1000).toBe(v);
+    const hourAvg = db.$client.prepare("select sum(value) / count(*) from readings where point_id = 2 and ts >= ? and ts < ?").pluck().get(T0, T0 + HOUR_MS) as number;
+    expect(s.avg[0]).toBeCloseTo(hourAvg, 3);
     // Complete hours are stored; the one in progress is not yet whole.
     const hours = storedHours(db).filter((r) => r.pointId === 2);
     expect(hours.slice(0, 2).map((r) => r.count)).toEqual([120, 120]);
