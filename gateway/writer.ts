@@ -173,35 +173,23 @@ class RowColumns {
     this.length = i + 1;
   }
 
-  /** The row as consumers of committed rows get it. */
-  row(i: number): RowIn {
+  /** The row as listeners of committed rows get it (`texts`: the text of state and text rows, by row). */
+  row(i: number, texts: ReadonlyMap<number, string>): RowIn {
     const kind = this.kind[i];
-    const text = kind === ROW_TEXT ? this.textAt(i) : null;
+    const text = kind === ROW_TEXT ? (texts.get(i) ?? "") : null;
     const value = kind === ROW_TEXT ? null : this.value[i];
     const live = kind === ROW_TEXT ? text! : kind === ROW_BOOLEAN ? value !== 0 : value!;
     return { pointId: this.pointId[i], siteId: this.siteId[i], ts: this.ts[i], value, text, quality: this.quality[i] as 0 | 1 | 2, live };
   }
 
-  private textIndex = 0;
-  /** Texts are looked up in row order, so a cursor finds each in turn. */
-  private textAt(i: number): string {
-    while (this.textIndex < this.texts.length && this.texts[this.textIndex][0] < i) this.textIndex++;
-    const t = this.texts[this.textIndex];
-    return t && t[0] === i ? t[1] : "";
-  }
-
   private grow() {
     const n = this.pointId.length * 2;
-    const bigger = <T extends Int32Array | Float64Array | Uint8Array>(a: T, make: (n: number) => T) => {
-      const b = make(n);
-      b.set(a);
-      return b;
-    };
-    this.pointId = bigger(this.pointId, (k) => new Int32Array(k));
-    this.ts = bigger(this.ts, (k) => new Float64Array(k));
-    this.value = bigger(this.value, (k) => new Float64Array(k));
-    this.quality = bigger(this.quality, (k) => new Uint8Array(k));
-    this.kind = bigger(this.kind, (k) => new Uint8Array(k));
+    const into = <T extends Int32Array | Float64Array | Uint8Array>(bigger: T, from: T) => (bigger.set(from), bigger);
+    this.pointId = into(new Int32Array(n), this.pointId);
+    this.ts = into(new Float64Array(n), this.ts);
+    this.value = into(new Float64Array(n), this.value);
+    this.quality = into(new Uint8Array(n), this.quality);
+    this.kind = into(new Uint8Array(n), this.kind);
   }
 }
 
@@ -378,7 +366,8 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
 
   function settle(items: readonly Pending[], done: FlushDone, started: number, flushed: RowColumns) {
     const inserted: RowIn[] = [];
-    for (let i = 0; i < flushed.length; i++) if (done.inserted[i]) inserted.push(flushed.row(i));
+    const texts = new Map(flushed.texts);
+    for (let i = 0; i < flushed.length; i++) if (done.inserted[i]) inserted.push(flushed.row(i, texts));
     items.forEach((p, b) => p.resolve({ accepted: done.accepted[b], duplicates: p.meta.count - done.accepted[b] }));
     const took = performance.now() - started;
     stats.flushes++;
