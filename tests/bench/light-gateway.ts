@@ -55,7 +55,8 @@ export function connectBenchGateway(url: string, opts: { clientId: string; usern
     });
     incoming.on("error", (err) => (connected ? socket.destroy(err) : fail(err)));
     socket.on("data", (chunk) => incoming.parse(chunk));
-    socket.on("error", (err) => (connected ? undefined : fail(err)));
+    // After CONNACK a lost connection shows in the bench as acknowledgements that stop; say why.
+    socket.on("error", (err) => (connected ? console.error(`${opts.clientId}: ${err.message}`) : fail(err)));
     socket.on("close", () => (connected ? undefined : fail(new Error(`${opts.clientId}: connection closed before CONNACK`))));
     socket.once("connect", () =>
       // keepalive 0: no PINGREQ (MQTT 3.1.1 §3.1.2.10); the bench's connections are always busy.
