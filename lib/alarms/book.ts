@@ -26,7 +26,15 @@ export function emptyAlarmBook(): AlarmBook {
  * alarm that becomes meaningless is hidden before it could annunciate. Also expires shelves.
  */
 export function applyConditions(book: AlarmBook, conditions: readonly ConditionInput[], atMs: number): { book: AlarmBook; transitions: TransitionRecord[] } {
-  const next = new Map(book);
+  // Copied on the first change only: most evaluations change nothing, and a fresh copy of a
+  // site's whole book every 5 s outlived young-generation collections and was copied by them.
+  let next: Map<string, Alarm> | null = null;
+  const current = (): AlarmBook => next ?? book;
+  const put = (key: string, a: Alarm) => {
+    if (current().get(key) === a) return;
+    next ??= new Map(book);
+    next.set(key, a);
+  };
   const transitions: TransitionRecord[] = [];
   const seen = new Set<string>();
   const apply = (a: Alarm, e: AlarmEvent): Alarm => {
@@ -37,7 +45,11 @@ export function applyConditions(book: AlarmBook, conditions: readonly ConditionI
   for (const c of conditions) {
     const key = alarmKey(c.ruleId, c.equipment);
     seen.add(key);
-    let a = next.get(key) ?? newAlarm(c);
+    const known = current().get(key);
+    // The usual case, a condition that has not changed on an alarm with no shelf to expire:
+    // every step below would return it as it is, so none is taken (each allocates).
+    if (known && unchanged(known, c)) continue;
+    let a = known ?? newAlarm(c);
     // Priority may change with settings; it is re-read on each evaluation.
     if (a.priority !== c.priority) a = { ...a, priority: c.priority };
     a = apply(a, { type: "tick", atMs });
@@ -50,10 +62,16 @@ export function applyConditions(book: AlarmBook, conditions: readonly ConditionI
     } else {
       a = apply(a, { type: "condition", atMs, active: c.active });
     }
-    next.set(key, a);
+    put(key, a);
   }
-  for (const [key, a] of next) if (!seen.has(key)) next.set(key, apply(a, { type: "tick", atMs }));
-  return { book: next, transitions };
+  // A tick only expires shelves.
+  for (const [key, a] of book) if (a.shelf && !seen.has(key)) put(key, apply(a, { type: "tick", atMs }));
+  return { book: next ?? book, transitions };
+}
+
+/** True when applying `c` to `a` would change nothing and record nothing. */
+function unchanged(a: Alarm, c: ConditionInput): boolean {
+  return a.shelf === null && a.priority === c.priority && a.conditionActive === c.active && a.suppressedReason === null && (c.suppressedReason ?? null) === null;
 }
 
 /** A person's command on one alarm (acknowledge, shelve, unshelve, out of service…). */

@@ -66,7 +66,9 @@ export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; r
   );
   const history = new ReadingHistory(args.retentionS ?? lookBackS + 600);
   let previous: Condition[] = [];
-  const delays = new Map<string, DelayState>();
+  // By rule, then equipment: no key string to build per condition and evaluation.
+  const delays = new Map<Condition["ruleId"], Map<string, DelayState>>();
+  const delaySettings = new Map<Condition["ruleId"], { onDelayS: number; offDelayS: number }>();
   let book: AlarmBook = args.alarms ?? emptyAlarmBook();
 
   return {
@@ -77,13 +79,21 @@ export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; r
       // Only the active ones are read back (dead bands). Holding every condition, messages and
       // all, until the next evaluation 5 s later made ~60 KB per site outlive young-generation
       // collections, which then copied it: at 400 sites, most of what those pauses copied.
-      previous = conditions.filter((c) => c.active);
-      const delayed = conditions.map((c) => {
-        const key = `${c.ruleId}:${c.equipment}`;
-        const d = stepDelay(delays.get(key), c.active, nowMs, delaysFor(settings, c.ruleId));
-        delays.set(key, d);
-        return { ...c, rawActive: c.active, active: d.active };
-      });
+      // Copies, as the rules saw them: the loop below sets `active` to the delayed state.
+      previous = conditions.filter((c) => c.active).map((c) => ({ ...c }));
+      // The conditions are this evaluation's own objects: they take the delayed state in place
+      // rather than as copies (a site's ~100 conditions every 5 s, most of them unchanged).
+      const delayed = conditions as (Condition & { rawActive: boolean })[];
+      for (const c of delayed) {
+        let byTag = delays.get(c.ruleId);
+        if (!byTag) delays.set(c.ruleId, (byTag = new Map()));
+        let d = delaySettings.get(c.ruleId);
+        if (!d) delaySettings.set(c.ruleId, (d = delaysFor(settings, c.ruleId)));
+        const step = stepDelay(byTag.get(c.equipment), c.active, nowMs, d);
+        byTag.set(c.equipment, step);
+        c.rawActive = c.active;
+        c.active = step.active;
+      }
       const applied = applyConditions(book, delayed, nowMs);
       book = applied.book;
       return { atMs: nowMs, conditions: delayed, transitions: applied.transitions, alarms: book, snapshot };

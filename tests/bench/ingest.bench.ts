@@ -68,6 +68,8 @@ const env = z
      * (light-gateway.ts), "mqttjs" is the mqtt.js client, which costs the shared cores more.
      */
     BENCH_CLIENT: z.enum(["packet", "mqttjs"]).default("packet"),
+    /** How often the 30-day trend request is timed (more often gives a finer tail, and adds load). */
+    BENCH_TREND_INTERVAL_MS: z.coerce.number().int().min(100).default(1000),
     /** 1: print the per-second timeline. */
     BENCH_TIMELINE: z.coerce.number().int().min(0).max(1).default(1),
     /** 1: signal the server for a heap snapshot at the end of the portfolio phase (with LIFTLINE_TEST_NODE_ARGS=--heapsnapshot-signal=SIGUSR2). */
@@ -350,7 +352,7 @@ async function main() {
         trendFailures++;
         console.log(`  trend request failed: ${String(err)}`);
       }
-    }, 1000);
+    }, env.BENCH_TREND_INTERVAL_MS);
 
     // ---- Phase 1: the portfolio's offered load ---------------------------------------------
     const warmupMs = env.BENCH_WARMUP_SECONDS * 1000;
