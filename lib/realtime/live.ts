@@ -15,12 +15,14 @@ import type { RealtimeServer } from "./server";
 
 type Value = SiteValues["values"][number];
 
-export interface LiveRow {
-  pointId: number;
-  siteId: string;
-  ts: number;
-  live: number | boolean | string;
-  quality: 0 | 1 | 2;
+/** Committed readings, read by index (the writer hands them on as columns, not objects). */
+export interface LiveRows {
+  readonly length: number;
+  pointId(i: number): number;
+  siteId(i: number): string;
+  ts(i: number): number;
+  live(i: number): number | boolean | string;
+  quality(i: number): 0 | 1 | 2;
 }
 
 export interface LivePublisherOptions {
@@ -38,7 +40,7 @@ export interface LivePublisherOptions {
 }
 
 export interface LivePublisher {
-  onCommitted(rows: LiveRow[]): void;
+  onCommitted(rows: LiveRows): void;
   /** Re-evaluate site status soon (an alarm changed; presence has presenceChanged). */
   touch(siteId: string): void;
   /**
@@ -167,24 +169,26 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
       let lastSite: string | undefined;
       let site: Map<number, Value> | undefined;
       for (let i = 0; i < rows.length; i++) {
-        const r = rows[i];
-        const prev = latest.get(r.pointId);
+        const pointId = rows.pointId(i);
+        const ts = rows.ts(i);
+        const prev = latest.get(pointId);
         // Out-of-order readings are stored but do not replace a newer live value.
-        if (prev && prev.tsMs > r.ts) continue;
+        if (prev && prev.tsMs > ts) continue;
         // Updated in place: one object per point for the life of the process, not one per
         // reading for the garbage collector (a payload is serialised when it is emitted).
         let v = prev;
         if (v) {
-          v.tsMs = r.ts;
-          v.value = r.live;
-          v.quality = qualityNames[r.quality];
-        } else latest.set(r.pointId, (v = { pointId: r.pointId, tsMs: r.ts, value: r.live, quality: qualityNames[r.quality] }));
-        if (r.siteId !== lastSite || !site) {
-          lastSite = r.siteId;
-          site = pending.get(r.siteId);
-          if (!site) pending.set(r.siteId, (site = new Map()));
+          v.tsMs = ts;
+          v.value = rows.live(i);
+          v.quality = qualityNames[rows.quality(i)];
+        } else latest.set(pointId, (v = { pointId, tsMs: ts, value: rows.live(i), quality: qualityNames[rows.quality(i)] }));
+        const siteId = rows.siteId(i);
+        if (siteId !== lastSite || !site) {
+          lastSite = siteId;
+          site = pending.get(siteId);
+          if (!site) pending.set(siteId, (site = new Map()));
         }
-        site.set(r.pointId, v);
+        site.set(pointId, v);
         if (!prev) statusDue = true;
       }
       pushValues();

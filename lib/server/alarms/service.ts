@@ -32,7 +32,10 @@ export interface SiteEvaluationSummary {
 export interface AlarmService {
   /** record() then evaluateDue(): readings in, rules run when enough event time passed. */
   ingest(siteId: string, readings: readonly Reading[]): void;
-  /** Adds readings to the site's history; true when an evaluation is due (evaluateDue). */
+  /**
+   * Adds readings to the site's history; true when an evaluation is due (evaluateDue). The
+   * readings are read during the call and none is kept (the rule feed reuses them).
+   */
   record(siteId: string, readings: readonly Reading[]): boolean;
   /** Runs the rule checks if a step of event time passed since the last evaluation. */
   evaluateDue(siteId: string): void;
