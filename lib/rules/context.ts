@@ -25,6 +25,8 @@ export interface RuleContext {
   nowMs: number;
   snapshot: SiteSnapshot;
   comms: CommStatus;
+  /** The site's IANA time zone, for clock times written into messages (UTC when not given). */
+  timeZone?: string;
   /** Whether this rule's raw condition was active for this equipment at the previous evaluation. */
   wasActive(ruleId: RuleId, tag: string): boolean;
 }

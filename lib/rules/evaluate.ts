@@ -64,6 +64,8 @@ export interface EvaluateArgs {
   settings: RuleSettings;
   nowMs: number;
   comms?: CommStatus;
+  /** The site's IANA time zone (clock times in messages). */
+  timeZone?: string;
   /** Raw conditions of the previous evaluation, for dead bands; empty on the first. */
   previous?: readonly Condition[];
 }
@@ -79,6 +81,7 @@ export function evaluateRules(args: EvaluateArgs): { conditions: Condition[]; sn
     nowMs: args.nowMs,
     snapshot,
     comms: args.comms ?? {},
+    timeZone: args.timeZone,
     wasActive: (ruleId, tag) => prevActive.has(`${ruleId}:${tag}`),
   };
   return { conditions: Object.values(rules).flatMap((rule) => rule(ctx)), snapshot };

@@ -15,6 +15,11 @@ interface Fault {
   what: string;
 }
 
+/** "14:03:05 CDT": the site's own clock, as its people and its controllers' logs read it. */
+function clockTime(atMs: number, timeZone = "UTC"): string {
+  return new Date(atMs).toLocaleTimeString("en-US", { hourCycle: "h23", hour: "2-digit", minute: "2-digit", second: "2-digit", timeZone, timeZoneName: "short" });
+}
+
 export function powerEventSuspected(ctx: RuleContext): Condition[] {
   const s = ctx.settings.powerEvent;
   if (!s.enabled) return [];
@@ -44,7 +49,7 @@ export function powerEventSuspected(ctx: RuleContext): Condition[] {
   const active = lastMs !== null && ctx.nowMs - lastMs <= s.holdS * 1000;
   const names = group.map((f) => {
     const text = str(ctx, f.tag, "fault_text");
-    return `${f.tag} ${f.what} at ${new Date(f.atMs).toISOString().slice(11, 19)} UTC${text && text !== "none" ? ` (${text})` : ""}`;
+    return `${f.tag} ${f.what} at ${clockTime(f.atMs, ctx.timeZone)}${text && text !== "none" ? ` (${text})` : ""}`;
   });
   return [
     makeCondition({

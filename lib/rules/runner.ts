@@ -50,7 +50,7 @@ export interface SiteMonitor {
   setAlarms(book: AlarmBook): void;
 }
 
-export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; retentionS?: number; alarms?: AlarmBook }): SiteMonitor {
+export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; retentionS?: number; alarms?: AlarmBook; timeZone?: string }): SiteMonitor {
   const settings = args.settings ?? defaultRuleSettings;
   // The longest look back any rule (or the site page's 1 h margin trend) takes, plus slack: a
   // portfolio holds this much of every point in memory (2 h had been ~2.3 GB for 100,000 points).
@@ -75,7 +75,7 @@ export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; r
     history,
     ingest: (readings) => history.addAll(readings),
     evaluate(nowMs, comms) {
-      const { conditions, snapshot } = evaluateRules({ site: args.site, history, settings, nowMs, comms, previous });
+      const { conditions, snapshot } = evaluateRules({ site: args.site, history, settings, nowMs, comms, previous, timeZone: args.timeZone });
       // Only the active ones are read back (dead bands). Holding every condition, messages and
       // all, until the next evaluation 5 s later made ~60 KB per site outlive young-generation
       // collections, which then copied it: at 400 sites, most of what those pauses copied.

@@ -1,7 +1,7 @@
 import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { findAlarmRef, getRuleOverrides, loadAlarmMachines, saveAlarmChanges, type AlarmDetail } from "@/db/queries/alarms";
-import { equipment } from "@/db/schema";
+import { equipment, sites } from "@/db/schema";
 import { commandAlarm, type Alarm, type AlarmBook, type AlarmEvent, type TransitionRecord } from "@/lib/alarms";
 import { canAct, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
@@ -78,6 +78,11 @@ function loadSite(db: Db, siteId: string): Site {
     }));
 }
 
+/** The site's IANA time zone (clock times in alarm messages); undefined for a site not (yet) stored. */
+function siteTimeZone(db: Db, siteId: string): string | undefined {
+  return db.select({ timeZone: sites.timeZone }).from(sites).where(eq(sites.id, siteId)).get()?.timeZone;
+}
+
 export function loadRuleSettings(db: Db, siteId: string) {
   return parseRuleSettings(getRuleOverrides(db, siteId));
 }
@@ -100,7 +105,7 @@ export function createAlarmService(deps: {
       const site = loadSite(db, siteId);
       s = {
         site,
-        monitor: createSiteMonitor({ site, settings: loadRuleSettings(db, siteId), alarms: book }),
+        monitor: createSiteMonitor({ site, settings: loadRuleSettings(db, siteId), alarms: book, timeZone: siteTimeZone(db, siteId) }),
         lastEvaluatedMs: -Infinity,
         latestEventMs: -Infinity,
         latestWallMs: deps.clock(),

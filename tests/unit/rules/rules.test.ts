@@ -200,6 +200,20 @@ describe("utility power event suspected (rule 7)", () => {
     expect(c.related.join(" ")).toMatch(/CT-1 fan drive fault/);
   });
 
+  it("writes the faults' times on the site's clock", () => {
+    const frame = (tS: number) => ({ driveFault: tS >= 100 && tS < 200, towerFault: tS >= 110 && tS < 150 });
+    const related = (timeZone?: string) =>
+      runFrames({ durationS: 200, frame, keep: true, timeZone })
+        .evaluations.at(-1)!
+        .conditions.find((x) => x.ruleId === "power_event_suspected")!
+        .related.join(" ");
+    // T0 is 14:00:00 UTC on 1 July 2025; the first fault is at T0 + 100 s. US Central time is
+    // UTC−5 in July (daylight time; IANA tz database, America/Chicago).
+    expect(related("America/Chicago")).toMatch(/CH-1 compressor drive fault at 09:01:40 CDT/);
+    expect(related("America/Chicago")).toMatch(/CT-1 fan drive fault at 09:01:50 CDT/);
+    expect(related()).toMatch(/CH-1 compressor drive fault at 14:01:40 UTC/);
+  });
+
   it("a fan drive that comes back in off counts as the second drive", () => {
     const r = runFrames({ durationS: 300, frame: (tS) => ({ driveFault: tS >= 100 && tS < 110, towerMode: tS >= 100 ? "off" : "auto" }), keep: true });
     expect(secondsOf(r.firstActivation("power_event_suspected:site"))).toBe(100);

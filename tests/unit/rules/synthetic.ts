@@ -125,9 +125,11 @@ export function runFrames(args: {
   settings?: RuleSettingsInput;
   comms?: (tS: number) => CommStatus;
   keep?: boolean;
+  /** The site's IANA time zone (clock times in messages). */
+  timeZone?: string;
 }): RunResult {
   const stepS = args.stepS ?? 10;
-  const monitor = createSiteMonitor({ site, settings: parseRuleSettings(args.settings ?? {}) });
+  const monitor = createSiteMonitor({ site, settings: parseRuleSettings(args.settings ?? {}), timeZone: args.timeZone });
   const transitions: TransitionRecord[] = [];
   const evaluations: SiteEvaluation[] = [];
   for (let tS = 0; tS <= args.durationS; tS += stepS) {
