@@ -2,6 +2,7 @@ import type { Db } from "@/db/client";
 import { listGatewayPresence } from "@/db/queries/gateways";
 import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
 import { freshnessByGateway, siteStatuses, type GatewayFreshness, type MappedPoint, type SiteStatusRow } from "@/gateway/status";
+import type { CommittedRows } from "@/gateway/writer";
 import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "./events";
 import type { RealtimeServer } from "./server";
 
@@ -14,16 +15,6 @@ import type { RealtimeServer } from "./server";
 // loaded once and again when a gateway or point map changes, never a scan per round.
 
 type Value = SiteValues["values"][number];
-
-/** Committed readings, read by index (the writer hands them on as columns, not objects). */
-export interface LiveRows {
-  readonly length: number;
-  pointId(i: number): number;
-  siteId(i: number): string;
-  ts(i: number): number;
-  live(i: number): number | boolean | string;
-  quality(i: number): 0 | 1 | 2;
-}
 
 export interface LivePublisherOptions {
   io: Pick<RealtimeServer, "to">;
@@ -40,7 +31,7 @@ export interface LivePublisherOptions {
 }
 
 export interface LivePublisher {
-  onCommitted(rows: LiveRows): void;
+  onCommitted(rows: CommittedRows): void;
   /** Re-evaluate site status soon (an alarm changed; presence has presenceChanged). */
   touch(siteId: string): void;
   /**

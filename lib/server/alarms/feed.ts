@@ -1,6 +1,7 @@
 import { eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { equipment, points } from "@/db/schema";
+import type { CommittedRows } from "@/gateway/writer";
 import type { Reading } from "@/lib/plant/site";
 import { isQuantityKey, type QuantityKey } from "@/lib/quantities";
 import type { AlarmService } from "./service";
@@ -12,22 +13,11 @@ import type { AlarmService } from "./service";
  */
 const SLICE_MS = 3;
 
-/** Committed readings as ingestion reports them, read by index: canonical value, event time. */
-export interface CommittedReadings {
-  readonly length: number;
-  pointId(i: number): number;
-  siteId(i: number): string;
-  ts(i: number): number;
-  live(i: number): number | boolean | string;
-  /** 0 good, 1 uncertain, 2 bad. */
-  quality(i: number): number;
-}
-
 /**
  * Turns committed readings into the rule engine's readings (equipment tag + quantity) and
  * hands them to the alarm service per site. Bad-quality readings are kept out of the rules.
  */
-export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: CommittedReadings) => void {
+export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: CommittedRows) => void {
   const byPoint = new Map<number, { tag: string; quantity: QuantityKey } | null>();
   const remember = (pointId: number, row: { tag: string; quantity: string } | undefined) => {
     const p = row && isQuantityKey(row.quantity) ? { tag: row.tag, quantity: row.quantity } : null;
