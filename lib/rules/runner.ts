@@ -7,7 +7,7 @@ import { stepDelay, type DelayState } from "@/lib/alarms/delay";
 import type { TransitionRecord } from "@/lib/alarms/state-machine";
 import type { Reading, Site } from "@/lib/plant/site";
 import type { SiteSnapshot } from "@/lib/plant/snapshot";
-import type { Condition } from "./condition";
+import { ruleIds, type Condition } from "./condition";
 import type { CommStatus } from "./context";
 import { evaluateRules } from "./evaluate";
 import { ReadingHistory } from "./history";
@@ -68,7 +68,7 @@ export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; r
   let previous: Condition[] = [];
   // By rule, then equipment: no key string to build per condition and evaluation.
   const delays = new Map<Condition["ruleId"], Map<string, DelayState>>();
-  const delaySettings = new Map<Condition["ruleId"], { onDelayS: number; offDelayS: number }>();
+  const delaySettings = new Map(ruleIds.map((id) => [id, delaysFor(settings, id)]));
   let book: AlarmBook = args.alarms ?? emptyAlarmBook();
 
   return {
@@ -87,9 +87,7 @@ export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; r
       for (const c of delayed) {
         let byTag = delays.get(c.ruleId);
         if (!byTag) delays.set(c.ruleId, (byTag = new Map()));
-        let d = delaySettings.get(c.ruleId);
-        if (!d) delaySettings.set(c.ruleId, (d = delaysFor(settings, c.ruleId)));
-        const step = stepDelay(byTag.get(c.equipment), c.active, nowMs, d);
+        const step = stepDelay(byTag.get(c.equipment), c.active, nowMs, delaySettings.get(c.ruleId)!);
         byTag.set(c.equipment, step);
         c.rawActive = c.active;
         c.active = step.active;
