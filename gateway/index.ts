@@ -1,30 +1,35 @@
 import { randomBytes } from "node:crypto";
 import type { Db } from "@/db/client";
 import { markAllGatewaysOffline, setGatewayState, type IngestGateway } from "@/db/queries/gateways";
-import type { LivePublisher } from "@/lib/realtime/live";
+import type { Config } from "@/lib/server/config";
 import { createGatewayAuth } from "./auth";
 import { TOPIC_ROOT } from "./contract";
 import { startEmbeddedBroker, type EmbeddedBroker } from "./broker";
-import type { GatewayConfig } from "./config";
 import { connectExternalBroker, type ExternalBroker } from "./external";
 import { createIngest, type Ingest, type Presence } from "./ingest";
 import { setGatewayLink } from "./link";
 import { createGatewayRegistry } from "./registry";
 import { createSparkplugHost, encodeStatePayload, stateTopic } from "./sparkplug";
-import { createBatchWriter, systemClock, type BatchWriter, type Clock } from "./writer";
+import { createBatchWriter, systemClock, type BatchWriter, type Clock, type CommittedRows } from "./writer";
 
-// The gateway side of the server, assembled from its parts: broker (embedded or external),
-// ingest, batched writer (with retention pruning) and live publisher hook. server.ts calls this once.
+// The gateway side of the server, assembled from its parts: broker (embedded, or a client of
+// MQTT_URL), ingest, and the batched writer with retention pruning. Whoever starts it says who
+// hears of committed rows, presence and mapping changes.
+
+export type GatewaySettings = Pick<
+  Config,
+  "HOST" | "MQTT_PORT" | "MQTT_URL" | "MQTT_CLIENT_ID" | "MQTT_USERNAME" | "MQTT_PASSWORD" | "INGEST_FLUSH_MS" | "INGEST_MAX_BATCH_ROWS" | "GATEWAY_MAX_MSGS_PER_S" | "RAW_RETENTION_DAYS" | "ROLLUP_RETENTION_DAYS"
+>;
 
 export interface GatewaySideOptions {
   db: Db;
-  live: LivePublisher;
-  config: GatewayConfig;
-  host: string;
-  mqttPort: number;
-  /** External broker mode when set. */
-  mqttUrl?: string;
-  rawRetentionDays: number;
+  config: GatewaySettings;
+  /** Called in order with the new rows of every commit. */
+  onCommitted: ReadonlyArray<(rows: CommittedRows) => void>;
+  /** A gateway of the site connected or went away. */
+  onPresence?: (siteId: string) => void;
+  /** A gateway was provisioned or revoked, or its point map replaced. */
+  onMappingChanged?: () => void;
   clock?: Clock;
   log: (line: string) => void;
 }
@@ -43,19 +48,22 @@ export interface GatewaySide {
 const DAY_MS = 86_400_000;
 
 export async function startGatewaySide(opts: GatewaySideOptions): Promise<GatewaySide> {
-  const { db, live, log } = opts;
+  const { db, config, log } = opts;
   const clock = opts.clock ?? systemClock;
-  const rawRetentionMs = opts.rawRetentionDays * DAY_MS;
-  const external = opts.mqttUrl !== undefined;
+  const rawRetentionMs = config.RAW_RETENTION_DAYS * DAY_MS;
+  const external = config.MQTT_URL !== undefined;
+  const listeners = opts.onCommitted;
 
   const writer = createBatchWriter({
     db,
     clock,
     // An external session waits for each acknowledgement, so its flushes must not wait.
-    flushMs: external ? 0 : opts.config.INGEST_FLUSH_MS,
-    maxRows: opts.config.INGEST_MAX_BATCH_ROWS,
-    onCommitted: (rows) => live.onCommitted(rows),
-    retention: { rawMs: rawRetentionMs, rollupMs: opts.config.ROLLUP_RETENTION_DAYS * DAY_MS },
+    flushMs: external ? 0 : config.INGEST_FLUSH_MS,
+    maxRows: config.INGEST_MAX_BATCH_ROWS,
+    onCommitted: (rows) => {
+      for (const listener of listeners) listener(rows);
+    },
+    retention: { rawMs: rawRetentionMs, rollupMs: config.ROLLUP_RETENTION_DAYS * DAY_MS },
     log,
   });
   const registry = createGatewayRegistry({ db, clock });
@@ -64,7 +72,7 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
 
   function presence(gw: Pick<IngestGateway, "gatewayId" | "siteId">, state: Presence, atMs: number) {
     setGatewayState(db, gw.gatewayId, state, new Date(atMs));
-    live.presenceChanged(gw.siteId);
+    opts.onPresence?.(gw.siteId);
   }
 
   const ingest = createIngest({
@@ -74,7 +82,7 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     clock,
     rawRetentionMs,
     onPresence: presence,
-    maxMessagesPerS: opts.config.GATEWAY_MAX_MSGS_PER_S,
+    maxMessagesPerS: config.GATEWAY_MAX_MSGS_PER_S,
     log,
   });
 
@@ -82,10 +90,10 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
   let ext: ExternalBroker | undefined;
   if (external) {
     ext = await connectExternalBroker({
-      url: opts.mqttUrl!,
-      clientId: opts.config.MQTT_CLIENT_ID,
-      username: opts.config.MQTT_USERNAME,
-      password: opts.config.MQTT_PASSWORD,
+      url: config.MQTT_URL!,
+      clientId: config.MQTT_CLIENT_ID,
+      username: config.MQTT_USERNAME,
+      password: config.MQTT_PASSWORD,
       ingest,
       log,
     });
@@ -96,8 +104,8 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     const connections = new Map<string, number>();
     const internal = { username: "liftline-internal", password: randomBytes(24).toString("base64url") };
     embedded = await startEmbeddedBroker({
-      host: opts.host,
-      port: opts.mqttPort,
+      host: config.HOST,
+      port: config.MQTT_PORT,
       auth: createGatewayAuth({ db, internal }),
       onPublish: (identity, packet) =>
         identity.kind !== "gateway" ? Promise.resolve() : ingest.handle(identity.gatewayId, packet.topic, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload)),
@@ -130,14 +138,13 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
   setGatewayLink({
     changed(gatewayId, change) {
       registry.invalidate(gatewayId);
-      if (change !== "credentials") live.mappingChanged();
+      if (change !== "credentials") opts.onMappingChanged?.();
       if (change !== "point_map" && change !== "provisioned") {
         const n = embedded?.disconnectGateway(gatewayId) ?? 0;
         if (n) log(`[mqtt] ${gatewayId}: ${change}; closed ${n} connection(s)`);
       }
     },
   });
-
 
   return {
     mode: external ? "external" : "embedded",

@@ -138,3 +138,8 @@ export function listMail(db: Db, limit = 100): MailDto[] {
     .limit(limit)
     .all();
 }
+
+/** Stores a message the local SMTP sink received (the Outbox page reads them). */
+export function storeSinkMessage(db: Db, message: { from: string; to: string; subject: string; text: string }): void {
+  db.insert(mailMessages).values({ fromAddress: message.from, toAddress: message.to, subject: message.subject, text: message.text }).run();
+}

@@ -357,7 +357,7 @@ export function allSiteIds(db: Db): string[] {
 
 /**
  * A site's data status from stored latest values, for the latest-values API. The running
- * server's live publisher answers the same for every site from memory (lib/realtime/live.ts).
+ * server's live publisher answers the same for every site from memory (lib/server/realtime/live.ts).
  */
 export function siteDataStatus(db: Db, nowMs: number, siteId: string): SiteStatusRow | undefined {
   const mapped = mappedPoints(db, siteId);
@@ -383,4 +383,20 @@ export function storedLatestValues(db: Db): Array<{ pointId: number; tsMs: numbe
 /** All point ids, for the pruner to walk one primary-key range at a time. */
 export function allPointIds(db: Db): number[] {
   return db.select({ id: points.id }).from(points).orderBy(asc(points.id)).all().map((p) => p.id);
+}
+
+/** Every point's equipment tag and quantity: how the rule checks name a reading. */
+export function pointRuleNames(db: Db): Array<{ pointId: number; tag: string; quantity: string }> {
+  return db.select({ pointId: points.id, tag: equipment.tag, quantity: points.quantity }).from(points).innerJoin(equipment, eq(equipment.id, points.equipmentId)).all();
+}
+
+/** One point's equipment tag and quantity, with the statement prepared once (points added later). */
+export function pointRuleNameLookup(db: Db): (pointId: number) => { tag: string; quantity: string } | undefined {
+  const statement = db
+    .select({ tag: equipment.tag, quantity: points.quantity })
+    .from(points)
+    .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+    .where(eq(points.id, sql.placeholder("pointId")))
+    .prepare();
+  return (pointId) => statement.get({ pointId });
 }

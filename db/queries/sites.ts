@@ -2,6 +2,8 @@ import { and, asc, count, eq, inArray, type SQL } from "drizzle-orm";
 import type { Db } from "../client";
 import { equipment, organizations, points, sites } from "../schema";
 import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
+import type { Site } from "@/lib/plant/site";
+import type { EquipmentKind } from "@/lib/quantities";
 
 // Authorization lives here, in the queries: a customer's viewer can only ever match its
 // own organization's rows, whatever the route or page above asks for.
@@ -152,4 +154,28 @@ export function getSite(db: Db, viewer: Viewer, siteId: string): SiteDetailDto |
     .map((e) => ({ ...e, points: byEquipment.get(e.id) ?? [] }))
     .sort((a, b) => kindOrder(a.kind) - kindOrder(b.kind) || a.tag.localeCompare(b.tag, "en", { numeric: true }));
   return { ...toSummary(row, equipmentDtos.length), equipment: equipmentDtos };
+}
+
+// The rule checks' view of a site, read by the alarm service (a system process, no viewer).
+
+/** A site's equipment records as the plant calculations take them. */
+export function siteEquipment(db: Db, siteId: string): Site {
+  return db
+    .select({ tag: equipment.tag, kind: equipment.kind, capacityTons: equipment.capacityTons, designFlowLps: equipment.designFlowLps, refrigerant: equipment.refrigerant, serves: equipment.serves })
+    .from(equipment)
+    .where(eq(equipment.siteId, siteId))
+    .all()
+    .map((e) => ({
+      tag: e.tag,
+      kind: e.kind as EquipmentKind,
+      capacityTons: e.capacityTons ?? undefined,
+      designFlowLps: e.designFlowLps ?? undefined,
+      refrigerant: e.refrigerant ?? undefined,
+      serves: e.serves ?? undefined,
+    }));
+}
+
+/** The site's IANA time zone (clock times in alarm messages); undefined for a site not (yet) stored. */
+export function siteTimeZone(db: Db, siteId: string): string | undefined {
+  return db.select({ timeZone: sites.timeZone }).from(sites).where(eq(sites.id, siteId)).get()?.timeZone;
 }

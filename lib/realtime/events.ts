@@ -1,6 +1,6 @@
 import { z } from "zod";
 
-// The one socket.io contract, imported by the server (lib/realtime/server.ts) and the
+// The one socket.io contract, imported by the server (lib/server/realtime/server.ts) and the
 // browser (components/realtime). Event names are `entity:verb`; acks are { data } | { error }.
 
 export type Ack<T> = { data: T } | { error: { code: string; message: string } };

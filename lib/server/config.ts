@@ -32,6 +32,15 @@ export const configSchema = z.object({
   SIGNIN_MAX_PER_ACCOUNT: z.coerce.number().int().min(1).default(5),
   SIGNIN_MAX_PER_ADDRESS: z.coerce.number().int().min(1).default(20),
   RAW_RETENTION_DAYS: z.coerce.number().int().min(1).max(3650).default(14),
+  ROLLUP_RETENTION_DAYS: z.coerce.number().int().min(1).max(36_500).default(730),
+  INGEST_FLUSH_MS: z.coerce.number().int().min(0).max(250).default(50),
+  INGEST_MAX_BATCH_ROWS: z.coerce.number().int().min(100).max(50_000).default(5000),
+  GATEWAY_MAX_MSGS_PER_S: z.coerce.number().int().min(1).default(500),
+  LIVE_PUSH_MS: z.coerce.number().int().min(50).max(5000).default(200),
+  /** External broker mode: Liftline's own session there. */
+  MQTT_CLIENT_ID: z.string().min(1).max(23).default("liftline-ingest"),
+  MQTT_USERNAME: z.string().min(1).optional(),
+  MQTT_PASSWORD: z.string().min(1).optional(),
 });
 
 export type Config = z.infer<typeof configSchema>;

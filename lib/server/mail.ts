@@ -2,7 +2,7 @@ import { simpleParser } from "mailparser";
 import nodemailer from "nodemailer";
 import { SMTPServer } from "smtp-server";
 import type { Db } from "@/db/client";
-import { mailMessages } from "@/db/schema";
+import { storeSinkMessage } from "@/db/queries/oncall";
 
 // Outgoing mail through nodemailer over SMTP. Without SMTP_URL the server runs a local SMTP
 // sink (smtp-server) on loopback that stores every message for the admin's Outbox page —
@@ -28,9 +28,7 @@ async function startSink(db: Db, port: number, log: (line: string) => void): Pro
         .then((mail) => {
           const to = session.envelope.rcptTo.map((r) => r.address).join(", ");
           const from = session.envelope.mailFrom ? session.envelope.mailFrom.address : "";
-          db.insert(mailMessages)
-            .values({ fromAddress: from, toAddress: to, subject: mail.subject ?? "", text: mail.text ?? "" })
-            .run();
+          storeSinkMessage(db, { from, to, subject: mail.subject ?? "", text: mail.text ?? "" });
           callback();
         })
         .catch((err: Error) => {

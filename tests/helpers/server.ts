@@ -48,6 +48,13 @@ export interface StartOptions {
   timeoutMs?: number;
 }
 
+interface ReadyMessage {
+  type: "ready";
+  url: string;
+  httpPort: number;
+  mqttPort: number | null;
+}
+
 export function serverMode(): "production" | "development" {
   if (process.env.LIFTLINE_TEST_SERVER_MODE === "development") return "development";
   return fs.existsSync(path.join(ROOT, ".next", "BUILD_ID")) ? "production" : "development";
@@ -88,37 +95,38 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
   // The Node flags of `npm start` (package.json), and LIFTLINE_TEST_NODE_ARGS for more (e.g.
   // --cpu-prof for benchmarks).
   const nodeArgs = [...SERVER_NODE_FLAGS, ...(process.env.LIFTLINE_TEST_NODE_ARGS ?? "").split(" ").filter(Boolean)];
-  const child = spawn(process.execPath, [...nodeArgs, "--import", "tsx", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe"] });
+  // The IPC channel carries server.ts's readiness message with the ports it listens on.
+  const child = spawn(process.execPath, [...nodeArgs, "--import", "tsx", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe", "ipc"] });
   // A caller that dies without stop() (an uncaught error in a benchmark) must not leave a server
   // behind: four once kept running for an hour and took a fifth of a core from later bench runs.
   const killOnExit = () => child.kill("SIGKILL");
   process.on("exit", killOnExit);
   child.once("exit", () => process.off("exit", killOnExit));
   let out = "";
-  child.stdout.on("data", (d) => (out += d));
-  child.stderr.on("data", (d) => (out += d));
+  child.stdout!.on("data", (d) => (out += d));
+  child.stderr!.on("data", (d) => (out += d));
 
-  await new Promise<void>((resolve, reject) => {
+  const ready = await new Promise<ReadyMessage>((resolve, reject) => {
     const timer = setTimeout(() => reject(new Error(`server did not start in time:\n${out}`)), opts.timeoutMs ?? 120_000);
-    const onData = () => {
-      if (/Liftline is running at/.test(out)) {
-        clearTimeout(timer);
-        resolve();
-      }
-    };
-    child.stdout.on("data", onData);
+    child.on("message", (m: ReadyMessage) => {
+      if (m?.type !== "ready") return;
+      clearTimeout(timer);
+      resolve(m);
+    });
     child.once("exit", (code) => {
       clearTimeout(timer);
       reject(new Error(`server exited with ${code}:\n${out}`));
     });
   });
+  // Nothing more comes over IPC; an open channel would keep the test process waiting.
+  child.disconnect();
 
-  const url = `http://localhost:${port}`;
+  const url = `http://localhost:${ready.httpPort}`;
   return {
     url,
-    port,
-    mqttPort,
-    mqttUrl: `mqtt://127.0.0.1:${mqttPort}`,
+    port: ready.httpPort,
+    mqttPort: ready.mqttPort ?? mqttPort,
+    mqttUrl: `mqtt://127.0.0.1:${ready.mqttPort ?? mqttPort}`,
     dataDir,
     databasePath,
     output: () => out,

@@ -1,6 +1,5 @@
-import { eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { equipment, points } from "@/db/schema";
+import { pointRuleNameLookup, pointRuleNames } from "@/db/queries/readings";
 import type { CommittedRows } from "@/gateway/writer";
 import type { Reading } from "@/lib/plant/site";
 import { isQuantityKey, type QuantityKey } from "@/lib/quantities";
@@ -29,16 +28,10 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
   let loaded = false;
   const loadAll = () => {
     loaded = true;
-    const rows = deps.db.select({ pointId: points.id, tag: equipment.tag, quantity: points.quantity }).from(points).innerJoin(equipment, eq(equipment.id, points.equipmentId)).all();
-    for (const r of rows) remember(r.pointId, r);
+    for (const r of pointRuleNames(deps.db)) remember(r.pointId, r);
   };
   // Points created later (a new point map) are looked up one by one, with a statement prepared once.
-  const one = deps.db
-    .select({ tag: equipment.tag, quantity: points.quantity })
-    .from(points)
-    .innerJoin(equipment, eq(equipment.id, points.equipmentId))
-    .where(eq(points.id, sql.placeholder("pointId")))
-    .prepare();
+  const one = pointRuleNameLookup(deps.db);
   const lookUp = (pointId: number) => {
     const hit = byPoint.get(pointId);
     if (hit !== undefined) return hit;
@@ -47,7 +40,7 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
       const again = byPoint.get(pointId);
       if (again !== undefined) return again;
     }
-    return remember(pointId, one.get({ pointId }));
+    return remember(pointId, one(pointId));
   };
 
   const guarded = (siteId: string, work: () => void) => {

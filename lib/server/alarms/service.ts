@@ -1,13 +1,11 @@
-import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { findAlarmRef, getRuleOverrides, loadAlarmMachines, saveAlarmChanges, type AlarmDetail } from "@/db/queries/alarms";
-import { equipment, sites } from "@/db/schema";
+import { siteEquipment, siteTimeZone } from "@/db/queries/sites";
 import { commandAlarm, type Alarm, type AlarmBook, type AlarmEvent, type TransitionRecord } from "@/lib/alarms";
 import { canAct, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
 import type { Reading, Site } from "@/lib/plant/site";
 import type { SiteSnapshot } from "@/lib/plant/snapshot";
-import type { EquipmentKind } from "@/lib/quantities";
 import { createSiteMonitor, marginSeries, parseRuleSettings, type CommStatus, type RuleContext, type SiteMonitor } from "@/lib/rules";
 
 // Runs the rule checks of every site on the readings ingestion commits, on event time,
@@ -30,8 +28,6 @@ export interface SiteEvaluationSummary {
 }
 
 export interface AlarmService {
-  /** record() then evaluateDue(): readings in, rules run when enough event time passed. */
-  ingest(siteId: string, readings: readonly Reading[]): void;
   /**
    * Adds readings to the site's history; true when an evaluation is due (evaluateDue). The
    * readings are read during the call and none is kept (the rule feed reuses them).
@@ -39,8 +35,6 @@ export interface AlarmService {
   record(siteId: string, readings: readonly Reading[]): boolean;
   /** Runs the rule checks if a step of event time passed since the last evaluation. */
   evaluateDue(siteId: string): void;
-  /** Evaluates now even if little event time passed (tests, and the wall-clock timer). */
-  evaluate(siteId: string, atMs?: number): SiteEvaluationSummary | null;
   command(viewer: Viewer, alarmId: string, command: AlarmCommand): { alarmId: string; state: string };
   /** The last derived numbers of a site (for its page), or null before any reading. */
   snapshot(siteId: string): SiteSnapshot | null;
@@ -62,27 +56,6 @@ interface SiteState {
   details: Map<string, AlarmDetail>;
 }
 
-function loadSite(db: Db, siteId: string): Site {
-  return db
-    .select({ tag: equipment.tag, kind: equipment.kind, capacityTons: equipment.capacityTons, designFlowLps: equipment.designFlowLps, refrigerant: equipment.refrigerant, serves: equipment.serves })
-    .from(equipment)
-    .where(eq(equipment.siteId, siteId))
-    .all()
-    .map((e) => ({
-      tag: e.tag,
-      kind: e.kind as EquipmentKind,
-      capacityTons: e.capacityTons ?? undefined,
-      designFlowLps: e.designFlowLps ?? undefined,
-      refrigerant: e.refrigerant ?? undefined,
-      serves: e.serves ?? undefined,
-    }));
-}
-
-/** The site's IANA time zone (clock times in alarm messages); undefined for a site not (yet) stored. */
-function siteTimeZone(db: Db, siteId: string): string | undefined {
-  return db.select({ timeZone: sites.timeZone }).from(sites).where(eq(sites.id, siteId)).get()?.timeZone;
-}
-
 export function loadRuleSettings(db: Db, siteId: string) {
   return parseRuleSettings(getRuleOverrides(db, siteId));
 }
@@ -102,7 +75,7 @@ export function createAlarmService(deps: {
     let s = sites.get(siteId);
     if (!s) {
       const book: AlarmBook = new Map(loadAlarmMachines(db, siteId).map((a) => [a.key, a]));
-      const site = loadSite(db, siteId);
+      const site = siteEquipment(db, siteId);
       s = {
         site,
         monitor: createSiteMonitor({ site, settings: loadRuleSettings(db, siteId), alarms: book, timeZone: siteTimeZone(db, siteId) }),
@@ -173,16 +146,8 @@ export function createAlarmService(deps: {
   }
 
   return {
-    ingest(siteId, readings) {
-      if (record(siteId, readings)) evaluateDue(siteId);
-    },
     record,
     evaluateDue,
-    evaluate(siteId, atMs) {
-      const s = state(siteId);
-      const at = atMs ?? (Number.isFinite(s.latestEventMs) ? s.latestEventMs : deps.clock());
-      return evaluateAt(siteId, s, at);
-    },
     command(viewer, alarmId, command) {
       const ref = findAlarmRef(db, viewer, alarmId);
       if (!ref) throw notFound("No such alarm.");

@@ -18,6 +18,27 @@ export function alarmSide(summary: Map<string, { worst: AlarmDto | null; unackno
   return { worst: toWorst(a?.worst), unacknowledged: a?.unacknowledged ?? 0 };
 }
 
+/**
+ * The alarm side of every site's status push, read with the service company's full view: one
+ * summary query serves a whole status round, and an alarm change makes the next one fresh.
+ */
+export function createBoardAlarmSummary(db: Db, viewer: Viewer, clock: () => number = Date.now): { side(siteId: string): AlarmSide; invalidate(): void } {
+  let atMs = -Infinity;
+  let bySite = new Map<string, { worst: AlarmDto | null; unacknowledged: number }>();
+  return {
+    side(siteId) {
+      if (clock() - atMs > 1000) {
+        atMs = clock();
+        bySite = alarmSummaryBySite(db, viewer);
+      }
+      return alarmSide(bySite, siteId);
+    },
+    invalidate() {
+      atMs = -Infinity;
+    },
+  };
+}
+
 /** Each visible site's board status: data freshness, worst active alarm, unacknowledged count. */
 export function siteStatuses(db: Db, viewer: Viewer, siteIds: readonly string[]): Map<string, SiteStatus> {
   const summary = alarmSummaryBySite(db, viewer);

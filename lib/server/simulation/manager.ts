@@ -1,11 +1,9 @@
-import { and, eq, gte, inArray } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { alarmEvents, alarms, equipment, latestValues, points, readings, readings1m } from "@/db/schema";
 import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } from "@/db/queries/gateways";
+import { resetSiteTimeline } from "@/db/queries/simulation";
 import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
 import { notifyGatewayChanged } from "@/gateway/link";
 import { hourRebuilder } from "@/gateway/rollups";
-import { newAlarm, type Alarm } from "@/lib/alarms";
 import { systemViewer } from "@/lib/auth/viewer";
 import { parsePointMapCsv } from "@/gateway/point-map-csv";
 import { getLayout, getScenario, pointMapCsv } from "@/simulator/index";
@@ -74,38 +72,9 @@ export async function createSimulationManager(deps: {
     gatewayIds.set(site.id, gw.id);
   }
 
-  /**
-   * Removes a site's readings from `fromMs` on and returns its alarms to normal, so a run that
-   * starts in the past (to reach "now" at its end) does not interleave with the previous one.
-   * Demo sites only: this is a training reset, recorded in each alarm's history.
-   */
+  // A run that starts in the past (to reach "now" at its end) replaces the site's timeline.
   function resetSite(siteId: string, fromMs: number) {
-    const pointIds = db
-      .select({ id: points.id })
-      .from(points)
-      .innerJoin(equipment, eq(equipment.id, points.equipmentId))
-      .where(eq(equipment.siteId, siteId))
-      .all()
-      .map((p) => p.id);
-    db.transaction((tx) => {
-      if (pointIds.length) {
-        tx.delete(readings).where(and(inArray(readings.pointId, pointIds), gte(readings.ts, fromMs))).run();
-        tx.delete(readings1m).where(and(inArray(readings1m.pointId, pointIds), gte(readings1m.bucket, fromMs - 60_000))).run();
-        const rebuildHours = hourRebuilder(db.$client);
-        for (const id of pointIds) rebuildHours(id, fromMs - 60_000);
-        tx.delete(latestValues).where(inArray(latestValues.pointId, pointIds)).run();
-      }
-      for (const row of tx.select().from(alarms).where(eq(alarms.siteId, siteId)).all()) {
-        const machine = JSON.parse(row.machineJson) as Alarm;
-        const fresh = newAlarm({ ruleId: machine.ruleId, equipment: machine.equipment, priority: machine.priority, latching: machine.latching });
-        if (row.state !== "normal") {
-          tx.insert(alarmEvents)
-            .values({ alarmId: row.id, siteId, fromState: row.state, toState: "normal", cause: "simulation_restarted", priority: row.priority, eventAtMs: fromMs, note: "A new simulated scenario replaced this site's timeline" })
-            .run();
-        }
-        tx.update(alarms).set({ state: "normal", conditionActive: false, machineJson: JSON.stringify(fresh), updatedAt: now() }).where(eq(alarms.id, row.id)).run();
-      }
-    }, { behavior: "immediate" });
+    const pointIds = resetSiteTimeline(db, siteId, fromMs, now(), hourRebuilder(db.$client));
     deps.onSiteReset?.(siteId, pointIds);
   }
 

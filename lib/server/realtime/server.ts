@@ -6,7 +6,7 @@ import { canSeeSite, visibleSiteIds } from "@/db/queries/sites";
 import { getViewerById } from "@/db/queries/users";
 import { SESSION_COOKIES } from "@/lib/auth/session";
 import type { Viewer } from "@/lib/auth/viewer";
-import { boardRoom, joinSiteSchema, siteRoom, type ClientToServerEvents, type ServerToClientEvents } from "./events";
+import { boardRoom, joinSiteSchema, siteRoom, type ClientToServerEvents, type ServerToClientEvents } from "@/lib/realtime/events";
 
 interface SocketData {
   viewer: Viewer;

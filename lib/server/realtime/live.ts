@@ -3,7 +3,7 @@ import { listGatewayPresence } from "@/db/queries/gateways";
 import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
 import { freshnessByGateway, siteStatuses, type GatewayFreshness, type MappedPoint, type SiteStatusRow } from "@/gateway/status";
 import type { CommittedRows } from "@/gateway/writer";
-import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "./events";
+import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "@/lib/realtime/events";
 import type { RealtimeServer } from "./server";
 
 // Live values to browsers: the latest value per point is kept in memory, and each site room
