@@ -17,4 +17,32 @@ export default tseslint.config(
       "@typescript-eslint/no-unused-vars": ["error", { argsIgnorePattern: "^_", varsIgnorePattern: "^_", destructuredArrayIgnorePattern: "^_" }],
     },
   },
+  // lib/ is the pure domain: no database, gateway, simulator, app or Node I/O. The runtime that
+  // does I/O lives in lib/server/.
+  {
+    files: ["lib/**/*.{ts,tsx}"],
+    ignores: ["lib/server/**"],
+    rules: {
+      "no-restricted-imports": [
+        "error",
+        {
+          patterns: [
+            { regex: "^(@/|(\\.\\./)+)(db|gateway|simulator|app|components)(/|$)", message: "lib/ outside lib/server/ is pure: no db, gateway, simulator, app or components imports." },
+            { regex: "^(@/|(\\.\\./)+)?lib/server(/|$)|^\\.\\./server(/|$)", message: "The pure domain does not reach into the runtime (lib/server)." },
+            { regex: "^node:", message: "lib/ outside lib/server/ does no I/O: no node: modules." },
+          ],
+        },
+      ],
+    },
+  },
+  // Components take what they show from lib/ and each other; routes and pages hand them data.
+  {
+    files: ["components/**/*.{ts,tsx}"],
+    rules: {
+      "no-restricted-imports": [
+        "error",
+        { patterns: [{ regex: "^(@/|(\\.\\./)+)(app|db|gateway|simulator)(/|$)", message: "components/ import from lib/ and components/ only." }] },
+      ],
+    },
+  },
 );

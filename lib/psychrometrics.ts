@@ -1,14 +1,6 @@
 // Moist-air psychrometrics through PsychroLib (ASHRAE Handbook—Fundamentals 2017, ch. 1), SI units.
-import { createRequire } from "node:module";
+import shared, { type PsychroLib } from "psychrolib";
 
-interface PsychroLib {
-  SI: number;
-  SetUnitSystem(system: number): void;
-  GetTWetBulbFromRelHum(tDryBulbC: number, relHum: number, pressurePa: number): number;
-}
-
-const require = createRequire(import.meta.url);
-const shared = require("psychrolib") as PsychroLib;
 // The package exports one shared instance whose unit system is global; build a private SI instance
 // from its constructor so another caller switching to IP cannot change our results.
 const Ctor = (shared as unknown as { constructor: new () => PsychroLib }).constructor;
