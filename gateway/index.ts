@@ -3,7 +3,7 @@ import type { Db } from "@/db/client";
 import { markAllGatewaysOffline, setGatewayState, type IngestGateway } from "@/db/queries/gateways";
 import type { Config } from "@/lib/server/config";
 import { createGatewayAuth } from "./auth";
-import { TOPIC_ROOT } from "./contract";
+import { jsonTopics } from "./contract";
 import { startEmbeddedBroker, type EmbeddedBroker } from "./broker";
 import { connectExternalBroker, type ExternalBroker } from "./external";
 import { createIngest, type Ingest, type Presence } from "./ingest";
@@ -152,7 +152,7 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     ingest,
     writer,
     status: () => (embedded ? { up: true, clients: embedded.connectedClients() } : { up: ext?.connected() ?? false, clients: 0 }),
-    sendGatewayCommand: (gatewayId, payload) => sendCommand(`${TOPIC_ROOT}/${gatewayId}/commands`, Buffer.from(JSON.stringify(payload))),
+    sendGatewayCommand: (gatewayId, payload) => sendCommand(jsonTopics.commands(gatewayId), Buffer.from(JSON.stringify(payload))),
     async close() {
       setGatewayLink(undefined);
       // Stop taking messages first, then commit what was accepted.

@@ -96,7 +96,6 @@ export const quantities = {
 } as const satisfies Record<string, QuantityDef>;
 
 export type QuantityKey = keyof typeof quantities;
-export const quantityKeys = Object.keys(quantities) as QuantityKey[];
 
 export function isQuantityKey(key: string): key is QuantityKey {
   return Object.prototype.hasOwnProperty.call(quantities, key);

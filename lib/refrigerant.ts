@@ -90,7 +90,3 @@ export function saturationTempC(refrigerant: Refrigerant, pressureKPa: number): 
   }
   return tK - 273.15;
 }
-
-export function isRefrigerant(value: string): value is Refrigerant {
-  return (refrigerants as readonly string[]).includes(value);
-}

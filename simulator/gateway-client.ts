@@ -6,6 +6,7 @@
 // alias, NCMD rebirth, DCMD writes as drill actions; no liftline/… topics then.
 // Exported as a function so the server process can run simulated gateways in-process.
 import mqtt, { type MqttClient } from "mqtt";
+import { jsonTopics } from "@/gateway/contract";
 import { actionOfCommand, drillCommandSchema, type DrillAction } from "./actions-schema";
 import { defaultLayout, equipmentOf, getLayout, type SiteLayout } from "./layout";
 import { pointName, wireValue } from "./points";
@@ -77,7 +78,7 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
   const scenario = getScenario(opts.scenario);
   const durationS = opts.durationS ?? scenario.defaultDurationS;
   if (!(opts.speed > 0)) throw new Error("speed must be > 0");
-  const topics = { readings: `liftline/${gatewayId}/readings`, status: `liftline/${gatewayId}/status`, commands: `liftline/${gatewayId}/commands` };
+  const topics = { readings: jsonTopics.readings(gatewayId), status: jsonTopics.status(gatewayId), commands: jsonTopics.commands(gatewayId) };
   const kinds = new Map<string, EquipmentKind>(equipmentOf(layout).map((e) => [e.tag, e.kind]));
   const protocol = opts.protocol ?? "json";
   if (protocol === "sparkplug" && (!opts.groupId || !opts.edgeNodeId)) throw new Error("Sparkplug needs groupId and edgeNodeId");

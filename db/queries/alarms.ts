@@ -1,7 +1,7 @@
 import { randomUUID } from "node:crypto";
 import { and, asc, desc, eq, inArray, ne, sql } from "drizzle-orm";
 import type { Db } from "../client";
-import { alarmEvents, alarmNotes, alarms, organizations, siteRuleSettings, sites, users } from "../schema";
+import { alarmEvents, alarmNotes, alarms, siteRuleSettings, sites, users } from "../schema";
 import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
 import type { Condition } from "@/lib/rules/condition";
 import { siteScope } from "./sites";
@@ -301,17 +301,6 @@ export function transitionsSince(db: Db, sinceMs: number) {
     .where(sql`${alarmEvents.eventAtMs} >= ${sinceMs}`)
     .orderBy(asc(alarmEvents.eventAtMs))
     .all();
-}
-
-export function siteOrganization(db: Db, siteId: string): { organizationId: string; customerName: string } | null {
-  return (
-    db
-      .select({ organizationId: sites.organizationId, customerName: organizations.name })
-      .from(sites)
-      .innerJoin(organizations, eq(organizations.id, sites.organizationId))
-      .where(eq(sites.id, siteId))
-      .get() ?? null
-  );
 }
 
 /** Every alarm's state machine across all sites (staff-only health page). */

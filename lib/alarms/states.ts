@@ -12,14 +12,4 @@ export const alarmStates = [
 ] as const;
 export type AlarmState = (typeof alarmStates)[number];
 
-/** States in which the alarm is shown to the on-call technician. */
-export const annunciatedStates: readonly AlarmState[] = ["unacknowledged", "acknowledged", "returned_unacknowledged", "latched"];
 
-export function isAnnunciated(s: AlarmState): boolean {
-  return annunciatedStates.includes(s);
-}
-
-/** Needs someone's attention: unacknowledged, returned unacknowledged or latched. */
-export function needsAcknowledgement(s: AlarmState): boolean {
-  return s === "unacknowledged" || s === "returned_unacknowledged" || s === "latched";
-}

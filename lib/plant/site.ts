@@ -55,11 +55,6 @@ export function booleanAt(latest: LatestValues, tag: string, q: QuantityKey): bo
   return typeof v === "boolean" ? v : null;
 }
 
-export function stringAt(latest: LatestValues, tag: string, q: QuantityKey): string | null {
-  const v = latest[tag]?.[q]?.value;
-  return typeof v === "string" ? v : null;
-}
-
 export function equipmentOfKind(site: Site, kind: EquipmentKind): Equipment[] {
   return site.filter((e) => e.kind === kind);
 }
