@@ -2,7 +2,8 @@ import path from "node:path";
 import { defineConfig } from "vitest/config";
 
 export default defineConfig({
-  resolve: { alias: { "@": path.resolve(import.meta.dirname) } },
+  // Tests are a server: `import "server-only"` resolves to its empty module, as under Next.
+  resolve: { alias: { "@": path.resolve(import.meta.dirname), "server-only": path.resolve(import.meta.dirname, "node_modules/server-only/empty.js") } },
   test: {
     include: ["tests/**/*.test.ts"],
     environment: "node",

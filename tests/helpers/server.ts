@@ -96,7 +96,7 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
   // --cpu-prof for benchmarks).
   const nodeArgs = [...SERVER_NODE_FLAGS, ...(process.env.LIFTLINE_TEST_NODE_ARGS ?? "").split(" ").filter(Boolean)];
   // The IPC channel carries server.ts's readiness message with the ports it listens on.
-  const child = spawn(process.execPath, [...nodeArgs, "--import", "tsx", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe", "ipc"] });
+  const child = spawn(process.execPath, [...nodeArgs, "--import", "tsx", "--import", "./lib/server/server-only-hook.mjs", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe", "ipc"] });
   // A caller that dies without stop() (an uncaught error in a benchmark) must not leave a server
   // behind: four once kept running for an hour and took a fifth of a core from later bench runs.
   const killOnExit = () => child.kill("SIGKILL");
