@@ -24,7 +24,7 @@ let passedChecks = 0;
 const count = (ok: boolean) => (ok ? passedChecks++ : failedChecks++);
 
 count(step("type-check (tsc --noEmit)", bin("tsc"), ["--noEmit"]));
-count(step("lint (eslint)", bin("eslint"), ["--max-warnings", "0", "."]));
+count(step("lint (eslint)", bin("eslint"), ["--max-warnings", "0", "."]) && step("format (prettier --check)", bin("prettier"), ["--check", "--log-level", "warn", "."]));
 
 console.log("\n== production build (only when missing or stale)");
 let built = true;
