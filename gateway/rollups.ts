@@ -1,4 +1,5 @@
 import type Database from "better-sqlite3";
+import { bucketOf, hourOf, HOUR_MS, MINUTE_MS } from "@/lib/rollup-buckets";
 import { ingestState } from "./ingest-state";
 
 // 1-minute rollups (min/max/sum/count/last) kept in memory while their minute is open and
@@ -18,8 +19,6 @@ import { ingestState } from "./ingest-state";
 // watermark is in may hold part of a minute written just before a crash, so recovery rebuilds
 // it from its stored minutes.
 
-const MINUTE_MS = 60_000;
-export const HOUR_MS = 3_600_000;
 const WATERMARK = "rollups_sealed_before" as const;
 
 export interface MinuteAggregate {
@@ -66,9 +65,6 @@ export interface SealProgress {
   written: Array<[bucket: number, upTo: number]>;
   sealedBefore: number;
 }
-
-export const bucketOf = (ts: number) => Math.floor(ts / MINUTE_MS) * MINUTE_MS;
-export const hourOf = (ts: number) => Math.floor(ts / HOUR_MS) * HOUR_MS;
 
 // SQLite evaluates every SET expression against the old row, so `last` compares old last_ts.
 const upsertSql = (table: "readings_1m" | "readings_1h") =>

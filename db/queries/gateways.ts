@@ -9,7 +9,7 @@ import { AppError, notFound } from "@/lib/errors";
 import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import type { WireUnitCode } from "@/lib/units";
 import type { LineError, PointMapRow } from "@/gateway/point-map-csv";
-import { isOnline, silenceMs } from "@/gateway/status";
+import { isOnline, silenceMs } from "@/lib/freshness";
 
 // Gateways as the API sees them (viewer-scoped, DTOs only) and as the ingest side needs them
 // (system functions at the bottom, no viewer: the broker has no user). The password hash
