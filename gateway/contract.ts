@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { MAX_POINT_NAME } from "@/lib/point-map-csv";
 
 // The Liftline JSON wire contract (gateway/PROTOCOL.md is its public description) and the
 // limits every message is held to, whatever the protocol.
@@ -10,7 +11,7 @@ export const SPARKPLUG_NAMESPACE = "spBv1.0";
 export const MAX_PAYLOAD_BYTES = 256 * 1024;
 export const MAX_READINGS_PER_MESSAGE = 5000;
 export const MAX_FUTURE_MS = 5 * 60_000;
-export const MAX_POINT_NAME = 128;
+export { MAX_POINT_NAME };
 export const MAX_TEXT_VALUE = 200;
 
 /** Why input was not stored. Message-level reasons count messages, the others count readings. */

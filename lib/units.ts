@@ -47,6 +47,21 @@ export const wireUnits = {
 export type WireUnitCode = keyof typeof wireUnits;
 export const wireUnitCodes = Object.keys(wireUnits) as WireUnitCode[];
 
+/** The wire unit an IP controller reports each measure in: pressures gauge (psig), water ΔP in psid. */
+export const ipWireUnits: Record<Measure, WireUnitCode> = {
+  temperature: "degF",
+  pressure: "psig",
+  differential_pressure: "psid",
+  flow: "gpm",
+  power: "kW",
+  percent: "%",
+  frequency: "Hz",
+  duration: "s",
+  boolean: "bool",
+  state: "state",
+  text: "text",
+};
+
 export function isWireUnit(code: string): code is WireUnitCode {
   return Object.prototype.hasOwnProperty.call(wireUnits, code);
 }
