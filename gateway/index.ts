@@ -11,7 +11,8 @@ import { createIngest, type Ingest, type Presence } from "./ingest";
 import { setGatewayLink } from "./link";
 import { createGatewayRegistry } from "./registry";
 import { createSparkplugHost, encodeStatePayload, stateTopic } from "./sparkplug";
-import { createBatchWriter, systemClock, type BatchWriter, type Clock } from "./writer";
+import { systemClock, type Clock } from "@/lib/clock";
+import { createBatchWriter, type BatchWriter } from "./writer";
 
 // The gateway side of the server, assembled from its parts: broker (embedded or external),
 // ingest, batched writer (with retention pruning) and live publisher hook. server.ts calls this once.

@@ -1,4 +1,5 @@
 import type { IngestGateway, IngestPoint } from "@/db/queries/gateways";
+import type { Clock } from "@/lib/clock";
 import { toCanonical } from "@/lib/units";
 import {
   fastReading,
@@ -13,7 +14,8 @@ import {
 } from "./contract";
 import type { GatewayRegistry } from "./registry";
 import type { SparkplugHost } from "./sparkplug";
-import type { Batch, BatchWriter, Clock, RowIn } from "./writer";
+import type { RowIn } from "./row-columns";
+import type { Batch, BatchWriter } from "./writer";
 
 // From a published message to a batch for the writer: topic → gateway, payload → zod,
 // point names → points through the gateway's point map, wire units → canonical units.

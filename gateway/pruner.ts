@@ -1,6 +1,6 @@
 import type { Db } from "@/db/client";
 import { allPointIds } from "@/db/queries/readings";
-import type { Clock } from "./writer";
+import type { Clock } from "@/lib/clock";
 
 // Retention: raw readings for RAW_RETENTION_DAYS (14 by default), 1-minute and 1-hour rollups two
 // years (their tables are walked once a day, raw readings at every pass).

@@ -1,7 +1,7 @@
 import { eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { equipment, points } from "@/db/schema";
-import type { CommittedRows } from "@/gateway/writer";
+import type { CommittedRows } from "@/gateway/row-columns";
 import type { Reading } from "@/lib/plant/site";
 import { isQuantityKey, type QuantityKey } from "@/lib/quantities";
 import type { AlarmService } from "./service";
