@@ -77,8 +77,7 @@ export function toRow(point: IngestPoint, value: unknown, ts: number, quality: 0
 }
 
 // No async functions on this path: a message costs one promise (the writer's), not a chain of
-// about ten. In the capacity benchmark's profile the chain and the async hooks Next.js enables
-// (they run for every promise) were a visible share of the event loop's time.
+// them, each also running the async hooks Next.js enables.
 export function createIngest(deps: IngestDeps): Ingest {
   const log = deps.log ?? (() => {});
   const maxPerS = deps.maxMessagesPerS ?? 500;

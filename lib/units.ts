@@ -95,8 +95,8 @@ function affine(f: (v: number) => number): { scale: number; offset: number } {
 
 /**
  * Each wire unit's conversion to canonical as `value × scale + offset`, taken from convert-units
- * once (every unit here is affine: a factor, plus an offset for °F and gauge pressures). A
- * convert-units call per reading cost more than storing the reading.
+ * once (every unit here is affine: a factor, plus an offset for °F and gauge pressures), so a
+ * reading costs a multiply and an add, not a convert-units call.
  */
 const toCanonicalAffine = Object.fromEntries(
   wireUnitCodes.map((code) => {

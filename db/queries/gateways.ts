@@ -15,7 +15,7 @@ import { isOnline, silenceMs } from "@/lib/freshness";
 // (system functions at the bottom, no viewer: the broker has no user). The password hash
 // never leaves this module: credentials are checked here.
 
-/** bcrypt cost 10 (~70 ms here): paid once per MQTT CONNECT, not per message. */
+/** bcrypt cost 10: paid once per MQTT CONNECT, not per message. */
 const GATEWAY_BCRYPT_COST = 10;
 const DUMMY_HASH = bcrypt.hashSync("not-a-gateway-password", GATEWAY_BCRYPT_COST);
 
