@@ -33,7 +33,7 @@ export function openDb(file: string): Db {
   // Ingestion touches a page of every point it writes, so the default 2 MB page cache missed
   // on most of them; 64 MB holds the hot b-tree pages of a large portfolio.
   sqlite.pragma("cache_size = -65536");
-  // The ingest writer checkpoints from a worker thread (gateway/writer.ts); the automatic
+  // The ingest writer checkpoints from a worker thread (gateway/checkpointer.ts); the automatic
   // checkpoint, which runs inside a commit on the event loop, is raised from 1,000 pages (hit at
   // nearly every ingestion commit) to 10,000 (40 MB) as a safety net. A WAL left larger than
   // 64 MB is truncated back after a checkpoint.

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { MAX_POINT_NAME } from "@/lib/point-map-csv";
 
 // The Liftline JSON wire contract (gateway/PROTOCOL.md is its public description) and the
 // limits every message is held to, whatever the protocol.
@@ -10,7 +11,7 @@ export const SPARKPLUG_NAMESPACE = "spBv1.0";
 export const MAX_PAYLOAD_BYTES = 256 * 1024;
 export const MAX_READINGS_PER_MESSAGE = 5000;
 export const MAX_FUTURE_MS = 5 * 60_000;
-export const MAX_POINT_NAME = 128;
+export { MAX_POINT_NAME };
 export const MAX_TEXT_VALUE = 200;
 
 /** Why input was not stored. Message-level reasons count messages, the others count readings. */
@@ -56,7 +57,7 @@ const num2 = (s: string, i: number) => digit(s, i) * 10 + digit(s, i + 1);
 
 /**
  * Event time of `2026-12-01T14:02:59.500Z`, the form gateways and JavaScript's toISOString
- * write, read by hand (the general pattern below and Date.parse cost more than the insert);
+ * write, read by hand, as the general pattern below and Date.parse are too slow per reading;
  * NaN when `ts` is not exactly that form of a real UTC date and time.
  */
 export function canonicalIsoMs(ts: string): number {
@@ -78,7 +79,7 @@ export function canonicalIsoMs(ts: string): number {
  * A cheaper check for the common, valid reading: returns the reading only when
  * `readingSchema` would accept it as is, and undefined when in doubt — the caller then asks
  * `readingSchema` for the verdict, so what is rejected (and why) stays zod's decision.
- * Per-reading safeParse was one of the hottest parts of ingestion. `out.tsMs` gets the
+ * A safeParse per reading is too slow for the ingest path. `out.tsMs` gets the
  * reading's event time (NaN when it has no `ts`), so it is not parsed twice.
  */
 export function fastReading(raw: unknown, out: { tsMs: number }): WireReading | undefined {

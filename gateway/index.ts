@@ -10,7 +10,9 @@ import { createIngest, type Ingest, type Presence } from "./ingest";
 import { setGatewayLink } from "./link";
 import { createGatewayRegistry } from "./registry";
 import { createSparkplugHost, encodeStatePayload, stateTopic } from "./sparkplug";
-import { createBatchWriter, systemClock, type BatchWriter, type Clock, type CommittedRows } from "./writer";
+import { systemClock, type Clock } from "@/lib/clock";
+import type { CommittedRows } from "./row-columns";
+import { createBatchWriter, type BatchWriter } from "./writer";
 
 // The gateway side of the server, assembled from its parts: broker (embedded, or a client of
 // MQTT_URL), ingest, and the batched writer with retention pruning. Whoever starts it says who

@@ -1,4 +1,5 @@
 import type { IngestGateway, IngestPoint } from "@/db/queries/gateways";
+import type { Clock } from "@/lib/clock";
 import { toCanonical } from "@/lib/units";
 import {
   fastReading,
@@ -13,7 +14,8 @@ import {
 } from "./contract";
 import type { GatewayRegistry } from "./registry";
 import type { SparkplugHost } from "./sparkplug";
-import type { Batch, BatchWriter, Clock, RowIn } from "./writer";
+import type { RowIn } from "./row-columns";
+import type { Batch, BatchWriter } from "./writer";
 
 // From a published message to a batch for the writer: topic → gateway, payload → zod,
 // point names → points through the gateway's point map, wire units → canonical units.
@@ -75,8 +77,7 @@ export function toRow(point: IngestPoint, value: unknown, ts: number, quality: 0
 }
 
 // No async functions on this path: a message costs one promise (the writer's), not a chain of
-// about ten. In the capacity benchmark's profile the chain and the async hooks Next.js enables
-// (they run for every promise) were a visible share of the event loop's time.
+// them, each also running the async hooks Next.js enables.
 export function createIngest(deps: IngestDeps): Ingest {
   const log = deps.log ?? (() => {});
   const maxPerS = deps.maxMessagesPerS ?? 500;

@@ -1,6 +1,6 @@
 import type { Db } from "@/db/client";
 import { allPointIds } from "@/db/queries/readings";
-import type { Clock } from "./writer";
+import type { Clock } from "@/lib/clock";
 
 // Retention: raw readings for RAW_RETENTION_DAYS (14 by default), 1-minute and 1-hour rollups two
 // years (their tables are walked once a day, raw readings at every pass).
@@ -16,8 +16,7 @@ export interface PrunerOptions {
   everyMs?: number;
   /**
    * Delay of the first pass after start (default 10 min). Right after a restart gateways send
-   * what they buffered meanwhile, ingestion runs flat out, and a pass over 100,000 points took
-   * 6 % of the store thread then (tests/bench/ingest.bench.ts); readings a few minutes past
+   * what they buffered meanwhile and ingestion runs flat out; readings a few minutes past
    * retention can wait.
    */
   firstRunMs?: number;
@@ -41,12 +40,11 @@ export function startPruner(opts: PrunerOptions): Pruner {
   const chunk = opts.chunk ?? 2000;
   let running: Promise<{ readings: number; rollups: number }> | null = null;
   let stopped = false;
-  // Rollups are kept two years; walking their two tables for every point each hour cost the
-  // store worker twice the raw readings' pass for nothing. Once a day is plenty.
+  // Rollups are kept two years, so walking their two tables once a day is enough.
   let rollupsPrunedAt = -Infinity;
 
-  // Prepared once per pruner: the primary key is (point_id, ts|bucket), so each call is a range
-  // delete of one point, never a table scan. A pass over 20k points used to prepare 40k statements.
+  // Prepared once per pruner, not per point: the primary key is (point_id, ts|bucket), so each
+  // call is a range delete of one point, never a table scan.
   const statements = (["readings", "readings_1m", "readings_1h"] as const).map((table) => {
     const col = table === "readings" ? "ts" : "bucket";
     return opts.db.$client.prepare<[number, number, number, number]>(

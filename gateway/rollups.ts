@@ -1,10 +1,10 @@
 import type Database from "better-sqlite3";
+import { bucketOf, hourOf, HOUR_MS, MINUTE_MS } from "@/lib/rollup-buckets";
 import { ingestState } from "./ingest-state";
 
 // 1-minute rollups (min/max/sum/count/last) kept in memory while their minute is open and
-// written to `readings_1m` once, when it has closed ("sealed"). Writing every open minute at
-// every flush cost a b-tree page per point per flush; a point reporting every 5 s now costs one
-// rollup row write a minute instead of twelve.
+// written to `readings_1m` once, when it has closed ("sealed"), so a point costs one rollup row
+// write a minute however often it reports.
 //
 // Durability rests on raw readings, which are committed before any PUBACK: the watermark
 // `rollups_sealed_before` (ingest_state) is advanced in the same transaction that writes the
@@ -18,8 +18,6 @@ import { ingestState } from "./ingest-state";
 // watermark is in may hold part of a minute written just before a crash, so recovery rebuilds
 // it from its stored minutes.
 
-const MINUTE_MS = 60_000;
-export const HOUR_MS = 3_600_000;
 const WATERMARK = "rollups_sealed_before" as const;
 
 export interface MinuteAggregate {
@@ -41,8 +39,8 @@ export interface RollupBook {
   /**
    * Inside the flush's transaction: writes up to `budget` aggregates of the open minutes before
    * `limit`, oldest minute first, and the watermark up to the first minute not yet fully written.
-   * A portfolio closes 100,000 point-minutes at once; written in one go they held the writer
-   * (and so every PUBACK) for a third of a second.
+   * A portfolio closes all its point-minutes at once; the budget keeps them from holding the
+   * writer (and so every PUBACK) in one long transaction.
    */
   writeSealed(limit: number, budget?: number): SealProgress;
   /** Inside the flush's transaction: a reading of a minute before the limit goes straight to its row. */
@@ -66,9 +64,6 @@ export interface SealProgress {
   written: Array<[bucket: number, upTo: number]>;
   sealedBefore: number;
 }
-
-export const bucketOf = (ts: number) => Math.floor(ts / MINUTE_MS) * MINUTE_MS;
-export const hourOf = (ts: number) => Math.floor(ts / HOUR_MS) * HOUR_MS;
 
 // SQLite evaluates every SET expression against the old row, so `last` compares old last_ts.
 const upsertSql = (table: "readings_1m" | "readings_1h") =>

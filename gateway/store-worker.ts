@@ -1,33 +1,14 @@
 import { parentPort, workerData } from "node:worker_threads";
 import { openDb } from "@/db/client";
+import { systemClock } from "@/lib/clock";
 import { startPruner } from "./pruner";
-import { createStore, type FlushWire } from "./store";
+import { createStore } from "./store";
+import type { FromStore, StoreWorkerData, ToStore } from "./store-messages";
 
 // The thread that owns ingestion's write connection: flushes arrive as columns, are committed
 // here, and the answer (which rows were new) goes back to the event loop, which then sends the
-// PUBACKs. Commits, page writes, rollup sealing and retention pruning no longer hold up MQTT,
-// sockets or pages.
-
-export type ToStore =
-  | { type: "flush"; flush: FlushWire }
-  | { type: "maintain"; nowMs: number }
-  | { type: "forget"; pointIds: number[] }
-  | { type: "close"; nowMs: number };
-
-export type FromStore =
-  | { type: "log"; line: string }
-  | { type: "flushed"; id: number; accepted: Int32Array; inserted: Uint8Array; stats: { openRollups: number; unwrittenLatest: number } }
-  | { type: "flushFailed"; id: number; error: string }
-  | { type: "closed" };
-
-export interface StoreWorkerData {
-  file: string;
-  graceMs: number;
-  latestEveryMs: number;
-  derivedRowsPerFlush?: number;
-  nowMs: number;
-  retention?: { rawMs: number; rollupMs: number };
-}
+// PUBACKs. Commits, page writes, rollup sealing and retention pruning run here so they do not
+// hold up MQTT, sockets or pages.
 
 const port = parentPort!;
 const data = workerData as StoreWorkerData;
@@ -37,7 +18,7 @@ const log = (line: string) => send({ type: "log", line });
 const db = openDb(data.file);
 const store = createStore(db.$client, { graceMs: data.graceMs, latestEveryMs: data.latestEveryMs, derivedRowsPerFlush: data.derivedRowsPerFlush, nowMs: data.nowMs, log });
 // Retention deletes run here too, in slices between flushes, so they never wait on the lock.
-const pruner = data.retention && startPruner({ db, clock: { now: () => Date.now() }, rawRetentionMs: data.retention.rawMs, rollupRetentionMs: data.retention.rollupMs, log });
+const pruner = data.retention && startPruner({ db, clock: systemClock, rawRetentionMs: data.retention.rawMs, rollupRetentionMs: data.retention.rollupMs, log });
 
 port.on("message", (m: ToStore) => {
   switch (m.type) {

@@ -1,10 +1,11 @@
-import { createRequire } from "node:module";
-import { Worker } from "node:worker_threads";
 import type { Db } from "@/db/client";
+import { systemClock, type Clock } from "@/lib/clock";
+import { startCheckpointer } from "./checkpointer";
 import type { RejectionReason } from "./contract";
-import { startPruner } from "./pruner";
-import { createStore, type FlushDone, type FlushWire } from "./store";
-import type { FromStore, StoreWorkerData, ToStore } from "./store-worker";
+import { RowColumns, type CommittedRows, type RowIn } from "./row-columns";
+import type { FlushDone, FlushWire } from "./store";
+import { inlineStore, workerStore, type StoreSettings } from "./store-link";
+import type { Retention } from "./store-messages";
 
 // The batched writer: everything the ingest accepted (readings, counters, rejections) is
 // queued and written in one transaction per flush (gateway/store.ts). A submit resolves only
@@ -12,28 +13,8 @@ import type { FromStore, StoreWorkerData, ToStore } from "./store-worker";
 // then (MQTT 3.1.1 §4.3.2: the receiver owns the message once it acks).
 //
 // With a file database the transactions run on a worker thread of their own, one flush at a
-// time; messages that arrive meanwhile make the next flush larger. The event loop keeps MQTT,
-// rule checks, sockets and pages; on 2 cores the commits had taken a quarter of it.
-
-export interface Clock {
-  now(): number;
-}
-export const systemClock: Clock = { now: () => Date.now() };
-
-export type LiveValue = number | boolean | string;
-
-export interface RowIn {
-  pointId: number;
-  siteId: string;
-  ts: number;
-  /** Numbers and booleans (0/1) */
-  value: number | null;
-  /** State and text points */
-  text: string | null;
-  quality: 0 | 1 | 2;
-  /** The value as screens get it (canonical units, booleans as booleans). */
-  live: LiveValue;
-}
+// time (gateway/store-link.ts); messages that arrive meanwhile make the next flush larger. The
+// event loop keeps MQTT, rule checks, sockets and pages.
 
 export interface Batch {
   gatewayId: string;
@@ -43,21 +24,6 @@ export interface Batch {
   rejections?: Partial<Record<RejectionReason, number>>;
   unmapped?: Map<string, number>;
   receivedAtMs: number;
-}
-
-/**
- * The rows one flush committed, read by index: an object per row, made for the listeners and
- * dropped at once, was the largest allocation left on the ingest path (a 20-reading capacity
- * run spent a quarter of the main thread in the garbage collector).
- */
-export interface CommittedRows {
-  readonly length: number;
-  pointId(i: number): number;
-  siteId(i: number): string;
-  ts(i: number): number;
-  quality(i: number): 0 | 1 | 2;
-  /** The value as screens get it (canonical units, booleans as booleans). */
-  live(i: number): LiveValue;
 }
 
 export interface SubmitResult {
@@ -91,11 +57,6 @@ export interface WriterOptions {
   retention?: Retention;
 }
 
-export interface Retention {
-  rawMs: number;
-  rollupMs: number;
-}
-
 export interface BatchWriter {
   submit(batch: Batch): Promise<SubmitResult>;
   /** Starts writing everything queued now (after the flush in progress, if any). */
@@ -106,203 +67,11 @@ export interface BatchWriter {
   forget(pointIds: readonly number[]): void;
 }
 
-// A PASSIVE checkpoint every 100 ms on its own connection in a worker thread: it copies
-// committed WAL pages back into the database (and fsyncs) while the event loop goes on
-// committing, so SQLite's automatic checkpoint, which runs inside a commit and blocks the event
-// loop, is only a safety net (db/client.ts). Measured on 20k points, 2,000-row flushes at
-// ~35k rows/s: p99 flush 30 ms with the default in-commit checkpoint, 22 ms with this one.
-const checkpointWorkerSource = `
-const { parentPort, workerData } = require("node:worker_threads");
-const Database = require(workerData.driver);
-const db = new Database(workerData.file, { fileMustExist: true });
-db.pragma("busy_timeout = 1000");
-const timer = setInterval(() => {
-  try { db.pragma("wal_checkpoint(PASSIVE)"); } catch { /* busy or closing: the next round retries */ }
-}, workerData.everyMs);
-parentPort.once("message", () => { clearInterval(timer); db.close(); parentPort.close(); });
-`;
-
-export function startCheckpointer(file: string, everyMs: number, log: (line: string) => void): { stop(): Promise<void> } {
-  const worker = new Worker(checkpointWorkerSource, { eval: true, workerData: { driver: createRequire(import.meta.url).resolve("better-sqlite3"), file, everyMs } });
-  worker.unref();
-  worker.on("error", (err) => log(`[ingest] background checkpoint stopped: ${String(err)}`));
-  return {
-    stop: () =>
-      new Promise<void>((resolve) => {
-        worker.once("exit", () => resolve());
-        // Waited for now: keep the process up until it has closed its connection.
-        worker.ref();
-        worker.postMessage("stop");
-        setTimeout(() => void worker.terminate(), 2000).unref();
-      }),
-  };
-}
-
 /** A submitted batch without its rows (they are in the queue's columns). */
 interface Pending {
   meta: FlushWire["batches"][number];
   resolve: (r: SubmitResult) => void;
   reject: (err: unknown) => void;
-}
-
-const ROW_NUMBER = 0;
-const ROW_BOOLEAN = 1;
-const ROW_TEXT = 2;
-
-/**
- * Queued rows as columns. Rows wait here from submit until their flush commits, which under
- * load spans a young-generation collection or two: as an object each, they were copied by
- * those collections and promoted to the old generation. In a 20-reading capacity run (about
- * 190,000 readings/s) the main thread's scavenges took 3.8 s of the last 18 s with row objects
- * queued and 2.3 s with columns (--trace-gc). After the commit, listeners read the new rows
- * through a view of these columns (CommittedRows), still with no object per row.
- */
-class RowColumns {
-  length = 0;
-  pointId: Int32Array;
-  ts: Float64Array;
-  value: Float64Array;
-  quality: Uint8Array;
-  kind: Uint8Array;
-  siteId: string[] = [];
-  texts: Array<[row: number, text: string]> = [];
-
-  constructor(capacity: number) {
-    this.pointId = new Int32Array(capacity);
-    this.ts = new Float64Array(capacity);
-    this.value = new Float64Array(capacity);
-    this.quality = new Uint8Array(capacity);
-    this.kind = new Uint8Array(capacity);
-  }
-
-  push(r: RowIn) {
-    const i = this.length;
-    if (i === this.pointId.length) this.grow();
-    this.pointId[i] = r.pointId;
-    this.ts[i] = r.ts;
-    this.value[i] = r.value ?? NaN;
-    this.quality[i] = r.quality;
-    this.kind[i] = r.text !== null ? ROW_TEXT : typeof r.live === "boolean" ? ROW_BOOLEAN : ROW_NUMBER;
-    this.siteId.push(r.siteId);
-    if (r.text !== null) this.texts.push([i, r.text]);
-    this.length = i + 1;
-  }
-
-  /** The rows listed in `rows` (indexes into these columns), as listeners of committed rows read them. */
-  view(rows: Int32Array): CommittedRows {
-    const texts = new Map(this.texts);
-    return {
-      length: rows.length,
-      pointId: (i) => this.pointId[rows[i]],
-      siteId: (i) => this.siteId[rows[i]],
-      ts: (i) => this.ts[rows[i]],
-      quality: (i) => this.quality[rows[i]] as 0 | 1 | 2,
-      live: (i) => {
-        const k = rows[i];
-        const kind = this.kind[k];
-        return kind === ROW_TEXT ? (texts.get(k) ?? "") : kind === ROW_BOOLEAN ? this.value[k] !== 0 : this.value[k];
-      },
-    };
-  }
-
-  private grow() {
-    const n = this.pointId.length * 2;
-    const into = <T extends Int32Array | Float64Array | Uint8Array>(bigger: T, from: T) => (bigger.set(from), bigger);
-    this.pointId = into(new Int32Array(n), this.pointId);
-    this.ts = into(new Float64Array(n), this.ts);
-    this.value = into(new Float64Array(n), this.value);
-    this.quality = into(new Uint8Array(n), this.quality);
-    this.kind = into(new Uint8Array(n), this.kind);
-  }
-}
-
-/** Where a flush is committed: the same calls whether on this thread or the store worker. */
-interface StoreLink {
-  write(flush: FlushWire): Promise<FlushDone>;
-  maintain(nowMs: number): void;
-  forget(pointIds: readonly number[]): void;
-  close(nowMs: number): Promise<void>;
-  stats(): { openRollups: number; unwrittenLatest: number };
-}
-
-type StoreSettings = { graceMs: number; latestEveryMs: number; derivedRowsPerFlush?: number; log: (line: string) => void; retention?: Retention };
-
-function inlineStore(db: Db, clock: Clock, options: StoreSettings & { nowMs: number }): StoreLink {
-  const store = createStore(db.$client, options);
-  const pruner = options.retention && startPruner({ db, clock, rawRetentionMs: options.retention.rawMs, rollupRetentionMs: options.retention.rollupMs, log: options.log });
-  return {
-    write: async (flush) => store.write(flush),
-    maintain: (nowMs) => store.maintain(nowMs),
-    forget: (pointIds) => store.forget(pointIds),
-    close: async (nowMs) => {
-      pruner?.stop();
-      store.close(nowMs);
-    },
-    stats: () => store.stats(),
-  };
-}
-
-function workerStore(file: string, options: StoreSettings & { nowMs: () => number }): StoreLink {
-  const { log } = options;
-  const flushes = new Map<number, { resolve: (d: FlushDone) => void; reject: (err: Error) => void }>();
-  let lastStats = { openRollups: 0, unwrittenLatest: 0 };
-  let closing: (() => void) | undefined;
-  let worker: Worker;
-  let startedAt = 0;
-  /** Set when a worker died right after starting: another would too, so writes are refused. */
-  let broken: Error | undefined;
-
-  function start() {
-    startedAt = Date.now();
-    const data: StoreWorkerData = { file, graceMs: options.graceMs, latestEveryMs: options.latestEveryMs, derivedRowsPerFlush: options.derivedRowsPerFlush, nowMs: options.nowMs(), retention: options.retention };
-    worker = new Worker(new URL("./store-worker.mjs", import.meta.url), { workerData: data });
-    worker.on("message", (m: FromStore) => {
-      if (m.type === "log") log(m.line);
-      else if (m.type === "flushed") {
-        lastStats = m.stats;
-        flushes.get(m.id)?.resolve({ id: m.id, accepted: m.accepted, inserted: m.inserted });
-        flushes.delete(m.id);
-      } else if (m.type === "flushFailed") {
-        flushes.get(m.id)?.reject(new Error(m.error));
-        flushes.delete(m.id);
-      } else if (m.type === "closed") closing?.();
-    });
-    worker.on("error", (err) => log(`[ingest] store worker failed: ${err.stack ?? String(err)}`));
-    worker.on("exit", (code) => {
-      // Nothing it was writing is acknowledged; gateways resend. A new worker rebuilds what was
-      // held in memory from raw readings, as after any unclean stop.
-      for (const f of flushes.values()) f.reject(new Error(`store worker exited (${code})`));
-      flushes.clear();
-      if (closing) return closing();
-      if (Date.now() - startedAt < 5000) {
-        broken = new Error(`the store worker exited with ${code} right after starting`);
-        log(`[ingest] ${broken.message}; readings are refused (not acknowledged) until the server restarts`);
-        return;
-      }
-      log(`[ingest] store worker exited with ${code}; starting another`);
-      start();
-    });
-  }
-  start();
-  const post = (m: ToStore, transfer: ArrayBuffer[] = []) => worker.postMessage(m, transfer);
-
-  return {
-    write: (flush) =>
-      new Promise<FlushDone>((resolve, reject) => {
-        if (broken) return reject(broken);
-        flushes.set(flush.id, { resolve, reject });
-        post({ type: "flush", flush }, [flush.pointId.buffer as ArrayBuffer, flush.ts.buffer as ArrayBuffer, flush.value.buffer as ArrayBuffer, flush.quality.buffer as ArrayBuffer]);
-      }),
-    maintain: (nowMs) => post({ type: "maintain", nowMs }),
-    forget: (pointIds) => post({ type: "forget", pointIds: [...pointIds] }),
-    close: (nowMs) =>
-      new Promise<void>((resolve) => {
-        closing = resolve;
-        if (broken) return resolve();
-        post({ type: "close", nowMs });
-      }),
-    stats: () => lastStats,
-  };
 }
 
 /** A flush's rows as the store gets them: copies, since the store worker takes the buffers. */

@@ -47,6 +47,21 @@ export const wireUnits = {
 export type WireUnitCode = keyof typeof wireUnits;
 export const wireUnitCodes = Object.keys(wireUnits) as WireUnitCode[];
 
+/** The wire unit an IP controller reports each measure in: pressures gauge (psig), water ΔP in psid. */
+export const ipWireUnits: Record<Measure, WireUnitCode> = {
+  temperature: "degF",
+  pressure: "psig",
+  differential_pressure: "psid",
+  flow: "gpm",
+  power: "kW",
+  percent: "%",
+  frequency: "Hz",
+  duration: "s",
+  boolean: "bool",
+  state: "state",
+  text: "text",
+};
+
 export function isWireUnit(code: string): code is WireUnitCode {
   return Object.prototype.hasOwnProperty.call(wireUnits, code);
 }
@@ -80,8 +95,8 @@ function affine(f: (v: number) => number): { scale: number; offset: number } {
 
 /**
  * Each wire unit's conversion to canonical as `value × scale + offset`, taken from convert-units
- * once (every unit here is affine: a factor, plus an offset for °F and gauge pressures). A
- * convert-units call per reading cost more than storing the reading.
+ * once (every unit here is affine: a factor, plus an offset for °F and gauge pressures), so a
+ * reading costs a multiply and an add, not a convert-units call.
  */
 const toCanonicalAffine = Object.fromEntries(
   wireUnitCodes.map((code) => {

@@ -7,4 +7,5 @@ export type { PlantState, StepInputs, StepResult, PlantCommand, ModelEvent, Faul
 export { scenarios, scenarioNames, getScenario, powerBlipRightActions, type Scenario } from "./scenarios";
 export { siteLayouts, defaultLayout, getLayout, threeChillerLayout, equipmentOf, plantTons, type SiteLayout, type ChillerSpec, type EquipmentDef } from "./layout";
 export { drillActionSchema, drillCommandSchema, actionOfCommand, timerLimits, type DrillAction, type DrillCommand } from "./actions-schema";
-export { pointMapRows, pointMapCsv, pointName, toWire, fromWire, wireUnitOf, wireUnits, wireValue, formatWireValue, type PointMapRow } from "./points";
+export { pointMapRows, pointMapCsv, pointName, toWire, fromWire, wireUnitOf, wireValue, formatWireValue } from "./points";
+export type { PointMapRow } from "@/lib/point-map-csv";

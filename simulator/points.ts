@@ -1,22 +1,9 @@
 // Controller-style point names, the point map, and conversion between canonical SI and wire units.
-import { pointsByKind, quantities, type Measure, type QuantityKey } from "@/lib/quantities";
+import type { PointMapRow } from "@/lib/point-map-csv";
+import { pointsByKind, quantities, type QuantityKey } from "@/lib/quantities";
+import { ipWireUnits, type WireUnitCode } from "@/lib/units";
 import { equipmentOf, type SiteLayout } from "./layout";
 import { cToF, kPaAbsToPsig, kPaPerPsi, lpsToGpm, psigToKPaAbs, fToC, gpmToLps } from "./units";
-
-/** Wire unit per measure (US controller style). Pressures are gauge (psig = psia − 14.696); water ΔP in psid. */
-export const wireUnits: Record<Measure, string> = {
-  temperature: "degF",
-  pressure: "psig",
-  differential_pressure: "psid",
-  flow: "gpm",
-  power: "kW",
-  percent: "%",
-  frequency: "Hz",
-  duration: "s",
-  boolean: "bool",
-  state: "state",
-  text: "text",
-};
 
 /** Point-name suffix per quantity, by equipment kind where the same quantity means different sensors. */
 const chillerSuffix: Partial<Record<QuantityKey, string>> = {
@@ -67,13 +54,6 @@ const otherSuffix: Partial<Record<QuantityKey, string>> = {
   outdoor_wet_bulb_temp: "OAWB",
 };
 
-export interface PointMapRow {
-  gateway_point: string;
-  equipment: string;
-  quantity: QuantityKey;
-  unit: string;
-}
-
 /** `CH-1` + LCHWT → `CH1-LCHWT`. */
 export function pointName(equipment: string, kind: string, quantity: QuantityKey): string {
   const table = kind === "chiller" ? chillerSuffix : kind === "cooling_tower" ? towerSuffix : otherSuffix;
@@ -82,8 +62,9 @@ export function pointName(equipment: string, kind: string, quantity: QuantityKey
   return `${equipment.replace("-", "")}-${suffix}`;
 }
 
-export function wireUnitOf(quantity: QuantityKey): string {
-  return wireUnits[quantities[quantity].measure];
+/** The simulated controllers report in IP units. */
+export function wireUnitOf(quantity: QuantityKey): WireUnitCode {
+  return ipWireUnits[quantities[quantity].measure];
 }
 
 /** The point map of a site: every point the simulated gateway publishes, in a stable order. */

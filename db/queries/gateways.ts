@@ -8,14 +8,14 @@ import { canAct, isAdmin, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
 import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import type { WireUnitCode } from "@/lib/units";
-import type { LineError, PointMapRow } from "@/gateway/point-map-csv";
-import { isOnline, silenceMs } from "@/gateway/status";
+import type { LineError, PointMapLine } from "@/lib/point-map-csv";
+import { isOnline, silenceMs } from "@/lib/freshness";
 
 // Gateways as the API sees them (viewer-scoped, DTOs only) and as the ingest side needs them
 // (system functions at the bottom, no viewer: the broker has no user). The password hash
 // never leaves this module: credentials are checked here.
 
-/** bcrypt cost 10 (~70 ms here): paid once per MQTT CONNECT, not per message. */
+/** bcrypt cost 10: paid once per MQTT CONNECT, not per message. */
 const GATEWAY_BCRYPT_COST = 10;
 const DUMMY_HASH = bcrypt.hashSync("not-a-gateway-password", GATEWAY_BCRYPT_COST);
 
@@ -262,7 +262,7 @@ export function getPointMap(db: Db, viewer: Viewer, id: string): PointMapEntryDt
  * Replaces a gateway's whole point map, or changes nothing: any row error (including rows
  * naming equipment or points the site does not have) leaves the old map in place.
  */
-export function replacePointMap(db: Db, viewer: Viewer, id: string, rows: PointMapRow[], parseErrors: LineError[]): { accepted: number; errors: LineError[] } {
+export function replacePointMap(db: Db, viewer: Viewer, id: string, rows: PointMapLine[], parseErrors: LineError[]): { accepted: number; errors: LineError[] } {
   const gw = visibleGateway(db, viewer, id);
   if (!gw) throw notFound("No such gateway.");
   if (!canAct(viewer)) throw new AppError("forbidden", "Only service staff can change a point map.");
@@ -281,16 +281,16 @@ export function replacePointMap(db: Db, viewer: Viewer, id: string, rows: PointM
   const resolved: Array<{ gatewayPoint: string; pointId: number; unit: WireUnitCode }> = [];
   const targets = new Map<number, number>();
   for (const r of rows) {
-    const pointId = sitePoints.get(`${r.equipmentTag}\u0000${r.quantity}`);
-    if (!tags.has(r.equipmentTag)) {
-      errors.push({ line: r.line, message: `equipment "${r.equipmentTag}" is not at this site` });
+    const pointId = sitePoints.get(`${r.equipment}\u0000${r.quantity}`);
+    if (!tags.has(r.equipment)) {
+      errors.push({ line: r.line, message: `equipment "${r.equipment}" is not at this site` });
     } else if (pointId === undefined) {
-      errors.push({ line: r.line, message: `${r.equipmentTag} has no ${r.quantity} point` });
+      errors.push({ line: r.line, message: `${r.equipment} has no ${r.quantity} point` });
     } else if (targets.has(pointId)) {
-      errors.push({ line: r.line, message: `${r.equipmentTag} ${r.quantity} is already fed by line ${targets.get(pointId)}` });
+      errors.push({ line: r.line, message: `${r.equipment} ${r.quantity} is already fed by line ${targets.get(pointId)}` });
     } else {
       targets.set(pointId, r.line);
-      resolved.push({ gatewayPoint: r.gatewayPoint, pointId, unit: r.unit });
+      resolved.push({ gatewayPoint: r.gateway_point, pointId, unit: r.unit });
     }
   }
   errors.sort((a, b) => a.line - b.line);

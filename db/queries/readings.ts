@@ -8,13 +8,12 @@ import type { Viewer } from "@/lib/auth/viewer";
 import { notFound } from "@/lib/errors";
 import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import { displayUnit, formatValue, fromCanonical } from "@/lib/units";
-import { HOUR_MS } from "@/gateway/rollups";
-import { freshnessByGateway, isStale, siteStatuses, type MappedPoint, type SiteDataState, type SiteStatusRow } from "@/gateway/status";
+import { freshnessByGateway, isStale, siteStatuses, type MappedPoint, type SiteDataState, type SiteStatusRow } from "@/lib/freshness";
+import { HOUR_MS, MINUTE_MS } from "@/lib/rollup-buckets";
 
 // Reading data for screens: trends (raw or 1-minute rollups, bucketed with min/max so spikes
 // stay visible) and the latest value of every point with its age. Viewer-scoped.
 
-const MINUTE_MS = 60_000;
 const qualityNames = ["good", "uncertain", "bad"] as const;
 
 export interface SeriesQuery {
@@ -84,8 +83,8 @@ export function getSeries(
     from: new Date(q.fromMs).toISOString(),
     to: new Date(q.toMs).toISOString(),
   };
-  // Three decimals of the display unit, finer than any of these points is read to: full
-  // doubles made a month's response 54 KB instead of 30 KB and its gzip 2.7 ms instead of 1.2 ms.
+  // Three decimals of the display unit, finer than any of these points is read to, so full
+  // doubles do not bloat the response and its compression.
   const conv = (v: number) => Math.round(fromCanonical(v, p.measure, system) * 1000) / 1000;
   const inRange = and(eq(readings.pointId, pointId), gte(readings.ts, q.fromMs), lt(readings.ts, q.toMs));
 
@@ -134,8 +133,8 @@ export function getSeries(
     return columnar(base, "raw", w, rows, conv);
   }
 
-  // A range of many hours reads hourly rollups (720 rows for 30 days instead of 43,200
-  // minutes) as long as that still gives at least half the buckets asked for.
+  // A range of many hours reads hourly rollups (a sixtieth of the rows of minutes) as long as
+  // that still gives at least half the buckets asked for.
   const tier = Math.ceil(span / HOUR_MS) * 2 >= q.maxPoints ? HOUR_MS : MINUTE_MS;
   // Buckets are whole minutes (or hours), so the width is too.
   const w = Math.max(tier, Math.ceil(rawWidth / tier) * tier);
@@ -170,8 +169,8 @@ function prepareBucketStatements(sqlite: Database.Database) {
  * the watermark and the rows are one snapshot. readings_1m holds every minute before the
  * watermark; hours are complete up to the hour the watermark is in; from the watermark on
  * (minutes still open in the ingest writer, or part-way written) the buckets are aggregated
- * from raw readings, a few minutes of one point. Asking the store worker for its open minutes
- * instead waited behind whatever flush it was committing.
+ * from raw readings, a few minutes of one point, rather than asking the store worker for its
+ * open minutes, which would wait behind whatever flush it is committing.
  */
 function rollupBuckets(sqlite: Database.Database, pointId: number, fromMs: number, toMs: number, w: number, tier: number): Bucket[] {
   let st = bucketStatements.get(sqlite);

@@ -3,7 +3,7 @@ import os from "node:os";
 import path from "node:path";
 import type Database from "better-sqlite3";
 import { migrateDb, openDb } from "@/db/client";
-import { startCheckpointer } from "@/gateway/writer";
+import { startCheckpointer } from "@/gateway/checkpointer";
 
 // The benches' bare database: the migrated schema with one customer, site and chiller, and
 // `count` points (ids 1..count) for raw readings to go to. No point map, no gateway.
@@ -62,7 +62,7 @@ export function growTemplate(template: RawTemplate, rows: number): void {
 /**
  * Rows/s of `rows` raw better-sqlite3 inserts in `batch`-row transactions into a copy of the
  * template, under the server's storage conditions: its connection pragmas (db/client.ts: WAL,
- * synchronous=NORMAL) and its background checkpoint beside the inserts (gateway/writer.ts), so
+ * synchronous=NORMAL) and its background checkpoint beside the inserts (gateway/checkpointer.ts), so
  * the loop does not checkpoint inside its own commits where the server does not.
  */
 export async function rawInsertRate(template: RawTemplate, batch: number, rows: number): Promise<number> {

@@ -16,7 +16,7 @@ import Database from "better-sqlite3";
 import { z } from "zod";
 import { migrateDb, openDb } from "@/db/client";
 import { createStore, type FlushWire } from "@/gateway/store";
-import { startCheckpointer } from "@/gateway/writer";
+import { startCheckpointer } from "@/gateway/checkpointer";
 import { seedRawPoints } from "./raw-table";
 
 const env = z

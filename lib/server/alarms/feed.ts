@@ -1,6 +1,6 @@
 import type { Db } from "@/db/client";
 import { pointRuleNameLookup, pointRuleNames } from "@/db/queries/readings";
-import type { CommittedRows } from "@/gateway/writer";
+import type { CommittedRows } from "@/gateway/row-columns";
 import type { Reading } from "@/lib/plant/site";
 import { isQuantityKey, type QuantityKey } from "@/lib/quantities";
 import type { AlarmService } from "./service";

@@ -1,8 +1,8 @@
 import type { Db } from "@/db/client";
 import { listGatewayPresence } from "@/db/queries/gateways";
 import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
-import { freshnessByGateway, siteStatuses, type GatewayFreshness, type MappedPoint, type SiteStatusRow } from "@/gateway/status";
-import type { CommittedRows } from "@/gateway/writer";
+import { freshnessByGateway, siteStatuses, type GatewayFreshness, type MappedPoint, type SiteStatusRow } from "@/lib/freshness";
+import type { CommittedRows } from "@/gateway/row-columns";
 import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "@/lib/realtime/events";
 import type { RealtimeServer } from "./server";
 

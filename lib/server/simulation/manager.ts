@@ -5,7 +5,7 @@ import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
 import { notifyGatewayChanged } from "@/gateway/link";
 import { hourRebuilder } from "@/gateway/rollups";
 import { systemViewer } from "@/lib/auth/viewer";
-import { parsePointMapCsv } from "@/gateway/point-map-csv";
+import { parsePointMapCsv } from "@/lib/point-map-csv";
 import { getLayout, getScenario, pointMapCsv } from "@/simulator/index";
 import { startSimulatedGateway, type SimulatedGateway, type SimulatedGatewayStatus } from "@/simulator/gateway-client";
 

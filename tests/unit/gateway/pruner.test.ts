@@ -6,7 +6,8 @@ import { migrateDb, openDb, type Db } from "@/db/client";
 import { gateways } from "@/db/schema";
 import { seedDemo } from "@/db/seed/demo";
 import { startPruner, type Pruner } from "@/gateway/pruner";
-import { createBatchWriter, type Clock } from "@/gateway/writer";
+import { createBatchWriter } from "@/gateway/writer";
+import type { Clock } from "@/lib/clock";
 
 // Retention on a real migrated file database (WAL, the pragmas of db/client.ts) with the demo
 // points and a fake clock: raw readings older than the raw retention and rollups older than

@@ -8,7 +8,8 @@ import { getSeries } from "@/db/queries/readings";
 import { gateways } from "@/db/schema";
 import { SERVICE_ORG, seedDemo } from "@/db/seed/demo";
 import type { MinuteAggregate } from "@/gateway/rollups";
-import { createBatchWriter, type BatchWriter, type RowIn } from "@/gateway/writer";
+import type { RowIn } from "@/gateway/row-columns";
+import { createBatchWriter, type BatchWriter } from "@/gateway/writer";
 import { systemViewer } from "@/lib/auth/viewer";
 
 // Rollups written behind the readings, on a real migrated file database with a fake clock:

@@ -2,7 +2,8 @@ import { describe, expect, it } from "vitest";
 import { migrateDb, openDb } from "@/db/client";
 import { gateways } from "@/db/schema";
 import { seedDemo } from "@/db/seed/demo";
-import { createBatchWriter, type CommittedRows, type RowIn } from "@/gateway/writer";
+import type { CommittedRows, RowIn } from "@/gateway/row-columns";
+import { createBatchWriter } from "@/gateway/writer";
 
 // The batched writer on a fresh in-memory database: idempotent on (point, ts), rollups that
 // count each reading once whatever order readings arrive in, latest value by event time.

@@ -2,7 +2,7 @@ import { requireApiViewer } from "@/app/(auth)/auth";
 import { getDb } from "@/db/client";
 import { getPointMap, replacePointMap } from "@/db/queries/gateways";
 import { notifyGatewayChanged } from "@/gateway/link";
-import { MAX_POINT_MAP_BYTES, parsePointMapCsv } from "@/gateway/point-map-csv";
+import { MAX_POINT_MAP_BYTES, parsePointMapCsv } from "@/lib/point-map-csv";
 import { AppError } from "@/lib/errors";
 import { route } from "@/lib/server/http";
 import { gatewayParams } from "../../schema";

@@ -65,8 +65,8 @@ export interface GatewayFreshness {
 
 /**
  * Mapped and fresh point counts per gateway, from each point's newest event time. Runs over a
- * portfolio's 100,000 mapped points every status round: rows grouped by gateway (as
- * `mappedPoints` returns them) cost one map lookup per gateway, not per point.
+ * portfolio's mapped points every status round: rows grouped by gateway (as `mappedPoints`
+ * returns them) cost one map lookup per gateway, not per point.
  */
 export function freshnessByGateway(
   mapped: readonly MappedPoint[],

@@ -2,7 +2,6 @@ import Papa from "papaparse";
 import { z } from "zod";
 import { isQuantityKey, quantities, type QuantityKey } from "@/lib/quantities";
 import { isWireUnit, unitFits, wireUnitCodes, type WireUnitCode } from "@/lib/units";
-import { MAX_POINT_NAME } from "./contract";
 
 // Point-map CSV: `gateway_point,equipment,quantity,unit`, one row per gateway point.
 // Parsed with papaparse, each row checked with zod; line numbers count the header as line 1.
@@ -10,13 +9,20 @@ import { MAX_POINT_NAME } from "./contract";
 export const POINT_MAP_COLUMNS = ["gateway_point", "equipment", "quantity", "unit"] as const;
 export const MAX_POINT_MAP_ROWS = 20_000;
 export const MAX_POINT_MAP_BYTES = 2 * 1024 * 1024;
+/** Longest gateway point name, in the point map and in every message that names one. */
+export const MAX_POINT_NAME = 128;
 
+/** One gateway point of a point map, named as its CSV columns. */
 export interface PointMapRow {
-  line: number;
-  gatewayPoint: string;
-  equipmentTag: string;
+  gateway_point: string;
+  equipment: string;
   quantity: QuantityKey;
   unit: WireUnitCode;
+}
+
+/** A parsed row and the file line it came from. */
+export interface PointMapLine extends PointMapRow {
+  line: number;
 }
 
 export interface LineError {
@@ -43,7 +49,7 @@ const rowSchema = z
     }
   });
 
-export function parsePointMapCsv(text: string): { rows: PointMapRow[]; errors: LineError[] } {
+export function parsePointMapCsv(text: string): { rows: PointMapLine[]; errors: LineError[] } {
   const errors: LineError[] = [];
   const parsed = Papa.parse<Record<string, string>>(text.replace(/^\uFEFF/, ""), {
     header: true,
@@ -59,7 +65,7 @@ export function parsePointMapCsv(text: string): { rows: PointMapRow[]; errors: L
   for (const e of parsed.errors) errors.push({ line: (e.row ?? 0) + 2, message: e.message });
   const erroredRows = new Set(parsed.errors.map((e) => e.row));
 
-  const rows: PointMapRow[] = [];
+  const rows: PointMapLine[] = [];
   const seen = new Map<string, number>();
   parsed.data.forEach((raw, i) => {
     const line = i + 2;
@@ -76,7 +82,7 @@ export function parsePointMapCsv(text: string): { rows: PointMapRow[]; errors: L
       return;
     }
     seen.set(r.gateway_point, line);
-    rows.push({ line, gatewayPoint: r.gateway_point, equipmentTag: r.equipment, quantity: r.quantity as QuantityKey, unit: r.unit as WireUnitCode });
+    rows.push({ line, gateway_point: r.gateway_point, equipment: r.equipment, quantity: r.quantity as QuantityKey, unit: r.unit as WireUnitCode });
   });
   errors.sort((a, b) => a.line - b.line);
   return { rows, errors };
