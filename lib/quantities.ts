@@ -38,7 +38,7 @@ export type EquipmentKind = "chiller" | "cooling_tower" | "pump" | "air_handler"
 export interface QuantityDef {
   measure: Measure;
   label: string;
-  /** Brick 1.4 class for the point (plant-reference §9); generic classes where Brick has no dedicated one. */
+  /** Brick 1.4 class for the point (REFERENCES.md §9); generic classes where Brick has no dedicated one. */
   brickClass: string;
   /** Allowed values for `state` measures. */
   states?: readonly string[];

@@ -16,7 +16,7 @@ interface Ancillary {
 }
 
 // R-134a: CoolProp ancillary fitted to the Tillner-Roth & Baehr (1994) equation of state
-// (J. Phys. Chem. Ref. Data 23:657); stated max error 0.0092 % (plant-reference §1).
+// (J. Phys. Chem. Ref. Data 23:657); stated max error 0.0092 % (REFERENCES.md §1).
 const r134a: Ancillary = {
   tcK: 374.21,
   pcKPa: 4059.28,
@@ -25,7 +25,7 @@ const r134a: Ancillary = {
 };
 
 // R-1234ze(E): Thol & Lemmon (2016), Int. J. Thermophys. 37:28, vapour-pressure ancillary;
-// Tc = 382.513 K, pc = 3634.9 kPa (plant-reference §1). Reproduces the normal boiling point
+// Tc = 382.513 K, pc = 3634.9 kPa (REFERENCES.md §1). Reproduces the normal boiling point
 // −18.973 °C to 0.01 kPa.
 const r1234zeE: Ancillary = {
   tcK: 382.513,
@@ -43,7 +43,7 @@ const r1234yf: Ancillary = {
   t: [1.0, 1.5, 1.8, 3.8],
 };
 
-// R-513A = 56 % R-1234yf / 44 % R-134a by mass (plant-reference §1), near-azeotropic (glide < 0.05 K),
+// R-513A = 56 % R-1234yf / 44 % R-134a by mass (REFERENCES.md §1), near-azeotropic (glide < 0.05 K),
 // treated as a pseudo-pure fluid: Raoult's-law mix of the components times a constant factor for
 // the positive azeotrope. The 1.05 factor is recalled, not verified (approximate, ±3 %).
 const r513aMoleFractionYf = 0.56 / 114.0416 / (0.56 / 114.0416 + 0.44 / 102.032);
@@ -76,7 +76,7 @@ export function saturationPressureKPa(refrigerant: Refrigerant, tempC: number): 
 export function saturationTempC(refrigerant: Refrigerant, pressureKPa: number): number {
   const p = Math.max(pressureKPa, 1);
   const lnP = Math.log(p);
-  // Start from an Antoine-like guess for R-134a (ln p = 14.41 − 2094/(T − 33.06), plant-reference §1).
+  // Start from an Antoine-like guess for R-134a (ln p = 14.41 − 2094/(T − 33.06), REFERENCES.md §1).
   let tK = 2094 / (14.41 - lnP) + 33.06;
   if (!Number.isFinite(tK) || tK < 150) tK = 150;
   if (tK > 370) tK = 370;

@@ -12,14 +12,14 @@ export interface ChillerSpec {
 export type LoadProfile = "office" | "school" | "constant";
 
 export interface DesignConditions {
-  /** AHRI 550/590 (I-P) standard rating: evaporator 54 → 44 °F, condenser 85 °F entering (plant-reference §3). */
+  /** AHRI 550/590 (I-P) standard rating: evaporator 54 → 44 °F, condenser 85 °F entering (REFERENCES.md §3). */
   chwSupplyF: number;
   chwReturnF: number;
   cwEnteringF: number;
-  /** 2.4 gpm/ton chilled water, 3.0 gpm/ton condenser water (plant-reference §3, §5). */
+  /** 2.4 gpm/ton chilled water, 3.0 gpm/ton condenser water (REFERENCES.md §3, §5). */
   chwGpmPerTon: number;
   cwGpmPerTon: number;
-  /** Design wet bulb and tower approach, 78 °F / 7 °F (typical design, plant-reference §5 — recalled, not verified). */
+  /** Design wet bulb and tower approach, 78 °F / 7 °F (typical design, REFERENCES.md §5 — recalled, not verified). */
   wetBulbF: number;
   towerApproachF: number;
   /** Building peak load as a fraction of installed chiller capacity. */

@@ -7,7 +7,7 @@ import { dFToK, fToC, galToL, gpmToLps, kPaPerPsi, kWPerTon, psigToKPaAbs, water
 /** Evaporator and condenser refrigerant approaches at full load: 1.5 °F and 2 °F (common practice for modern centrifugal chillers). */
 export const evapApproachDesignF = 1.5;
 export const condApproachDesignF = 2.0;
-/** Full-load input of a variable-speed centrifugal, kW/ton — used only to size the drive (ASHRAE 90.1 full-load limit is 0.56, plant-reference §4). */
+/** Full-load input of a variable-speed centrifugal, kW/ton — used only to size the drive (ASHRAE 90.1 full-load limit is 0.56, REFERENCES.md §4). */
 const sizingKWPerTon = 0.55;
 /** Drive losses ≈ 3 % of input power (recalled, not verified: 97 % drive efficiency). */
 const driveLossFraction = 0.03;

@@ -14,7 +14,7 @@ export const kToDF = deltaKToDeltaF;
 export const psigToKPaAbs = psigToKpaAbs;
 export const kPaAbsToPsig = kpaAbsToPsig;
 
-/** Volumetric heat capacity of water, kJ/(L·K) — the SI water-side factor of plant-reference §2. */
+/** Volumetric heat capacity of water, kJ/(L·K) — the SI water-side factor of REFERENCES.md §2. */
 export const waterHeatCapacityKJPerLK = 4.186;
 /** 1 US gallon = 3.785411784 L (exact). */
 export const galToL = (gal: number): number => gal * 3.785411784;

@@ -38,7 +38,7 @@ const cwFlow = (tons: number) => Math.round(tons * 3 * GPM_TO_LPS * 10) / 10;
 
 function plant(layout: SiteLayout): DemoEquipment[] {
   const chillers = layout.chillers.map((c) => ({ tons: c.capacityTons, refrigerant: c.refrigerant }));
-  // Towers are sized for heat rejection ≈ 1.25 × the load (plant-reference §5).
+  // Towers are sized for heat rejection ≈ 1.25 × the load (REFERENCES.md §5).
   const towerTons = Math.round(chillers.reduce((n, c) => n + c.tons, 0) * 1.25);
   const list: DemoEquipment[] = [];
   chillers.forEach((c, i) => {

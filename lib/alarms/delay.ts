@@ -1,6 +1,6 @@
 // On-delay and off-delay (ISA-18.2 alarm attributes): a condition must hold for the delay
 // before the alarm follows it, so a signal flickering across its limit does not chatter.
-// Starting values: plant-reference §7 [M] (temperature 60 s, pressure 15 s, flow 15 s).
+// Starting values: REFERENCES.md §7 [M] (temperature 60 s, pressure 15 s, flow 15 s).
 
 export interface DelaySettings {
   onDelayS: number;

@@ -1,4 +1,4 @@
-// Alarm-system health after ISA-18.2 / EEMUA 191 (plant-reference §7): rates per on-call
+// Alarm-system health after ISA-18.2 / EEMUA 191 (REFERENCES.md §7): rates per on-call
 // person, floods, most frequent alarms, chattering, stale alarms and the priority split.
 
 import { priorities, priorityMeanings, type Priority } from "./priority";

@@ -1,7 +1,7 @@
 // Four alarm priorities. Meanings follow the split ISA-18.2 recommends (about 80 / 15 / 5 %
 // low / medium / high, under 1 % for a fourth, highest level) and line up with ASHRAE
 // Guideline 36's levels 2–4 (level 1, life safety, belongs to life-safety systems, not here).
-// plant-reference §7.
+// REFERENCES.md §7.
 
 export const priorities = [1, 2, 3, 4] as const;
 export type Priority = (typeof priorities)[number];

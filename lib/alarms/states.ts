@@ -1,4 +1,4 @@
-// ANSI/ISA-18.2 (IEC 62682) alarm states, plant-reference §7.
+// ANSI/ISA-18.2 (IEC 62682) alarm states, REFERENCES.md §7.
 
 export const alarmStates = [
   "normal",

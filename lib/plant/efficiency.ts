@@ -1,4 +1,4 @@
-// Chiller efficiency measures (plant-reference §2, §3).
+// Chiller efficiency measures (REFERENCES.md §2, §3).
 
 import { KW_PER_TON } from "./units";
 
@@ -12,7 +12,7 @@ export function cop(coolingKw: number, compressorPowerKw: number): number | null
   return compressorPowerKw > 0 ? coolingKw / compressorPowerKw : null;
 }
 
-/** COP = 3.516853 / (kW/ton) (plant-reference §2 [K]). */
+/** COP = 3.516853 / (kW/ton) (REFERENCES.md §2 [K]). */
 export function copFromKwPerTon(kwPerTonValue: number): number {
   return KW_PER_TON / kwPerTonValue;
 }
@@ -21,13 +21,13 @@ export function kwPerTonFromCop(copValue: number): number {
   return KW_PER_TON / copValue;
 }
 
-/** EER = 12 / (kW/ton) (plant-reference §2 [K]). */
+/** EER = 12 / (kW/ton) (REFERENCES.md §2 [K]). */
 export function eerFromKwPerTon(kwPerTonValue: number): number {
   return 12 / kwPerTonValue;
 }
 
 /**
- * AHRI 550/590 IPLV with efficiencies in kW/ton (plant-reference §3 [C]):
+ * AHRI 550/590 IPLV with efficiencies in kW/ton (REFERENCES.md §3 [C]):
  * IPLV = 1 / (0.01/A + 0.42/B + 0.45/C + 0.12/D), A…D at 100/75/50/25 % load.
  * Averaging kW/ton directly would be wrong.
  */

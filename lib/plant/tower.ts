@@ -1,4 +1,4 @@
-// Cooling-tower performance (plant-reference §5 [C]; CTI terminology).
+// Cooling-tower performance (REFERENCES.md §5 [C]; CTI terminology).
 
 /** Range = hot water in − cold water out (K). A tower's entering water is the hot condenser water. */
 export function towerRangeK(towerEnteringC: number, towerLeavingC: number): number {

@@ -1,10 +1,10 @@
-// Unit conversions. Constants as plant-reference §2 and the conventions line state them.
+// Unit conversions. Constants as REFERENCES.md §2 and the conventions line state them.
 
-/** 1 ton of refrigeration = 12 000 Btu/h = 3.516853 kW (plant-reference §2 [K]). */
+/** 1 ton of refrigeration = 12 000 Btu/h = 3.516853 kW (REFERENCES.md §2 [K]). */
 export const KW_PER_TON = 3.516853;
 /** 1 US gpm = 0.0630901964 L/s (3.785411784 L / 60 s, exact by definition of the US gallon). */
 export const LPS_PER_GPM = 3.785411784 / 60;
-/** 1 psi = 6.894757 kPa; 14.696 psia = 101.325 kPa (plant-reference conventions). */
+/** 1 psi = 6.894757 kPa; 14.696 psia = 101.325 kPa (REFERENCES.md conventions). */
 export const KPA_PER_PSI = 6.894757;
 export const ATMOSPHERE_KPA = 101.325;
 

@@ -1,11 +1,11 @@
 // Water-side heat transfer: the sensible-heat equation q = ṁ·cp·ΔT in the forms the
-// ASHRAE Handbook—Fundamentals and plant-reference §2 give.
+// ASHRAE Handbook—Fundamentals and REFERENCES.md §2 give.
 
 import { kwToTons } from "./units";
 
 /**
  * Volumetric heat capacity of water, kJ/(L·K), as the usual SI form kW = L/s × 4.186 × ΔT
- * uses it (plant-reference §2 [C]); true ρ·cp is 4.200 at 7 °C and 4.162 at 30 °C (IAPWS-95).
+ * uses it (REFERENCES.md §2 [C]); true ρ·cp is 4.200 at 7 °C and 4.162 at 30 °C (IAPWS-95).
  */
 export const WATER_KJ_PER_L_K = 4.186;
 
@@ -19,7 +19,7 @@ export function condenserDeltaTK(condenserWaterEnteringC: number, condenserWater
   return condenserWaterLeavingC - condenserWaterEnteringC;
 }
 
-/** Heat flow in kW from flow and ΔT: kW = L/s × 4.186 × ΔT(K) (plant-reference §2, SI form). */
+/** Heat flow in kW from flow and ΔT: kW = L/s × 4.186 × ΔT(K) (REFERENCES.md §2, SI form). */
 export function waterLoadKw(flowLps: number, deltaTK: number): number {
   return flowLps * WATER_KJ_PER_L_K * deltaTK;
 }
@@ -28,12 +28,12 @@ export function waterLoadTons(flowLps: number, deltaTK: number): number {
   return kwToTons(waterLoadKw(flowLps, deltaTK));
 }
 
-/** I-P: Btu/h = 500 × gpm × ΔT(°F) (ASHRAE Handbook; plant-reference §2 [C]). */
+/** I-P: Btu/h = 500 × gpm × ΔT(°F) (ASHRAE Handbook; REFERENCES.md §2 [C]). */
 export function btuPerHourIp(gpm: number, deltaTF: number): number {
   return 500 * gpm * deltaTF;
 }
 
-/** I-P: tons = gpm × ΔT(°F) / 24 (plant-reference §2 [C]); 500 / 12 000 = 1/24. */
+/** I-P: tons = gpm × ΔT(°F) / 24 (REFERENCES.md §2 [C]); 500 / 12 000 = 1/24. */
 export function tonsIp(gpm: number, deltaTF: number): number {
   return (gpm * deltaTF) / 24;
 }

@@ -1,6 +1,6 @@
 // Rule 10: efficiency or approach drift against the equipment's own baseline (maintenance).
 // kW/ton is averaged as Σ kW ÷ Σ tons over the window — energy over cooling, not a mean of
-// ratios (the same reason AHRI 550/590 forbids averaging kW/ton directly, plant-reference §3).
+// ratios (the same reason AHRI 550/590 forbids averaging kW/ton directly, REFERENCES.md §3).
 // Rising condenser approach at steady load is the usual sign of tube fouling (common practice).
 
 import type { Equipment } from "@/lib/plant/site";

@@ -1,5 +1,5 @@
 // Steady operation at the design point: 95 °F dry bulb / 78 °F wet bulb, the building at the installed capacity.
-// Used to check the model against AHRI 550/590 rating conditions (plant-reference §3, §5).
+// Used to check the model against AHRI 550/590 rating conditions (REFERENCES.md §3, §5).
 import { wetBulbC } from "@/lib/psychrometrics";
 import { fToC } from "../units";
 import type { Scenario } from "./types";

@@ -8,7 +8,7 @@ import { adminCookie, api, provisionGateway, putPointMap, waitFor, type Provisio
 // The plant simulator publishing as a Sparkplug B 3.0 edge node to the real server: NBIRTH + DBIRTHs
 // declare every point with an alias, DDATA carries the samples by alias, and the host stores them
 // through the site's point map. design-steady holds the AHRI 550/590 rating point: 44 °F leaving
-// chilled water (plant-reference §3) = 6.67 °C (NIST SP 811 B.9).
+// chilled water (REFERENCES.md §3) = 6.67 °C (NIST SP 811 B.9).
 
 const SITE = "harborview-mob";
 const GROUP = "harborview";

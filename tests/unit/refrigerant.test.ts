@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
 
-// R-134a saturation table, plant-reference §1: computed from the Tillner-Roth & Baehr (1994) equation of
+// R-134a saturation table, REFERENCES.md §1: computed from the Tillner-Roth & Baehr (1994) equation of
 // state (J. Phys. Chem. Ref. Data 23:657), the formulation behind NIST's reference tables, and cross-checked
 // against a published NIST-based P-T chart.
 const r134aTable: Array<[number, number]> = [
@@ -21,7 +21,7 @@ const r134aTable: Array<[number, number]> = [
   [54.44, 1471.42],
 ];
 
-describe("R-134a saturation curve vs. NIST / Tillner-Roth & Baehr table (plant-reference §1)", () => {
+describe("R-134a saturation curve vs. NIST / Tillner-Roth & Baehr table (REFERENCES.md §1)", () => {
   // The table's °C column is rounded to 0.01 K; at ~3.5 %/K that alone is ≤ 0.02 % of pressure.
   it.each(r134aTable)("p_sat(%f °C) within 0.5 %% of %f kPa", (tempC, kPa) => {
     expect(Math.abs(saturationPressureKPa("R-134a", tempC) / kPa - 1)).toBeLessThan(0.005);
@@ -31,10 +31,10 @@ describe("R-134a saturation curve vs. NIST / Tillner-Roth & Baehr table (plant-r
     expect(Math.abs((t + 273.15) / (tempC + 273.15) - 1)).toBeLessThan(0.005);
     expect(Math.abs(t - tempC)).toBeLessThan(0.1);
   });
-  it("normal boiling point −26.074 °C at 101.325 kPa (REFPROP fluid file header, plant-reference §1)", () => {
+  it("normal boiling point −26.074 °C at 101.325 kPa (REFPROP fluid file header, REFERENCES.md §1)", () => {
     expect(saturationTempC("R-134a", 101.325)).toBeCloseTo(-26.074, 1);
   });
-  it("40 °F reads 35.05 psig, 100 °F reads 124.16 psig (psig = psia − 14.696; plant-reference §1 table)", () => {
+  it("40 °F reads 35.05 psig, 100 °F reads 124.16 psig (psig = psia − 14.696; REFERENCES.md §1 table)", () => {
     const psig = (kPa: number) => kPa / 6.894757 - 14.696;
     expect(psig(saturationPressureKPa("R-134a", 4.444))).toBeCloseTo(35.05, 0);
     expect(psig(saturationPressureKPa("R-134a", 37.778))).toBeCloseTo(124.16, 0);
@@ -42,7 +42,7 @@ describe("R-134a saturation curve vs. NIST / Tillner-Roth & Baehr table (plant-r
 });
 
 describe("other refrigerants", () => {
-  it("R-1234ze(E) normal boiling point −18.973 °C (Thol & Lemmon 2016, REFPROP header; plant-reference §1)", () => {
+  it("R-1234ze(E) normal boiling point −18.973 °C (Thol & Lemmon 2016, REFPROP header; REFERENCES.md §1)", () => {
     expect(saturationTempC("R-1234ze(E)", 101.325)).toBeCloseTo(-18.973, 1);
   });
   it("R-1234ze(E) runs at lower pressure than R-134a at chiller temperatures (its known property; no table value)", () => {

@@ -3,7 +3,7 @@ import { acknowledge, applyConditions, emptyAlarmBook, shelve, stepDelay, type D
 
 const T0 = Date.UTC(2025, 6, 1, 14, 0, 0);
 
-describe("on/off delays (ISA-18.2 alarm attributes; starting values plant-reference §7 [M])", () => {
+describe("on/off delays (ISA-18.2 alarm attributes; starting values REFERENCES.md §7 [M])", () => {
   it("follows the condition only after it has held for the delay", () => {
     const d = { onDelayS: 60, offDelayS: 30 };
     let s: DelayState | undefined;

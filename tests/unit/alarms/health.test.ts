@@ -1,4 +1,4 @@
-// Alarm-system health after ISA-18.2 / EEMUA 191 (plant-reference §7).
+// Alarm-system health after ISA-18.2 / EEMUA 191 (REFERENCES.md §7).
 import { describe, expect, it } from "vitest";
 import { computeAlarmHealth, findFloods, newAlarm, type Priority, type TransitionRecord } from "@/lib/alarms";
 
@@ -28,7 +28,7 @@ describe("alarm rate per on-call person", () => {
 });
 
 describe("floods", () => {
-  it("start above 10 in 10 minutes and end below 5 per 10 minutes (plant-reference §7 [C])", () => {
+  it("start above 10 in 10 minutes and end below 5 per 10 minutes (REFERENCES.md §7 [C])", () => {
     // 12 alarms, one every 30 s from T0: the 11th (at 5 min) starts the flood.
     const times = Array.from({ length: 12 }, (_, i) => T0 + i * 30_000);
     const floods = findFloods(times, T0 + 3600_000);
@@ -62,7 +62,7 @@ describe("most frequent, chattering, stale, priority split", () => {
     expect(h.topAlarms[1].count).toBe(2);
   });
 
-  it("chattering: ≥ 3 transitions in 60 s (common test, plant-reference §7 [M])", () => {
+  it("chattering: ≥ 3 transitions in 60 s (common test, REFERENCES.md §7 [M])", () => {
     const k = "head_pressure_near_trip:CH-1";
     const chatter = [activation(k, T0), cleared(k, T0 + 20_000), activation(k, T0 + 40_000)];
     const spread = [activation(k, T0), cleared(k, T0 + 40_000), activation(k, T0 + 80_000)];
@@ -70,7 +70,7 @@ describe("most frequent, chattering, stale, priority split", () => {
     expect(computeAlarmHealth({ records: spread, fromMs: T0, toMs: T0 + 3600_000, onCallPeople: 1 }).chattering).toHaveLength(0);
   });
 
-  it("stale: active more than 24 h (plant-reference §7 [M])", () => {
+  it("stale: active more than 24 h (REFERENCES.md §7 [M])", () => {
     const old = { ...newAlarm({ ruleId: "efficiency_drift", equipment: "CH-2", priority: 4 }), conditionActive: true, conditionSinceMs: T0 - 25 * 3600_000 };
     const fresh = { ...newAlarm({ ruleId: "comm_lost", equipment: "CH-1", priority: 3 }), conditionActive: true, conditionSinceMs: T0 - 3600_000 };
     const h = computeAlarmHealth({ records: [], alarms: [old, fresh], fromMs: T0 - 86400_000, toMs: T0, onCallPeople: 1 });

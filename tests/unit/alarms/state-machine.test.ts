@@ -1,4 +1,4 @@
-// ANSI/ISA-18.2 alarm lifecycle (plant-reference §7: states [M], mirrored by OPC UA Part 9 [C]).
+// ANSI/ISA-18.2 alarm lifecycle (REFERENCES.md §7: states [M], mirrored by OPC UA Part 9 [C]).
 import { describe, expect, it } from "vitest";
 import { newAlarm, stepAlarm, type Actor, type Alarm, type AlarmEvent, type TransitionRecord } from "@/lib/alarms";
 

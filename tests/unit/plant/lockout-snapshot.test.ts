@@ -46,12 +46,12 @@ describe("site snapshot", () => {
     r("outdoor_wet_bulb_temp", 25.5, "WS-1"),
   ];
 
-  it("computes load from design flow while the pump is proven (SI form, plant-reference §2)", () => {
+  it("computes load from design flow while the pump is proven (SI form, REFERENCES.md §2)", () => {
     const latest = latestFromReadings([...base, r("pump_status", true, "CHWP-1")]);
     const c = computeSiteSnapshot(site, latest, T0).chillers[0];
     expect(c.flowSource).toBe("design");
     expect(c.loadKw).toBeCloseTo(waterLoadKw(100, 5.5), 6);
-    expect(Math.abs(c.loadTons! - 654.7)).toBeLessThan(0.1); // plant-reference §2 worked example
+    expect(Math.abs(c.loadTons! - 654.7)).toBeLessThan(0.1); // REFERENCES.md §2 worked example
     expect(c.kwPerTon).toBeCloseTo(400 / 654.7, 3);
     expect(c.liftK).toBeCloseTo(29.5, 6);
     expect(c.pressureLiftKPa).toBe(540);

@@ -1,5 +1,5 @@
 // A noisy signal hovering at its limit raises at most one alarm: dead band plus on/off delay
-// (ISA-18.2 alarm attributes; starting values plant-reference §7 [M]). Each case also runs with
+// (ISA-18.2 alarm attributes; starting values REFERENCES.md §7 [M]). Each case also runs with
 // dead band and delays set to zero to show the same signal would chatter without them.
 import { describe, expect, it } from "vitest";
 import { runFrames, type Frame } from "./synthetic";

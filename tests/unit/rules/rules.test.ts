@@ -265,7 +265,7 @@ describe("communication lost (rule 9)", () => {
 });
 
 describe("efficiency drift (rule 10)", () => {
-  // 60.6 L/s × 4.186 × 5.5 K = 1395 kW = 396.7 tons (plant-reference §2 form).
+  // 60.6 L/s × 4.186 × 5.5 K = 1395 kW = 396.7 tons (REFERENCES.md §2 form).
   const settings = { efficiencyDrift: { baselines: { "CH-1": { kwPerTon: 0.55, condenserApproachK: 1.1 } }, averagingWindowS: 600, onDelayS: 60, offDelayS: 60 } };
   it("maintenance priority when kW/ton runs 15 % over the equipment's own baseline", () => {
     const r = runFrames({ durationS: 900, stepS: 30, frame: () => ({ powerKw: 0.7 * 396.7 }), settings, keep: true });

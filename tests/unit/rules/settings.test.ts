@@ -5,7 +5,7 @@ describe("rule settings", () => {
   it("fills every default from an empty object", () => {
     expect(parseRuleSettings({})).toEqual(defaultRuleSettings);
     expect(defaultRuleSettings.crossoverRisk.warnTimeToCrossoverS).toBe(1800);
-    // 160 psig = 160 × 6.894757 + 101.325 kPa abs (plant-reference conventions).
+    // 160 psig = 160 × 6.894757 + 101.325 kPa abs (REFERENCES.md conventions).
     expect(defaultRuleSettings.headPressure.tripKPa).toBeCloseTo(160 * 6.894757 + 101.325, 0);
   });
 

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { cToF, mean, record, window } from "./helpers";
 
-// Steady hold at the AHRI 550/590 rating conditions (plant-reference §3): 54 → 44 °F at 2.4 gpm/ton,
+// Steady hold at the AHRI 550/590 rating conditions (REFERENCES.md §3): 54 → 44 °F at 2.4 gpm/ton,
 // 85 °F entering condenser water at 3.0 gpm/ton, design wet bulb 78 °F with a 7 °F tower approach (§5).
 const run = record({ scenario: "design-steady", seed: 3, durationS: 2 * 3600, sampleEveryS: 30, keepStates: true });
 const from = 3600;
@@ -20,7 +20,7 @@ describe("energy balance (ASHRAE Handbook: Btu/h = 500 × gpm × ΔT, tons = gpm
       const tons = (flowGpm * dtF) / 24;
       const modelKW = mean(run.states.filter((s) => s.tS >= from).map((s) => s.chillers[i].evapKW));
       expect(Math.abs(btuh / (modelKW * 3412.14) - 1)).toBeLessThan(0.02);
-      // 1 ton = 12 000 Btu/h = 3.516853 kW (plant-reference §2)
+      // 1 ton = 12 000 Btu/h = 3.516853 kW (REFERENCES.md §2)
       expect(Math.abs(tons / (modelKW / 3.516853) - 1)).toBeLessThan(0.02);
     });
     it(`${ch}: condenser heat from its readings = evaporator heat + compressor kW within 3 %`, () => {
@@ -34,7 +34,7 @@ describe("energy balance (ASHRAE Handbook: Btu/h = 500 × gpm × ΔT, tons = gpm
   }
 });
 
-describe("design point, steady load (AHRI 550/590 rating conditions, plant-reference §3–§5)", () => {
+describe("design point, steady load (AHRI 550/590 rating conditions, REFERENCES.md §3–§5)", () => {
   it("both chillers staged on, leaving chilled water within ±1 °F of the 44 °F setpoint", () => {
     for (const ch of ["CH-1", "CH-2"]) {
       const lchwt = window(run.num(ch, "chilled_water_leaving_temp"), from, to).map(cToF);
@@ -46,11 +46,11 @@ describe("design point, steady load (AHRI 550/590 rating conditions, plant-refer
   it("condenser water entering at the 85 °F rating value (±1 °F) with the tower fan in auto", () => {
     expect(Math.abs(avgF("CH-1", "condenser_water_entering_temp") - 85)).toBeLessThan(1);
   });
-  it("tower approach ≈ 7 °F design (typical design 95/85/78 °F, plant-reference §5 — recalled there, not verified) within ±1.5 °F", () => {
+  it("tower approach ≈ 7 °F design (typical design 95/85/78 °F, REFERENCES.md §5 — recalled there, not verified) within ±1.5 °F", () => {
     const approach = avgF("CT-1", "condenser_water_leaving_temp") - avgF("WS-1", "outdoor_wet_bulb_temp");
     expect(Math.abs(approach - 7)).toBeLessThan(1.5);
   });
-  it("tower range ≈ the rating range 85 → 94.3 °F (9.3 °F) at design flow, within ±1 °F (AHRI 550/590 Table 1, plant-reference §3)", () => {
+  it("tower range ≈ the rating range 85 → 94.3 °F (9.3 °F) at design flow, within ±1 °F (AHRI 550/590 Table 1, REFERENCES.md §3)", () => {
     const range = avgF("CT-1", "condenser_water_entering_temp") - avgF("CT-1", "condenser_water_leaving_temp");
     expect(Math.abs(range - 9.3)).toBeLessThan(1);
     expect(gpm(avg("CH-1", "condenser_water_flow")) / 400).toBeCloseTo(3.0, 1);
@@ -63,7 +63,7 @@ describe("design point, steady load (AHRI 550/590 rating conditions, plant-refer
     expect(condApproach).toBeGreaterThan(0.5);
     expect(condApproach).toBeLessThan(3);
   });
-  it("full-load kW/ton at or below the ASHRAE 90.1-2019 Path A limit 0.56 (plant-reference §4) and above 0.40 (common practice floor at AHRI conditions)", () => {
+  it("full-load kW/ton at or below the ASHRAE 90.1-2019 Path A limit 0.56 (REFERENCES.md §4) and above 0.40 (common practice floor at AHRI conditions)", () => {
     for (const ch of ["CH-1", "CH-2"]) {
       const i = Number(ch.slice(3)) - 1;
       const tons = mean(run.states.filter((s) => s.tS >= from).map((s) => s.chillers[i].evapKW)) / 3.516853;

@@ -24,7 +24,7 @@ describe("point map and wire units", () => {
     expect(rows).toContainEqual({ gateway_point: "CT1-FAN-MODE", equipment: "CT-1", quantity: "fan_drive_mode", unit: "state" });
     expect(pointMapCsv(siteLayouts["medical-office"]).split("\n")[0]).toBe("gateway_point,equipment,quantity,unit");
   });
-  it("pressures go out as gauge: 101.325 kPa abs → 0 psig; 342.95 kPa → 35.05 psig (plant-reference §1 conventions)", () => {
+  it("pressures go out as gauge: 101.325 kPa abs → 0 psig; 342.95 kPa → 35.05 psig (REFERENCES.md §1 conventions)", () => {
     expect(toWire("condenser_refrigerant_pressure", 101.325) as number).toBeCloseTo(0, 6);
     expect(toWire("evaporator_refrigerant_pressure", 342.95) as number).toBeCloseTo(35.05, 1);
     expect(toWire("chilled_water_leaving_temp", 6.6667) as number).toBeCloseTo(44, 2);

@@ -9,7 +9,7 @@ import { PlantRunner, type RunSample } from "@/simulator/run";
 import { nextSeq, SparkplugEdgeNode, sparkplugPointMapCsv, type SparkplugPublish } from "@/simulator/sparkplug-edge";
 
 // The simulator as a Sparkplug B 3.0 edge node: seq/bdSeq arithmetic, birth and data contents, commands,
-// and a run over a real (in-process) broker. Facts: plant-reference §8 (Eclipse Sparkplug 3.0).
+// and a run over a real (in-process) broker. Facts: REFERENCES.md §8 (Eclipse Sparkplug 3.0).
 const codec = sparkplugPayload.get("spBv1.0")!;
 type Decoded = ReturnType<typeof codec.decodePayload>;
 const layout = siteLayouts["medical-office"];
@@ -43,7 +43,7 @@ const cmd = (metrics: Array<{ name?: string; alias?: number; type: "Boolean" | "
 describe("Sparkplug edge node (protocol logic)", () => {
   const data = samples(40);
 
-  it("seq wraps 255 → 0 and bdSeq wraps 255 → 0 (plant-reference §8)", () => {
+  it("seq wraps 255 → 0 and bdSeq wraps 255 → 0 (REFERENCES.md §8)", () => {
     expect(nextSeq(254)).toBe(255);
     expect(nextSeq(255)).toBe(0);
     const { edge, sent } = node();
