@@ -47,19 +47,3 @@ export const migrationsFolder = path.join(process.cwd(), "db", "migrations");
 export function migrateDb(db: Db): void {
   migrate(db, { migrationsFolder });
 }
-
-// Next bundles route handlers separately from server.ts, so module state is not shared;
-// the process-wide connection lives on globalThis and both sides find the same one.
-const globalForDb = globalThis as unknown as { __liftlineDb?: Db };
-
-export function getDb(): Db {
-  if (!globalForDb.__liftlineDb) {
-    globalForDb.__liftlineDb = openDb(process.env.DATABASE_PATH ?? "data/liftline.db");
-  }
-  return globalForDb.__liftlineDb;
-}
-
-/** Used by server.ts and tests to make their connection the process-wide one. */
-export function setDb(db: Db | undefined): void {
-  globalForDb.__liftlineDb = db;
-}

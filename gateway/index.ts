@@ -7,7 +7,6 @@ import { jsonTopics } from "./contract";
 import { startEmbeddedBroker, type EmbeddedBroker } from "./broker";
 import { connectExternalBroker, type ExternalBroker } from "./external";
 import { createIngest, type Ingest, type Presence } from "./ingest";
-import { setGatewayLink } from "./link";
 import { createGatewayRegistry } from "./registry";
 import { createSparkplugHost, encodeStatePayload, stateTopic } from "./sparkplug";
 import { systemClock, type Clock } from "@/lib/clock";
@@ -36,6 +35,9 @@ export interface GatewaySideOptions {
   log: (line: string) => void;
 }
 
+/** What changed about a gateway's record, as the running gateway side needs to hear of it. */
+export type GatewayChange = "provisioned" | "point_map" | "credentials" | "revoked";
+
 export interface GatewaySide {
   mode: "embedded" | "external";
   mqttPort: number | null;
@@ -44,6 +46,8 @@ export interface GatewaySide {
   status(): { up: boolean; clients: number };
   /** Publishes a JSON message on a gateway's command topic, QoS 1 (the simulator's drills). */
   sendGatewayCommand(gatewayId: string, payload: unknown): void;
+  /** A gateway's record changed: drop its cached map, and cut its connection when it may no longer use it. */
+  gatewayChanged(gatewayId: string, change: GatewayChange): void;
   close(): Promise<void>;
 }
 
@@ -137,16 +141,6 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     await embedded.publish(stateTopic, encodeStatePayload(true, clock.now()), { qos: 1, retain: true });
   }
 
-  setGatewayLink({
-    changed(gatewayId, change) {
-      registry.invalidate(gatewayId);
-      if (change !== "credentials") opts.onMappingChanged?.();
-      if (change !== "point_map" && change !== "provisioned") {
-        const n = embedded?.disconnectGateway(gatewayId) ?? 0;
-        if (n) log(`[mqtt] ${gatewayId}: ${change}; closed ${n} connection(s)`);
-      }
-    },
-  });
 
   return {
     mode: external ? "external" : "embedded",
@@ -155,8 +149,15 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     writer,
     status: () => (embedded ? { up: true, clients: embedded.connectedClients() } : { up: ext?.connected() ?? false, clients: 0 }),
     sendGatewayCommand: (gatewayId, payload) => sendCommand(jsonTopics.commands(gatewayId), Buffer.from(JSON.stringify(payload))),
+    gatewayChanged(gatewayId, change) {
+      registry.invalidate(gatewayId);
+      if (change !== "credentials") opts.onMappingChanged?.();
+      if (change !== "point_map" && change !== "provisioned") {
+        const n = embedded?.disconnectGateway(gatewayId) ?? 0;
+        if (n) log(`[mqtt] ${gatewayId}: ${change}; closed ${n} connection(s)`);
+      }
+    },
     async close() {
-      setGatewayLink(undefined);
       // Stop taking messages first, then commit what was accepted.
       await embedded?.close();
       await ext?.close();

@@ -2,30 +2,16 @@ import { getServerSession, type NextAuthOptions } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
 import { cookies } from "next/headers";
 import { redirect } from "next/navigation";
-import { getDb } from "@/db/client";
+import { getDb, signInLimiter } from "@/lib/server/runtime";
 import { verifyCredentials, getViewerById, normalizeEmail } from "@/db/queries/users";
 import { viewerForToken } from "@/db/queries/tokens";
 import { CLIENT_ADDRESS_HEADER, SESSION_COOKIES } from "@/lib/auth/session";
 import { userIdFromSessionToken } from "@/lib/auth/session-token";
-import { createSignInLimiter, type SignInLimiter } from "@/lib/auth/sign-in-limiter";
 import type { Viewer } from "@/lib/auth/viewer";
 import { AppError } from "@/lib/errors";
-import { loadConfig } from "@/lib/server/config";
 import { signInSchema } from "./schema";
 
 
-const globalForAuth = globalThis as unknown as { __liftlineSignInLimiter?: SignInLimiter };
-function limiter(): SignInLimiter {
-  if (!globalForAuth.__liftlineSignInLimiter) {
-    const config = loadConfig();
-    globalForAuth.__liftlineSignInLimiter = createSignInLimiter({
-      windowS: config.SIGNIN_WINDOW_S,
-      maxPerAccount: config.SIGNIN_MAX_PER_ACCOUNT,
-      maxPerAddress: config.SIGNIN_MAX_PER_ADDRESS,
-    });
-  }
-  return globalForAuth.__liftlineSignInLimiter;
-}
 
 function headerValue(headers: unknown, name: string): string | undefined {
   if (!headers) return undefined;
@@ -47,13 +33,13 @@ export const authOptions: NextAuthOptions = {
         if (!parsed.success) return null;
         const account = normalizeEmail(parsed.data.email);
         const address = headerValue(req?.headers, CLIENT_ADDRESS_HEADER) ?? "unknown";
-        if ((await limiter().retryAfterS(account, address)) > 0) throw new Error("RateLimited");
+        if ((await signInLimiter().retryAfterS(account, address)) > 0) throw new Error("RateLimited");
         const viewer = await verifyCredentials(getDb(), account, parsed.data.password);
         if (!viewer) {
-          await limiter().recordFailure(account, address);
+          await signInLimiter().recordFailure(account, address);
           return null;
         }
-        await limiter().recordSuccess(account);
+        await signInLimiter().recordSuccess(account);
         return { id: viewer.userId, name: viewer.name, email: viewer.email, role: viewer.role, organizationId: viewer.organizationId };
       },
     }),

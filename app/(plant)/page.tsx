@@ -1,4 +1,4 @@
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { listSites } from "@/db/queries/sites";
 import { SiteBoard } from "@/components/sites/site-board";
 import { siteStatuses } from "@/lib/server/board/site-status";

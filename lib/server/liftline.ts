@@ -1,7 +1,7 @@
 import { createServer, type IncomingMessage } from "node:http";
 import path from "node:path";
 import next from "next";
-import { migrateDb, openDb, setDb, type Db } from "@/db/client";
+import { migrateDb, openDb, type Db } from "@/db/client";
 import { demoAccounts, seedDemo, SERVICE_ORG } from "@/db/seed/demo";
 import { startGatewaySide } from "@/gateway/index";
 import { CLIENT_ADDRESS_HEADER } from "@/lib/auth/session";
@@ -13,7 +13,7 @@ import { buildIfNeeded } from "./build";
 import type { Config } from "./config";
 import { createLivePublisher } from "./realtime/live";
 import { createRealtimeServer } from "./realtime/server";
-import { setRuntime } from "./runtime";
+import { setDb, setRuntime } from "./runtime";
 import { resolveAuthSecret } from "./secret";
 import { createSimulationManager, type SimulationManager } from "./simulation/manager";
 
@@ -118,6 +118,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
         db,
         mqttUrl: `mqtt://127.0.0.1:${gatewaySide.mqttPort}`,
         log,
+        gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),
         onSiteReset: (siteId, pointIds) => {
           gatewaySide.writer.forget(pointIds);
           live.forget(pointIds);
@@ -134,6 +135,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     latestValue: (pointId) => live.latest(pointId),
     simulation,
     sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
+    gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),
   });
 
   await new Promise<void>((resolve, reject) => {

@@ -1,40 +1,80 @@
+import { openDb, type Db } from "@/db/client";
+import type { GatewayChange } from "@/gateway/index";
+import { createSignInLimiter, type SignInLimiter } from "@/lib/auth/sign-in-limiter";
 import { AppError } from "@/lib/errors";
+import type { AlarmService } from "./alarms/service";
+import type { Escalator } from "./alarms/escalation";
+import { loadConfig } from "./config";
+import type { LatestInMemory } from "@/db/queries/readings";
+import type { SimulationManager } from "./simulation/manager";
 
-// What server.ts started, visible to route handlers. Next bundles route code apart from
-// server.ts, so the handle lives on globalThis rather than in module state.
+// The process's one registry of what is running. Next bundles route handlers apart from
+// server.ts, so module state is not shared between them: the registry lives on globalThis,
+// and both sides find the same database connection and the same services.
+
 export interface RuntimeStatus {
   broker: { mode: "embedded" | "external" | "none"; up: boolean; clients: number };
 }
 
+/** The services startLiftline started (absent in a process that only serves pages, e.g. a test of routes). */
 export interface Runtime {
   status(): RuntimeStatus;
-  /** Rule checks and alarm commands (absent in a process that runs no alarm service). */
-  alarms?: import("./alarms/service").AlarmService;
+  alarms: AlarmService;
+  escalator: Escalator;
   /** Whether a site's data is live, stale, offline or has no gateway at all. */
-  siteDataStatus?: (siteId: string) => "live" | "stale" | "offline" | "no_gateway";
+  siteDataStatus(siteId: string): "live" | "stale" | "offline" | "no_gateway";
   /** The newest committed value of a point, held in memory (latest_values is written behind it). */
-  latestValue?: import("@/db/queries/readings").LatestInMemory;
+  latestValue: LatestInMemory;
   /** Demo mode's simulated gateways (absent when LIFTLINE_SIMULATOR=0 or not in demo mode). */
-  simulation?: import("./simulation/manager").SimulationManager;
+  simulation?: SimulationManager;
   /** Publishes a command to a gateway's command topic (the simulator's drills). */
-  sendGatewayCommand?: (gatewayId: string, payload: unknown) => Promise<void>;
-  /** Sends due alarm e-mails now. */
-  escalator?: import("./alarms/escalation").Escalator;
+  sendGatewayCommand(gatewayId: string, payload: unknown): Promise<void>;
+  /** Tells the gateway side that a gateway's record changed. */
+  gatewayChanged(gatewayId: string, change: GatewayChange): void;
+}
+
+interface Registry {
+  db?: Db;
+  runtime?: Runtime;
+  signInLimiter?: SignInLimiter;
+}
+
+const registry: Registry = ((globalThis as { __liftline?: Registry }).__liftline ??= {});
+
+export function setRuntime(runtime: Runtime | undefined): void {
+  registry.runtime = runtime;
+}
+
+export function getRuntime(): Runtime | undefined {
+  return registry.runtime;
 }
 
 /** The running alarm service, or a 503 for a process started without one. */
-export function requireAlarmService(): import("./alarms/service").AlarmService {
-  const service = getRuntime()?.alarms;
+export function requireAlarmService(): AlarmService {
+  const service = registry.runtime?.alarms;
   if (!service) throw new AppError("unavailable", "The alarm service is not running in this process.");
   return service;
 }
 
-const g = globalThis as unknown as { __liftlineRuntime?: Runtime };
-
-export function setRuntime(runtime: Runtime | undefined): void {
-  g.__liftlineRuntime = runtime;
+/** The process-wide database connection (opened on first use by a process that did not set one). */
+export function getDb(): Db {
+  return (registry.db ??= openDb(process.env.DATABASE_PATH ?? "data/liftline.db"));
 }
 
-export function getRuntime(): Runtime | undefined {
-  return g.__liftlineRuntime;
+/** startLiftline and tests make their connection the process-wide one. */
+export function setDb(db: Db | undefined): void {
+  registry.db = db;
+}
+
+/** Failed sign-ins per account and per address, counted across every request of the process. */
+export function signInLimiter(): SignInLimiter {
+  if (!registry.signInLimiter) {
+    const config = loadConfig();
+    registry.signInLimiter = createSignInLimiter({
+      windowS: config.SIGNIN_WINDOW_S,
+      maxPerAccount: config.SIGNIN_MAX_PER_ACCOUNT,
+      maxPerAddress: config.SIGNIN_MAX_PER_ADDRESS,
+    });
+  }
+  return registry.signInLimiter;
 }

@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { listSites } from "@/db/queries/sites";
 import { AlarmTable } from "@/components/alarms/alarm-table";
 import { canAct } from "@/lib/auth/viewer";

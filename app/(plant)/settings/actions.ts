@@ -2,7 +2,7 @@
 
 import { revalidatePath } from "next/cache";
 import { z } from "zod";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { setUnitSystem } from "@/db/queries/users";
 import { requirePageViewer } from "../../(auth)/auth";
 

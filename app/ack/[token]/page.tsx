@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getAlarm } from "@/db/queries/alarms";
 import { peekAckLink } from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";

@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { listAlarms } from "@/db/queries/alarms";
 import { route } from "@/lib/server/http";
 import { alarmQuerySchema } from "./schema";

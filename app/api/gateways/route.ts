@@ -1,7 +1,7 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
-import { createGateway, listGateways } from "@/db/queries/gateways";
-import { notifyGatewayChanged } from "@/gateway/link";
+import { getDb } from "@/lib/server/runtime";
+import { listGateways } from "@/db/queries/gateways";
+import { provisionGateway } from "@/lib/server/gateways";
 import { readJson, route } from "@/lib/server/http";
 import { createGatewaySchema, listGatewaysQuery } from "./schema";
 
@@ -17,7 +17,6 @@ export const GET = route(async (request) => {
 export const POST = route(async (request) => {
   const viewer = await requireApiViewer(request);
   const body = await readJson(request, createGatewaySchema);
-  const created = await createGateway(getDb(), viewer, body);
-  notifyGatewayChanged(created.gateway.id, "provisioned");
+  const created = await provisionGateway(getDb(), viewer, body);
   return Response.json(created, { status: 201, headers: { "cache-control": "no-store" } });
 });

@@ -1,5 +1,5 @@
 import { sql } from "drizzle-orm";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getRuntime } from "@/lib/server/runtime";
 
 export const dynamic = "force-dynamic";

@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { createShift, listShifts, onCallCandidates } from "@/db/queries/oncall";
 import { AppError } from "@/lib/errors";
 import { readJson, route } from "@/lib/server/http";

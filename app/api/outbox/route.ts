@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { listMail } from "@/db/queries/oncall";
 import { route } from "@/lib/server/http";
 import { requireAdmin } from "@/lib/server/guards";

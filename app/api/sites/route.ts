@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { listSites } from "@/db/queries/sites";
 import { siteStatuses } from "@/lib/server/board/site-status";
 import { route } from "@/lib/server/http";

@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { createToken, listTokens } from "@/db/queries/tokens";
 import { readJson, route } from "@/lib/server/http";
 import { createTokenSchema } from "./schema";

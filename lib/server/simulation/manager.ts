@@ -2,7 +2,7 @@ import type { Db } from "@/db/client";
 import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } from "@/db/queries/gateways";
 import { resetSiteTimeline } from "@/db/queries/simulation";
 import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
-import { notifyGatewayChanged } from "@/gateway/link";
+import type { GatewayChange } from "@/gateway/index";
 import { hourRebuilder } from "@/gateway/rollups";
 import { systemViewer } from "@/lib/auth/viewer";
 import { parsePointMapCsv } from "@/lib/point-map-csv";
@@ -50,6 +50,8 @@ export async function createSimulationManager(deps: {
   db: Db;
   mqttUrl: string;
   log: (line: string) => void;
+  /** Tells the running gateway side that a simulated gateway's point map was replaced. */
+  gatewayChanged?: (gatewayId: string, change: GatewayChange) => void;
   /** Forget in-memory state derived from a site's readings (live values, rule history). */
   onSiteReset?: (siteId: string, pointIds: readonly number[]) => void;
   now?: () => number;
@@ -68,7 +70,7 @@ export async function createSimulationManager(deps: {
     const { rows, errors } = parsePointMapCsv(pointMapCsv(layout));
     const result = replacePointMap(db, systemAdmin, gw.id, rows, errors);
     if (result.errors.length) log(`[sim] point map for ${site.id}: ${result.errors.length} rows refused, first: ${result.errors[0].message}`);
-    notifyGatewayChanged(gw.id, "point_map");
+    deps.gatewayChanged?.(gw.id, "point_map");
     gatewayIds.set(site.id, gw.id);
   }
 

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { isAdmin } from "@/lib/auth/viewer";
 import { formatDateTime, formatDuration } from "@/lib/client/format";
 import { alarmHealthReport } from "@/lib/server/alarm-health";

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { listMail } from "@/db/queries/oncall";
 import { isAdmin } from "@/lib/auth/viewer";
 import { formatDateTime } from "@/lib/client/format";

@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getAlarm } from "@/db/queries/alarms";
 import { getSite } from "@/db/queries/sites";
 import { AlarmCard } from "@/components/alarms/alarm-card";

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getSite } from "@/db/queries/sites";
 import { LivePoints } from "@/components/sites/live-points";
 import { SiteWarnings } from "@/components/sites/site-warnings";

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { consumeAckLink } from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";
 import { AppError, isAppError } from "@/lib/errors";

@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getAlarm } from "@/db/queries/alarms";
 import { notFound } from "@/lib/errors";
 import { route } from "@/lib/server/http";

@@ -1,8 +1,8 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
-import { getGateway, revokeGateway } from "@/db/queries/gateways";
-import { notifyGatewayChanged } from "@/gateway/link";
+import { getDb } from "@/lib/server/runtime";
+import { getGateway } from "@/db/queries/gateways";
 import { notFound } from "@/lib/errors";
+import { retireGateway } from "@/lib/server/gateways";
 import { route } from "@/lib/server/http";
 import { gatewayParams } from "../schema";
 
@@ -22,7 +22,6 @@ export const GET = route<Ctx>(async (request, { params }) => {
 export const DELETE = route<Ctx>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
   const { gatewayId } = gatewayParams.parse(await params);
-  const gateway = revokeGateway(getDb(), viewer, gatewayId);
-  notifyGatewayChanged(gatewayId, "revoked");
+  const gateway = retireGateway(getDb(), viewer, gatewayId);
   return Response.json({ gateway });
 });

@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getSite } from "@/db/queries/sites";
 import { notFound } from "@/lib/errors";
 import { route } from "@/lib/server/http";

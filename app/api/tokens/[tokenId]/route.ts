@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { revokeToken } from "@/db/queries/tokens";
 import { notFound } from "@/lib/errors";
 import { route } from "@/lib/server/http";

@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getSite } from "@/db/queries/sites";
 import { RuleSettingsEditor } from "@/components/sites/rule-settings-editor";
 import { canAct, isAdmin } from "@/lib/auth/viewer";

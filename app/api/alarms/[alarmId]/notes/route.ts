@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { addNote, findAlarmRef } from "@/db/queries/alarms";
 import { canAct } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";

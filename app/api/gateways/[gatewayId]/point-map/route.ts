@@ -1,9 +1,9 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
-import { getPointMap, replacePointMap } from "@/db/queries/gateways";
-import { notifyGatewayChanged } from "@/gateway/link";
-import { MAX_POINT_MAP_BYTES, parsePointMapCsv } from "@/lib/point-map-csv";
+import { getDb } from "@/lib/server/runtime";
+import { getPointMap } from "@/db/queries/gateways";
+import { MAX_POINT_MAP_BYTES } from "@/lib/point-map-csv";
 import { AppError } from "@/lib/errors";
+import { replaceGatewayPointMap } from "@/lib/server/gateways";
 import { route } from "@/lib/server/http";
 import { gatewayParams } from "../../schema";
 
@@ -26,14 +26,10 @@ export const PUT = route<Ctx>(async (request, { params }) => {
   const { gatewayId } = gatewayParams.parse(await params);
   const length = Number(request.headers.get("content-length") ?? 0);
   if (length > MAX_POINT_MAP_BYTES) throw new AppError("payload_too_large", "The point map is larger than 2 MB.");
-  const text = await request.text();
-  if (text.length > MAX_POINT_MAP_BYTES) throw new AppError("payload_too_large", "The point map is larger than 2 MB.");
-  const { rows, errors } = parsePointMapCsv(text);
-  const result = replacePointMap(getDb(), viewer, gatewayId, rows, errors);
+  const result = replaceGatewayPointMap(getDb(), viewer, gatewayId, await request.text());
   if (result.errors.length > 0) {
     const err = new AppError("bad_request", `${result.errors.length} row(s) of the point map are not valid; nothing was changed.`);
     return Response.json({ accepted: 0, errors: result.errors, ...err.toBody() }, { status: err.status });
   }
-  notifyGatewayChanged(gatewayId, "point_map");
   return Response.json({ accepted: result.accepted, errors: [] });
 });

@@ -1,7 +1,6 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
-import { revokeGateway } from "@/db/queries/gateways";
-import { notifyGatewayChanged } from "@/gateway/link";
+import { getDb } from "@/lib/server/runtime";
+import { retireGateway } from "@/lib/server/gateways";
 import { route } from "@/lib/server/http";
 import { gatewayParams } from "../../schema";
 
@@ -11,7 +10,6 @@ export const dynamic = "force-dynamic";
 export const POST = route<{ params: Promise<{ gatewayId: string }> }>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
   const { gatewayId } = gatewayParams.parse(await params);
-  const gateway = revokeGateway(getDb(), viewer, gatewayId);
-  notifyGatewayChanged(gatewayId, "revoked");
+  const gateway = retireGateway(getDb(), viewer, gatewayId);
   return Response.json({ gateway });
 });

@@ -1,7 +1,6 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
-import { rotateGatewayPassword } from "@/db/queries/gateways";
-import { notifyGatewayChanged } from "@/gateway/link";
+import { getDb } from "@/lib/server/runtime";
+import { rotateGatewayCredentials } from "@/lib/server/gateways";
 import { route } from "@/lib/server/http";
 import { gatewayParams } from "../../schema";
 
@@ -11,7 +10,6 @@ export const dynamic = "force-dynamic";
 export const POST = route<{ params: Promise<{ gatewayId: string }> }>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
   const { gatewayId } = gatewayParams.parse(await params);
-  const rotated = await rotateGatewayPassword(getDb(), viewer, gatewayId);
-  notifyGatewayChanged(gatewayId, "credentials");
+  const rotated = await rotateGatewayCredentials(getDb(), viewer, gatewayId);
   return Response.json(rotated, { headers: { "cache-control": "no-store" } });
 });

@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getSeries } from "@/db/queries/readings";
 import { AppError } from "@/lib/errors";
 import { loadConfig } from "@/lib/server/config";

@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
+import { getDb } from "@/lib/server/runtime";
 import { getSiteLatest } from "@/db/queries/readings";
 import { route } from "@/lib/server/http";
 import { getRuntime } from "@/lib/server/runtime";

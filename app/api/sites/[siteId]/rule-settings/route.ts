@@ -1,13 +1,13 @@
 import { z } from "zod";
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/db/client";
-import { getRuleOverrides, saveRuleOverrides } from "@/db/queries/alarms";
+import { getDb } from "@/lib/server/runtime";
+import { getRuleOverrides } from "@/db/queries/alarms";
 import { canSeeSite } from "@/db/queries/sites";
 import { notFound } from "@/lib/errors";
 import { readJson, route } from "@/lib/server/http";
 import { requireAdmin, requireStaff } from "@/lib/server/guards";
-import { getRuntime } from "@/lib/server/runtime";
-import { defaultRuleSettings, parseRuleSettings, ruleSettingsSchema } from "@/lib/rules/settings";
+import { saveRuleSettings } from "@/lib/server/rule-settings";
+import { defaultRuleSettings, parseRuleSettings } from "@/lib/rules/settings";
 
 type Ctx = { params: Promise<{ siteId: string }> };
 
@@ -31,9 +31,5 @@ export const PUT = route<Ctx>(async (request, { params }) => {
   const { viewer, siteId } = await visibleSite(request, params);
   requireAdmin(viewer);
   const overrides = await readJson(request, z.record(z.string(), z.unknown()));
-  const effective = ruleSettingsSchema.parse(overrides);
-  saveRuleOverrides(getDb(), viewer, siteId, overrides);
-  // The site's rules pick the new settings up with its next readings.
-  getRuntime()?.alarms?.reload(siteId);
-  return Response.json({ overrides, effective });
+  return Response.json(saveRuleSettings(getDb(), viewer, siteId, overrides));
 });
