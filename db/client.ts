@@ -23,20 +23,18 @@ export function openDb(file: string): Db {
   // 16 KB pages for a new database (ignored for an existing one: WAL fixes the page size once the
   // file has a header). Ingestion adds a reading to every point's b-tree leaf at every flush, and
   // a commit's cost goes with the pages it dirties; 16 KB holds four times the points of the
-  // default 4 KB. Measured here on 100,000 points with 8 million readings stored:
-  // tests/bench/store.bench.ts.
+  // default 4 KB (npm run bench:store).
   sqlite.pragma("page_size = 16384");
   sqlite.pragma("journal_mode = WAL");
   sqlite.pragma("synchronous = NORMAL");
   sqlite.pragma("foreign_keys = ON");
   sqlite.pragma("busy_timeout = 5000");
-  // Ingestion touches a page of every point it writes, so the default 2 MB page cache missed
-  // on most of them; 64 MB holds the hot b-tree pages of a large portfolio.
+  // Ingestion touches a page of every point it writes; 64 MB holds the hot b-tree pages of a
+  // large portfolio, where the default 2 MB would miss on most of them.
   sqlite.pragma("cache_size = -65536");
   // The ingest writer checkpoints from a worker thread (gateway/checkpointer.ts); the automatic
-  // checkpoint, which runs inside a commit on the event loop, is raised from 1,000 pages (hit at
-  // nearly every ingestion commit) to 10,000 (40 MB) as a safety net. A WAL left larger than
-  // 64 MB is truncated back after a checkpoint.
+  // checkpoint, which would run inside a commit on the event loop, is only a safety net at
+  // 10,000 pages. A WAL left larger than 64 MB is truncated back after a checkpoint.
   sqlite.pragma("wal_autocheckpoint = 10000");
   sqlite.pragma("journal_size_limit = 67108864");
   return drizzle(sqlite, { schema }) as Db;

@@ -26,8 +26,7 @@ export function emptyAlarmBook(): AlarmBook {
  * alarm that becomes meaningless is hidden before it could annunciate. Also expires shelves.
  */
 export function applyConditions(book: AlarmBook, conditions: readonly ConditionInput[], atMs: number): { book: AlarmBook; transitions: TransitionRecord[] } {
-  // Copied on the first change only: most evaluations change nothing, and a fresh copy of a
-  // site's whole book every 5 s outlived young-generation collections and was copied by them.
+  // Copied on the first change only: most evaluations change nothing.
   let next: Map<string, Alarm> | null = null;
   const current = (): AlarmBook => next ?? book;
   const put = (key: string, a: Alarm) => {

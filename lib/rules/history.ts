@@ -41,8 +41,8 @@ const MAX_EDGES = 64;
 
 /**
  * One point's samples, oldest first, in two Float64Arrays (event time, value; booleans as 0/1)
- * rather than an object per sample: a portfolio keeps hours of readings of 100,000 points here,
- * and as objects they filled the heap and kept the garbage collector busy. A series that is
+ * rather than an object per sample, since a portfolio keeps hours of readings of every point
+ * here and objects would fill the heap. A series that is
  * given a string (state and text points) keeps its values in a plain array beside the times.
  */
 class Series {

@@ -76,9 +76,8 @@ export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; r
     ingest: (readings) => history.addAll(readings),
     evaluate(nowMs, comms) {
       const { conditions, snapshot } = evaluateRules({ site: args.site, history, settings, nowMs, comms, previous, timeZone: args.timeZone });
-      // Only the active ones are read back (dead bands). Holding every condition, messages and
-      // all, until the next evaluation 5 s later made ~60 KB per site outlive young-generation
-      // collections, which then copied it: at 400 sites, most of what those pauses copied.
+      // Only the active ones are read back (dead bands); holding every condition until the next
+      // evaluation would keep it alive through young-generation collections.
       // Copies, as the rules saw them: the loop below sets `active` to the delayed state.
       previous = conditions.filter((c) => c.active).map((c) => ({ ...c }));
       // The conditions are this evaluation's own objects: they take the delayed state in place

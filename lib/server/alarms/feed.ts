@@ -7,8 +7,7 @@ import type { AlarmService } from "./service";
 
 /**
  * Longest stretch of rule checks between two turns of the event loop: a page request waits a
- * turn at each of its awaits, so long turns add up. Under the portfolio benchmark a 30-day trend
- * request's p99 was 64–311 ms over eleven runs with 8 ms slices, 65–157 ms over four with 3 ms.
+ * turn at each of its awaits, so long turns add up (tests/bench/PERFORMANCE.md).
  */
 const SLICE_MS = 3;
 
@@ -23,8 +22,7 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
     byPoint.set(pointId, p);
     return p;
   };
-  // One query for every point up front: one query per new point cost ~20k queries in the
-  // first second of a large plant's ingestion, all on the event loop.
+  // One query for every point up front, not one per new point on the event loop.
   let loaded = false;
   const loadAll = () => {
     loaded = true;
@@ -52,12 +50,10 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
     }
   };
 
-  // Readings go into each site's history as they commit (cheap: typed arrays); the rule checks
-  // run off the commit path, a few sites per turn of the event loop: every site's evaluation
-  // falls due in the same flush (they share the 5 s event-time step), and running all of them
-  // there held PUBACKs, socket pushes and page requests for hundreds of ms. Only site ids wait,
-  // not readings: queued reading objects lived long enough to be copied by every young-generation
-  // collection, whose pauses were the longest waits a page request met under load.
+  // Readings go into each site's history as they commit (typed arrays); the rule checks run off
+  // the commit path, a few sites per turn of the event loop, since every site's evaluation falls
+  // due in the same flush and running them all there would hold PUBACKs, pushes and pages. Only
+  // site ids wait, not readings, so nothing queued outlives a young-generation collection.
   const due = new Set<string>();
   let scheduled = false;
   const drain = () => {
@@ -76,8 +72,8 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
     setImmediate(drain);
   };
 
-  // Reading objects are reused from one flush to the next (record() keeps none of them): one
-  // per committed reading, made and dropped at once, was a tenth of what ingestion allocated.
+  // Reading objects are reused from one flush to the next (record() keeps none of them), so the
+  // hot path makes no object per committed reading.
   const pool: Reading[] = [];
   let used = 0;
   const reading = (tsMs: number, equipment: string, quantity: QuantityKey, value: Reading["value"]): Reading => {
