@@ -1,7 +1,7 @@
 import { getDb } from "@/lib/server/runtime";
 import { listSites } from "@/db/queries/sites";
 import { SiteBoard } from "@/components/sites/site-board";
-import { siteStatuses } from "@/lib/server/board/site-status";
+import { boardStatuses } from "@/lib/server/board/site-status";
 import { canAct } from "@/lib/auth/viewer";
 import { requirePageViewer } from "../(auth)/auth";
 
@@ -11,6 +11,6 @@ export default async function BoardPage() {
   const viewer = await requirePageViewer();
   const db = getDb();
   const sites = listSites(db, viewer);
-  const statuses = siteStatuses(db, viewer, sites.map((s) => s.id));
+  const statuses = boardStatuses(db, viewer, sites.map((s) => s.id));
   return <SiteBoard fallback={sites.map((s) => ({ ...s, status: statuses.get(s.id) }))} canAct={canAct(viewer)} />;
 }

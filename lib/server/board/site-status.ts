@@ -13,7 +13,7 @@ function toWorst(worst: AlarmDto | null | undefined): SiteStatus["worst"] {
 }
 
 /** The alarm half of a site's board status (worst active alarm, unacknowledged count). */
-export function alarmSide(summary: Map<string, { worst: AlarmDto | null; unacknowledged: number }>, siteId: string): AlarmSide {
+function alarmSide(summary: Map<string, { worst: AlarmDto | null; unacknowledged: number }>, siteId: string): AlarmSide {
   const a = summary.get(siteId);
   return { worst: toWorst(a?.worst), unacknowledged: a?.unacknowledged ?? 0 };
 }
@@ -40,7 +40,7 @@ export function createBoardAlarmSummary(db: Db, viewer: Viewer, clock: () => num
 }
 
 /** Each visible site's board status: data freshness, worst active alarm, unacknowledged count. */
-export function siteStatuses(db: Db, viewer: Viewer, siteIds: readonly string[]): Map<string, SiteStatus> {
+export function boardStatuses(db: Db, viewer: Viewer, siteIds: readonly string[]): Map<string, SiteStatus> {
   const summary = alarmSummaryBySite(db, viewer);
   const dataStatus = getRuntime()?.siteDataStatus;
   const out = new Map<string, SiteStatus>();
