@@ -1,5 +1,5 @@
 // Applying drill actions to the plant: accept within the controller's limits, refuse with a reason.
-import { kPaPerPsi } from "./units";
+import { KPA_PER_PSI } from "@/lib/plant/units";
 import { restartInhibitLeftS, driveTripC, condPressureKPa } from "./chiller";
 import { timerLimits, type DrillAction } from "./actions-schema";
 import type { ModelEvent, PlantState } from "./state";
@@ -49,7 +49,7 @@ export function applyDrillAction(s: PlantState, a: DrillAction): ActionOutcome {
       const p = s.params.chillers[chillerIndex];
       if (!c.alarmLatched) return { accepted: false, reason: "no latched alarm" };
       // The controller refuses a reset while the tripping condition is still present.
-      if (c.alarmText === "High condenser pressure" && condPressureKPa(p, c) >= p.highCondTripKPa - 10 * kPaPerPsi)
+      if (c.alarmText === "High condenser pressure" && condPressureKPa(p, c) >= p.highCondTripKPa - 10 * KPA_PER_PSI)
         return { accepted: false, reason: "condenser pressure still within 10 psi of the trip setting" };
       if (c.alarmText === "Drive over-temperature" && c.driveC >= driveTripC - 5)
         return { accepted: false, reason: "drive still within 9 °F of its trip temperature" };

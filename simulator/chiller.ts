@@ -2,7 +2,7 @@
 // (start/stop, capacity, safeties, anti-recycle timers) and its physics (water side, refrigerant, drive).
 import { saturationPressureKPa } from "@/lib/refrigerant";
 import type { ChillerParams, ChillerState, FaultEntry, ModelEvent } from "./state";
-import { fToC, kPaAbsToPsig, waterHeatCapacityKJPerLK as cpW, kPaPerPsi } from "./units";
+import { fToC, KPA_PER_PSI, kpaAbsToPsig, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
 
 /** Drive over-temperature trip 150 °F, cooling target 105 °F (common practice, from a field service call). */
 export const driveTripC = fToC(150);
@@ -10,7 +10,7 @@ const driveCoolingSetpointC = fToC(105);
 /** Proportional band of the drive-cooling solenoid, K (assumed). */
 const driveCoolingBandK = 3;
 /** Pressure difference at which the motor/drive liquid feed reaches full flow: 30 psid (assumed). */
-const fullCoolingDpKPa = 30 * kPaPerPsi;
+const fullCoolingDpKPa = 30 * KPA_PER_PSI;
 /** Low evaporator pressure: saturated temperature below 33 °F for 30 s (common practice, freeze protection). */
 const lowEvapTripC = fToC(33);
 /** Chiller start differential above setpoint and low-load stop below it (common practice). */
@@ -119,7 +119,7 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
     c.chwFlowLowS = chwProven ? 0 : c.chwFlowLowS + dt;
     c.lowEvapS = c.evapSatC < lowEvapTripC ? c.lowEvapS + dt : 0;
     if (condKPa >= p.highCondTripKPa) {
-      trip(p, c, env, sink, "High condenser pressure", `High discharge pressure trip at ${kPaAbsToPsig(condKPa).toFixed(1)} psig`);
+      trip(p, c, env, sink, "High condenser pressure", `High discharge pressure trip at ${kpaAbsToPsig(condKPa).toFixed(1)} psig`);
     } else if (c.driveC >= driveTripC) {
       trip(p, c, env, sink, "Drive over-temperature", `Drive over-temperature trip at ${((c.driveC * 9) / 5 + 32).toFixed(1)} °F`);
     } else if (c.cwFlowLowS >= 10) {
@@ -127,7 +127,7 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
     } else if (c.chwFlowLowS >= 10) {
       trip(p, c, env, sink, "Evaporator water flow loss", "Evaporator water flow switch open (low evaporator water ΔP)");
     } else if (c.lowEvapS >= 30) {
-      trip(p, c, env, sink, "Low evaporator pressure", `Low evaporator pressure trip at ${kPaAbsToPsig(evapKPa).toFixed(1)} psig`);
+      trip(p, c, env, sink, "Low evaporator pressure", `Low evaporator pressure trip at ${kpaAbsToPsig(evapKPa).toFixed(1)} psig`);
     }
   } else {
     c.cwFlowLowS = 0;

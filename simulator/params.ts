@@ -2,7 +2,7 @@
 import { plantTons, type SiteLayout } from "./layout";
 import type { ChillerParams, PlantParams } from "./state";
 import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
-import { dFToK, fToC, galToL, gpmToLps, kPaPerPsi, kWPerTon, psigToKPaAbs, waterHeatCapacityKJPerLK as cpW } from "./units";
+import { deltaFToDeltaK, fToC, galToL, gpmToLps, KPA_PER_PSI, KW_PER_TON, psigToKpaAbs, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
 
 /** Evaporator and condenser refrigerant approaches at full load: 1.5 °F and 2 °F (common practice for modern centrifugal chillers). */
 export const evapApproachDesignF = 1.5;
@@ -26,12 +26,12 @@ const mechanicalRoomF = 85;
 export function chillerParamsOf(layout: SiteLayout): ChillerParams[] {
   const d = layout.design;
   return layout.chillers.map((c) => {
-    const ratedEvapKW = c.capacityTons * kWPerTon;
+    const ratedEvapKW = c.capacityTons * KW_PER_TON;
     const ratedInputKW = c.capacityTons * sizingKWPerTon;
     const chwDesignLps = gpmToLps(d.chwGpmPerTon * c.capacityTons);
     const cwDesignLps = gpmToLps(d.cwGpmPerTon * c.capacityTons);
     const cwRangeK = (ratedEvapKW + ratedInputKW) / (cwDesignLps * cpW);
-    const designLiftK = fToC(d.cwEnteringF) + cwRangeK + dFToK(condApproachDesignF) - (fToC(d.chwSupplyF) - dFToK(evapApproachDesignF));
+    const designLiftK = fToC(d.cwEnteringF) + cwRangeK + deltaFToDeltaK(condApproachDesignF) - (fToC(d.chwSupplyF) - deltaFToDeltaK(evapApproachDesignF));
     const driveLossKW = driveLossFraction * ratedInputKW;
     return {
       tag: c.tag,
@@ -40,15 +40,15 @@ export function chillerParamsOf(layout: SiteLayout): ChillerParams[] {
       ratedInputKW,
       chwDesignLps,
       cwDesignLps,
-      evapDpDesignKPa: evapDpDesignPsid * kPaPerPsi,
-      condDpDesignKPa: condDpDesignPsid * kPaPerPsi,
+      evapDpDesignKPa: evapDpDesignPsid * KPA_PER_PSI,
+      condDpDesignKPa: condDpDesignPsid * KPA_PER_PSI,
       designLiftK,
-      evapApproachK: dFToK(evapApproachDesignF),
-      condApproachK: dFToK(condApproachDesignF),
+      evapApproachK: deltaFToDeltaK(evapApproachDesignF),
+      condApproachK: deltaFToDeltaK(condApproachDesignF),
       driveLossKW,
       driveHeatCapKJPerK: (driveLossKW * 0.85 * 60) / uncooledDriveRiseKPerMin,
       // The cut-out is set per refrigerant at the condensing temperature R-134a has at the layout's psig setting.
-      highCondTripKPa: saturationPressureKPa(c.refrigerant, saturationTempC("R-134a", psigToKPaAbs(layout.highCondPressureTripPsig))),
+      highCondTripKPa: saturationPressureKPa(c.refrigerant, saturationTempC("R-134a", psigToKpaAbs(layout.highCondPressureTripPsig))),
       condShellKJPerK: galToL(condShellGalPerTon * c.capacityTons) * cpW,
     };
   });
@@ -82,7 +82,7 @@ export function plantParamsOf(layout: SiteLayout): PlantParams {
     else hi = mid;
   }
   const ntu = (lo + hi) / 2;
-  const peakKW = plantTons(layout) * kWPerTon * d.peakLoadFraction;
+  const peakKW = plantTons(layout) * KW_PER_TON * d.peakLoadFraction;
   const ahuDesignKW = Array.from({ length: layout.airHandlers }, () => peakKW / layout.airHandlers);
   return {
     chillers,

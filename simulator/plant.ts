@@ -9,7 +9,7 @@ import { plantParamsOf } from "./params";
 import { Rng, seedState } from "./prng";
 import type { ChillerState, FaultEntry, ModelEvent, PlantCommand, PlantState, StepInputs, StepResult } from "./state";
 import { stepTower, condenserWaterSetpointC } from "./tower";
-import { fToC, waterHeatCapacityKJPerLK as cpW } from "./units";
+import { fToC, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
 
 /** Wet bulb is recomputed once a simulated minute (weather changes slowly; PsychroLib iterates). */
 const weatherRefreshS = 60;

@@ -3,7 +3,7 @@ import type { PointMapRow } from "@/lib/point-map-csv";
 import { pointsByKind, quantities, type QuantityKey } from "@/lib/quantities";
 import { ipWireUnits, type WireUnitCode } from "@/lib/units";
 import { equipmentOf, type SiteLayout } from "./layout";
-import { cToF, kPaAbsToPsig, kPaPerPsi, lpsToGpm, psigToKPaAbs, fToC, gpmToLps } from "./units";
+import { cToF, fToC, gpmToLps, KPA_PER_PSI, kpaAbsToPsig, lpsToGpm, psigToKpaAbs } from "@/lib/plant/units";
 
 /** Point-name suffix per quantity, by equipment kind where the same quantity means different sensors. */
 const chillerSuffix: Partial<Record<QuantityKey, string>> = {
@@ -89,9 +89,9 @@ export function toWire(quantity: QuantityKey, value: Value): Value {
     case "temperature":
       return cToF(value);
     case "pressure":
-      return kPaAbsToPsig(value);
+      return kpaAbsToPsig(value);
     case "differential_pressure":
-      return value / kPaPerPsi;
+      return value / KPA_PER_PSI;
     case "flow":
       return lpsToGpm(value);
     default:
@@ -106,9 +106,9 @@ export function fromWire(quantity: QuantityKey, value: Value): Value {
     case "temperature":
       return fToC(value);
     case "pressure":
-      return psigToKPaAbs(value);
+      return psigToKpaAbs(value);
     case "differential_pressure":
-      return value * kPaPerPsi;
+      return value * KPA_PER_PSI;
     case "flow":
       return gpmToLps(value);
     default:

@@ -1,7 +1,7 @@
 // Cooling tower with one variable-speed fan drive (mode auto / off / hand, fault latch) and its basin.
 import { counterflowEffectiveness } from "./params";
 import type { FaultEntry, ModelEvent, PlantParams, TowerState } from "./state";
-import { fToC, waterHeatCapacityKJPerLK as cpW } from "./units";
+import { fToC, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
 import { towerTag } from "./layout";
 
 /** Airflow through a tower with its fan off, fraction of design (natural draft; assumed 4 %, calibrated so condenser water passes 100 °F with the fan off under load, as observed on the service call). */

@@ -21,3 +21,8 @@ export const gpmToLps = (gpm: number): number => gpm * LPS_PER_GPM;
 export const kpaToPsia = (kpa: number): number => kpa / KPA_PER_PSI;
 export const kpaAbsToPsig = (kpa: number): number => (kpa - ATMOSPHERE_KPA) / KPA_PER_PSI;
 export const psigToKpaAbs = (psig: number): number => psig * KPA_PER_PSI + ATMOSPHERE_KPA;
+
+/** Volumetric heat capacity of water, kJ/(L·K): the SI water-side factor of REFERENCES.md §2. */
+export const WATER_HEAT_CAPACITY_KJ_PER_LK = 4.186;
+/** 1 US gallon = 3.785411784 L (exact). */
+export const galToL = (gal: number): number => gal * 3.785411784;

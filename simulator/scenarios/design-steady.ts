@@ -1,7 +1,7 @@
 // Steady operation at the design point: 95 °F dry bulb / 78 °F wet bulb, the building at the installed capacity.
 // Used to check the model against AHRI 550/590 rating conditions (REFERENCES.md §3, §5).
 import { wetBulbC } from "@/lib/psychrometrics";
-import { fToC } from "../units";
+import { fToC } from "@/lib/plant/units";
 import type { Scenario } from "./types";
 
 /** Relative humidity that gives the design wet bulb at the design dry bulb (bisection on PsychroLib). */

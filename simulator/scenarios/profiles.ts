@@ -1,6 +1,6 @@
 // Daily weather and occupancy shapes shared by the scenarios.
 import type { SiteLayout } from "../layout";
-import { fToC } from "../units";
+import { fToC } from "@/lib/plant/units";
 
 export const hourOf = (startHour: number, tS: number): number => (((startHour + tS / 3600) % 24) + 24) % 24;
 
