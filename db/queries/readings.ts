@@ -10,12 +10,12 @@ import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import { displayUnit, formatValue, fromCanonical } from "@/lib/units";
 import { HOUR_MS } from "@/gateway/rollups";
 import { freshnessByGateway, isStale, siteStatuses, type MappedPoint, type SiteDataState, type SiteStatusRow } from "@/gateway/status";
+import { qualityNames } from "@/lib/quality";
 
 // Reading data for screens: trends (raw or 1-minute rollups, bucketed with min/max so spikes
 // stay visible) and the latest value of every point with its age. Viewer-scoped.
 
 const MINUTE_MS = 60_000;
-const qualityNames = ["good", "uncertain", "bad"] as const;
 
 export interface SeriesQuery {
   fromMs: number;
