@@ -4,7 +4,7 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import useSWR from "swr";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
-import type { SeriesDto } from "@/db/queries/readings";
+import type { SeriesDto } from "@/lib/dto/readings";
 import { fetchJson } from "@/lib/client/fetcher";
 import { formatDuration } from "@/lib/client/format";
 import type { Measure } from "@/lib/quantities";

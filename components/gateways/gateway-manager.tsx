@@ -5,7 +5,7 @@ import { useState } from "react";
 import { useForm } from "react-hook-form";
 import useSWR from "swr";
 import { createGatewaySchema, type CreateGatewayBody } from "@/app/api/gateways/schema";
-import type { GatewayDto } from "@/db/queries/gateways";
+import type { GatewayDto } from "@/lib/dto/gateways";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { fetchJson } from "@/lib/client/fetcher";

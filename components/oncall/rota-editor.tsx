@@ -5,7 +5,7 @@ import { useState } from "react";
 import { useForm } from "react-hook-form";
 import useSWR from "swr";
 import { shiftSchema, type ShiftInput, type ShiftOutput } from "@/app/api/oncall/schema";
-import type { ShiftDto } from "@/db/queries/oncall";
+import type { ShiftDto } from "@/lib/dto/oncall";
 import { Button } from "@/components/ui/button";
 import { fetchJson } from "@/lib/client/fetcher";
 import { formatDateTime } from "@/lib/client/format";

@@ -3,8 +3,8 @@
 import Link from "next/link";
 import { useEffect, useState } from "react";
 import useSWR from "swr";
-import type { SiteLatestDto } from "@/db/queries/readings";
-import type { EquipmentDto } from "@/db/queries/sites";
+import type { SiteLatestDto } from "@/lib/dto/readings";
+import type { EquipmentDto } from "@/lib/dto/sites";
 import type { SiteValues } from "@/lib/realtime/events";
 import { fetchJson } from "@/lib/client/fetcher";
 import { formatDuration } from "@/lib/client/format";

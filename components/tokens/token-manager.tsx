@@ -5,7 +5,7 @@ import { useState } from "react";
 import { useForm } from "react-hook-form";
 import useSWR from "swr";
 import { createTokenSchema, type CreateTokenInput } from "@/app/api/tokens/schema";
-import type { ApiTokenDto } from "@/db/queries/tokens";
+import type { ApiTokenDto } from "@/lib/dto/tokens";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { fetchJson } from "@/lib/client/fetcher";
