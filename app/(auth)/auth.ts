@@ -11,7 +11,7 @@ import { createSignInLimiter, type SignInLimiter } from "@/lib/auth/sign-in-limi
 import type { Viewer } from "@/lib/auth/viewer";
 import { AppError } from "@/lib/errors";
 import { loadConfig } from "@/lib/server/config";
-import { signInSchema } from "./schema";
+import { signInSchema } from "@/lib/schemas/sign-in";
 
 
 const globalForAuth = globalThis as unknown as { __liftlineSignInLimiter?: SignInLimiter };

@@ -4,7 +4,7 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
 import useSWR from "swr";
-import { createGatewaySchema, type CreateGatewayBody } from "@/app/api/gateways/schema";
+import { createGatewaySchema, type CreateGatewayBody } from "@/lib/schemas/gateways";
 import type { GatewayDto } from "@/lib/dto/gateways";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";

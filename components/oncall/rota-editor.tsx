@@ -4,7 +4,7 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
 import useSWR from "swr";
-import { shiftSchema, type ShiftInput, type ShiftOutput } from "@/app/api/oncall/schema";
+import { shiftSchema, type ShiftInput, type ShiftOutput } from "@/lib/schemas/oncall";
 import type { ShiftDto } from "@/lib/dto/oncall";
 import { Button } from "@/components/ui/button";
 import { fetchJson } from "@/lib/client/fetcher";

@@ -4,7 +4,7 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
 import useSWR from "swr";
-import { createTokenSchema, type CreateTokenInput } from "@/app/api/tokens/schema";
+import { createTokenSchema, type CreateTokenInput } from "@/lib/schemas/tokens";
 import type { ApiTokenDto } from "@/lib/dto/tokens";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";

@@ -3,7 +3,7 @@ import { getDb } from "@/db/client";
 import { createGateway, listGateways } from "@/db/queries/gateways";
 import { notifyGatewayChanged } from "@/gateway/link";
 import { readJson, route } from "@/lib/server/http";
-import { createGatewaySchema, listGatewaysQuery } from "./schema";
+import { createGatewaySchema, listGatewaysQuery } from "@/lib/schemas/gateways";
 
 export const dynamic = "force-dynamic";
 

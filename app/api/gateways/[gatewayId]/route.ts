@@ -4,7 +4,7 @@ import { getGateway, revokeGateway } from "@/db/queries/gateways";
 import { notifyGatewayChanged } from "@/gateway/link";
 import { notFound } from "@/lib/errors";
 import { route } from "@/lib/server/http";
-import { gatewayParams } from "../schema";
+import { gatewayParams } from "@/lib/schemas/gateways";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ gatewayId: string }> };

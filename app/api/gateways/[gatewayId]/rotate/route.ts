@@ -3,7 +3,7 @@ import { getDb } from "@/db/client";
 import { rotateGatewayPassword } from "@/db/queries/gateways";
 import { notifyGatewayChanged } from "@/gateway/link";
 import { route } from "@/lib/server/http";
-import { gatewayParams } from "../../schema";
+import { gatewayParams } from "@/lib/schemas/gateways";
 
 export const dynamic = "force-dynamic";
 
