@@ -6,9 +6,8 @@ import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 import type { SeriesDto } from "@/lib/dto/readings";
 import { fetchJson } from "@/lib/client/fetcher";
-import { formatDuration } from "@/lib/client/format";
 import type { Measure } from "@/lib/quantities";
-import { fromCanonical, type UnitSystem } from "@/lib/units";
+import { formatDuration, fromCanonical, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { exposeXRange, siteTimeZone } from "./uplot-options";
 

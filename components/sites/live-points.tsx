@@ -7,9 +7,8 @@ import type { SiteLatestDto } from "@/lib/dto/readings";
 import type { EquipmentDto } from "@/lib/dto/sites";
 import type { SiteValues } from "@/lib/realtime/events";
 import { fetchJson } from "@/lib/client/fetcher";
-import { formatDuration } from "@/lib/client/format";
 import { isQuantityKey, quantities, type Measure } from "@/lib/quantities";
-import { formatValue, type UnitSystem } from "@/lib/units";
+import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 
 type Live = Record<number, { value: number | boolean | string | null; tsMs: number | null; quality: string | null }>;
