@@ -196,4 +196,15 @@ export function formatValue(value: number | boolean | string | null | undefined,
   return unit.label ? `${shown} ${unit.label}` : shown;
 }
 
+/** A duration as screens and alarm messages give it: "45 s", "12 min", "2 h 5 min"; "—" when unknown. */
+export function formatDuration(seconds: number | null | undefined): string {
+  if (seconds === null || seconds === undefined || !Number.isFinite(seconds)) return "—";
+  const s = Math.max(0, Math.round(seconds));
+  if (s < 90) return `${s} s`;
+  const m = Math.round(s / 60);
+  if (m < 90) return `${m} min`;
+  const h = Math.floor(m / 60);
+  return m % 60 ? `${h} h ${m % 60} min` : `${h} h`;
+}
+
 export { canonicalUnits };

@@ -9,7 +9,7 @@ import { CLIENT_ADDRESS_HEADER, SESSION_COOKIES } from "@/lib/auth/session";
 import { userIdFromSessionToken } from "@/lib/auth/session-token";
 import type { Viewer } from "@/lib/auth/viewer";
 import { AppError } from "@/lib/errors";
-import { signInSchema } from "./schema";
+import { signInSchema } from "@/lib/schemas/sign-in";
 
 
 

@@ -3,7 +3,7 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
-import { ackSchema, noteSchema, shelveSchema, type AckInput, type NoteInput, type ShelveInput } from "@/app/api/alarms/schema";
+import { ackSchema, noteSchema, shelveSchema, type AckInput, type NoteInput, type ShelveInput } from "@/lib/schemas/alarms";
 import { Button } from "@/components/ui/button";
 import { fetchJson } from "@/lib/client/fetcher";
 

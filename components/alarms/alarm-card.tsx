@@ -3,7 +3,7 @@
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import useSWR from "swr";
-import type { AlarmDto, AlarmWithHistoryDto } from "@/db/queries/alarms";
+import type { AlarmDto, AlarmWithHistoryDto } from "@/lib/dto/alarms";
 import { fetchJson } from "@/lib/client/fetcher";
 import { formatDateTime } from "@/lib/client/format";
 import type { UnitSystem } from "@/lib/units";

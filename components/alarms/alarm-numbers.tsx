@@ -1,5 +1,5 @@
-import { formatClock, formatDelta, formatDuration, formatPressureDelta } from "@/lib/client/format";
-import { formatValue, type UnitSystem } from "@/lib/units";
+import { formatClock, formatDelta, formatPressureDelta } from "@/lib/client/format";
+import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
 
 // Rule numbers carry their unit in the name (marginK, timeToCrossoverS, condenserPressureKPa);
 // each known key gets a label and a formatter in the viewer's units.

@@ -4,7 +4,7 @@ import { createColumnHelper, flexRender, getCoreRowModel, getSortedRowModel, use
 import Link from "next/link";
 import { useMemo, useState } from "react";
 import useSWR from "swr";
-import type { AlarmDto } from "@/db/queries/alarms";
+import type { AlarmDto } from "@/lib/dto/alarms";
 import { fetchJson } from "@/lib/client/fetcher";
 import { formatDateTime } from "@/lib/client/format";
 import { useSiteEvents } from "@/components/realtime/use-site-events";

@@ -1,4 +1,4 @@
-import type { AlarmEventDto } from "@/db/queries/alarms";
+import type { AlarmEventDto } from "@/lib/dto/alarms";
 import { formatDateTime } from "@/lib/client/format";
 import { ownerStateLabel, stateLabel } from "./priority";
 

@@ -5,7 +5,7 @@ import { signIn } from "next-auth/react";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
-import { signInErrors, signInSchema, type SignInInput } from "@/app/(auth)/schema";
+import { signInErrors, signInSchema, type SignInInput } from "@/lib/schemas/sign-in";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 

@@ -4,11 +4,10 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import useSWR from "swr";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
-import type { SeriesDto } from "@/db/queries/readings";
+import type { SeriesDto } from "@/lib/dto/readings";
 import { fetchJson } from "@/lib/client/fetcher";
-import { formatDuration } from "@/lib/client/format";
 import type { Measure } from "@/lib/quantities";
-import { fromCanonical, type UnitSystem } from "@/lib/units";
+import { formatDuration, fromCanonical, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { exposeXRange, siteTimeZone } from "./uplot-options";
 

@@ -5,7 +5,8 @@ import useSWR from "swr";
 import type { SimulatedSiteStatus } from "@/lib/server/simulation/manager";
 import { Button } from "@/components/ui/button";
 import { fetchJson } from "@/lib/client/fetcher";
-import { formatDateTime, formatDuration } from "@/lib/client/format";
+import { formatDateTime } from "@/lib/client/format";
+import { formatDuration } from "@/lib/units";
 
 type Data = { sites: SimulatedSiteStatus[]; scenarios: Array<{ name: string; description: string; durationS: number }> };
 type Drill = { label: string; actions: object[] };

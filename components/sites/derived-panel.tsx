@@ -1,6 +1,6 @@
 import type { ChillerSnapshot, SiteSnapshot } from "@/lib/plant/snapshot";
-import { formatClock, formatDelta, formatDuration, formatPressureDelta } from "@/lib/client/format";
-import type { UnitSystem } from "@/lib/units";
+import { formatClock, formatDelta, formatPressureDelta } from "@/lib/client/format";
+import { formatDuration, type UnitSystem } from "@/lib/units";
 import { Sparkline } from "@/components/charts/sparkline";
 
 function crossoverText(c: ChillerSnapshot): string {

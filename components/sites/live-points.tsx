@@ -3,13 +3,12 @@
 import Link from "next/link";
 import { useEffect, useState } from "react";
 import useSWR from "swr";
-import type { SiteLatestDto } from "@/db/queries/readings";
-import type { EquipmentDto } from "@/db/queries/sites";
+import type { SiteLatestDto } from "@/lib/dto/readings";
+import type { EquipmentDto } from "@/lib/dto/sites";
 import type { SiteValues } from "@/lib/realtime/events";
 import { fetchJson } from "@/lib/client/fetcher";
-import { formatDuration } from "@/lib/client/format";
 import { isQuantityKey, quantities, type Measure } from "@/lib/quantities";
-import { formatValue, type UnitSystem } from "@/lib/units";
+import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 
 type Live = Record<number, { value: number | boolean | string | null; tsMs: number | null; quality: string | null }>;

@@ -2,7 +2,7 @@
 
 import Link from "next/link";
 import useSWR from "swr";
-import type { SiteSummaryDto } from "@/db/queries/sites";
+import type { SiteSummaryDto } from "@/lib/dto/sites";
 import type { SiteStatus } from "@/lib/realtime/events";
 import { fetchJson } from "@/lib/client/fetcher";
 import { PriorityBadge } from "@/components/alarms/priority";

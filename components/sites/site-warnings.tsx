@@ -1,7 +1,7 @@
 "use client";
 
 import useSWR from "swr";
-import type { AlarmDto } from "@/db/queries/alarms";
+import type { AlarmDto } from "@/lib/dto/alarms";
 import type { SiteSnapshot } from "@/lib/plant/snapshot";
 import { fetchJson } from "@/lib/client/fetcher";
 import type { UnitSystem } from "@/lib/units";

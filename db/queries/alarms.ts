@@ -3,60 +3,15 @@ import { and, asc, desc, eq, inArray, ne, sql } from "drizzle-orm";
 import type { Db } from "../client";
 import { alarmEvents, alarmNotes, alarms, siteRuleSettings, sites, users } from "../schema";
 import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
-import type { Condition } from "@/lib/rules/condition";
 import { siteScope } from "./sites";
 import type { Alarm, AlarmState, TransitionRecord } from "@/lib/alarms";
+import type { AlarmDetail, AlarmDto, AlarmNoteDto, AlarmWithHistoryDto } from "@/lib/dto/alarms";
+
+export type { AlarmDetail, AlarmDto };
 
 // Alarms as stored: one row per rule × equipment × site with its current ISA-18.2 state,
 // an append-only event history, and notes. Customers read their own sites' alarms and the
 // notes shared with them; nothing here lets them change anything.
-
-/** The latest condition's words and numbers, as of the evaluation at `atMs` (event time). */
-export type AlarmDetail = Pick<Condition, "technicianMessage" | "ownerMessage" | "advice" | "caution" | "numbers" | "related" | "atMs">;
-
-export interface AlarmDto {
-  id: string;
-  siteId: string;
-  siteName: string;
-  /** The site's IANA zone: alarm times read in site time wherever they are listed. */
-  siteTimeZone: string;
-  ruleId: string;
-  equipment: string;
-  priority: number;
-  state: AlarmState;
-  conditionActive: boolean;
-  activeSinceMs: number | null;
-  lastTransitionMs: number | null;
-  activations: number;
-  shelvedUntilMs: number | null;
-  shelveReason: string | null;
-  detail: AlarmDetail;
-}
-
-export interface AlarmEventDto {
-  id: number;
-  from: string;
-  to: string;
-  cause: string;
-  eventAtMs: number;
-  wallAtMs: number;
-  actor: string | null;
-  /** Event notes are the technicians' words; customers do not see them. */
-  note: string | null;
-}
-
-export interface AlarmNoteDto {
-  id: number;
-  author: string;
-  text: string;
-  visibility: "internal" | "customer";
-  createdAt: number;
-}
-
-export interface AlarmWithHistoryDto extends AlarmDto {
-  events: AlarmEventDto[];
-  notes: AlarmNoteDto[];
-}
 
 const dtoColumns = {
   id: alarms.id,

@@ -10,6 +10,7 @@ import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import type { WireUnitCode } from "@/lib/units";
 import type { LineError, PointMapLine } from "@/lib/point-map-csv";
 import { isOnline, silenceMs } from "@/lib/freshness";
+import type { GatewayCredentials, GatewayDto, PointMapEntryDto } from "@/lib/dto/gateways";
 
 // Gateways as the API sees them (viewer-scoped, DTOs only) and as the ingest side needs them
 // (system functions at the bottom, no viewer: the broker has no user). The password hash
@@ -18,43 +19,6 @@ import { isOnline, silenceMs } from "@/lib/freshness";
 /** bcrypt cost 10: paid once per MQTT CONNECT, not per message. */
 const GATEWAY_BCRYPT_COST = 10;
 const DUMMY_HASH = bcrypt.hashSync("not-a-gateway-password", GATEWAY_BCRYPT_COST);
-
-export interface GatewayDto {
-  id: string;
-  siteId: string;
-  name: string;
-  protocol: GatewayProtocol;
-  groupId: string | null;
-  edgeNodeId: string | null;
-  username: string;
-  createdAt: string;
-  passwordRotatedAt: string | null;
-  revokedAt: string | null;
-  /** Topics this gateway publishes on (JSON) or its Sparkplug B node topic. */
-  topics: { publish: string[]; subscribe: string[] };
-  status: {
-    state: GatewayState;
-    stateChangedAt: string | null;
-    online: boolean;
-    lastMessageAt: string | null;
-  };
-  counters: {
-    messages: number;
-    readingsAccepted: number;
-    readingsDuplicate: number;
-    rejected: Record<string, number>;
-    rejectedTotal: number;
-  };
-  unmapped: Array<{ point: string; count: number; lastSeenAt: string }>;
-  pointMapSize: number;
-}
-
-export interface GatewayCredentials {
-  gateway: GatewayDto;
-  username: string;
-  /** Shown once; only its bcrypt hash is stored. */
-  password: string;
-}
 
 export interface CreateGatewayInput {
   siteId: string;
@@ -236,14 +200,6 @@ export function revokeGateway(db: Db, viewer: Viewer, id: string): GatewayDto {
     db.update(gateways).set({ revokedAt: new Date(), state: "offline", stateChangedAt: new Date() }).where(eq(gateways.id, id)).run();
   }
   return toDtos(db, [db.select().from(gateways).where(eq(gateways.id, id)).get()!])[0];
-}
-
-export interface PointMapEntryDto {
-  gatewayPoint: string;
-  pointId: number;
-  equipmentTag: string;
-  quantity: string;
-  unit: string;
 }
 
 export function getPointMap(db: Db, viewer: Viewer, id: string): PointMapEntryDto[] {

@@ -3,13 +3,9 @@ import { and, asc, desc, eq, gt, inArray, isNull, lte } from "drizzle-orm";
 import type { Db } from "../client";
 import { ackLinks, alarmNotifications, alarms, mailMessages, onCallShifts, users } from "../schema";
 import type { Shift } from "@/lib/oncall/rota";
+import type { MailDto, ShiftDto } from "@/lib/dto/oncall";
 
 // The on-call rota, the e-mails sent for alarms, single-use acknowledge links and the mail sink.
-
-export interface ShiftDto extends Shift {
-  primaryName: string;
-  backupName: string | null;
-}
 
 export function listShifts(db: Db, fromMs: number): ShiftDto[] {
   const rows = db
@@ -119,15 +115,6 @@ export function consumeAckLink(db: Db, token: string, nowMs: number): AckLinkLoo
     .where(and(eq(ackLinks.id, hashLink(token)), isNull(ackLinks.usedAt), gt(ackLinks.expiresAt, nowMs)))
     .run();
   return used.changes === 1 ? peek : { ok: false, reason: "used" };
-}
-
-export interface MailDto {
-  id: number;
-  from: string;
-  to: string;
-  subject: string;
-  text: string;
-  receivedAt: number;
 }
 
 export function listMail(db: Db, limit = 100): MailDto[] {

@@ -8,40 +8,19 @@ import type { Viewer } from "@/lib/auth/viewer";
 import { notFound } from "@/lib/errors";
 import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
 import { displayUnit, formatValue, fromCanonical } from "@/lib/units";
-import { freshnessByGateway, isStale, siteStatuses, type MappedPoint, type SiteDataState, type SiteStatusRow } from "@/lib/freshness";
+import { freshnessByGateway, isStale, siteStatuses, type MappedPoint, type SiteStatusRow } from "@/lib/freshness";
 import { HOUR_MS, MINUTE_MS } from "@/lib/rollup-buckets";
+import type { LatestPointDto, SeriesDto, SiteLatestDto } from "@/lib/dto/readings";
+import { qualityNames } from "@/lib/quality";
 
 // Reading data for screens: trends (raw or 1-minute rollups, bucketed with min/max so spikes
 // stay visible) and the latest value of every point with its age. Viewer-scoped.
 
-const qualityNames = ["good", "uncertain", "bad"] as const;
 
 export interface SeriesQuery {
   fromMs: number;
   toMs: number;
   maxPoints: number;
-}
-
-export interface SeriesDto {
-  pointId: number;
-  quantity: string;
-  measure: Measure;
-  /** The unit `min`/`max`/`avg` are in (the viewer's IP or SI preference), rounded to 0.001 of it. */
-  unit: string;
-  unitSystem: "ip" | "si";
-  from: string;
-  to: string;
-  source: "raw" | "rollup_1m" | "rollup_1h";
-  /** Bucket width; null when every raw reading is returned as is. */
-  bucketMs: number | null;
-  /** Columnar: time[i] (ms since epoch, bucket start) goes with min[i], max[i], avg[i], count[i]. */
-  time: number[];
-  min: number[];
-  max: number[];
-  avg: number[];
-  count: number[];
-  /** State and text points: the raw values (newest maxPoints of the range). */
-  text?: string[];
 }
 
 interface PointInfo {
@@ -229,36 +208,6 @@ function columnar(
     avg: rows.map((r) => conv(r.avg)),
     count: rows.map((r) => r.count),
   };
-}
-
-export interface LatestPointDto {
-  pointId: number;
-  equipmentId: string;
-  equipmentTag: string;
-  key: string;
-  quantity: string;
-  measure: Measure;
-  /** Canonical SI unit of `value` (the same as `site:values` socket updates carry). */
-  unit: string;
-  value: number | boolean | string | null;
-  /** `value` formatted in the viewer's units, "—" when there is none. */
-  display: string;
-  ts: string | null;
-  tsMs: number | null;
-  ageS: number | null;
-  /** Older than 3× the point's expected interval, or never received. */
-  stale: boolean;
-  quality: "good" | "uncertain" | "bad" | null;
-  expectedIntervalS: number;
-  mapped: boolean;
-}
-
-export interface SiteLatestDto {
-  siteId: string;
-  at: string;
-  data: SiteDataState;
-  gateways: Array<{ id: string; name: string; protocol: string; online: boolean; lastMessageAt: string | null }>;
-  points: LatestPointDto[];
 }
 
 function liveValue(measure: Measure, value: number | null, text: string | null): number | boolean | string | null {

@@ -4,48 +4,12 @@ import { equipment, organizations, points, sites } from "../schema";
 import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
 import type { Site } from "@/lib/plant/site";
 import type { EquipmentKind } from "@/lib/quantities";
+import type { PointDto, SiteDetailDto, SiteSummaryDto } from "@/lib/dto/sites";
 
 // Authorization lives here, in the queries: a customer's viewer can only ever match its
 // own organization's rows, whatever the route or page above asks for.
 export function siteScope(viewer: Viewer): SQL | undefined {
   return seesAllSites(viewer) ? undefined : eq(sites.organizationId, viewer.organizationId);
-}
-
-export interface SiteSummaryDto {
-  id: string;
-  name: string;
-  kind: string;
-  address: string;
-  timeZone: string;
-  customer: { id: string; name: string };
-  equipmentCount: number;
-}
-
-export interface PointDto {
-  id: number;
-  key: string;
-  quantity: string;
-  unit: string;
-  brickClass: string;
-  expectedIntervalS: number;
-  lowLimit: number | null;
-  highLimit: number | null;
-}
-
-export interface EquipmentDto {
-  id: string;
-  tag: string;
-  name: string;
-  kind: string;
-  capacityTons: number | null;
-  designFlowLps: number | null;
-  refrigerant: string | null;
-  serves: string | null;
-  points: PointDto[];
-}
-
-export interface SiteDetailDto extends SiteSummaryDto {
-  equipment: EquipmentDto[];
 }
 
 const summaryColumns = {

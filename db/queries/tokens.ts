@@ -3,17 +3,9 @@ import { and, desc, eq, isNull } from "drizzle-orm";
 import type { Db } from "../client";
 import { apiTokens, users } from "../schema";
 import type { Viewer } from "@/lib/auth/viewer";
+import type { ApiTokenDto } from "@/lib/dto/tokens";
 
 export const TOKEN_PREFIX = "llt_";
-
-export interface ApiTokenDto {
-  id: string;
-  name: string;
-  prefix: string;
-  createdAt: string;
-  lastUsedAt: string | null;
-  revokedAt: string | null;
-}
 
 // Tokens carry 256 random bits, so a fast hash is enough: there is nothing to brute-force.
 export function hashToken(secret: string): string {

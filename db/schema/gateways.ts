@@ -1,5 +1,6 @@
 import { sql } from "drizzle-orm";
 import { index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+import { gatewayProtocols, gatewayStates, type GatewayProtocol, type GatewayState } from "../../lib/dto/gateways";
 import { points, sites } from "./core";
 
 // Site gateways, their point maps, and the readings they deliver.
@@ -11,11 +12,7 @@ const createdAt = () =>
     .notNull()
     .default(sql`(unixepoch('subsec') * 1000)`);
 
-export const gatewayProtocols = ["json", "sparkplug"] as const;
-export type GatewayProtocol = (typeof gatewayProtocols)[number];
-
-export const gatewayStates = ["unknown", "online", "offline"] as const;
-export type GatewayState = (typeof gatewayStates)[number];
+export { gatewayProtocols, gatewayStates, type GatewayProtocol, type GatewayState };
 
 export const gateways = sqliteTable(
   "gateways",

@@ -41,7 +41,3 @@ export const priorityMeanings: Record<Priority, PriorityMeaning> = {
     guideline36Level: 4,
   },
 };
-
-export function priorityLabel(p: Priority): string {
-  return priorityMeanings[p].label;
-}

@@ -4,7 +4,7 @@
 
 import { SITE_TAG, type Condition } from "./condition";
 import type { RuleContext } from "./context";
-import { fmtDuration } from "./format";
+import { formatDuration } from "@/lib/units";
 import { makeCondition } from "./make-condition";
 
 export function commLost(ctx: RuleContext): Condition[] {
@@ -41,7 +41,7 @@ export function commLost(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${e.tag}: no readings ${ageS === null ? "received" : `for ${fmtDuration(ageS)}`}; its values and warnings are out of date.`
+          ? `${e.tag}: no readings ${ageS === null ? "received" : `for ${formatDuration(ageS)}`}; its values and warnings are out of date.`
           : `${e.tag}: reporting.`,
         ownerMessage: active ? `We are not receiving data from ${e.tag}.` : `${e.tag} is reporting.`,
         advice: active ? ["Check the controller's connection to the gateway."] : [],

@@ -7,7 +7,8 @@ import type { ChillerSnapshot } from "@/lib/plant/snapshot";
 import type { TimeToCrossoverResult } from "@/lib/plant/crossover";
 import { QUALIFIED_CAUTION, type Condition } from "./condition";
 import { bool, chillerCalledFor, chillersOf, str, type RuleContext } from "./context";
-import { fmtDelta, fmtDuration, fmtRate } from "./format";
+import { formatDuration } from "@/lib/units";
+import { fmtDelta, fmtRate } from "./format";
 import { makeCondition } from "./make-condition";
 
 function chillerView(ctx: RuleContext, chiller: Equipment): ChillerSnapshot | undefined {
@@ -68,8 +69,8 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
     // Once raised, the risk stays up through the crossing itself; "loops crossed" then adds its alarm.
     const active = calledFor && (closingSoon || smallAndClosing || (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
     const n = crossoverNumbers(v);
-    const when = n.timeToCrossoverS !== null ? `in about ${fmtDuration(n.timeToCrossoverS)}` : "soon";
-    const band = t ? ` (fit band ${fmtDuration(t.earliestS)}–${Number.isFinite(t.latestS) ? fmtDuration(t.latestS) : "open"})` : "";
+    const when = n.timeToCrossoverS !== null ? `in about ${formatDuration(n.timeToCrossoverS)}` : "soon";
+    const band = t ? ` (fit band ${formatDuration(t.earliestS)}–${Number.isFinite(t.latestS) ? formatDuration(t.latestS) : "open"})` : "";
     return [
       makeCondition({
         ruleId: "crossover_risk",
@@ -110,8 +111,8 @@ export function restartRace(ctx: RuleContext): Condition[] {
     const active = off && chillerCalledFor(ctx, chiller) && ttcS !== null && (latched || ttcS < neededS + (was ? s.deadBandS : 0));
     const n = { ...crossoverNumbers(v), compressorLoadS: s.compressorLoadS, restartNeedsS: latched ? null : neededS, latchedAlarm: Number(latched) };
     const held = latched
-      ? `is off on a latched alarm${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} and will not restart until someone resets it (anti-recycle ${fmtDuration(lockoutS)} left)`
-      : `is off and locked out for ${fmtDuration(lockoutS)} more`;
+      ? `is off on a latched alarm${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} and will not restart until someone resets it (anti-recycle ${formatDuration(lockoutS)} left)`
+      : `is off and locked out for ${formatDuration(lockoutS)} more`;
     return [
       makeCondition({
         ruleId: "restart_race",
@@ -120,8 +121,8 @@ export function restartRace(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag} ${held}; the loops cross in about ${fmtDuration(ttcS!)}, before a restart could be on load (${fmtDuration(s.compressorLoadS)} to load after the start). The restart will come too late unless someone acts.`
-          : `${chiller.tag}: no restart race (${off ? "off" : "running"}, lockout ${fmtDuration(lockoutS)} left).`,
+          ? `${chiller.tag} ${held}; the loops cross in about ${formatDuration(ttcS!)}, before a restart could be on load (${formatDuration(s.compressorLoadS)} to load after the start). The restart will come too late unless someone acts.`
+          : `${chiller.tag}: no restart race (${off ? "off" : "running"}, lockout ${formatDuration(lockoutS)} left).`,
         ownerMessage: active
           ? "The chiller is waiting out its restart delay, and the plant may reach a state where it cannot restart before that delay ends. The on-call technician needs to act."
           : "No restart problem expected.",

@@ -4,7 +4,8 @@
 import { fitTrend, projectToValue } from "@/lib/plant/trend";
 import { QUALIFIED_CAUTION, type Condition } from "./condition";
 import { chillersOf, num, type RuleContext } from "./context";
-import { fmtDuration, fmtRate, fmtTemp } from "./format";
+import { formatDuration } from "@/lib/units";
+import { fmtRate, fmtTemp } from "./format";
 import { makeCondition } from "./make-condition";
 
 export function driveTempTowardTrip(ctx: RuleContext): Condition[] {
@@ -31,7 +32,7 @@ export function driveTempTowardTrip(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag}: drive at ${fmtTemp(tempC)}, trip ${fmtTemp(tripC)}${riseKPerMin !== null ? `, rising ${fmtRate(riseKPerMin)}` : ""}${toTrip ? `; trip in about ${fmtDuration(toTrip.timeS)}` : ""}.`
+          ? `${chiller.tag}: drive at ${fmtTemp(tempC)}, trip ${fmtTemp(tripC)}${riseKPerMin !== null ? `, rising ${fmtRate(riseKPerMin)}` : ""}${toTrip ? `; trip in about ${formatDuration(toTrip.timeS)}` : ""}.`
           : `${chiller.tag}: drive temperature ${fmtTemp(tempC)}.`,
         ownerMessage: active ? "The chiller's compressor drive is heating up and may shut the chiller down." : "Compressor drive temperature is normal.",
         advice: active ? ["Reduce compressor load.", "Check drive cooling: refrigerant or water cooling of the drive, and whether the loops are crossed."] : [],

@@ -1,4 +1,4 @@
-// Numbers as technicians read them: °F beside °C, minutes rather than seconds.
+// Numbers as technicians read them: °F beside °C, psig beside kPa.
 
 import { cToF, deltaKToDeltaF, kpaAbsToPsig } from "@/lib/plant/units";
 
@@ -7,10 +7,3 @@ export const fmtDelta = (k: number): string => `${k.toFixed(1)} K (${deltaKToDel
 /** A rate of temperature change, K/min with °F/min beside it. */
 export const fmtRate = (kPerMin: number): string => `${kPerMin.toFixed(2)} K/min (${deltaKToDeltaF(kPerMin).toFixed(2)} °F/min)`;
 export const fmtPressure = (kpa: number): string => `${kpa.toFixed(0)} kPa (${kpaAbsToPsig(kpa).toFixed(0)} psig)`;
-
-export function fmtDuration(s: number): string {
-  if (!Number.isFinite(s)) return "—";
-  if (s < 90) return `${Math.round(s)} s`;
-  if (s < 3 * 3600) return `${Math.round(s / 60)} min`;
-  return `${(s / 3600).toFixed(1)} h`;
-}

@@ -3,7 +3,8 @@
 import { fitTrend, projectToValue } from "@/lib/plant/trend";
 import type { Condition } from "./condition";
 import { bool, chillersOf, num, type RuleContext } from "./context";
-import { fmtDuration, fmtPressure } from "./format";
+import { formatDuration } from "@/lib/units";
+import { fmtPressure } from "./format";
 import { makeCondition } from "./make-condition";
 
 export function headPressureNearTrip(ctx: RuleContext): Condition[] {
@@ -29,7 +30,7 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}, ${(tripKPa - pKPa).toFixed(0)} kPa below the ${fmtPressure(tripKPa)} trip and rising ${riseKPaPerMin!.toFixed(1)} kPa/min${toTrip ? `; trip in about ${fmtDuration(toTrip.timeS)}` : ""}.`
+          ? `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}, ${(tripKPa - pKPa).toFixed(0)} kPa below the ${fmtPressure(tripKPa)} trip and rising ${riseKPaPerMin!.toFixed(1)} kPa/min${toTrip ? `; trip in about ${formatDuration(toTrip.timeS)}` : ""}.`
           : `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}.`,
         ownerMessage: active ? "The chiller is close to shutting itself down on high pressure." : "Chiller pressures are normal.",
         advice: active ? ["Check tower fans and condenser-water flow; restore heat rejection.", "Reduce chiller load if heat rejection cannot be restored quickly."] : [],

@@ -2,7 +2,7 @@ import { requireApiViewer } from "@/app/(auth)/auth";
 import { getDb } from "@/lib/server/runtime";
 import { listAlarms } from "@/db/queries/alarms";
 import { route } from "@/lib/server/http";
-import { alarmQuerySchema } from "./schema";
+import { alarmQuerySchema } from "@/lib/schemas/alarms";
 
 export const GET = route(async (request) => {
   const viewer = await requireApiViewer(request);

@@ -3,7 +3,7 @@ import { getDb } from "@/lib/server/runtime";
 import { listGateways } from "@/db/queries/gateways";
 import { provisionGateway } from "@/lib/server/gateways";
 import { readJson, route } from "@/lib/server/http";
-import { createGatewaySchema, listGatewaysQuery } from "./schema";
+import { createGatewaySchema, listGatewaysQuery } from "@/lib/schemas/gateways";
 
 export const dynamic = "force-dynamic";
 

@@ -4,7 +4,7 @@ import { createShift, listShifts, onCallCandidates } from "@/db/queries/oncall";
 import { AppError } from "@/lib/errors";
 import { readJson, route } from "@/lib/server/http";
 import { requireAdmin, requireStaff } from "@/lib/server/guards";
-import { shiftSchema } from "./schema";
+import { shiftSchema } from "@/lib/schemas/oncall";
 
 export const GET = route(async (request) => {
   const viewer = await requireApiViewer(request);

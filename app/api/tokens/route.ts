@@ -2,7 +2,7 @@ import { requireApiViewer } from "@/app/(auth)/auth";
 import { getDb } from "@/lib/server/runtime";
 import { createToken, listTokens } from "@/db/queries/tokens";
 import { readJson, route } from "@/lib/server/http";
-import { createTokenSchema } from "./schema";
+import { createTokenSchema } from "@/lib/schemas/tokens";
 
 export const GET = route(async (request) => {
   const viewer = await requireApiViewer(request);

@@ -3,6 +3,7 @@ import { listGatewayPresence } from "@/db/queries/gateways";
 import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
 import { freshnessByGateway, siteStatuses, type GatewayFreshness, type MappedPoint, type SiteStatusRow } from "@/lib/freshness";
 import type { CommittedRows } from "@/gateway/row-columns";
+import { qualityNames } from "@/lib/quality";
 import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "@/lib/realtime/events";
 import type { RealtimeServer } from "./server";
 
@@ -53,7 +54,6 @@ export interface LivePublisher {
   stop(): void;
 }
 
-const qualityNames = ["good", "uncertain", "bad"] as const;
 /** Longest stretch of a status round between two turns of the event loop. */
 const STATUS_SLICE_MS = 2;
 

@@ -2,7 +2,8 @@ import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { getDb } from "@/lib/server/runtime";
 import { isAdmin } from "@/lib/auth/viewer";
-import { formatDateTime, formatDuration } from "@/lib/client/format";
+import { formatDateTime } from "@/lib/client/format";
+import { formatDuration } from "@/lib/units";
 import { alarmHealthReport } from "@/lib/server/alarm-health";
 import { requirePageViewer } from "../../../(auth)/auth";
 

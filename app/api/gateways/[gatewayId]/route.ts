@@ -4,7 +4,7 @@ import { getGateway } from "@/db/queries/gateways";
 import { notFound } from "@/lib/errors";
 import { retireGateway } from "@/lib/server/gateways";
 import { route } from "@/lib/server/http";
-import { gatewayParams } from "../schema";
+import { gatewayParams } from "@/lib/schemas/gateways";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ gatewayId: string }> };

@@ -3,9 +3,12 @@ import { AppError, notFound } from "@/lib/errors";
 import { readJson, route } from "@/lib/server/http";
 import { requireAdmin } from "@/lib/server/guards";
 import { getRuntime } from "@/lib/server/runtime";
-import { startRunSchema } from "../schema";
+import { startRunSchemaFor } from "@/lib/schemas/simulator";
+import { scenarioNames } from "@/simulator/scenarios";
 
 type Ctx = { params: Promise<{ siteId: string }> };
+
+const startRunSchema = startRunSchemaFor(scenarioNames);
 
 function simulationFor(siteId: string) {
   const simulation = getRuntime()?.simulation;

@@ -4,7 +4,7 @@ import { addNote, findAlarmRef } from "@/db/queries/alarms";
 import { canAct } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
 import { readJson, route } from "@/lib/server/http";
-import { noteSchema } from "../../schema";
+import { noteSchema } from "@/lib/schemas/alarms";
 
 export const POST = route<{ params: Promise<{ alarmId: string }> }>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);

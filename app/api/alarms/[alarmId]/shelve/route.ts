@@ -1,7 +1,7 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
 import { readJson, route } from "@/lib/server/http";
 import { requireAlarmService } from "@/lib/server/runtime";
-import { shelveSchema } from "../../schema";
+import { shelveSchema } from "@/lib/schemas/alarms";
 
 export const POST = route<{ params: Promise<{ alarmId: string }> }>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);

@@ -1,7 +1,7 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
 import { route } from "@/lib/server/http";
 import { requireAlarmService } from "@/lib/server/runtime";
-import { unshelveSchema } from "../../schema";
+import { unshelveSchema } from "@/lib/schemas/alarms";
 
 export const POST = route<{ params: Promise<{ alarmId: string }> }>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);

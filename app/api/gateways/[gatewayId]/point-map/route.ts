@@ -5,7 +5,7 @@ import { MAX_POINT_MAP_BYTES } from "@/lib/point-map-csv";
 import { AppError } from "@/lib/errors";
 import { replaceGatewayPointMap } from "@/lib/server/gateways";
 import { route } from "@/lib/server/http";
-import { gatewayParams } from "../../schema";
+import { gatewayParams } from "@/lib/schemas/gateways";
 
 export const dynamic = "force-dynamic";
 type Ctx = { params: Promise<{ gatewayId: string }> };

@@ -2,7 +2,7 @@ import { requireApiViewer } from "@/app/(auth)/auth";
 import { getDb } from "@/lib/server/runtime";
 import { rotateGatewayCredentials } from "@/lib/server/gateways";
 import { route } from "@/lib/server/http";
-import { gatewayParams } from "../../schema";
+import { gatewayParams } from "@/lib/schemas/gateways";
 
 export const dynamic = "force-dynamic";
 

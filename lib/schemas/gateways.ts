@@ -1,7 +1,5 @@
 import { z } from "zod";
-
-// Kept free of server imports so a client form can use it too.
-const gatewayProtocols = ["json", "sparkplug"] as const;
+import { gatewayProtocols } from "@/lib/dto/gateways";
 
 // Request shapes for the gateway API; shared with the gateway page's form.
 const topicLevel = z.string().regex(/^[A-Za-z0-9._-]{1,64}$/, "letters, digits, dot, underscore or dash (at most 64)");
