@@ -1,3 +1,4 @@
+import "server-only";
 import { randomBytes } from "node:crypto";
 import bcrypt from "bcryptjs";
 import { and, asc, desc, eq, inArray, isNull, max, sql } from "drizzle-orm";

@@ -1,3 +1,4 @@
+import "server-only";
 import { createHash, randomBytes, randomUUID } from "node:crypto";
 import { and, asc, desc, eq, gt, inArray, isNull, lte } from "drizzle-orm";
 import type { Db } from "../client";

@@ -1,3 +1,4 @@
+import "server-only";
 import type Database from "better-sqlite3";
 import { and, asc, eq, gte, lt, sql } from "drizzle-orm";
 import type { Db } from "../client";

@@ -1,3 +1,4 @@
+import "server-only";
 import { and, eq, gte, inArray } from "drizzle-orm";
 import type { Db } from "../client";
 import { alarmEvents, alarms, equipment, latestValues, points, readings, readings1m } from "../schema";

@@ -1,3 +1,4 @@
+import "server-only";
 import { and, asc, count, eq, inArray, type SQL } from "drizzle-orm";
 import type { Db } from "../client";
 import { equipment, organizations, points, sites } from "../schema";

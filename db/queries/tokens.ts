@@ -1,3 +1,4 @@
+import "server-only";
 import { createHash, randomBytes, randomUUID } from "node:crypto";
 import { and, desc, eq, isNull } from "drizzle-orm";
 import type { Db } from "../client";
