@@ -41,7 +41,7 @@ export default tseslint.config(
     rules: {
       "no-restricted-imports": [
         "error",
-        { patterns: [{ regex: "^(@/|(\\.\\./)+)(app|db|gateway|simulator)(/|$)", message: "components/ import from lib/ and components/ only." }] },
+        { patterns: [{ regex: "^(@/|(\\.\\./)+)(app|db|gateway|simulator|lib/server)(/|$)", message: "components/ import from lib/ and components/ only, never the runtime in lib/server/." }] },
       ],
     },
   },

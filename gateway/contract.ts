@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { qualityNames, type Quality } from "@/lib/quality";
 import { MAX_POINT_NAME } from "@/lib/point-map-csv";
 
 // The Liftline JSON wire contract (gateway/PROTOCOL.md is its public description) and the
@@ -40,13 +41,13 @@ export const readingSchema = z.strictObject({
   point: z.string().min(1).max(MAX_POINT_NAME),
   value: z.union([z.number(), z.boolean(), z.string().max(MAX_TEXT_VALUE)]),
   ts: isoTime.optional(),
-  quality: z.enum(["good", "uncertain", "bad"]).optional(),
+  quality: z.enum(qualityNames).optional(),
 });
 export type WireReading = z.infer<typeof readingSchema>;
 
 // The same RegExp object zod tests `ts` against, so the fast path cannot drift from it.
 const isoPattern: RegExp | undefined = isoTime._zod.def.pattern;
-const qualityNameSet: ReadonlySet<unknown> = new Set(["good", "uncertain", "bad"]);
+const qualityNameSet: ReadonlySet<unknown> = new Set(qualityNames);
 
 const DAYS_IN_MONTH = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
 const digit = (s: string, i: number) => {
@@ -130,9 +131,8 @@ export const readingsMessageSchema = z.object({
 /** Retained payload of `liftline/{gatewayId}/status` (also the gateway's last will). */
 export const statusPayloadSchema = z.enum(["online", "offline"]);
 
-export const qualityCodes = { good: 0, uncertain: 1, bad: 2 } as const;
-export type Quality = keyof typeof qualityCodes;
-export const qualityNames: readonly Quality[] = ["good", "uncertain", "bad"];
+/** The code stored with a reading for each quality name (its index in lib/quality.ts). */
+export const qualityCodes = { good: 0, uncertain: 1, bad: 2 } as const satisfies Record<Quality, number>;
 
 export type GatewayTopic =
   | { kind: "json"; gatewayId: string; channel: "readings" | "status" | "commands" }

@@ -29,8 +29,7 @@ const keyOf = (siteId: string | null) => (siteId === null ? BOARD : `site:${site
 
 /**
  * The rooms one browser tab's socket is in, counted per panel: two panels on the same site
- * share the join, and the room is left only when the last of them goes. The contract has no
- * `board:leave`, so the board rooms are kept until the socket reconnects or the tab closes.
+ * share the join, and the room is left only when the last of them goes.
  */
 export function createSiteRooms(): SiteRooms {
   const subscribers = new Set<Subscriber>();
@@ -46,8 +45,9 @@ export function createSiteRooms(): SiteRooms {
     if (socket && !socket.active && counts.size > 0) socket.connect();
   };
   const leave = (siteId: string | null) => {
-    if (!socket?.connected || siteId === null) return;
-    socket.emit("site:leave", { siteId }, () => {});
+    if (!socket?.connected) return;
+    if (siteId === null) socket.emit("board:leave", () => {});
+    else socket.emit("site:leave", { siteId }, () => {});
   };
 
   return {

@@ -2,7 +2,7 @@
 
 import { useState } from "react";
 import useSWR from "swr";
-import type { SimulatedSiteStatus } from "@/lib/server/simulation/manager";
+import type { SimulatedSiteStatus } from "@/lib/dto/simulator";
 import { Button } from "@/components/ui/button";
 import { fetchJson } from "@/lib/client/fetcher";
 import { formatDateTime } from "@/lib/client/format";

@@ -10,6 +10,7 @@ import { fetchJson } from "@/lib/client/fetcher";
 import { isQuantityKey, quantities, type Measure } from "@/lib/quantities";
 import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
+import { isStale } from "@/lib/freshness";
 
 type Live = Record<number, { value: number | boolean | string | null; tsMs: number | null; quality: string | null }>;
 
@@ -75,7 +76,7 @@ export function LivePoints({ siteId, equipment, unitSystem }: { siteId: string; 
                   const pushed = live[p.id];
                   const tsMs = pushed?.tsMs ?? latest?.tsMs ?? null;
                   const value = pushed ? pushed.value : (latest?.value ?? null);
-                  const stale = tsMs === null || nowMs - tsMs > 3 * p.expectedIntervalS * 1000 || status === "offline";
+                  const stale = tsMs === null || isStale(tsMs, p.expectedIntervalS, nowMs) || status === "offline";
                   return (
                     <tr key={p.id} className="border-t border-line/60 first:border-t-0" data-testid="point-row" data-point={p.key} data-equipment={e.tag}>
                       <th scope="row" className="px-4 py-1.5 text-left font-normal">

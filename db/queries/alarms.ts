@@ -8,8 +8,6 @@ import { siteScope } from "./sites";
 import type { Alarm, AlarmState, TransitionRecord } from "@/lib/alarms";
 import type { AlarmDetail, AlarmDto, AlarmNoteDto, AlarmWithHistoryDto } from "@/lib/dto/alarms";
 
-export type { AlarmDetail, AlarmDto };
-
 // Alarms as stored: one row per rule × equipment × site with its current ISA-18.2 state,
 // an append-only event history, and notes. Customers read their own sites' alarms and the
 // notes shared with them; nothing here lets them change anything.

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import type { SiteDataState } from "@/lib/freshness";
 
 // The one socket.io contract, imported by the server (lib/server/realtime/server.ts) and the
 // browser (components/realtime). Event names are `entity:verb`; acks are { data } | { error }.
@@ -17,7 +18,7 @@ export interface SiteValues {
 /** One site's status as the board shows it. */
 export interface SiteStatus {
   siteId: string;
-  data: "live" | "stale" | "no_gateway" | "offline";
+  data: SiteDataState;
   /** `title` is for technicians; `ownerTitle` says the same in plain words for building owners. */
   worst: { priority: number; ruleId: string; equipment: string; title: string; ownerTitle: string; active: boolean } | null;
   unacknowledged: number;
@@ -33,6 +34,7 @@ export interface ClientToServerEvents {
   "site:leave": (payload: JoinSite, ack: (res: Ack<{ siteId: string }>) => void) => void;
   /** Status of every site the viewer may see (no values). */
   "board:join": (ack: (res: Ack<{ siteIds: string[] }>) => void) => void;
+  "board:leave": (ack: (res: Ack<{ siteIds: string[] }>) => void) => void;
 }
 
 /** A site page's room: `site:values` and `site:status`. */

@@ -47,10 +47,12 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     const own = await socket.emitWithAck("site:join", { siteId: "harborview-mob" });
     const other = await socket.emitWithAck("site:join", { siteId: "quarry-ridge-dh2" });
     const board = await socket.emitWithAck("board:join");
+    const left = await socket.emitWithAck("board:leave");
     socket.disconnect();
     expect(own).toEqual({ data: { siteId: "harborview-mob" } });
     expect(other).toEqual({ error: { code: "not_found", message: "No such site." } });
     expect(board).toEqual({ data: { siteIds: ["harborview-mob"] } });
+    expect(left).toEqual({ data: { siteIds: ["harborview-mob"] } });
   });
 
   it("a board socket is sent site status but not every reading; a site page's socket gets the readings", async () => {

@@ -1,5 +1,6 @@
 import type { Db } from "@/db/client";
-import { findAlarmRef, getRuleOverrides, loadAlarmMachines, saveAlarmChanges, type AlarmDetail } from "@/db/queries/alarms";
+import { findAlarmRef, getRuleOverrides, loadAlarmMachines, saveAlarmChanges } from "@/db/queries/alarms";
+import type { AlarmDetail } from "@/lib/dto/alarms";
 import { siteEquipment, siteTimeZone } from "@/db/queries/sites";
 import { commandAlarm, type Alarm, type AlarmBook, type AlarmEvent, type TransitionRecord } from "@/lib/alarms";
 import { canAct, type Viewer } from "@/lib/auth/viewer";

@@ -1,5 +1,6 @@
 import type { Db } from "@/db/client";
-import { alarmSummaryBySite, type AlarmDto } from "@/db/queries/alarms";
+import { alarmSummaryBySite } from "@/db/queries/alarms";
+import type { AlarmDto } from "@/lib/dto/alarms";
 import type { Viewer } from "@/lib/auth/viewer";
 import type { SiteStatus } from "@/lib/realtime/events";
 import { getRuntime } from "../runtime";

@@ -70,6 +70,11 @@ export function createRealtimeServer(httpServer: HttpServer, deps: { db: Db; sec
       void socket.join(siteIds.map(boardRoom));
       if (typeof ack === "function") ack({ data: { siteIds } });
     });
+    socket.on("board:leave", (ack) => {
+      const rooms = [...socket.rooms].filter((r) => r.startsWith(boardRoom("")));
+      for (const room of rooms) void socket.leave(room);
+      if (typeof ack === "function") ack({ data: { siteIds: rooms.map((r) => r.slice(boardRoom("").length)) } });
+    });
   });
 
   return io;

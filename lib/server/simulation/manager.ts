@@ -7,7 +7,8 @@ import { hourRebuilder } from "@/gateway/rollups";
 import { systemViewer } from "@/lib/auth/viewer";
 import { parsePointMapCsv } from "@/lib/point-map-csv";
 import { getLayout, getScenario, pointMapCsv } from "@/simulator/index";
-import { startSimulatedGateway, type SimulatedGateway, type SimulatedGatewayStatus } from "@/simulator/gateway-client";
+import { startSimulatedGateway, type SimulatedGateway } from "@/simulator/gateway-client";
+import type { SimulatedSiteStatus } from "@/lib/dto/simulator";
 
 // Demo mode's simulated plants: each demo site gets its own provisioned gateway, and a
 // simulator publishes through it over MQTT exactly like a real gateway box would.
@@ -27,14 +28,6 @@ export const DEFAULT_RUNS: Record<string, { scenario: string; speed: number; lea
 
 // Provisioning is an admin act; the server does it for the demo as the service company.
 const systemAdmin = systemViewer(SERVICE_ORG.id);
-
-export interface SimulatedSiteStatus {
-  siteId: string;
-  siteName: string;
-  layout: string;
-  gatewayId: string;
-  run: (SimulatedGatewayStatus & { speed: number; startedAt: number }) | null;
-}
 
 export interface SimulationManager {
   list(): SimulatedSiteStatus[];

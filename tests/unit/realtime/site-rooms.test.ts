@@ -122,6 +122,19 @@ describe("one socket per tab, rooms counted per panel", () => {
     expect(board.seen).toEqual({ status: ["a", "b"], values: [], reconnects: 0 });
   });
 
+  it("the board's rooms are left when the last board panel goes", () => {
+    const rooms = createSiteRooms();
+    const io = fakeSocket();
+    rooms.attach(io.socket);
+    io.connect();
+    const first = rooms.subscribe("board", panel().handlers);
+    const second = rooms.subscribe("board", panel().handlers);
+    first();
+    expect(io.sent).toEqual(["board:join"]);
+    second();
+    expect(io.sent).toEqual(["board:join", "board:leave"]);
+  });
+
   it("on reconnect every room still wanted is joined again and every panel refetches; a released one does neither", () => {
     const rooms = createSiteRooms();
     const io = fakeSocket();
