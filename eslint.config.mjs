@@ -3,7 +3,17 @@ import reactHooks from "eslint-plugin-react-hooks";
 import tseslint from "typescript-eslint";
 
 export default tseslint.config(
-  { ignores: [".next/**", ".next-test/**", "node_modules/**", "data/**", "test-results/**", "db/migrations/**", "next-env.d.ts"] },
+  {
+    ignores: [
+      ".next/**",
+      ".next-test/**",
+      "node_modules/**",
+      "data/**",
+      "test-results/**",
+      "db/migrations/**",
+      "next-env.d.ts",
+    ],
+  },
   js.configs.recommended,
   { files: ["**/*.mjs"], languageOptions: { globals: { process: "readonly", console: "readonly" } } },
   ...tseslint.configs.recommended,
@@ -14,7 +24,10 @@ export default tseslint.config(
       ...reactHooks.configs.recommended.rules,
       // Only relevant to the React Compiler, which this project does not use (TanStack Table trips it).
       "react-hooks/incompatible-library": "off",
-      "@typescript-eslint/no-unused-vars": ["error", { argsIgnorePattern: "^_", varsIgnorePattern: "^_", destructuredArrayIgnorePattern: "^_" }],
+      "@typescript-eslint/no-unused-vars": [
+        "error",
+        { argsIgnorePattern: "^_", varsIgnorePattern: "^_", destructuredArrayIgnorePattern: "^_" },
+      ],
     },
   },
   // lib/ is the pure domain: no database, gateway, simulator, app or Node I/O. The runtime that
@@ -27,8 +40,14 @@ export default tseslint.config(
         "error",
         {
           patterns: [
-            { regex: "^(@/|(\\.\\./)+)(db|gateway|simulator|app|components)(/|$)", message: "lib/ outside lib/server/ is pure: no db, gateway, simulator, app or components imports." },
-            { regex: "^(@/|(\\.\\./)+)?lib/server(/|$)|^\\.\\./server(/|$)", message: "The pure domain does not reach into the runtime (lib/server)." },
+            {
+              regex: "^(@/|(\\.\\./)+)(db|gateway|simulator|app|components)(/|$)",
+              message: "lib/ outside lib/server/ is pure: no db, gateway, simulator, app or components imports.",
+            },
+            {
+              regex: "^(@/|(\\.\\./)+)?lib/server(/|$)|^\\.\\./server(/|$)",
+              message: "The pure domain does not reach into the runtime (lib/server).",
+            },
             { regex: "^node:", message: "lib/ outside lib/server/ does no I/O: no node: modules." },
           ],
         },
@@ -41,7 +60,14 @@ export default tseslint.config(
     rules: {
       "no-restricted-imports": [
         "error",
-        { patterns: [{ regex: "^(@/|(\\.\\./)+)(app|db|gateway|simulator|lib/server)(/|$)", message: "components/ import from lib/ and components/ only, never the runtime in lib/server/." }] },
+        {
+          patterns: [
+            {
+              regex: "^(@/|(\\.\\./)+)(app|db|gateway|simulator|lib/server)(/|$)",
+              message: "components/ import from lib/ and components/ only, never the runtime in lib/server/.",
+            },
+          ],
+        },
       ],
     },
   },

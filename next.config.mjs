@@ -6,7 +6,15 @@ const nextConfig = {
   distDir: process.env.LIFTLINE_DIST_DIR || ".next",
   poweredByHeader: false,
   // Native and Node-only packages stay out of the bundles and load from node_modules.
-  serverExternalPackages: ["better-sqlite3", "aedes", "mqtt", "bcryptjs", "nodemailer", "smtp-server", "sparkplug-payload"],
+  serverExternalPackages: [
+    "better-sqlite3",
+    "aedes",
+    "mqtt",
+    "bcryptjs",
+    "nodemailer",
+    "smtp-server",
+    "sparkplug-payload",
+  ],
   // `npm test` type-checks the whole project with tsc; the build need not do it twice. Tests
   // running development servers point Next at a tsconfig of their own (tests/helpers/server.ts).
   typescript: { ignoreBuildErrors: true, tsconfigPath: process.env.LIFTLINE_TSCONFIG || "tsconfig.json" },

@@ -3,7 +3,12 @@ import { defineConfig } from "vitest/config";
 
 export default defineConfig({
   // Tests are a server: `import "server-only"` resolves to its empty module, as under Next.
-  resolve: { alias: { "@": path.resolve(import.meta.dirname), "server-only": path.resolve(import.meta.dirname, "node_modules/server-only/empty.js") } },
+  resolve: {
+    alias: {
+      "@": path.resolve(import.meta.dirname),
+      "server-only": path.resolve(import.meta.dirname, "node_modules/server-only/empty.js"),
+    },
+  },
   test: {
     include: ["tests/**/*.test.ts"],
     environment: "node",

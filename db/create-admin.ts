@@ -19,7 +19,9 @@ const argsSchema = z.object({
 });
 
 async function main() {
-  const { values } = parseArgs({ options: { email: { type: "string" }, name: { type: "string" }, organization: { type: "string" } } });
+  const { values } = parseArgs({
+    options: { email: { type: "string" }, name: { type: "string" }, organization: { type: "string" } },
+  });
   let password = process.env.LIFTLINE_ADMIN_PASSWORD;
   if (!password) {
     const rl = createInterface({ input: process.stdin, output: process.stdout });

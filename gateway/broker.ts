@@ -7,10 +7,20 @@ import { Aedes, type AuthenticateError, type Client, type PublishPacket } from "
 /** Who a connected client is, decided once at CONNECT. */
 export type ClientIdentity =
   | { kind: "internal" }
-  | { kind: "gateway"; gatewayId: string; siteId: string; protocol: "json" | "sparkplug"; groupId: string | null; edgeNodeId: string | null };
+  | {
+      kind: "gateway";
+      gatewayId: string;
+      siteId: string;
+      protocol: "json" | "sparkplug";
+      groupId: string | null;
+      edgeNodeId: string | null;
+    };
 
 export interface BrokerAuth {
-  authenticate(username: string | undefined, password: string | undefined): Promise<ClientIdentity | "bad_credentials" | "not_authorized">;
+  authenticate(
+    username: string | undefined,
+    password: string | undefined,
+  ): Promise<ClientIdentity | "bad_credentials" | "not_authorized">;
   canPublish(identity: ClientIdentity, topic: string): boolean;
   canSubscribe(identity: ClientIdentity, topic: string): boolean;
 }
@@ -126,7 +136,10 @@ export async function startEmbeddedBroker(opts: EmbeddedBrokerOptions): Promise<
     connectedClients: () => aedes.connectedClients,
     publish(topic, payload, o) {
       return new Promise<void>((resolve, reject) => {
-        aedes.publish({ cmd: "publish", topic, payload, qos: o?.qos ?? 0, retain: o?.retain ?? false, dup: false }, (err) => (err ? reject(err) : resolve()));
+        aedes.publish(
+          { cmd: "publish", topic, payload, qos: o?.qos ?? 0, retain: o?.retain ?? false, dup: false },
+          (err) => (err ? reject(err) : resolve()),
+        );
       });
     },
     disconnectGateway(gatewayId) {

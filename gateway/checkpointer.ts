@@ -5,7 +5,11 @@ import { Worker } from "node:worker_threads";
 // checkpoint, which runs inside a commit and blocks the event loop, is only a safety net
 // (db/client.ts).
 
-export function startCheckpointer(file: string, everyMs: number, log: (line: string) => void): { stop(): Promise<void> } {
+export function startCheckpointer(
+  file: string,
+  everyMs: number,
+  log: (line: string) => void,
+): { stop(): Promise<void> } {
   const worker = new Worker(new URL("./checkpoint-worker.mjs", import.meta.url), { workerData: { file, everyMs } });
   worker.unref();
   worker.on("error", (err) => log(`[ingest] background checkpoint stopped: ${String(err)}`));

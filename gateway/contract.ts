@@ -62,7 +62,17 @@ const num2 = (s: string, i: number) => digit(s, i) * 10 + digit(s, i + 1);
  * NaN when `ts` is not exactly that form of a real UTC date and time.
  */
 export function canonicalIsoMs(ts: string): number {
-  if (ts.length !== 24 || ts[4] !== "-" || ts[7] !== "-" || ts[10] !== "T" || ts[13] !== ":" || ts[16] !== ":" || ts[19] !== "." || ts[23] !== "Z") return NaN;
+  if (
+    ts.length !== 24 ||
+    ts[4] !== "-" ||
+    ts[7] !== "-" ||
+    ts[10] !== "T" ||
+    ts[13] !== ":" ||
+    ts[16] !== ":" ||
+    ts[19] !== "." ||
+    ts[23] !== "Z"
+  )
+    return NaN;
   const year = num2(ts, 0) * 100 + num2(ts, 2);
   const month = num2(ts, 5);
   const day = num2(ts, 8);
@@ -140,7 +150,16 @@ export type GatewayTopic =
   | { kind: "other" };
 
 /** Sparkplug B 3.0 §4.2 (message types an edge node publishes, plus the commands it receives). */
-export const sparkplugMessageTypes = ["NBIRTH", "NDEATH", "DBIRTH", "DDEATH", "NDATA", "DDATA", "NCMD", "DCMD"] as const;
+export const sparkplugMessageTypes = [
+  "NBIRTH",
+  "NDEATH",
+  "DBIRTH",
+  "DDEATH",
+  "NDATA",
+  "DDATA",
+  "NCMD",
+  "DCMD",
+] as const;
 export type SparkplugMessageType = (typeof sparkplugMessageTypes)[number];
 
 const idLevel = /^[A-Za-z0-9._-]{1,64}$/;
@@ -149,7 +168,8 @@ export function parseTopic(topic: string): GatewayTopic {
   const parts = topic.split("/");
   if (parts[0] === TOPIC_ROOT && parts.length === 3 && idLevel.test(parts[1])) {
     const channel = parts[2];
-    if (channel === "readings" || channel === "status" || channel === "commands") return { kind: "json", gatewayId: parts[1], channel };
+    if (channel === "readings" || channel === "status" || channel === "commands")
+      return { kind: "json", gatewayId: parts[1], channel };
   }
   // Sparkplug B 3.0 §4.1.1: namespace/group_id/message_type/edge_node_id[/device_id]
   if (parts[0] === SPARKPLUG_NAMESPACE && (parts.length === 4 || parts.length === 5)) {

@@ -95,10 +95,16 @@ export async function connectExternalBroker(opts: ExternalBrokerOptions): Promis
     client,
     connected: () => client.connected,
     publish: (topic, payload, o) =>
-      new Promise<void>((resolve, reject) => client.publish(topic, payload, { qos: o?.qos ?? 0, retain: o?.retain ?? false }, (err) => (err ? reject(err) : resolve()))),
+      new Promise<void>((resolve, reject) =>
+        client.publish(topic, payload, { qos: o?.qos ?? 0, retain: o?.retain ?? false }, (err) =>
+          err ? reject(err) : resolve(),
+        ),
+      ),
     close: () =>
       new Promise<void>((resolve) => {
-        client.publish(stateTopic, encodeStatePayload(false, Date.now()), { qos: 1, retain: true }, () => client.end(false, {}, () => resolve()));
+        client.publish(stateTopic, encodeStatePayload(false, Date.now()), { qos: 1, retain: true }, () =>
+          client.end(false, {}, () => resolve()),
+        );
       }),
   };
 }

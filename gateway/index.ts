@@ -19,7 +19,17 @@ import { createBatchWriter, type BatchWriter } from "./writer";
 
 export type GatewaySettings = Pick<
   Config,
-  "HOST" | "MQTT_PORT" | "MQTT_URL" | "MQTT_CLIENT_ID" | "MQTT_USERNAME" | "MQTT_PASSWORD" | "INGEST_FLUSH_MS" | "INGEST_MAX_BATCH_ROWS" | "GATEWAY_MAX_MSGS_PER_S" | "RAW_RETENTION_DAYS" | "ROLLUP_RETENTION_DAYS"
+  | "HOST"
+  | "MQTT_PORT"
+  | "MQTT_URL"
+  | "MQTT_CLIENT_ID"
+  | "MQTT_USERNAME"
+  | "MQTT_PASSWORD"
+  | "INGEST_FLUSH_MS"
+  | "INGEST_MAX_BATCH_ROWS"
+  | "GATEWAY_MAX_MSGS_PER_S"
+  | "RAW_RETENTION_DAYS"
+  | "ROLLUP_RETENTION_DAYS"
 >;
 
 export interface GatewaySideOptions {
@@ -114,7 +124,13 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
       port: config.MQTT_PORT,
       auth: createGatewayAuth({ db, internal }),
       onPublish: (identity, packet) =>
-        identity.kind !== "gateway" ? Promise.resolve() : ingest.handle(identity.gatewayId, packet.topic, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload)),
+        identity.kind !== "gateway"
+          ? Promise.resolve()
+          : ingest.handle(
+              identity.gatewayId,
+              packet.topic,
+              Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload),
+            ),
       onRefusedPublish: (identity, topic) => {
         if (identity.kind === "gateway") {
           log(`[mqtt] ${identity.gatewayId} may not publish on ${topic}; disconnecting`);
@@ -141,14 +157,15 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     await embedded.publish(stateTopic, encodeStatePayload(true, clock.now()), { qos: 1, retain: true });
   }
 
-
   return {
     mode: external ? "external" : "embedded",
     mqttPort: embedded?.port ?? null,
     ingest,
     writer,
-    status: () => (embedded ? { up: true, clients: embedded.connectedClients() } : { up: ext?.connected() ?? false, clients: 0 }),
-    sendGatewayCommand: (gatewayId, payload) => sendCommand(jsonTopics.commands(gatewayId), Buffer.from(JSON.stringify(payload))),
+    status: () =>
+      embedded ? { up: true, clients: embedded.connectedClients() } : { up: ext?.connected() ?? false, clients: 0 },
+    sendGatewayCommand: (gatewayId, payload) =>
+      sendCommand(jsonTopics.commands(gatewayId), Buffer.from(JSON.stringify(payload))),
     gatewayChanged(gatewayId, change) {
       registry.invalidate(gatewayId);
       if (change !== "credentials") opts.onMappingChanged?.();

@@ -14,8 +14,12 @@ export interface IngestState {
 
 export function ingestState(sqlite: Database.Database): IngestState {
   const read = sqlite.prepare("select value from ingest_state where key = ?").pluck();
-  const write = sqlite.prepare("insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = excluded.value");
-  const raise = sqlite.prepare("insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = max(value, excluded.value)");
+  const write = sqlite.prepare(
+    "insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = excluded.value",
+  );
+  const raise = sqlite.prepare(
+    "insert into ingest_state (key, value) values (?, ?) on conflict (key) do update set value = max(value, excluded.value)",
+  );
   return {
     get: (key) => read.get(key) as number | undefined,
     set: (key, value) => void write.run(key, value),

@@ -51,7 +51,16 @@ export class RateLimitedError extends Error {
   }
 }
 
-const numericMeasures = new Set(["temperature", "pressure", "differential_pressure", "flow", "power", "percent", "frequency", "duration"]);
+const numericMeasures = new Set([
+  "temperature",
+  "pressure",
+  "differential_pressure",
+  "flow",
+  "power",
+  "percent",
+  "frequency",
+  "duration",
+]);
 
 /** A value checked against the point it maps to, in canonical units; or why not. */
 export function toRow(point: IngestPoint, value: unknown, ts: number, quality: 0 | 1 | 2): RowIn | "wrong_type" {
@@ -104,7 +113,15 @@ export function createIngest(deps: IngestDeps): Ingest {
   }
 
   /** Shared by both protocols: name → point → checked row, one reading at a time (no intermediate arrays). */
-  function mapValue(gw: IngestGateway, name: string, value: unknown, tsMs: number, quality: 0 | 1 | 2, now: number, batch: Batch) {
+  function mapValue(
+    gw: IngestGateway,
+    name: string,
+    value: unknown,
+    tsMs: number,
+    quality: 0 | 1 | 2,
+    now: number,
+    batch: Batch,
+  ) {
     const point = gw.map.get(name);
     if (!point) {
       bump(batch, "unmapped_point");
@@ -123,7 +140,12 @@ export function createIngest(deps: IngestDeps): Ingest {
 
   const submit = (batch: Batch): Promise<unknown> => deps.writer.submit(batch);
 
-  function handleJson(gw: IngestGateway, channel: "readings" | "status" | "commands", payload: Buffer, now: number): Promise<unknown> {
+  function handleJson(
+    gw: IngestGateway,
+    channel: "readings" | "status" | "commands",
+    payload: Buffer,
+    now: number,
+  ): Promise<unknown> {
     if (channel === "status") {
       const state = statusPayloadSchema.safeParse(payload.toString("utf8").trim());
       if (!state.success) return submit(counterOnly(gw.gatewayId, "invalid_message", now));
@@ -156,7 +178,15 @@ export function createIngest(deps: IngestDeps): Ingest {
         r = parsed.data;
         tsMs = r.ts !== undefined ? Date.parse(r.ts) : NaN;
       }
-      mapValue(gw, r.point, r.value, r.ts !== undefined ? tsMs : sentAt, r.quality === undefined ? 0 : qualityCodes[r.quality], now, batch);
+      mapValue(
+        gw,
+        r.point,
+        r.value,
+        r.ts !== undefined ? tsMs : sentAt,
+        r.quality === undefined ? 0 : qualityCodes[r.quality],
+        now,
+        batch,
+      );
     }
     return submit(batch);
   }
@@ -170,11 +200,23 @@ export function createIngest(deps: IngestDeps): Ingest {
     }
     if (payload.length > MAX_PAYLOAD_BYTES) return submit(counterOnly(gw.gatewayId, "too_large", now));
     const t = parseTopic(topic);
-    if (t.kind === "json" && gw.protocol === "json" && t.gatewayId === gw.gatewayId) return handleJson(gw, t.channel, payload, now);
-    if (t.kind === "sparkplug" && gw.protocol === "sparkplug" && t.groupId === gw.groupId && t.edgeNodeId === gw.edgeNodeId) {
+    if (t.kind === "json" && gw.protocol === "json" && t.gatewayId === gw.gatewayId)
+      return handleJson(gw, t.channel, payload, now);
+    if (
+      t.kind === "sparkplug" &&
+      gw.protocol === "sparkplug" &&
+      t.groupId === gw.groupId &&
+      t.edgeNodeId === gw.edgeNodeId
+    ) {
       const out = deps.sparkplug.handle(gw.gatewayId, t, payload, now);
       if (out.presence) deps.onPresence?.(gw, out.presence, now);
-      const batch: Batch = { gatewayId: gw.gatewayId, rows: [], messages: 1, rejections: { ...out.rejections }, receivedAtMs: now };
+      const batch: Batch = {
+        gatewayId: gw.gatewayId,
+        rows: [],
+        messages: 1,
+        rejections: { ...out.rejections },
+        receivedAtMs: now,
+      };
       for (const v of out.values) mapValue(gw, v.name, v.value, Number.isFinite(v.tsMs) ? v.tsMs : now, 0, now, batch);
       return submit(batch);
     }
@@ -201,7 +243,12 @@ export function createIngest(deps: IngestDeps): Ingest {
     handleByTopic(topic, payload) {
       return settled(() => {
         const t = parseTopic(topic);
-        const gw = t.kind === "json" ? deps.registry.get(t.gatewayId) : t.kind === "sparkplug" ? deps.registry.bySparkplug(t.groupId, t.edgeNodeId) : null;
+        const gw =
+          t.kind === "json"
+            ? deps.registry.get(t.gatewayId)
+            : t.kind === "sparkplug"
+              ? deps.registry.bySparkplug(t.groupId, t.edgeNodeId)
+              : null;
         if (!gw || gw.revoked) {
           // Nobody to count it against; acknowledged so the broker does not resend it forever.
           log(`[ingest] message on ${topic} belongs to no active gateway; dropped`);
@@ -211,7 +258,9 @@ export function createIngest(deps: IngestDeps): Ingest {
       });
     },
     refused(gatewayId, reason) {
-      deps.writer.submit(counterOnly(gatewayId, reason, deps.clock.now())).catch((err) => log(`[ingest] could not count a refusal: ${String(err)}`));
+      deps.writer
+        .submit(counterOnly(gatewayId, reason, deps.clock.now()))
+        .catch((err) => log(`[ingest] could not count a refusal: ${String(err)}`));
     },
   };
 }

@@ -81,7 +81,8 @@ export function startPruner(opts: PrunerOptions): Pruner {
       }
     }
     if (rollupsDue) rollupsPrunedAt = now;
-    if (totals.readings || totals.rollups) opts.log?.(`[prune] removed ${totals.readings} raw readings and ${totals.rollups} rollups past retention`);
+    if (totals.readings || totals.rollups)
+      opts.log?.(`[prune] removed ${totals.readings} raw readings and ${totals.rollups} rollups past retention`);
     return totals;
   }
 

@@ -110,7 +110,16 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
 
   const upsertMinute = sqlite.prepare(upsertSql("readings_1m"));
   const upsertHour = sqlite.prepare(upsertSql("readings_1h"));
-  const upsert = (pointId: number, bucket: number, min: number, max: number, sum: number, count: number, last: number, lastTs: number) => {
+  const upsert = (
+    pointId: number,
+    bucket: number,
+    min: number,
+    max: number,
+    sum: number,
+    count: number,
+    last: number,
+    lastTs: number,
+  ) => {
     upsertMinute.run(pointId, bucket, min, max, sum, count, last, lastTs);
     upsertHour.run(pointId, hourOf(bucket), min, max, sum, count, last, lastTs);
   };
@@ -150,7 +159,9 @@ export function createRollupBook(sqlite: Database.Database, opts: { graceMs: num
     const from = sealedBefore;
     const drop = sqlite.prepare("delete from readings_1m where point_id = ? and bucket >= ?");
     const rebuildHours = hourRebuilder(sqlite);
-    const raw = sqlite.prepare("select ts, value from readings where point_id = ? and ts >= ? and value is not null order by ts");
+    const raw = sqlite.prepare(
+      "select ts, value from readings where point_id = ? and ts >= ? and value is not null order by ts",
+    );
     let replayed = 0;
     sqlite.transaction(() => {
       for (const id of pointIds) {

@@ -38,14 +38,20 @@ interface NodeSession {
 }
 
 export interface SparkplugHost {
-  handle(gatewayId: string, t: { groupId: string; messageType: SparkplugMessageType; edgeNodeId: string; deviceId?: string }, payload: Buffer, nowMs: number): SparkplugOutcome;
+  handle(
+    gatewayId: string,
+    t: { groupId: string; messageType: SparkplugMessageType; edgeNodeId: string; deviceId?: string },
+    payload: Buffer,
+    nowMs: number,
+  ): SparkplugOutcome;
   forget(gatewayId: string): void;
 }
 
 function toNumber(v: unknown): number | undefined {
   if (typeof v === "number") return v;
   if (typeof v === "bigint") return Number(v);
-  if (v && typeof v === "object" && "toNumber" in v && typeof (v as { toNumber: unknown }).toNumber === "function") return (v as { toNumber(): number }).toNumber();
+  if (v && typeof v === "object" && "toNumber" in v && typeof (v as { toNumber: unknown }).toNumber === "function")
+    return (v as { toNumber(): number }).toNumber();
   return undefined;
 }
 
@@ -57,7 +63,9 @@ function metricValue(m: Metric): unknown {
 
 export function encodeRebirthRequest(nowMs: number): Buffer {
   // Sparkplug B 3.0 §6.4.16: NCMD with the Boolean metric "Node Control/Rebirth" = true
-  return Buffer.from(codec.encodePayload({ timestamp: nowMs, metrics: [{ name: REBIRTH_METRIC, type: "Boolean", value: true }] }));
+  return Buffer.from(
+    codec.encodePayload({ timestamp: nowMs, metrics: [{ name: REBIRTH_METRIC, type: "Boolean", value: true }] }),
+  );
 }
 
 export function encodeStatePayload(online: boolean, nowMs: number): Buffer {
@@ -65,18 +73,34 @@ export function encodeStatePayload(online: boolean, nowMs: number): Buffer {
   return Buffer.from(JSON.stringify({ online, timestamp: nowMs }));
 }
 
-export function createSparkplugHost(deps: { publishCommand: (topic: string, payload: Buffer) => void; log?: (line: string) => void }): SparkplugHost {
+export function createSparkplugHost(deps: {
+  publishCommand: (topic: string, payload: Buffer) => void;
+  log?: (line: string) => void;
+}): SparkplugHost {
   const sessions = new Map<string, NodeSession>();
   const log = deps.log ?? (() => {});
 
-  function requestRebirth(gatewayId: string, session: NodeSession, groupId: string, edgeNodeId: string, nowMs: number, why: string) {
+  function requestRebirth(
+    gatewayId: string,
+    session: NodeSession,
+    groupId: string,
+    edgeNodeId: string,
+    nowMs: number,
+    why: string,
+  ) {
     if (nowMs - session.lastRebirthAt < REBIRTH_MIN_INTERVAL_MS) return;
     session.lastRebirthAt = nowMs;
     log(`[sparkplug] ${gatewayId} (${groupId}/${edgeNodeId}): ${why}; requesting rebirth`);
     deps.publishCommand(sparkplugTopic(groupId, "NCMD", edgeNodeId), encodeRebirthRequest(nowMs));
   }
 
-  function collect(payload: Payload, session: NodeSession, deviceId: string | undefined, declare: boolean, out: SparkplugOutcome) {
+  function collect(
+    payload: Payload,
+    session: NodeSession,
+    deviceId: string | undefined,
+    declare: boolean,
+    out: SparkplugOutcome,
+  ) {
     const payloadTs = toNumber(payload.timestamp);
     for (const m of payload.metrics ?? []) {
       const alias = toNumber(m.alias);
@@ -89,7 +113,8 @@ export function createSparkplugHost(deps: { publishCommand: (topic: string, payl
         continue;
       }
       // Node control metrics and bdSeq describe the session, not the plant.
-      if (!deviceId && (name === "bdSeq" || name.startsWith("Node Control/") || name.startsWith("Properties/"))) continue;
+      if (!deviceId && (name === "bdSeq" || name.startsWith("Node Control/") || name.startsWith("Properties/")))
+        continue;
       if (m.isNull) continue;
       out.values.push({ name, value: metricValue(m), tsMs: toNumber(m.timestamp) ?? payloadTs ?? NaN });
     }
@@ -112,7 +137,12 @@ export function createSparkplugHost(deps: { publishCommand: (topic: string, payl
         case "NBIRTH": {
           // §6.4.6: NBIRTH starts a new session; seq restarts at 0 and bdSeq identifies it.
           const bd = decoded.metrics?.find((m) => m.name === "bdSeq");
-          session = { bdSeq: bd ? (toNumber(metricValue(bd)) ?? null) : null, seq: seq ?? 0, aliases: new Map(), lastRebirthAt: session?.lastRebirthAt ?? 0 };
+          session = {
+            bdSeq: bd ? (toNumber(metricValue(bd)) ?? null) : null,
+            seq: seq ?? 0,
+            aliases: new Map(),
+            lastRebirthAt: session?.lastRebirthAt ?? 0,
+          };
           sessions.set(gatewayId, session);
           collect(decoded, session, undefined, true, out);
           out.presence = "online";
@@ -134,7 +164,14 @@ export function createSparkplugHost(deps: { publishCommand: (topic: string, payl
         case "DDEATH": {
           if (!session) {
             out.rejections.sparkplug_no_birth = 1;
-            requestRebirth(gatewayId, { bdSeq: null, seq: null, aliases: new Map(), lastRebirthAt: 0 }, t.groupId, t.edgeNodeId, nowMs, `${t.messageType} before NBIRTH`);
+            requestRebirth(
+              gatewayId,
+              { bdSeq: null, seq: null, aliases: new Map(), lastRebirthAt: 0 },
+              t.groupId,
+              t.edgeNodeId,
+              nowMs,
+              `${t.messageType} before NBIRTH`,
+            );
             sessions.set(gatewayId, { bdSeq: null, seq: null, aliases: new Map(), lastRebirthAt: nowMs });
             return out;
           }
@@ -147,7 +184,14 @@ export function createSparkplugHost(deps: { publishCommand: (topic: string, payl
           // §6.4.4/§6.4.5: seq runs 0..255 across every message of the session.
           const expected = (session.seq + 1) % 256;
           if (seq !== undefined && seq !== expected) {
-            requestRebirth(gatewayId, session, t.groupId, t.edgeNodeId, nowMs, `seq gap (expected ${expected}, got ${seq})`);
+            requestRebirth(
+              gatewayId,
+              session,
+              t.groupId,
+              t.edgeNodeId,
+              nowMs,
+              `seq gap (expected ${expected}, got ${seq})`,
+            );
           }
           if (seq !== undefined) session.seq = seq;
           if (t.messageType === "DDEATH") return out;

@@ -18,11 +18,25 @@ export interface StoreLink {
   stats(): { openRollups: number; unwrittenLatest: number };
 }
 
-export type StoreSettings = { graceMs: number; latestEveryMs: number; derivedRowsPerFlush?: number; log: (line: string) => void; retention?: Retention };
+export type StoreSettings = {
+  graceMs: number;
+  latestEveryMs: number;
+  derivedRowsPerFlush?: number;
+  log: (line: string) => void;
+  retention?: Retention;
+};
 
 export function inlineStore(db: Db, clock: Clock, options: StoreSettings & { nowMs: number }): StoreLink {
   const store = createStore(db.$client, options);
-  const pruner = options.retention && startPruner({ db, clock, rawRetentionMs: options.retention.rawMs, rollupRetentionMs: options.retention.rollupMs, log: options.log });
+  const pruner =
+    options.retention &&
+    startPruner({
+      db,
+      clock,
+      rawRetentionMs: options.retention.rawMs,
+      rollupRetentionMs: options.retention.rollupMs,
+      log: options.log,
+    });
   return {
     write: async (flush) => store.write(flush),
     maintain: (nowMs) => store.maintain(nowMs),
@@ -47,7 +61,14 @@ export function workerStore(file: string, options: StoreSettings & { nowMs: () =
 
   function start() {
     startedAt = Date.now();
-    const data: StoreWorkerData = { file, graceMs: options.graceMs, latestEveryMs: options.latestEveryMs, derivedRowsPerFlush: options.derivedRowsPerFlush, nowMs: options.nowMs(), retention: options.retention };
+    const data: StoreWorkerData = {
+      file,
+      graceMs: options.graceMs,
+      latestEveryMs: options.latestEveryMs,
+      derivedRowsPerFlush: options.derivedRowsPerFlush,
+      nowMs: options.nowMs(),
+      retention: options.retention,
+    };
     worker = new Worker(new URL("./store-worker.mjs", import.meta.url), { workerData: data });
     worker.on("message", (m: FromStore) => {
       if (m.type === "log") log(m.line);
@@ -84,7 +105,12 @@ export function workerStore(file: string, options: StoreSettings & { nowMs: () =
       new Promise<FlushDone>((resolve, reject) => {
         if (broken) return reject(broken);
         flushes.set(flush.id, { resolve, reject });
-        post({ type: "flush", flush }, [flush.pointId.buffer as ArrayBuffer, flush.ts.buffer as ArrayBuffer, flush.value.buffer as ArrayBuffer, flush.quality.buffer as ArrayBuffer]);
+        post({ type: "flush", flush }, [
+          flush.pointId.buffer as ArrayBuffer,
+          flush.ts.buffer as ArrayBuffer,
+          flush.value.buffer as ArrayBuffer,
+          flush.quality.buffer as ArrayBuffer,
+        ]);
       }),
     maintain: (nowMs) => post({ type: "maintain", nowMs }),
     forget: (pointIds) => post({ type: "forget", pointIds: [...pointIds] }),

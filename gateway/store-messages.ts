@@ -17,7 +17,13 @@ export type ToStore =
 
 export type FromStore =
   | { type: "log"; line: string }
-  | { type: "flushed"; id: number; accepted: Int32Array; inserted: Uint8Array; stats: { openRollups: number; unwrittenLatest: number } }
+  | {
+      type: "flushed";
+      id: number;
+      accepted: Int32Array;
+      inserted: Uint8Array;
+      stats: { openRollups: number; unwrittenLatest: number };
+    }
   | { type: "flushFailed"; id: number; error: string }
   | { type: "closed" };
 

@@ -16,16 +16,33 @@ const send = (m: FromStore, transfer: ArrayBuffer[] = []) => port.postMessage(m,
 const log = (line: string) => send({ type: "log", line });
 
 const db = openDb(data.file);
-const store = createStore(db.$client, { graceMs: data.graceMs, latestEveryMs: data.latestEveryMs, derivedRowsPerFlush: data.derivedRowsPerFlush, nowMs: data.nowMs, log });
+const store = createStore(db.$client, {
+  graceMs: data.graceMs,
+  latestEveryMs: data.latestEveryMs,
+  derivedRowsPerFlush: data.derivedRowsPerFlush,
+  nowMs: data.nowMs,
+  log,
+});
 // Retention deletes run here too, in slices between flushes, so they never wait on the lock.
-const pruner = data.retention && startPruner({ db, clock: systemClock, rawRetentionMs: data.retention.rawMs, rollupRetentionMs: data.retention.rollupMs, log });
+const pruner =
+  data.retention &&
+  startPruner({
+    db,
+    clock: systemClock,
+    rawRetentionMs: data.retention.rawMs,
+    rollupRetentionMs: data.retention.rollupMs,
+    log,
+  });
 
 port.on("message", (m: ToStore) => {
   switch (m.type) {
     case "flush":
       try {
         const done = store.write(m.flush);
-        send({ type: "flushed", id: done.id, accepted: done.accepted, inserted: done.inserted, stats: store.stats() }, [done.accepted.buffer as ArrayBuffer, done.inserted.buffer as ArrayBuffer]);
+        send({ type: "flushed", id: done.id, accepted: done.accepted, inserted: done.inserted, stats: store.stats() }, [
+          done.accepted.buffer as ArrayBuffer,
+          done.inserted.buffer as ArrayBuffer,
+        ]);
       } catch (err) {
         send({ type: "flushFailed", id: m.flush.id, error: String(err) });
       }
@@ -41,7 +58,9 @@ port.on("message", (m: ToStore) => {
       try {
         store.close(m.nowMs);
       } catch (err) {
-        log(`[ingest] final write of rollups and latest values failed; they are rebuilt at the next start: ${String(err)}`);
+        log(
+          `[ingest] final write of rollups and latest values failed; they are rebuilt at the next start: ${String(err)}`,
+        );
       }
       db.$client.close();
       send({ type: "closed" });

@@ -78,7 +78,9 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
   // Raw better-sqlite3 statements, prepared once: on the hot path Drizzle's per-call
   // placeholder filling and entity checks cost more than the inserts themselves.
   // Idempotent on (point_id, ts): a redelivered message adds nothing.
-  const insertReading = sqlite.prepare("insert into readings (point_id, ts, value, text, quality) values (?, ?, ?, ?, ?) on conflict do nothing");
+  const insertReading = sqlite.prepare(
+    "insert into readings (point_id, ts, value, text, quality) values (?, ?, ?, ?, ?) on conflict do nothing",
+  );
   const upsertLatest = sqlite.prepare(
     `insert into latest_values (point_id, ts, value, text, quality, gateway_id, received_at) values (?, ?, ?, ?, ?, ?, ?)
      on conflict (point_id) do update set
@@ -116,7 +118,9 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
     const pointIds = sqlite.prepare("select id from points").pluck().all() as number[];
     const replayed = rollups.recover(pointIds);
     const latest = recoverLatest.run().changes;
-    log(`[ingest] recovered from an unclean stop: ${replayed} readings of open rollup minutes, ${latest} latest values (${Math.round(performance.now() - t0)} ms)`);
+    log(
+      `[ingest] recovered from an unclean stop: ${replayed} readings of open rollup minutes, ${latest} latest values (${Math.round(performance.now() - t0)} ms)`,
+    );
   }
   state.set("closed_cleanly", 0);
 
@@ -136,7 +140,10 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
     sealed?: SealProgress;
     latestWritten?: number;
   }
-  const plan = (nowMs: number): Plan => ({ sealLimit: rollups.limit(nowMs), writeLatest: unwritten.length > 0 && (draining || nowMs - latestWrittenAt >= opts.latestEveryMs) });
+  const plan = (nowMs: number): Plan => ({
+    sealLimit: rollups.limit(nowMs),
+    writeLatest: unwritten.length > 0 && (draining || nowMs - latestWrittenAt >= opts.latestEveryMs),
+  });
 
   function writeDerived(p: Plan, everything = false) {
     p.sealed = rollups.writeSealed(p.sealLimit, everything ? Infinity : budget);
@@ -164,52 +171,54 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
   /** A row's number, or null for state and text points (NaN on the wire). */
   const numberAt = (f: FlushWire, row: number) => (Number.isNaN(f.value[row]) ? null : f.value[row]);
 
-  const flushTx = sqlite.transaction((f: FlushWire, texts: ReadonlyMap<number, string>, p: Plan, inserted: Uint8Array, accepted: Int32Array) => {
-    const perGateway = new Map<string, { messages: number; accepted: number; duplicates: number; at: number }>();
-    const rejections = new Map<string, { gatewayId: string; reason: string; count: number; at: number }>();
-    const unmapped = new Map<string, { gatewayId: string; pointName: string; count: number; at: number }>();
-    let row = 0;
-    for (let b = 0; b < f.batches.length; b++) {
-      const batch = f.batches[b];
-      let n = 0;
-      for (const end = row + batch.count; row < end; row++) {
-        const value = numberAt(f, row);
-        const text = value === null ? (texts.get(row) ?? null) : null;
-        if (insertReading.run(f.pointId[row], f.ts[row], value, text, f.quality[row]).changes === 0) continue;
-        inserted[row] = 1;
-        n++;
-        // A reading of a minute being sealed now (or sealed before) goes straight into its row;
-        // the rest join their open minute once this transaction has committed.
-        if (value !== null && f.ts[row] < p.sealLimit) rollups.writeLate(f.pointId[row], f.ts[row], value);
+  const flushTx = sqlite.transaction(
+    (f: FlushWire, texts: ReadonlyMap<number, string>, p: Plan, inserted: Uint8Array, accepted: Int32Array) => {
+      const perGateway = new Map<string, { messages: number; accepted: number; duplicates: number; at: number }>();
+      const rejections = new Map<string, { gatewayId: string; reason: string; count: number; at: number }>();
+      const unmapped = new Map<string, { gatewayId: string; pointName: string; count: number; at: number }>();
+      let row = 0;
+      for (let b = 0; b < f.batches.length; b++) {
+        const batch = f.batches[b];
+        let n = 0;
+        for (const end = row + batch.count; row < end; row++) {
+          const value = numberAt(f, row);
+          const text = value === null ? (texts.get(row) ?? null) : null;
+          if (insertReading.run(f.pointId[row], f.ts[row], value, text, f.quality[row]).changes === 0) continue;
+          inserted[row] = 1;
+          n++;
+          // A reading of a minute being sealed now (or sealed before) goes straight into its row;
+          // the rest join their open minute once this transaction has committed.
+          if (value !== null && f.ts[row] < p.sealLimit) rollups.writeLate(f.pointId[row], f.ts[row], value);
+        }
+        accepted[b] = n;
+        let g = perGateway.get(batch.gatewayId);
+        if (!g) perGateway.set(batch.gatewayId, (g = { messages: 0, accepted: 0, duplicates: 0, at: 0 }));
+        g.messages += batch.messages;
+        g.accepted += n;
+        g.duplicates += batch.count - n;
+        if (batch.receivedAtMs > g.at) g.at = batch.receivedAtMs;
+        for (const [reason, count] of Object.entries(batch.rejections ?? {})) {
+          if (!count) continue;
+          const key = `${batch.gatewayId}\u0000${reason}`;
+          const e = rejections.get(key) ?? { gatewayId: batch.gatewayId, reason, count: 0, at: 0 };
+          e.count += count;
+          e.at = Math.max(e.at, batch.receivedAtMs);
+          rejections.set(key, e);
+        }
+        for (const [pointName, count] of batch.unmapped ?? []) {
+          const key = `${batch.gatewayId}\u0000${pointName}`;
+          const e = unmapped.get(key) ?? { gatewayId: batch.gatewayId, pointName, count: 0, at: 0 };
+          e.count += count;
+          e.at = Math.max(e.at, batch.receivedAtMs);
+          unmapped.set(key, e);
+        }
       }
-      accepted[b] = n;
-      let g = perGateway.get(batch.gatewayId);
-      if (!g) perGateway.set(batch.gatewayId, (g = { messages: 0, accepted: 0, duplicates: 0, at: 0 }));
-      g.messages += batch.messages;
-      g.accepted += n;
-      g.duplicates += batch.count - n;
-      if (batch.receivedAtMs > g.at) g.at = batch.receivedAtMs;
-      for (const [reason, count] of Object.entries(batch.rejections ?? {})) {
-        if (!count) continue;
-        const key = `${batch.gatewayId}\u0000${reason}`;
-        const e = rejections.get(key) ?? { gatewayId: batch.gatewayId, reason, count: 0, at: 0 };
-        e.count += count;
-        e.at = Math.max(e.at, batch.receivedAtMs);
-        rejections.set(key, e);
-      }
-      for (const [pointName, count] of batch.unmapped ?? []) {
-        const key = `${batch.gatewayId}\u0000${pointName}`;
-        const e = unmapped.get(key) ?? { gatewayId: batch.gatewayId, pointName, count: 0, at: 0 };
-        e.count += count;
-        e.at = Math.max(e.at, batch.receivedAtMs);
-        unmapped.set(key, e);
-      }
-    }
-    writeDerived(p);
-    for (const [id, g] of perGateway) bumpGateway.run(g.messages, g.accepted, g.duplicates, g.at, id);
-    for (const e of rejections.values()) bumpRejection.run(e.gatewayId, e.reason, e.count, e.at);
-    for (const e of unmapped.values()) bumpUnmapped.run(e.gatewayId, e.pointName, e.count, e.at);
-  });
+      writeDerived(p);
+      for (const [id, g] of perGateway) bumpGateway.run(g.messages, g.accepted, g.duplicates, g.at, id);
+      for (const e of rejections.values()) bumpRejection.run(e.gatewayId, e.reason, e.count, e.at);
+      for (const e of unmapped.values()) bumpUnmapped.run(e.gatewayId, e.pointName, e.count, e.at);
+    },
+  );
   const maintainTx = sqlite.transaction((p: Plan, everything: boolean) => writeDerived(p, everything));
 
   function maintain(nowMs: number, everything: boolean) {
@@ -233,7 +242,19 @@ export function createStore(sqlite: Database.Database, opts: StoreOptions): Stor
         const text = value === null ? (texts.get(row) ?? null) : null;
         if (value !== null && ts >= sealLimit) rollups.add(id, ts, value);
         let e = latest.get(id);
-        if (!e) latest.set(id, (e = { ts, value, text, quality: f.quality[row], gatewayId: batch.gatewayId, receivedAt: batch.receivedAtMs, dirty: false }));
+        if (!e)
+          latest.set(
+            id,
+            (e = {
+              ts,
+              value,
+              text,
+              quality: f.quality[row],
+              gatewayId: batch.gatewayId,
+              receivedAt: batch.receivedAtMs,
+              dirty: false,
+            }),
+          );
         else if (ts >= e.ts) {
           e.ts = ts;
           e.value = value;

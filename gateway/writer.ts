@@ -62,7 +62,15 @@ export interface BatchWriter {
   /** Starts writing everything queued now (after the flush in progress, if any). */
   flush(): void;
   close(): Promise<void>;
-  stats(): { flushes: number; rows: number; queued: number; lastFlushMs: number; maxFlushMs: number; openRollups: number; unwrittenLatest: number };
+  stats(): {
+    flushes: number;
+    rows: number;
+    queued: number;
+    lastFlushMs: number;
+    maxFlushMs: number;
+    openRollups: number;
+    unwrittenLatest: number;
+  };
   /** Drops what is held for these points (their stored history was replaced). */
   forget(pointIds: readonly number[]): void;
 }
@@ -98,7 +106,13 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
   const log = opts.log ?? (() => {});
   const sqlite = db.$client;
   const file = sqlite.memory ? undefined : sqlite.name;
-  const storeOptions: StoreSettings = { graceMs: opts.rollupGraceMs ?? 10_000, latestEveryMs: opts.latestEveryMs ?? 2000, derivedRowsPerFlush: opts.derivedRowsPerFlush, log, retention: opts.retention };
+  const storeOptions: StoreSettings = {
+    graceMs: opts.rollupGraceMs ?? 10_000,
+    latestEveryMs: opts.latestEveryMs ?? 2000,
+    derivedRowsPerFlush: opts.derivedRowsPerFlush,
+    log,
+    retention: opts.retention,
+  };
   const store =
     file && (opts.thread ?? "worker") === "worker"
       ? workerStore(file, { ...storeOptions, nowMs: () => clock.now() })

@@ -31,7 +31,13 @@ export class AppError extends Error {
   }
 
   toBody(): ErrorBody {
-    return { error: { code: this.code, message: this.message, ...(this.details === undefined ? {} : { details: this.details }) } };
+    return {
+      error: {
+        code: this.code,
+        message: this.message,
+        ...(this.details === undefined ? {} : { details: this.details }),
+      },
+    };
   }
 }
 
@@ -40,7 +46,13 @@ export class AppError extends Error {
  * server.ts, so an error thrown by the alarm service is not `instanceof` the route's class.
  */
 export function isAppError(err: unknown): err is AppError {
-  return err instanceof AppError || (err instanceof Error && err.name === "AppError" && typeof (err as AppError).status === "number" && typeof (err as AppError).toBody === "function");
+  return (
+    err instanceof AppError ||
+    (err instanceof Error &&
+      err.name === "AppError" &&
+      typeof (err as AppError).status === "number" &&
+      typeof (err as AppError).toBody === "function")
+  );
 }
 
 export const notFound = (what = "Not found") => new AppError("not_found", what);

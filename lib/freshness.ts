@@ -34,7 +34,12 @@ export type SiteDataState = "live" | "stale" | "no_gateway" | "offline";
  * live: a gateway is online and every mapped point is fresh; stale: online but some mapped
  * point is old or missing; offline: gateways exist, none online; no_gateway: none provisioned.
  */
-export function siteDataState(input: { gateways: number; online: number; mappedPoints: number; freshPoints: number }): SiteDataState {
+export function siteDataState(input: {
+  gateways: number;
+  online: number;
+  mappedPoints: number;
+  freshPoints: number;
+}): SiteDataState {
   if (input.gateways === 0) return "no_gateway";
   if (input.online === 0) return "offline";
   return input.freshPoints >= input.mappedPoints ? "live" : "stale";
@@ -73,7 +78,11 @@ export function freshnessByGateway(
   latestTs: (pointId: number) => number | null | undefined,
   nowMs: number,
   /** A part of `mapped` only, added to `into` (the live publisher spreads a round over several turns). */
-  part: { from: number; to: number; into: Map<string, GatewayFreshness> } = { from: 0, to: mapped.length, into: new Map() },
+  part: { from: number; to: number; into: Map<string, GatewayFreshness> } = {
+    from: 0,
+    to: mapped.length,
+    into: new Map(),
+  },
 ): Map<string, GatewayFreshness> {
   const byGateway = part.into;
   let lastGateway: string | undefined;
@@ -100,7 +109,10 @@ export function siteStatuses(input: {
   freshness: ReadonlyMap<string, GatewayFreshness>;
   nowMs: number;
 }): Map<string, SiteStatusRow> {
-  const acc = new Map<string, { gateways: number; online: number; mapped: number; fresh: number; rows: SiteStatusRow["gateways"] }>();
+  const acc = new Map<
+    string,
+    { gateways: number; online: number; mapped: number; fresh: number; rows: SiteStatusRow["gateways"] }
+  >();
   for (const id of input.siteIds) acc.set(id, { gateways: 0, online: 0, mapped: 0, fresh: 0, rows: new Map() });
   for (const g of input.presence) {
     const a = acc.get(g.siteId);
@@ -114,6 +126,10 @@ export function siteStatuses(input: {
     a.rows.set(g.gatewayId, { online, lastMessageAtMs: g.lastMessageAtMs });
   }
   const out = new Map<string, SiteStatusRow>();
-  for (const [id, a] of acc) out.set(id, { data: siteDataState({ gateways: a.gateways, online: a.online, mappedPoints: a.mapped, freshPoints: a.fresh }), gateways: a.rows });
+  for (const [id, a] of acc)
+    out.set(id, {
+      data: siteDataState({ gateways: a.gateways, online: a.online, mappedPoints: a.mapped, freshPoints: a.fresh }),
+      gateways: a.rows,
+    });
   return out;
 }

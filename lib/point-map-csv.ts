@@ -32,7 +32,11 @@ export interface LineError {
 
 const rowSchema = z
   .object({
-    gateway_point: z.string().trim().min(1, "gateway_point is empty").max(MAX_POINT_NAME, `gateway_point is longer than ${MAX_POINT_NAME} characters`),
+    gateway_point: z
+      .string()
+      .trim()
+      .min(1, "gateway_point is empty")
+      .max(MAX_POINT_NAME, `gateway_point is longer than ${MAX_POINT_NAME} characters`),
     equipment: z.string().trim().min(1, "equipment is empty").max(64),
     quantity: z
       .string()
@@ -41,11 +45,16 @@ const rowSchema = z
     unit: z
       .string()
       .trim()
-      .refine(isWireUnit, { error: (iss) => `unknown unit "${String(iss.input)}" (one of ${wireUnitCodes.join(", ")})` }),
+      .refine(isWireUnit, {
+        error: (iss) => `unknown unit "${String(iss.input)}" (one of ${wireUnitCodes.join(", ")})`,
+      }),
   })
   .superRefine((row, ctx) => {
     if (isQuantityKey(row.quantity) && isWireUnit(row.unit) && !unitFits(row.unit, row.quantity)) {
-      ctx.addIssue({ code: "custom", message: `unit "${row.unit}" cannot measure ${quantities[row.quantity].measure} (${row.quantity})` });
+      ctx.addIssue({
+        code: "custom",
+        message: `unit "${row.unit}" cannot measure ${quantities[row.quantity].measure} (${row.quantity})`,
+      });
     }
   });
 
@@ -58,8 +67,15 @@ export function parsePointMapCsv(text: string): { rows: PointMapLine[]; errors: 
   });
   const fields = parsed.meta.fields ?? [];
   const missing = POINT_MAP_COLUMNS.filter((c) => !fields.includes(c));
-  if (missing.length) return { rows: [], errors: [{ line: 1, message: `missing column(s): ${missing.join(", ")}; expected ${POINT_MAP_COLUMNS.join(",")}` }] };
-  if (parsed.data.length > MAX_POINT_MAP_ROWS) return { rows: [], errors: [{ line: 1, message: `more than ${MAX_POINT_MAP_ROWS} rows` }] };
+  if (missing.length)
+    return {
+      rows: [],
+      errors: [
+        { line: 1, message: `missing column(s): ${missing.join(", ")}; expected ${POINT_MAP_COLUMNS.join(",")}` },
+      ],
+    };
+  if (parsed.data.length > MAX_POINT_MAP_ROWS)
+    return { rows: [], errors: [{ line: 1, message: `more than ${MAX_POINT_MAP_ROWS} rows` }] };
 
   // papaparse reports the 0-based data row; +2 makes it the file line (header is line 1).
   for (const e of parsed.errors) errors.push({ line: (e.row ?? 0) + 2, message: e.message });
@@ -82,7 +98,13 @@ export function parsePointMapCsv(text: string): { rows: PointMapLine[]; errors: 
       return;
     }
     seen.set(r.gateway_point, line);
-    rows.push({ line, gateway_point: r.gateway_point, equipment: r.equipment, quantity: r.quantity as QuantityKey, unit: r.unit as WireUnitCode });
+    rows.push({
+      line,
+      gateway_point: r.gateway_point,
+      equipment: r.equipment,
+      quantity: r.quantity as QuantityKey,
+      unit: r.unit as WireUnitCode,
+    });
   });
   errors.sort((a, b) => a.line - b.line);
   return { rows, errors };

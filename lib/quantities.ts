@@ -49,22 +49,70 @@ export type FanDriveMode = (typeof fanDriveModes)[number];
 
 export const quantities = {
   // chilled-water side (chiller evaporator)
-  chilled_water_entering_temp: { measure: "temperature", label: "Chilled water entering", brickClass: "Entering_Chilled_Water_Temperature_Sensor" },
-  chilled_water_leaving_temp: { measure: "temperature", label: "Chilled water leaving", brickClass: "Leaving_Chilled_Water_Temperature_Sensor" },
-  chilled_water_leaving_temp_setpoint: { measure: "temperature", label: "Chilled water leaving setpoint", brickClass: "Leaving_Chilled_Water_Temperature_Setpoint" },
+  chilled_water_entering_temp: {
+    measure: "temperature",
+    label: "Chilled water entering",
+    brickClass: "Entering_Chilled_Water_Temperature_Sensor",
+  },
+  chilled_water_leaving_temp: {
+    measure: "temperature",
+    label: "Chilled water leaving",
+    brickClass: "Leaving_Chilled_Water_Temperature_Sensor",
+  },
+  chilled_water_leaving_temp_setpoint: {
+    measure: "temperature",
+    label: "Chilled water leaving setpoint",
+    brickClass: "Leaving_Chilled_Water_Temperature_Setpoint",
+  },
   chilled_water_flow: { measure: "flow", label: "Chilled water flow", brickClass: "Chilled_Water_Flow_Sensor" },
-  evaporator_water_dp: { measure: "differential_pressure", label: "Evaporator water ΔP", brickClass: "Chilled_Water_Differential_Pressure_Sensor" },
+  evaporator_water_dp: {
+    measure: "differential_pressure",
+    label: "Evaporator water ΔP",
+    brickClass: "Chilled_Water_Differential_Pressure_Sensor",
+  },
   // condenser-water side (chiller condenser, or tower: entering = hot water in, leaving = cold water out)
-  condenser_water_entering_temp: { measure: "temperature", label: "Condenser water entering", brickClass: "Entering_Condenser_Water_Temperature_Sensor" },
-  condenser_water_leaving_temp: { measure: "temperature", label: "Condenser water leaving", brickClass: "Leaving_Condenser_Water_Temperature_Sensor" },
-  condenser_water_temp_setpoint: { measure: "temperature", label: "Condenser water setpoint", brickClass: "Condenser_Water_Temperature_Setpoint" },
+  condenser_water_entering_temp: {
+    measure: "temperature",
+    label: "Condenser water entering",
+    brickClass: "Entering_Condenser_Water_Temperature_Sensor",
+  },
+  condenser_water_leaving_temp: {
+    measure: "temperature",
+    label: "Condenser water leaving",
+    brickClass: "Leaving_Condenser_Water_Temperature_Sensor",
+  },
+  condenser_water_temp_setpoint: {
+    measure: "temperature",
+    label: "Condenser water setpoint",
+    brickClass: "Condenser_Water_Temperature_Setpoint",
+  },
   condenser_water_flow: { measure: "flow", label: "Condenser water flow", brickClass: "Condenser_Water_Flow_Sensor" },
-  condenser_water_dp: { measure: "differential_pressure", label: "Condenser water ΔP", brickClass: "Differential_Pressure_Sensor" },
+  condenser_water_dp: {
+    measure: "differential_pressure",
+    label: "Condenser water ΔP",
+    brickClass: "Differential_Pressure_Sensor",
+  },
   // refrigerant circuit
-  evaporator_refrigerant_pressure: { measure: "pressure", label: "Evaporator refrigerant pressure", brickClass: "Pressure_Sensor" },
-  evaporator_saturated_temp: { measure: "temperature", label: "Evaporator saturated temp", brickClass: "Temperature_Sensor" },
-  condenser_refrigerant_pressure: { measure: "pressure", label: "Condenser refrigerant pressure", brickClass: "Pressure_Sensor" },
-  condenser_saturated_temp: { measure: "temperature", label: "Condenser saturated temp", brickClass: "Temperature_Sensor" },
+  evaporator_refrigerant_pressure: {
+    measure: "pressure",
+    label: "Evaporator refrigerant pressure",
+    brickClass: "Pressure_Sensor",
+  },
+  evaporator_saturated_temp: {
+    measure: "temperature",
+    label: "Evaporator saturated temp",
+    brickClass: "Temperature_Sensor",
+  },
+  condenser_refrigerant_pressure: {
+    measure: "pressure",
+    label: "Condenser refrigerant pressure",
+    brickClass: "Pressure_Sensor",
+  },
+  condenser_saturated_temp: {
+    measure: "temperature",
+    label: "Condenser saturated temp",
+    brickClass: "Temperature_Sensor",
+  },
   // compressor and its drive
   compressor_speed: { measure: "percent", label: "Compressor speed", brickClass: "Motor_Speed_Sensor" },
   inlet_guide_vane_position: { measure: "percent", label: "Inlet guide vane position", brickClass: "Position_Sensor" },
@@ -88,11 +136,19 @@ export const quantities = {
   pump_status: { measure: "boolean", label: "Pump status", brickClass: "Pump_Status" },
   pump_speed: { measure: "percent", label: "Pump speed", brickClass: "Speed_Status" },
   // air handlers
-  chilled_water_valve_position: { measure: "percent", label: "Chilled water valve", brickClass: "Valve_Position_Sensor" },
+  chilled_water_valve_position: {
+    measure: "percent",
+    label: "Chilled water valve",
+    brickClass: "Valve_Position_Sensor",
+  },
   // weather station
   outdoor_air_temp: { measure: "temperature", label: "Outdoor air temp", brickClass: "Outside_Air_Temperature_Sensor" },
   outdoor_air_humidity: { measure: "percent", label: "Outdoor humidity", brickClass: "Outside_Air_Humidity_Sensor" },
-  outdoor_wet_bulb_temp: { measure: "temperature", label: "Outdoor wet bulb", brickClass: "Outside_Air_Wet_Bulb_Temperature_Sensor" },
+  outdoor_wet_bulb_temp: {
+    measure: "temperature",
+    label: "Outdoor wet bulb",
+    brickClass: "Outside_Air_Wet_Bulb_Temperature_Sensor",
+  },
 } as const satisfies Record<string, QuantityDef>;
 
 export type QuantityKey = keyof typeof quantities;

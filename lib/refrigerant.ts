@@ -20,7 +20,10 @@ interface Ancillary {
 const r134a: Ancillary = {
   tcK: 374.21,
   pcKPa: 4059.28,
-  n: [0.4331478287291047, -9.090302559074352, 2.1476074125217703, -1.557687007603464, -3.5020328972698604, 14.958442337201044],
+  n: [
+    0.4331478287291047, -9.090302559074352, 2.1476074125217703, -1.557687007603464, -3.5020328972698604,
+    14.958442337201044,
+  ],
   t: [0.845, 0.99, 1.14, 2.651, 4.507, 17.235],
 };
 
@@ -67,7 +70,9 @@ export function saturationPressureKPa(refrigerant: Refrigerant, tempC: number): 
       return ancillaryPressureKPa(r1234zeE, tempC);
     case "R-513A": {
       const x = r513aMoleFractionYf;
-      return r513aAzeotropeFactor * (x * ancillaryPressureKPa(r1234yf, tempC) + (1 - x) * ancillaryPressureKPa(r134a, tempC));
+      return (
+        r513aAzeotropeFactor * (x * ancillaryPressureKPa(r1234yf, tempC) + (1 - x) * ancillaryPressureKPa(r134a, tempC))
+      );
     }
   }
 }
@@ -83,7 +88,10 @@ export function saturationTempC(refrigerant: Refrigerant, pressureKPa: number): 
   for (let i = 0; i < 30; i++) {
     const f = Math.log(saturationPressureKPa(refrigerant, tK - 273.15)) - lnP;
     const h = 0.01;
-    const df = (Math.log(saturationPressureKPa(refrigerant, tK - 273.15 + h)) - Math.log(saturationPressureKPa(refrigerant, tK - 273.15 - h))) / (2 * h);
+    const df =
+      (Math.log(saturationPressureKPa(refrigerant, tK - 273.15 + h)) -
+        Math.log(saturationPressureKPa(refrigerant, tK - 273.15 - h))) /
+      (2 * h);
     const step = f / df;
     tK -= step;
     if (Math.abs(step) < 1e-7) break;

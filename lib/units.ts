@@ -187,7 +187,11 @@ export function deltaFromCanonical(deltaC: number, system: UnitSystem): number {
   return system === "ip" ? deltaKToDeltaF(deltaC) : deltaC;
 }
 
-export function formatValue(value: number | boolean | string | null | undefined, measure: Measure, system: UnitSystem): string {
+export function formatValue(
+  value: number | boolean | string | null | undefined,
+  measure: Measure,
+  system: UnitSystem,
+): string {
   if (value === null || value === undefined) return "—";
   if (typeof value === "boolean") return value ? "On" : "Off";
   if (typeof value === "string") return value;

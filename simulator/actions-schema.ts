@@ -5,9 +5,19 @@ import { fanDriveModes } from "@/lib/quantities";
 export const antiRecycleTimers = ["start-to-start", "stop-to-start"] as const;
 
 export const drillActionSchema = z.discriminatedUnion("type", [
-  z.object({ type: z.literal("set-fan-drive-mode"), equipment: z.string().min(1), mode: z.enum(fanDriveModes), handHz: z.number().min(0).max(60).optional() }),
+  z.object({
+    type: z.literal("set-fan-drive-mode"),
+    equipment: z.string().min(1),
+    mode: z.enum(fanDriveModes),
+    handHz: z.number().min(0).max(60).optional(),
+  }),
   z.object({ type: z.literal("reset-alarm"), equipment: z.string().min(1) }),
-  z.object({ type: z.literal("set-anti-recycle-timer"), equipment: z.string().min(1), timer: z.enum(antiRecycleTimers), seconds: z.number() }),
+  z.object({
+    type: z.literal("set-anti-recycle-timer"),
+    equipment: z.string().min(1),
+    timer: z.enum(antiRecycleTimers),
+    seconds: z.number(),
+  }),
   z.object({ type: z.literal("set-air-handler"), equipment: z.string().min(1), run: z.boolean() }),
   z.object({ type: z.literal("set-chiller-enable"), equipment: z.string().min(1), enabled: z.boolean() }),
 ]);

@@ -30,12 +30,18 @@ export function applyDrillAction(s: PlantState, a: DrillAction): ActionOutcome {
   const chillerIndex = s.params.chillers.findIndex((c) => c.tag === a.equipment);
   switch (a.type) {
     case "set-fan-drive-mode": {
-      if (a.equipment !== towerTag) return { accepted: false, reason: `${a.equipment} has no fan drive (tower is ${towerTag})` };
+      if (a.equipment !== towerTag)
+        return { accepted: false, reason: `${a.equipment} has no fan drive (tower is ${towerTag})` };
       const t = { ...s.tower };
       t.mode = a.mode;
       if (a.handHz !== undefined) t.handHz = a.handHz;
       s.tower = t;
-      return { accepted: true, reason: t.fault ? `mode set to ${a.mode}; drive is faulted (${t.faultText}) and will not run until reset` : `mode set to ${a.mode}` };
+      return {
+        accepted: true,
+        reason: t.fault
+          ? `mode set to ${a.mode}; drive is faulted (${t.faultText}) and will not run until reset`
+          : `mode set to ${a.mode}`,
+      };
     }
     case "reset-alarm": {
       if (a.equipment === towerTag) {
@@ -56,13 +62,19 @@ export function applyDrillAction(s: PlantState, a: DrillAction): ActionOutcome {
       const text = c.alarmText;
       s.chillers = s.chillers.map((x, i) => (i === chillerIndex ? { ...x, alarmLatched: false, alarmText: "" } : x));
       const left = restartInhibitLeftS(c, s.tS);
-      return { accepted: true, reason: `alarm "${text}" reset${left > 0 ? `; restart inhibited for ${Math.ceil(left)} s more` : ""}` };
+      return {
+        accepted: true,
+        reason: `alarm "${text}" reset${left > 0 ? `; restart inhibited for ${Math.ceil(left)} s more` : ""}`,
+      };
     }
     case "set-anti-recycle-timer": {
       if (chillerIndex < 0) return { accepted: false, reason: `unknown chiller ${a.equipment}` };
       const lim = timerLimits[a.timer];
       if (!Number.isFinite(a.seconds) || a.seconds < lim.min || a.seconds > lim.max)
-        return { accepted: false, reason: `${a.timer} timer ${a.seconds} s is outside the controller limits ${lim.min}–${lim.max} s` };
+        return {
+          accepted: false,
+          reason: `${a.timer} timer ${a.seconds} s is outside the controller limits ${lim.min}–${lim.max} s`,
+        };
       const key = a.timer === "start-to-start" ? "startToStartS" : "stopToStartS";
       s.chillers = s.chillers.map((x, i) => (i === chillerIndex ? { ...x, [key]: a.seconds } : x));
       return { accepted: true, reason: `${a.timer} timer set to ${a.seconds} s` };
@@ -71,7 +83,10 @@ export function applyDrillAction(s: PlantState, a: DrillAction): ActionOutcome {
       const i = Number(/^AHU-(\d+)$/.exec(a.equipment)?.[1]) - 1;
       if (!(i >= 0 && i < s.ahus.length)) return { accepted: false, reason: `unknown air handler ${a.equipment}` };
       s.ahus = s.ahus.map((x, j) => (j === i ? { ...x, override: a.run ? "on" : "off" } : x));
-      return { accepted: true, reason: a.run ? "air handler started (manual on)" : "air handler stopped (manual off): its load is shed" };
+      return {
+        accepted: true,
+        reason: a.run ? "air handler started (manual on)" : "air handler stopped (manual off): its load is shed",
+      };
     }
     case "set-chiller-enable": {
       if (chillerIndex < 0) return { accepted: false, reason: `unknown chiller ${a.equipment}` };

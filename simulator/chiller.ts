@@ -65,7 +65,14 @@ export function condPressureKPa(p: ChillerParams, c: ChillerState): number {
   return saturationPressureKPa(p.refrigerant, c.condSatC);
 }
 
-function trip(p: ChillerParams, c: ChillerState, env: ChillerEnv, sink: ChillerSink, alarm: string, fault: string): void {
+function trip(
+  p: ChillerParams,
+  c: ChillerState,
+  env: ChillerEnv,
+  sink: ChillerSink,
+  alarm: string,
+  fault: string,
+): void {
   stop(p, c, env, sink, `tripped: ${alarm}`);
   c.alarmLatched = true;
   c.alarmText = alarm;
@@ -98,7 +105,8 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
     }
     if (c.driveFaultText) c.driveFaultUntilS = tS + 10;
   }
-  if (env.powerJustRestored && c.driveFaultText) sink.faults.push({ tS, equipment: p.tag, text: "Drive DC bus overvoltage warning (line restore)" });
+  if (env.powerJustRestored && c.driveFaultText)
+    sink.faults.push({ tS, equipment: p.tag, text: "Drive DC bus overvoltage warning (line restore)" });
   if (c.driveFaultText && tS >= c.driveFaultUntilS) {
     sink.events.push({ tS, kind: "state", equipment: p.tag, message: `Drive fault auto-reset (${c.driveFaultText})` });
     c.driveFaultText = "";
@@ -119,15 +127,43 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
     c.chwFlowLowS = chwProven ? 0 : c.chwFlowLowS + dt;
     c.lowEvapS = c.evapSatC < lowEvapTripC ? c.lowEvapS + dt : 0;
     if (condKPa >= p.highCondTripKPa) {
-      trip(p, c, env, sink, "High condenser pressure", `High discharge pressure trip at ${kpaAbsToPsig(condKPa).toFixed(1)} psig`);
+      trip(
+        p,
+        c,
+        env,
+        sink,
+        "High condenser pressure",
+        `High discharge pressure trip at ${kpaAbsToPsig(condKPa).toFixed(1)} psig`,
+      );
     } else if (c.driveC >= driveTripC) {
-      trip(p, c, env, sink, "Drive over-temperature", `Drive over-temperature trip at ${((c.driveC * 9) / 5 + 32).toFixed(1)} °F`);
+      trip(
+        p,
+        c,
+        env,
+        sink,
+        "Drive over-temperature",
+        `Drive over-temperature trip at ${((c.driveC * 9) / 5 + 32).toFixed(1)} °F`,
+      );
     } else if (c.cwFlowLowS >= 10) {
       trip(p, c, env, sink, "Condenser water flow loss", "Condenser water flow switch open (low condenser water ΔP)");
     } else if (c.chwFlowLowS >= 10) {
-      trip(p, c, env, sink, "Evaporator water flow loss", "Evaporator water flow switch open (low evaporator water ΔP)");
+      trip(
+        p,
+        c,
+        env,
+        sink,
+        "Evaporator water flow loss",
+        "Evaporator water flow switch open (low evaporator water ΔP)",
+      );
     } else if (c.lowEvapS >= 30) {
-      trip(p, c, env, sink, "Low evaporator pressure", `Low evaporator pressure trip at ${kpaAbsToPsig(evapKPa).toFixed(1)} psig`);
+      trip(
+        p,
+        c,
+        env,
+        sink,
+        "Low evaporator pressure",
+        `Low evaporator pressure trip at ${kpaAbsToPsig(evapKPa).toFixed(1)} psig`,
+      );
     }
   } else {
     c.cwFlowLowS = 0;
@@ -137,7 +173,13 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
 
   // Flow loss while running is left to the flow-proof safeties (they trip and latch); a start needs both flows proven.
   const flowsProven = c.chwFlowLps > 0 && c.cwFlowLps > 0;
-  if (!c.running && permissive && flowsProven && restartInhibitLeftS(c, tS) <= 0 && c.chwInC > c.setpointC + startDiffK) {
+  if (
+    !c.running &&
+    permissive &&
+    flowsProven &&
+    restartInhibitLeftS(c, tS) <= 0 &&
+    c.chwInC > c.setpointC + startDiffK
+  ) {
     c.running = true;
     c.lastStartS = tS;
     c.loadCeiling = 0.2;
@@ -156,7 +198,8 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
     c.evapKW += (targetKW - c.evapKW) * (1 - Math.exp(-dt / 30));
     // Never pull the water below 1 °C above freezing-side limits: capacity cannot exceed what the water can give.
     c.evapKW = Math.min(c.evapKW, Math.max(0, c.chwFlowLps * cpW * (c.chwInC - 1)));
-    c.lowLoadS = neededKW < minKW && c.chwInC - c.evapKW / (c.chwFlowLps * cpW) < c.setpointC - lowLoadStopK ? c.lowLoadS + dt : 0;
+    c.lowLoadS =
+      neededKW < minKW && c.chwInC - c.evapKW / (c.chwFlowLps * cpW) < c.setpointC - lowLoadStopK ? c.lowLoadS + dt : 0;
     if (c.lowLoadS >= 120) stop(p, c, env, sink, "low load: setpoint satisfied");
   } else {
     c.evapKW = 0;
@@ -187,7 +230,8 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
   let tau: number;
   if (c.running) {
     evapTarget = c.chwOutC - Math.max(0.2, p.evapApproachK * plr);
-    condTarget = c.cwOutC + Math.max(0.2, p.condApproachK * c.condFouling * (c.condKW / (p.ratedEvapKW + p.ratedInputKW)));
+    condTarget =
+      c.cwOutC + Math.max(0.2, p.condApproachK * c.condFouling * (c.condKW / (p.ratedEvapKW + p.ratedInputKW)));
     // After the loops have crossed, the refrigerant sits in the wrong shell and lift builds slowly.
     tau = 20 + 1200 * c.migration;
   } else {
@@ -207,7 +251,9 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
       tS,
       kind: "state",
       equipment: p.tag,
-      message: inverted ? "Refrigerant pressures inverted: evaporator above condenser (loops crossed), no motor/drive cooling feed" : "Refrigerant pressures normal again: condenser above evaporator",
+      message: inverted
+        ? "Refrigerant pressures inverted: evaporator above condenser (loops crossed), no motor/drive cooling feed"
+        : "Refrigerant pressures normal again: condenser above evaporator",
     });
   }
   if (!c.running) {

@@ -40,8 +40,16 @@ const usage = `Usage: npm run simulate -- [options]
 
 /** --protocol and the Sparkplug ids (zod at the boundary); --group-id / --edge-node-id are required only online. */
 const protocolArgsSchema = z.discriminatedUnion("protocol", [
-  z.object({ protocol: z.literal("json"), groupId: z.undefined({ error: "only with --protocol sparkplug" }), edgeNodeId: z.undefined({ error: "only with --protocol sparkplug" }) }),
-  z.object({ protocol: z.literal("sparkplug"), groupId: sparkplugIdSchema.optional(), edgeNodeId: sparkplugIdSchema.optional() }),
+  z.object({
+    protocol: z.literal("json"),
+    groupId: z.undefined({ error: "only with --protocol sparkplug" }),
+    edgeNodeId: z.undefined({ error: "only with --protocol sparkplug" }),
+  }),
+  z.object({
+    protocol: z.literal("sparkplug"),
+    groupId: sparkplugIdSchema.optional(),
+    edgeNodeId: sparkplugIdSchema.optional(),
+  }),
 ]);
 const flagOf: Record<string, string> = { protocol: "protocol", groupId: "group-id", edgeNodeId: "edge-node-id" };
 
@@ -87,13 +95,22 @@ function main(): void {
     return;
   }
   if (args.list) {
-    for (const s of Object.values(scenarios)) process.stdout.write(`scenario ${s.name} (${s.defaultDurationS / 3600} h): ${s.description}\n`);
-    for (const l of Object.values(siteLayouts)) process.stdout.write(`site ${l.site}: ${l.name}, ${l.chillers.map((c) => `${c.tag} ${c.capacityTons} t ${c.refrigerant}`).join(", ")}, ${l.airHandlers} AHUs\n`);
+    for (const s of Object.values(scenarios))
+      process.stdout.write(`scenario ${s.name} (${s.defaultDurationS / 3600} h): ${s.description}\n`);
+    for (const l of Object.values(siteLayouts))
+      process.stdout.write(
+        `site ${l.site}: ${l.name}, ${l.chillers.map((c) => `${c.tag} ${c.capacityTons} t ${c.refrigerant}`).join(", ")}, ${l.airHandlers} AHUs\n`,
+      );
     return;
   }
   const layout = getLayout(args.site) ?? fail(`unknown site "${args.site}"`);
-  const wire = protocolArgsSchema.safeParse({ protocol: args.protocol, groupId: args["group-id"], edgeNodeId: args["edge-node-id"] });
-  if (!wire.success) fail(wire.error.issues.map((i) => `--${flagOf[String(i.path[0])] ?? String(i.path[0])}: ${i.message}`).join("; "));
+  const wire = protocolArgsSchema.safeParse({
+    protocol: args.protocol,
+    groupId: args["group-id"],
+    edgeNodeId: args["edge-node-id"],
+  });
+  if (!wire.success)
+    fail(wire.error.issues.map((i) => `--${flagOf[String(i.path[0])] ?? String(i.path[0])}: ${i.message}`).join("; "));
   if (args["print-point-map"]) {
     process.stdout.write(wire.data.protocol === "sparkplug" ? sparkplugPointMapCsv(layout) : pointMapCsv(layout));
     return;
@@ -137,18 +154,27 @@ function main(): void {
       if (err.code === "EPIPE") process.exit(0);
       throw err;
     });
-    writeCsv(runScenario({ scenario: scenario.name, seed, startMs: start, durationS, stepS, sampleEveryS, layout }), layout, (chunk) => {
-      buf += chunk;
-      if (buf.length > 1 << 16) flush();
-    }, args.events);
+    writeCsv(
+      runScenario({ scenario: scenario.name, seed, startMs: start, durationS, stepS, sampleEveryS, layout }),
+      layout,
+      (chunk) => {
+        buf += chunk;
+        if (buf.length > 1 << 16) flush();
+      },
+      args.events,
+    );
     flush();
     return;
   }
 
   const username = args.username ?? process.env.LIFTLINE_GATEWAY_USERNAME;
   const password = args.password ?? process.env.LIFTLINE_GATEWAY_PASSWORD;
-  if (!username || !password) fail("online mode needs --username/--password (or LIFTLINE_GATEWAY_USERNAME / LIFTLINE_GATEWAY_PASSWORD), or use --offline");
-  if (wire.data.protocol === "sparkplug" && (!wire.data.groupId || !wire.data.edgeNodeId)) fail("--protocol sparkplug needs --group-id and --edge-node-id");
+  if (!username || !password)
+    fail(
+      "online mode needs --username/--password (or LIFTLINE_GATEWAY_USERNAME / LIFTLINE_GATEWAY_PASSWORD), or use --offline",
+    );
+  if (wire.data.protocol === "sparkplug" && (!wire.data.groupId || !wire.data.edgeNodeId))
+    fail("--protocol sparkplug needs --group-id and --edge-node-id");
   const gw = startSimulatedGateway({
     mqttUrl: args["mqtt-url"],
     username,
@@ -168,7 +194,9 @@ function main(): void {
   });
   const progress = setInterval(() => {
     const s = gw.status();
-    process.stderr.write(`[${s.gatewayId}] pass ${s.pass} ${new Date(s.simulatedMs).toISOString()} ${(100 * s.fractionDone).toFixed(1)} % (${s.published} messages)${s.connected ? "" : " (not connected)"}\n`);
+    process.stderr.write(
+      `[${s.gatewayId}] pass ${s.pass} ${new Date(s.simulatedMs).toISOString()} ${(100 * s.fractionDone).toFixed(1)} % (${s.published} messages)${s.connected ? "" : " (not connected)"}\n`,
+    );
     if (!s.running) void shutdown();
   }, 10_000);
   let stopping = false;

@@ -22,7 +22,9 @@ export function csvLinesOfSample(sample: RunSample, kindOf: Map<string, Equipmen
   for (const r of sample.readings) {
     const kind = kindOf.get(r.equipment);
     if (!kind) continue;
-    lines.push(`${ts},${pointName(r.equipment, kind, r.quantity)},${csvField(formatWireValue(r.quantity, r.value))},${wireUnitOf(r.quantity)}`);
+    lines.push(
+      `${ts},${pointName(r.equipment, kind, r.quantity)},${csvField(formatWireValue(r.quantity, r.value))},${wireUnitOf(r.quantity)}`,
+    );
   }
   return lines;
 }
@@ -32,7 +34,12 @@ export function equipmentKinds(layout: SiteLayout): Map<string, EquipmentKind> {
 }
 
 /** Write a whole run as CSV through `write` (chunked per sample so memory stays flat). */
-export function writeCsv(samples: Iterable<RunSample>, layout: SiteLayout, write: (chunk: string) => void, withEvents = false): void {
+export function writeCsv(
+  samples: Iterable<RunSample>,
+  layout: SiteLayout,
+  write: (chunk: string) => void,
+  withEvents = false,
+): void {
   const kinds = equipmentKinds(layout);
   write(csvHeader + "\n");
   for (const s of samples) {

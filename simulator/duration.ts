@@ -9,6 +9,7 @@ export function parseDurationS(text: string): number {
     total += Number(m[1]) * { d: 86400, h: 3600, m: 60, s: 1 }[m[2] as "d" | "h" | "m" | "s"];
     matched += m[0];
   }
-  if (matched.replace(/\s/g, "") !== t.replace(/\s/g, "") || matched === "") throw new Error(`cannot read duration "${text}" (use e.g. 3h, 90m, 1h30m, 600s)`);
+  if (matched.replace(/\s/g, "") !== t.replace(/\s/g, "") || matched === "")
+    throw new Error(`cannot read duration "${text}" (use e.g. 3h, 90m, 1h30m, 600s)`);
   return total;
 }

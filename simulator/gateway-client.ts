@@ -78,10 +78,15 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
   const scenario = getScenario(opts.scenario);
   const durationS = opts.durationS ?? scenario.defaultDurationS;
   if (!(opts.speed > 0)) throw new Error("speed must be > 0");
-  const topics = { readings: jsonTopics.readings(gatewayId), status: jsonTopics.status(gatewayId), commands: jsonTopics.commands(gatewayId) };
+  const topics = {
+    readings: jsonTopics.readings(gatewayId),
+    status: jsonTopics.status(gatewayId),
+    commands: jsonTopics.commands(gatewayId),
+  };
   const kinds = new Map<string, EquipmentKind>(equipmentOf(layout).map((e) => [e.tag, e.kind]));
   const protocol = opts.protocol ?? "json";
-  if (protocol === "sparkplug" && (!opts.groupId || !opts.edgeNodeId)) throw new Error("Sparkplug needs groupId and edgeNodeId");
+  if (protocol === "sparkplug" && (!opts.groupId || !opts.edgeNodeId))
+    throw new Error("Sparkplug needs groupId and edgeNodeId");
   // Sparkplug: the node's ids are checked with zod by SparkplugEdgeNode; it publishes through this client.
   const sp =
     protocol === "sparkplug"
@@ -128,10 +133,19 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
 
   const newPass = (startMs: number) => {
     pass += 1;
-    runner = new PlantRunner({ scenario: opts.scenario, seed: opts.seed + pass - 1, startMs, stepS: opts.stepS ?? 1, sampleEveryS: opts.sampleEveryS ?? 10, layout });
+    runner = new PlantRunner({
+      scenario: opts.scenario,
+      seed: opts.seed + pass - 1,
+      startMs,
+      stepS: opts.stepS ?? 1,
+      sampleEveryS: opts.sampleEveryS ?? 10,
+      layout,
+    });
     wall0 = now();
     sim0S = 0;
-    log(`[${gatewayId}] pass ${pass}: ${opts.scenario} from ${new Date(startMs).toISOString()} at ${opts.speed}× (${durationS} s)`);
+    log(
+      `[${gatewayId}] pass ${pass}: ${opts.scenario} from ${new Date(startMs).toISOString()} at ${opts.speed}× (${durationS} s)`,
+    );
   };
   const firstStartMs = opts.startMs ?? Math.floor(now() + (durationS / opts.speed) * 1000 - durationS * 1000);
   newPass(firstStartMs);
@@ -146,10 +160,20 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
     for (const s of samples) {
       for (const e of s.events) record(e);
       const ts = new Date(s.tsMs).toISOString();
-      for (const r of s.readings) readings.push({ point: pointName(r.equipment, kinds.get(r.equipment)!, r.quantity), value: wireValue(r.quantity, r.value), ts, quality: "good" });
+      for (const r of s.readings)
+        readings.push({
+          point: pointName(r.equipment, kinds.get(r.equipment)!, r.quantity),
+          value: wireValue(r.quantity, r.value),
+          ts,
+          quality: "good",
+        });
     }
     for (let i = 0; i < readings.length; i += maxReadingsPerMessage) {
-      const body = JSON.stringify({ seq: seq++, sentAt: new Date(now()).toISOString(), readings: readings.slice(i, i + maxReadingsPerMessage) });
+      const body = JSON.stringify({
+        seq: seq++,
+        sentAt: new Date(now()).toISOString(),
+        readings: readings.slice(i, i + maxReadingsPerMessage),
+      });
       client.publish(topics.readings, body, { qos: 1 }, (err) => {
         if (err) log(`[${gatewayId}] publish failed: ${err.message}`);
       });
@@ -186,7 +210,9 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
 
   client.on("connect", () => {
     connected = true;
-    log(`[${gatewayId}] connected to ${opts.mqttUrl}${sp ? ` as Sparkplug edge node ${sp.groupId}/${sp.edgeNodeId} (bdSeq ${sp.bdSeq})` : ""}`);
+    log(
+      `[${gatewayId}] connected to ${opts.mqttUrl}${sp ? ` as Sparkplug edge node ${sp.groupId}/${sp.edgeNodeId} (bdSeq ${sp.bdSeq})` : ""}`,
+    );
     if (sp) {
       client.subscribe(sp.commandTopics, { qos: 1 }, (err) => {
         if (err) log(`[${gatewayId}] subscribe failed: ${err.message}`);
@@ -213,7 +239,12 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
   client.on("error", (err) => log(`[${gatewayId}] mqtt error: ${err.message}`));
   const applyAction = (id: string | undefined, action: DrillAction) => {
     if (!running) {
-      record({ tsMs: runner.startMs + runner.tS * 1000, kind: "action-refused", equipment: action.equipment, message: "Command refused: the scenario has finished" });
+      record({
+        tsMs: runner.startMs + runner.tS * 1000,
+        kind: "action-refused",
+        equipment: action.equipment,
+        message: "Command refused: the scenario has finished",
+      });
       return;
     }
     log(`[${gatewayId}] command${id ? ` ${id}` : ""}: ${JSON.stringify(action)}`);
@@ -224,7 +255,13 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
     if (sp) {
       for (const o of sp.handleCommand(topic, payload)) {
         if (o.kind === "rebirth") log(`[${gatewayId}] rebirth requested (NCMD Node Control/Rebirth)`);
-        else if (o.kind === "refused") record({ tsMs: runner.startMs + runner.tS * 1000, kind: "action-refused", equipment: o.equipment, message: o.message });
+        else if (o.kind === "refused")
+          record({
+            tsMs: runner.startMs + runner.tS * 1000,
+            kind: "action-refused",
+            equipment: o.equipment,
+            message: o.message,
+          });
         else if (o.kind === "action") applyAction(undefined, o.action);
       }
       return;
@@ -234,12 +271,22 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
     try {
       parsed = JSON.parse(payload.toString("utf8"));
     } catch {
-      record({ tsMs: runner.startMs + runner.tS * 1000, kind: "action-refused", equipment: null, message: "Command refused: not JSON" });
+      record({
+        tsMs: runner.startMs + runner.tS * 1000,
+        kind: "action-refused",
+        equipment: null,
+        message: "Command refused: not JSON",
+      });
       return;
     }
     const result = drillCommandSchema.safeParse(parsed);
     if (!result.success) {
-      record({ tsMs: runner.startMs + runner.tS * 1000, kind: "action-refused", equipment: null, message: `Command refused: ${result.error.issues.map((i) => `${i.path.join(".") || "command"}: ${i.message}`).join("; ")}` });
+      record({
+        tsMs: runner.startMs + runner.tS * 1000,
+        kind: "action-refused",
+        equipment: null,
+        message: `Command refused: ${result.error.issues.map((i) => `${i.path.join(".") || "command"}: ${i.message}`).join("; ")}`,
+      });
       return;
     }
     const { id, action } = actionOfCommand(result.data);
@@ -252,9 +299,13 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
       clearInterval(timer);
       if (connected && sp) {
         // Sparkplug B 3.0 §5.5 [tck-id-operational-behavior-edge-node-intentional-disconnect-ndeath]: NDEATH, then DISCONNECT.
-        await new Promise<void>((resolve) => client.publish(sp.topic("NDEATH"), sp.deathPayload(), { qos: 1, retain: false }, () => resolve()));
+        await new Promise<void>((resolve) =>
+          client.publish(sp.topic("NDEATH"), sp.deathPayload(), { qos: 1, retain: false }, () => resolve()),
+        );
       } else if (connected) {
-        await new Promise<void>((resolve) => client.publish(topics.status, "offline", { qos: 1, retain: true }, () => resolve()));
+        await new Promise<void>((resolve) =>
+          client.publish(topics.status, "offline", { qos: 1, retain: true }, () => resolve()),
+        );
       }
       await client.endAsync();
     },

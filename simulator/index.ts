@@ -5,7 +5,33 @@ export { runScenario, runPlant, warmedUpState, type RunScenarioOptions, type Run
 export { step, initialState, type InitialConditions } from "./plant";
 export type { PlantState, StepInputs, StepResult, PlantCommand, ModelEvent, FaultEntry } from "./state";
 export { scenarios, scenarioNames, getScenario, powerBlipRightActions, type Scenario } from "./scenarios";
-export { siteLayouts, defaultLayout, getLayout, threeChillerLayout, equipmentOf, plantTons, type SiteLayout, type ChillerSpec, type EquipmentDef } from "./layout";
-export { drillActionSchema, drillCommandSchema, actionOfCommand, timerLimits, type DrillAction, type DrillCommand } from "./actions-schema";
-export { pointMapRows, pointMapCsv, pointName, toWire, fromWire, wireUnitOf, wireValue, formatWireValue } from "./points";
+export {
+  siteLayouts,
+  defaultLayout,
+  getLayout,
+  threeChillerLayout,
+  equipmentOf,
+  plantTons,
+  type SiteLayout,
+  type ChillerSpec,
+  type EquipmentDef,
+} from "./layout";
+export {
+  drillActionSchema,
+  drillCommandSchema,
+  actionOfCommand,
+  timerLimits,
+  type DrillAction,
+  type DrillCommand,
+} from "./actions-schema";
+export {
+  pointMapRows,
+  pointMapCsv,
+  pointName,
+  toWire,
+  fromWire,
+  wireUnitOf,
+  wireValue,
+  formatWireValue,
+} from "./points";
 export type { PointMapRow } from "@/lib/point-map-csv";

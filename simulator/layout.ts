@@ -58,7 +58,14 @@ export const ahriDesign: DesignConditions = {
   peakLoadFraction: 0.9,
 };
 
-function layout(site: string, name: string, chillers: Array<[number, Refrigerant]>, airHandlers: number, loadProfile: LoadProfile, peak = 0.9): SiteLayout {
+function layout(
+  site: string,
+  name: string,
+  chillers: Array<[number, Refrigerant]>,
+  airHandlers: number,
+  loadProfile: LoadProfile,
+  peak = 0.9,
+): SiteLayout {
   return {
     site,
     name,
@@ -72,17 +79,56 @@ function layout(site: string, name: string, chillers: Array<[number, Refrigerant
   };
 }
 
-export const defaultLayout: SiteLayout = layout("default", "Two-chiller plant", [[400, "R-134a"], [400, "R-134a"]], 4, "office");
+export const defaultLayout: SiteLayout = layout(
+  "default",
+  "Two-chiller plant",
+  [
+    [400, "R-134a"],
+    [400, "R-134a"],
+  ],
+  4,
+  "office",
+);
 
 export const siteLayouts: Record<string, SiteLayout> = {
   default: defaultLayout,
   "medical-office": layout("medical-office", "Medical office building", [[300, "R-134a"]], 3, "office", 0.9),
-  "data-hall": layout("data-hall", "Data hall", [[500, "R-134a"], [500, "R-1234ze(E)"]], 6, "constant", 0.85),
-  school: layout("school", "School", [[250, "R-134a"], [250, "R-513A"]], 4, "school", 0.9),
+  "data-hall": layout(
+    "data-hall",
+    "Data hall",
+    [
+      [500, "R-134a"],
+      [500, "R-1234ze(E)"],
+    ],
+    6,
+    "constant",
+    0.85,
+  ),
+  school: layout(
+    "school",
+    "School",
+    [
+      [250, "R-134a"],
+      [250, "R-513A"],
+    ],
+    4,
+    "school",
+    0.9,
+  ),
 };
 
 export function threeChillerLayout(): SiteLayout {
-  return layout("three-chiller", "Three-chiller plant", [[500, "R-134a"], [500, "R-134a"], [500, "R-134a"]], 6, "office");
+  return layout(
+    "three-chiller",
+    "Three-chiller plant",
+    [
+      [500, "R-134a"],
+      [500, "R-134a"],
+      [500, "R-134a"],
+    ],
+    6,
+    "office",
+  );
 }
 
 export function getLayout(site: string): SiteLayout | undefined {
@@ -98,11 +144,18 @@ export const weatherStationTag = "WS-1";
 /** Every piece of equipment of a site, in a stable order. Pumps are dedicated: one CHW and one CW pump per chiller. */
 export function equipmentOf(l: SiteLayout): EquipmentDef[] {
   const out: EquipmentDef[] = [];
-  l.chillers.forEach((c) => out.push({ tag: c.tag, kind: "chiller", name: `Chiller ${c.tag.slice(3)} (${c.capacityTons} tons, ${c.refrigerant})` }));
+  l.chillers.forEach((c) =>
+    out.push({
+      tag: c.tag,
+      kind: "chiller",
+      name: `Chiller ${c.tag.slice(3)} (${c.capacityTons} tons, ${c.refrigerant})`,
+    }),
+  );
   out.push({ tag: towerTag, kind: "cooling_tower", name: "Cooling tower" });
   l.chillers.forEach((_, i) => out.push({ tag: chwPumpTag(i), kind: "pump", name: `Chilled water pump ${i + 1}` }));
   l.chillers.forEach((_, i) => out.push({ tag: cwPumpTag(i), kind: "pump", name: `Condenser water pump ${i + 1}` }));
-  for (let i = 0; i < l.airHandlers; i++) out.push({ tag: ahuTag(i), kind: "air_handler", name: `Air handler ${i + 1}` });
+  for (let i = 0; i < l.airHandlers; i++)
+    out.push({ tag: ahuTag(i), kind: "air_handler", name: `Air handler ${i + 1}` });
   out.push({ tag: weatherStationTag, kind: "weather_station", name: "Weather station" });
   return out;
 }

@@ -2,7 +2,16 @@
 import { plantTons, type SiteLayout } from "./layout";
 import type { ChillerParams, PlantParams } from "./state";
 import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
-import { deltaFToDeltaK, fToC, galToL, gpmToLps, KPA_PER_PSI, KW_PER_TON, psigToKpaAbs, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
+import {
+  deltaFToDeltaK,
+  fToC,
+  galToL,
+  gpmToLps,
+  KPA_PER_PSI,
+  KW_PER_TON,
+  psigToKpaAbs,
+  WATER_HEAT_CAPACITY_KJ_PER_LK as cpW,
+} from "@/lib/plant/units";
 
 /** Evaporator and condenser refrigerant approaches at full load: 1.5 °F and 2 °F (common practice for modern centrifugal chillers). */
 export const evapApproachDesignF = 1.5;
@@ -31,7 +40,11 @@ export function chillerParamsOf(layout: SiteLayout): ChillerParams[] {
     const chwDesignLps = gpmToLps(d.chwGpmPerTon * c.capacityTons);
     const cwDesignLps = gpmToLps(d.cwGpmPerTon * c.capacityTons);
     const cwRangeK = (ratedEvapKW + ratedInputKW) / (cwDesignLps * cpW);
-    const designLiftK = fToC(d.cwEnteringF) + cwRangeK + deltaFToDeltaK(condApproachDesignF) - (fToC(d.chwSupplyF) - deltaFToDeltaK(evapApproachDesignF));
+    const designLiftK =
+      fToC(d.cwEnteringF) +
+      cwRangeK +
+      deltaFToDeltaK(condApproachDesignF) -
+      (fToC(d.chwSupplyF) - deltaFToDeltaK(evapApproachDesignF));
     const driveLossKW = driveLossFraction * ratedInputKW;
     return {
       tag: c.tag,
@@ -48,7 +61,10 @@ export function chillerParamsOf(layout: SiteLayout): ChillerParams[] {
       driveLossKW,
       driveHeatCapKJPerK: (driveLossKW * 0.85 * 60) / uncooledDriveRiseKPerMin,
       // The cut-out is set per refrigerant at the condensing temperature R-134a has at the layout's psig setting.
-      highCondTripKPa: saturationPressureKPa(c.refrigerant, saturationTempC("R-134a", psigToKpaAbs(layout.highCondPressureTripPsig))),
+      highCondTripKPa: saturationPressureKPa(
+        c.refrigerant,
+        saturationTempC("R-134a", psigToKpaAbs(layout.highCondPressureTripPsig)),
+      ),
       condShellKJPerK: galToL(condShellGalPerTon * c.capacityTons) * cpW,
     };
   });

@@ -29,7 +29,12 @@ export interface InitialConditions {
   handHz?: number;
 }
 
-export function initialState(layout: SiteLayout, seed: number, inputs: StepInputs, init: InitialConditions = {}): PlantState {
+export function initialState(
+  layout: SiteLayout,
+  seed: number,
+  inputs: StepInputs,
+  init: InitialConditions = {},
+): PlantState {
   const params = plantParamsOf(layout);
   const sp = init.chwSetpointC ?? fToC(layout.design.chwSupplyF);
   const wb = wetBulbC(inputs.dryBulbC, inputs.rhPct);
@@ -100,7 +105,14 @@ export function initialState(layout: SiteLayout, seed: number, inputs: StepInput
     },
     chwPumps: params.chillers.map(() => ({ running: false, tripped: false, speedPct: 0 })),
     cwPumps: params.chillers.map(() => ({ running: false, tripped: false, speedPct: 0 })),
-    ahus: params.ahuDesignKW.map(() => ({ override: "auto" as const, running: false, demandKW: 0, loadKW: 0, valvePct: 0, noise: 1 })),
+    ahus: params.ahuDesignKW.map(() => ({
+      override: "auto" as const,
+      running: false,
+      demandKW: 0,
+      loadKW: 0,
+      valvePct: 0,
+      noise: 1,
+    })),
     stageCount: 1,
     stageUpS: 0,
     stageDownS: 0,
@@ -130,7 +142,12 @@ function applyCommand(s: PlantState, cmd: PlantCommand, events: ModelEvent[]): v
       const wi = s.params.chillers.findIndex((_, i) => cwPumpTag(i) === cmd.equipment);
       if (ci >= 0) s.chwPumps = s.chwPumps.map((p, i) => (i === ci ? { ...p, tripped: trip } : p));
       if (wi >= 0) s.cwPumps = s.cwPumps.map((p, i) => (i === wi ? { ...p, tripped: trip } : p));
-      events.push({ tS, kind: trip ? "fault" : "scenario", equipment: cmd.equipment, message: trip ? `Pump tripped: ${cmd.reason}` : "Pump overload reset" });
+      events.push({
+        tS,
+        kind: trip ? "fault" : "scenario",
+        equipment: cmd.equipment,
+        message: trip ? `Pump tripped: ${cmd.reason}` : "Pump overload reset",
+      });
       return;
     }
     case "condenser-fouling": {
@@ -154,7 +171,10 @@ function stage(s: PlantState, dt: number): void {
     running.every((c, k) => {
       const i = s.chillers.indexOf(running[k]);
       const p = s.params.chillers[i];
-      return c.evapKW >= 0.95 * p.ratedEvapKW * Math.min(c.loadCeiling, liftCapacityFraction(c.condSatC - c.evapSatC, p.designLiftK));
+      return (
+        c.evapKW >=
+        0.95 * p.ratedEvapKW * Math.min(c.loadCeiling, liftCapacityFraction(c.condSatC - c.evapSatC, p.designLiftK))
+      );
     });
   s.stageUpS = allLoaded && s.chwSupplyC > sp + 0.56 && s.stageCount < enabled.length ? s.stageUpS + dt : 0;
   if (s.stageUpS >= stageUpDelayS) {
@@ -220,7 +240,22 @@ export function step(state: PlantState, inputs: StepInputs, dt: number): StepRes
   const sink = { events, faults };
   s.chillers = s.chillers.map((c0, i) => {
     const c = { ...c0 };
-    stepChiller(p.chillers[i], c, { tS: s.tS, dt, chwInC: s.chwReturnC, cwInC: s.basinC, chwPumpOn: s.chwPumps[i].running, cwPumpOn: s.cwPumps[i].running, powerOk, powerJustRestored, roomC: p.roomC }, sink);
+    stepChiller(
+      p.chillers[i],
+      c,
+      {
+        tS: s.tS,
+        dt,
+        chwInC: s.chwReturnC,
+        cwInC: s.basinC,
+        chwPumpOn: s.chwPumps[i].running,
+        cwPumpOn: s.cwPumps[i].running,
+        powerOk,
+        powerJustRestored,
+        roomC: p.roomC,
+      },
+      sink,
+    );
     return c;
   });
 
@@ -241,7 +276,8 @@ export function step(state: PlantState, inputs: StepInputs, dt: number): StepRes
     a.demandKW = a.running ? Math.max(0, p.ahuDesignKW[i] * inputs.loadFraction * a.noise) : 0;
     // Coil capacity falls as the supply water warms toward the air entering the coil.
     const designSpan = inputs.coilAirC - fToC(44);
-    const capKW = flow > 0 ? (p.ahuDesignKW[i] * 1.1 * Math.max(0, inputs.coilAirC - s.chwSupplyC)) / Math.max(designSpan, 1) : 0;
+    const capKW =
+      flow > 0 ? (p.ahuDesignKW[i] * 1.1 * Math.max(0, inputs.coilAirC - s.chwSupplyC)) / Math.max(designSpan, 1) : 0;
     a.loadKW = Math.min(a.demandKW, capKW);
     a.valvePct = !a.running || a.demandKW <= 0 ? 0 : capKW <= 0 ? 100 : Math.min(100, (100 * a.demandKW) / capKW);
     ahuKW += a.loadKW;
@@ -267,7 +303,12 @@ export function step(state: PlantState, inputs: StepInputs, dt: number): StepRes
   }
   const towerIn = cwFlow > 0 ? cwMixed / cwFlow : s.tower.inC;
   const tower = { ...s.tower };
-  stepTower(p, tower, { tS: s.tS, dt, inC: towerIn, basinC: s.basinC, flowLps: cwFlow, wetBulbC: s.wetBulbC, powerOk }, sink);
+  stepTower(
+    p,
+    tower,
+    { tS: s.tS, dt, inC: towerIn, basinC: s.basinC, flowLps: cwFlow, wetBulbC: s.wetBulbC, powerOk },
+    sink,
+  );
   s.tower = tower;
   if (cwFlow > 0) s.basinC += (tower.outC - s.basinC) * exp1(dt, p.cwLoopL / cwFlow);
   else s.basinC += (Math.max(s.wetBulbC + 2, fToC(34)) - s.basinC) * exp1(dt, 4 * 3600);

@@ -71,13 +71,19 @@ export function wireUnitOf(quantity: QuantityKey): WireUnitCode {
 export function pointMapRows(layout: SiteLayout): PointMapRow[] {
   const rows: PointMapRow[] = [];
   for (const eq of equipmentOf(layout)) {
-    for (const q of pointsByKind[eq.kind]) rows.push({ gateway_point: pointName(eq.tag, eq.kind, q), equipment: eq.tag, quantity: q, unit: wireUnitOf(q) });
+    for (const q of pointsByKind[eq.kind])
+      rows.push({ gateway_point: pointName(eq.tag, eq.kind, q), equipment: eq.tag, quantity: q, unit: wireUnitOf(q) });
   }
   return rows;
 }
 
 export function pointMapCsv(layout: SiteLayout): string {
-  return ["gateway_point,equipment,quantity,unit", ...pointMapRows(layout).map((r) => `${r.gateway_point},${r.equipment},${r.quantity},${r.unit}`)].join("\n") + "\n";
+  return (
+    [
+      "gateway_point,equipment,quantity,unit",
+      ...pointMapRows(layout).map((r) => `${r.gateway_point},${r.equipment},${r.quantity},${r.unit}`),
+    ].join("\n") + "\n"
+  );
 }
 
 type Value = number | boolean | string;

@@ -17,7 +17,8 @@ const noise = { tempK: 0.03, pressKPa: 0.4, flowFrac: 0.003, powerFrac: 0.003, d
 
 export function plantReadings(s: PlantState, tsMs: number, rng: Rng): CanonicalReading[] {
   const out: CanonicalReading[] = [];
-  const add = (equipment: string, quantity: QuantityKey, value: number | boolean | string) => out.push({ tsMs, equipment, quantity, value });
+  const add = (equipment: string, quantity: QuantityKey, value: number | boolean | string) =>
+    out.push({ tsMs, equipment, quantity, value });
   const temp = (v: number) => v + noise.tempK * rng.normal();
   const frac = (v: number, f: number) => v * (1 + f * rng.normal());
 

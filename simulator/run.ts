@@ -56,7 +56,12 @@ export function warmedUpState(sc: Scenario, layout: SiteLayout, seed: number): P
     rng: seedState(seed + 1),
     powerDownUntilS: -1,
     faultLog: [],
-    chillers: s.chillers.map((c) => ({ ...c, lastStartS: c.lastStartS - shift - 3600, lastStopS: c.lastStopS - shift - 3600, driveFaultUntilS: -1 })),
+    chillers: s.chillers.map((c) => ({
+      ...c,
+      lastStartS: c.lastStartS - shift - 3600,
+      lastStopS: c.lastStopS - shift - 3600,
+      driveFaultUntilS: -1,
+    })),
   };
 }
 
@@ -91,7 +96,10 @@ export class PlantRunner {
     this.startMs = opts.startMs;
     this.timed = [
       ...this.scenario.script(this.layout).map((e) => ({ atS: e.atS, command: e.command })),
-      ...(opts.actions ?? []).map((a) => ({ atS: a.atS, command: { kind: "drill", action: a.action, source: "operator" } as PlantCommand })),
+      ...(opts.actions ?? []).map((a) => ({
+        atS: a.atS,
+        command: { kind: "drill", action: a.action, source: "operator" } as PlantCommand,
+      })),
     ].sort((a, b) => a.atS - b.atS);
     this.sensorRng = new Rng(seedState(opts.seed * 7919 + 13));
     this.state = warmedUpState(this.scenario, this.layout, opts.seed);
@@ -119,14 +127,20 @@ export class PlantRunner {
       const tS = this.state.tS;
       if (tS >= this.nextSampleS - 1e-9) {
         const tsMs = this.startMs + Math.round(tS * 1000);
-        onSample({ tsMs, readings: plantReadings(this.state, tsMs, this.sensorRng), events: this.pending, state: this.state });
+        onSample({
+          tsMs,
+          readings: plantReadings(this.state, tsMs, this.sensorRng),
+          events: this.pending,
+          state: this.state,
+        });
         this.pending = [];
         this.nextSampleS += this.sampleEveryS;
       }
       const dt = Math.min(this.stepS, untilS - tS);
       if (dt <= 1e-9) return;
       const commands: PlantCommand[] = [];
-      while (this.nextTimed < this.timed.length && this.timed[this.nextTimed].atS < tS + dt - 1e-9) commands.push(this.timed[this.nextTimed++].command);
+      while (this.nextTimed < this.timed.length && this.timed[this.nextTimed].atS < tS + dt - 1e-9)
+        commands.push(this.timed[this.nextTimed++].command);
       const r = step(this.state, inputsAt(this.scenario, this.layout, tS, commands), dt);
       this.state = r.state;
       for (const e of r.events) this.pending.push(this.toSim(e));
@@ -153,7 +167,8 @@ export function* runPlant(opts: RunScenarioOptions): Generator<RunSample & { sta
   runner.advanceTo(opts.durationS, (s) => buffer.push(s));
   yield* buffer.splice(0);
   const rest = runner.flushEvents();
-  if (rest.length > 0) yield { tsMs: runner.startMs + Math.round(runner.tS * 1000), readings: [], events: rest, state: runner.state };
+  if (rest.length > 0)
+    yield { tsMs: runner.startMs + Math.round(runner.tS * 1000), readings: [], events: rest, state: runner.state };
 }
 
 /** The contract other modules code against: canonical SI readings by equipment tag and quantity key. */

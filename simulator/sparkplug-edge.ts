@@ -60,7 +60,14 @@ export function sparkplugCatalog(layout: SiteLayout): SparkplugCatalog {
   const byAlias = new Map<number, SparkplugMetricDef>();
   let alias = 0;
   for (const eq of equipmentOf(layout)) {
-    const metrics = pointsByKind[eq.kind].map((q) => ({ device: eq.tag, name: pointName(eq.tag, eq.kind, q), alias: ++alias, quantity: q, kind: eq.kind, type: dataTypeOf(q) }));
+    const metrics = pointsByKind[eq.kind].map((q) => ({
+      device: eq.tag,
+      name: pointName(eq.tag, eq.kind, q),
+      alias: ++alias,
+      quantity: q,
+      kind: eq.kind,
+      type: dataTypeOf(q),
+    }));
     for (const m of metrics) {
       byKey.set(`${m.device}/${m.name}`, m);
       byAlias.set(m.alias, m);
@@ -72,7 +79,9 @@ export function sparkplugCatalog(layout: SiteLayout): SparkplugCatalog {
 
 /** The host maps device metrics as `{deviceId}/{metric}` (gateway/PROTOCOL.md), so the Sparkplug point map is the JSON one with the device in front. */
 export function sparkplugPointMapCsv(layout: SiteLayout): string {
-  const rows = pointMapRows(layout).map((r) => `${r.equipment}/${r.gateway_point},${r.equipment},${r.quantity},${r.unit}`);
+  const rows = pointMapRows(layout).map(
+    (r) => `${r.equipment}/${r.gateway_point},${r.equipment},${r.quantity},${r.unit}`,
+  );
   return ["gateway_point,equipment,quantity,unit", ...rows].join("\n") + "\n";
 }
 
@@ -111,7 +120,8 @@ const commandMetricSchema = z.object({
 function toNumber(v: unknown): number | undefined {
   if (typeof v === "number") return v;
   if (typeof v === "bigint") return Number(v);
-  if (v && typeof v === "object" && "toNumber" in v && typeof (v as { toNumber: unknown }).toNumber === "function") return (v as { toNumber(): number }).toNumber();
+  if (v && typeof v === "object" && "toNumber" in v && typeof (v as { toNumber: unknown }).toNumber === "function")
+    return (v as { toNumber(): number }).toNumber();
   return undefined;
 }
 
@@ -148,7 +158,10 @@ export class SparkplugEdgeNode {
     return this.birthDue;
   }
 
-  topic(type: "NBIRTH" | "NDEATH" | "NDATA" | "NCMD" | "DBIRTH" | "DDATA" | "DDEATH" | "DCMD", device?: string): string {
+  topic(
+    type: "NBIRTH" | "NDEATH" | "NDATA" | "NCMD" | "DBIRTH" | "DDATA" | "DDEATH" | "DCMD",
+    device?: string,
+  ): string {
     // Sparkplug B 3.0 §4.1.1: namespace/group_id/message_type/edge_node_id[/device_id]
     return `${SPARKPLUG_NAMESPACE}/${this.groupId}/${type}/${this.edgeNodeId}${device ? `/${device}` : ""}`;
   }
@@ -160,7 +173,12 @@ export class SparkplugEdgeNode {
 
   /** NDEATH: bdSeq only, no seq (Sparkplug B 3.0 §6 [tck-id-payloads-ndeath-seq], [tck-id-payloads-ndeath-bdseq]). */
   deathPayload(): Buffer {
-    return Buffer.from(codec.encodePayload({ timestamp: this.opts.now(), metrics: [{ name: "bdSeq", type: "Int64", value: this.bdSeqValue }] }));
+    return Buffer.from(
+      codec.encodePayload({
+        timestamp: this.opts.now(),
+        metrics: [{ name: "bdSeq", type: "Int64", value: this.bdSeqValue }],
+      }),
+    );
   }
 
   /** The will of the next CONNECT: NDEATH, QoS 1, not retained (Sparkplug B 3.0 §6 [tck-id-payloads-ndeath-will-message-qos], [-retain]). */
@@ -190,7 +208,9 @@ export class SparkplugEdgeNode {
 
   private absorb(sample: RunSample): void {
     for (const r of sample.readings) {
-      const def = this.catalog.byKey.get(`${r.equipment}/${pointName(r.equipment, this.kindOf(r.equipment), r.quantity)}`);
+      const def = this.catalog.byKey.get(
+        `${r.equipment}/${pointName(r.equipment, this.kindOf(r.equipment), r.quantity)}`,
+      );
       if (def) this.last.set(def.alias, { value: wireValue(r.quantity, r.value), tsMs: sample.tsMs });
     }
   }
@@ -223,7 +243,11 @@ export class SparkplugEdgeNode {
         const v = this.last.get(m.alias)!;
         return { name: m.name, alias: m.alias, type: m.type, value: v.value, timestamp: v.tsMs };
       });
-      this.opts.publish({ topic: this.topic("DBIRTH", d.id), payload: Buffer.from(codec.encodePayload({ timestamp: sentAt, seq: this.takeSeq(), metrics })), qos: 0 });
+      this.opts.publish({
+        topic: this.topic("DBIRTH", d.id),
+        payload: Buffer.from(codec.encodePayload({ timestamp: sentAt, seq: this.takeSeq(), metrics })),
+        qos: 0,
+      });
     }
     this.birthDue = false;
   }
@@ -263,7 +287,17 @@ export class SparkplugEdgeNode {
         }
       }
       for (let i = 0; i < metrics.length; i += this.maxMetrics) {
-        this.opts.publish({ topic: this.topic("DDATA", d.id), payload: Buffer.from(codec.encodePayload({ timestamp: sentAt, seq: this.takeSeq(), metrics: metrics.slice(i, i + this.maxMetrics) })), qos: 0 });
+        this.opts.publish({
+          topic: this.topic("DDATA", d.id),
+          payload: Buffer.from(
+            codec.encodePayload({
+              timestamp: sentAt,
+              seq: this.takeSeq(),
+              metrics: metrics.slice(i, i + this.maxMetrics),
+            }),
+          ),
+          qos: 0,
+        });
         published += 1;
       }
     }
@@ -275,12 +309,24 @@ export class SparkplugEdgeNode {
     const parts = topic.split("/");
     const type = parts[2];
     const device = parts[4];
-    if (parts[0] !== SPARKPLUG_NAMESPACE || parts[1] !== this.groupId || parts[3] !== this.edgeNodeId || (type !== "NCMD" && type !== "DCMD")) return [{ kind: "ignored" }];
+    if (
+      parts[0] !== SPARKPLUG_NAMESPACE ||
+      parts[1] !== this.groupId ||
+      parts[3] !== this.edgeNodeId ||
+      (type !== "NCMD" && type !== "DCMD")
+    )
+      return [{ kind: "ignored" }];
     let decoded: Payload;
     try {
       decoded = codec.decodePayload(new Uint8Array(payload));
     } catch {
-      return [{ kind: "refused", equipment: device ?? null, message: `Command refused: ${type} is not a Sparkplug B payload` }];
+      return [
+        {
+          kind: "refused",
+          equipment: device ?? null,
+          message: `Command refused: ${type} is not a Sparkplug B payload`,
+        },
+      ];
     }
     const metrics: Array<z.infer<typeof commandMetricSchema>> = [];
     for (const raw of decoded.metrics ?? []) {
@@ -294,20 +340,40 @@ export class SparkplugEdgeNode {
         this.birthDue = true;
         return [{ kind: "rebirth" }];
       }
-      return [{ kind: "refused", equipment: null, message: `Command refused: NCMD ${metrics.map((m) => m.name ?? "?").join(", ") || "(no metrics)"} not supported` }];
+      return [
+        {
+          kind: "refused",
+          equipment: null,
+          message: `Command refused: NCMD ${metrics.map((m) => m.name ?? "?").join(", ") || "(no metrics)"} not supported`,
+        },
+      ];
     }
-    if (!device || !this.catalog.devices.some((d) => d.id === device)) return [{ kind: "refused", equipment: device ?? null, message: `Command refused: unknown device "${device ?? ""}"` }];
+    if (!device || !this.catalog.devices.some((d) => d.id === device))
+      return [
+        { kind: "refused", equipment: device ?? null, message: `Command refused: unknown device "${device ?? ""}"` },
+      ];
     // Resolve each written metric by name or alias (Sparkplug B 3.0 §6: commands may use the birth's aliases).
     const writes = new Map<QuantityKey, unknown>();
     const out: CommandOutcome[] = [];
     for (const m of metrics) {
       const alias = toNumber(m.alias);
-      const def = m.name ? this.catalog.byKey.get(`${device}/${m.name}`) : alias !== undefined ? this.catalog.byAlias.get(alias) : undefined;
+      const def = m.name
+        ? this.catalog.byKey.get(`${device}/${m.name}`)
+        : alias !== undefined
+          ? this.catalog.byAlias.get(alias)
+          : undefined;
       if (!def || def.device !== device) {
-        out.push({ kind: "refused", equipment: device, message: `Command refused: ${device} has no metric ${m.name ?? `alias ${String(alias)}`}` });
+        out.push({
+          kind: "refused",
+          equipment: device,
+          message: `Command refused: ${device} has no metric ${m.name ?? `alias ${String(alias)}`}`,
+        });
         continue;
       }
-      writes.set(def.quantity, typeof m.value === "boolean" || typeof m.value === "string" ? m.value : (toNumber(m.value) ?? m.value));
+      writes.set(
+        def.quantity,
+        typeof m.value === "boolean" || typeof m.value === "string" ? m.value : (toNumber(m.value) ?? m.value),
+      );
     }
     for (const r of drillActionsOfWrites(device, this.kindOf(device), writes)) out.push(r);
     return out;
@@ -318,23 +384,56 @@ export class SparkplugEdgeNode {
  * DCMD writes → drill actions. Writable: CT-1 FAN-MODE (with FAN-HZ for hand) and FAN-FLT=false (reset);
  * chillers ENABLE, ALARM=false (reset), STS-TMR / SPS-TMR (seconds); air handlers RUN. Checked with zod.
  */
-export function drillActionsOfWrites(device: string, kind: EquipmentKind, writes: Map<QuantityKey, unknown>): CommandOutcome[] {
+export function drillActionsOfWrites(
+  device: string,
+  kind: EquipmentKind,
+  writes: Map<QuantityKey, unknown>,
+): CommandOutcome[] {
   const out: CommandOutcome[] = [];
   const push = (candidate: unknown) => {
     const r = drillActionSchema.safeParse(candidate);
     if (r.success) out.push({ kind: "action", action: r.data, device });
-    else out.push({ kind: "refused", equipment: device, message: `Command refused: ${r.error.issues.map((i) => `${i.path.join(".") || "value"}: ${i.message}`).join("; ")}` });
+    else
+      out.push({
+        kind: "refused",
+        equipment: device,
+        message: `Command refused: ${r.error.issues.map((i) => `${i.path.join(".") || "value"}: ${i.message}`).join("; ")}`,
+      });
   };
   for (const [q, value] of writes) {
-    if (kind === "cooling_tower" && q === "fan_drive_mode") push({ type: "set-fan-drive-mode", equipment: device, mode: value, ...(writes.has("fan_drive_frequency") ? { handHz: writes.get("fan_drive_frequency") } : {}) });
+    if (kind === "cooling_tower" && q === "fan_drive_mode")
+      push({
+        type: "set-fan-drive-mode",
+        equipment: device,
+        mode: value,
+        ...(writes.has("fan_drive_frequency") ? { handHz: writes.get("fan_drive_frequency") } : {}),
+      });
     else if (kind === "cooling_tower" && q === "fan_drive_frequency") {
-      if (!writes.has("fan_drive_mode")) out.push({ kind: "refused", equipment: device, message: "Command refused: write the fan drive mode (hand) together with its frequency" });
+      if (!writes.has("fan_drive_mode"))
+        out.push({
+          kind: "refused",
+          equipment: device,
+          message: "Command refused: write the fan drive mode (hand) together with its frequency",
+        });
     } else if ((kind === "cooling_tower" && q === "fan_drive_fault") || (kind === "chiller" && q === "chiller_alarm")) {
       if (value === false) push({ type: "reset-alarm", equipment: device });
-      else out.push({ kind: "refused", equipment: device, message: "Command refused: an alarm can only be reset (written false)" });
-    } else if (kind === "chiller" && (q === "start_to_start_timer_setting" || q === "stop_to_start_timer_setting")) push({ type: "set-anti-recycle-timer", equipment: device, timer: q === "start_to_start_timer_setting" ? "start-to-start" : "stop-to-start", seconds: value });
-    else if (kind === "chiller" && q === "run_enable_command") push({ type: "set-chiller-enable", equipment: device, enabled: value });
-    else if (kind === "air_handler" && q === "run_status") push({ type: "set-air-handler", equipment: device, run: value });
+      else
+        out.push({
+          kind: "refused",
+          equipment: device,
+          message: "Command refused: an alarm can only be reset (written false)",
+        });
+    } else if (kind === "chiller" && (q === "start_to_start_timer_setting" || q === "stop_to_start_timer_setting"))
+      push({
+        type: "set-anti-recycle-timer",
+        equipment: device,
+        timer: q === "start_to_start_timer_setting" ? "start-to-start" : "stop-to-start",
+        seconds: value,
+      });
+    else if (kind === "chiller" && q === "run_enable_command")
+      push({ type: "set-chiller-enable", equipment: device, enabled: value });
+    else if (kind === "air_handler" && q === "run_status")
+      push({ type: "set-air-handler", equipment: device, run: value });
     else out.push({ kind: "refused", equipment: device, message: `Command refused: ${q} of ${device} is read-only` });
   }
   return out;

@@ -37,7 +37,12 @@ export function towerLeavingC(p: PlantParams, inC: number, flowLps: number, airF
   return Math.max(inC - q / cw, Math.min(inC, fToC(34)));
 }
 
-export function stepTower(p: PlantParams, t: TowerState, env: TowerEnv, sink: { events: ModelEvent[]; faults: FaultEntry[] }): void {
+export function stepTower(
+  p: PlantParams,
+  t: TowerState,
+  env: TowerEnv,
+  sink: { events: ModelEvent[]; faults: FaultEntry[] },
+): void {
   const { tS, dt } = env;
   t.setpointC = condenserWaterSetpointC(env.wetBulbC);
 
@@ -55,7 +60,12 @@ export function stepTower(p: PlantParams, t: TowerState, env: TowerEnv, sink: { 
     t.faultText = "none";
     t.mode = "off";
     t.integral = 0;
-    sink.events.push({ tS, kind: "state", equipment: towerTag, message: "Fan drive restarted after power loss in OFF; fault no longer shown" });
+    sink.events.push({
+      tS,
+      kind: "state",
+      equipment: towerTag,
+      message: "Fan drive restarted after power loss in OFF; fault no longer shown",
+    });
   }
 
   let target = 0;

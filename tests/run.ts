@@ -24,7 +24,10 @@ let passedChecks = 0;
 const count = (ok: boolean) => (ok ? passedChecks++ : failedChecks++);
 
 count(step("type-check (tsc --noEmit)", bin("tsc"), ["--noEmit"]));
-count(step("lint (eslint)", bin("eslint"), ["--max-warnings", "0", "."]) && step("format (prettier --check)", bin("prettier"), ["--check", "--log-level", "warn", "."]));
+count(
+  step("lint (eslint)", bin("eslint"), ["--max-warnings", "0", "."]) &&
+    step("format (prettier --check)", bin("prettier"), ["--check", "--log-level", "warn", "."]),
+);
 
 console.log("\n== production build (only when missing or stale)");
 let built = true;
@@ -40,7 +43,13 @@ const resultsFile = path.join(root, "test-results", "vitest.json");
 fs.rmSync(resultsFile, { force: true });
 fs.mkdirSync(path.dirname(resultsFile), { recursive: true });
 const extra = process.argv.slice(2);
-step("vitest", bin("vitest"), ["run", "--reporter=default", "--reporter=json", `--outputFile.json=${resultsFile}`, ...extra]);
+step("vitest", bin("vitest"), [
+  "run",
+  "--reporter=default",
+  "--reporter=json",
+  `--outputFile.json=${resultsFile}`,
+  ...extra,
+]);
 
 let passed = 0;
 let failed: number;
@@ -56,7 +65,9 @@ try {
   passed = results.numPassedTests;
   // A file that fails outside its tests (an import error, a failing beforeAll) has no failed
   // test of its own; count it once so it cannot pass silently.
-  const brokenFiles = results.testResults.filter((f) => f.status === "failed" && !f.assertionResults.some((a) => a.status === "failed"));
+  const brokenFiles = results.testResults.filter(
+    (f) => f.status === "failed" && !f.assertionResults.some((a) => a.status === "failed"),
+  );
   for (const f of brokenFiles) console.log(`failed outside its tests: ${path.relative(root, f.name)}`);
   failed = results.numFailedTests + brokenFiles.length;
   skipped = results.numPendingTests + results.numTodoTests;
@@ -65,7 +76,8 @@ try {
   failed = 1;
 }
 
-if (failedChecks) console.log(`\n${failedChecks} of the type-check / lint / build steps failed (counted as failures below).`);
+if (failedChecks)
+  console.log(`\n${failedChecks} of the type-check / lint / build steps failed (counted as failures below).`);
 console.log(`\n(${passedChecks} checks and ${passed} tests passed)`);
 console.log(`${passed + passedChecks} passed, ${failed + failedChecks} failed, ${skipped} skipped`);
 process.exit(failed + failedChecks > 0 ? 1 : 0);

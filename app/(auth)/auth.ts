@@ -11,8 +11,6 @@ import type { Viewer } from "@/lib/auth/viewer";
 import { AppError } from "@/lib/errors";
 import { signInSchema } from "@/lib/schemas/sign-in";
 
-
-
 function headerValue(headers: unknown, name: string): string | undefined {
   if (!headers) return undefined;
   if (headers instanceof Headers) return headers.get(name) ?? undefined;
@@ -40,7 +38,13 @@ export const authOptions: NextAuthOptions = {
           return null;
         }
         await signInLimiter().recordSuccess(account);
-        return { id: viewer.userId, name: viewer.name, email: viewer.email, role: viewer.role, organizationId: viewer.organizationId };
+        return {
+          id: viewer.userId,
+          name: viewer.name,
+          email: viewer.email,
+          role: viewer.role,
+          organizationId: viewer.organizationId,
+        };
       },
     }),
   ],
@@ -53,7 +57,13 @@ export const authOptions: NextAuthOptions = {
       return token;
     },
     session({ session, token }) {
-      session.user = { id: token.sub!, name: token.name ?? "", email: token.email ?? "", role: token.role, organizationId: token.organizationId };
+      session.user = {
+        id: token.sub!,
+        name: token.name ?? "",
+        email: token.email ?? "",
+        role: token.role,
+        organizationId: token.organizationId,
+      };
       return session;
     },
   },

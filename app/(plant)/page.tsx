@@ -11,6 +11,10 @@ export default async function BoardPage() {
   const viewer = await requirePageViewer();
   const db = getDb();
   const sites = listSites(db, viewer);
-  const statuses = boardStatuses(db, viewer, sites.map((s) => s.id));
+  const statuses = boardStatuses(
+    db,
+    viewer,
+    sites.map((s) => s.id),
+  );
   return <SiteBoard fallback={sites.map((s) => ({ ...s, status: statuses.get(s.id) }))} canAct={canAct(viewer)} />;
 }

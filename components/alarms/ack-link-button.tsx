@@ -11,13 +11,20 @@ export function AckLinkButton({ token }: { token: string }) {
     setBusy(true);
     const res = await fetch(`/api/ack-links/${token}`, { method: "POST" });
     const body = await res.json().catch(() => null);
-    setResult(res.ok ? { ok: true, message: "Acknowledged. Thank you." } : { ok: false, message: body?.error?.message ?? "Could not acknowledge." });
+    setResult(
+      res.ok
+        ? { ok: true, message: "Acknowledged. Thank you." }
+        : { ok: false, message: body?.error?.message ?? "Could not acknowledge." },
+    );
     setBusy(false);
   }
 
   if (result) {
     return (
-      <p role="status" className={`rounded border px-3 py-2 ${result.ok ? "border-line bg-panel" : "border-alarm/40 bg-alarm/5 text-alarm"}`}>
+      <p
+        role="status"
+        className={`rounded border px-3 py-2 ${result.ok ? "border-line bg-panel" : "border-alarm/40 bg-alarm/5 text-alarm"}`}
+      >
         {result.message}
       </p>
     );

@@ -3,7 +3,14 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
-import { ackSchema, noteSchema, shelveSchema, type AckInput, type NoteInput, type ShelveInput } from "@/lib/schemas/alarms";
+import {
+  ackSchema,
+  noteSchema,
+  shelveSchema,
+  type AckInput,
+  type NoteInput,
+  type ShelveInput,
+} from "@/lib/schemas/alarms";
 import { Button } from "@/components/ui/button";
 import { fetchJson } from "@/lib/client/fetcher";
 
@@ -51,7 +58,12 @@ export function AlarmActions({ alarmId, state, onDone }: { alarmId: string; stat
         </form>
       ) : null}
       <div className="flex flex-wrap gap-2">
-        <Button variant="secondary" type="button" onClick={() => setPanel(panel === "note" ? null : "note")} aria-expanded={panel === "note"}>
+        <Button
+          variant="secondary"
+          type="button"
+          onClick={() => setPanel(panel === "note" ? null : "note")}
+          aria-expanded={panel === "note"}
+        >
           Add note
         </Button>
         {state === "shelved" ? (
@@ -59,18 +71,37 @@ export function AlarmActions({ alarmId, state, onDone }: { alarmId: string; stat
             Unshelve
           </Button>
         ) : (
-          <Button variant="secondary" type="button" onClick={() => setPanel(panel === "shelve" ? null : "shelve")} aria-expanded={panel === "shelve"}>
+          <Button
+            variant="secondary"
+            type="button"
+            onClick={() => setPanel(panel === "shelve" ? null : "shelve")}
+            aria-expanded={panel === "shelve"}
+          >
             Shelve…
           </Button>
         )}
       </div>
       {panel === "note" ? (
-        <form className="flex flex-col gap-2" onSubmit={note.handleSubmit((v) => run(() => post(`/api/alarms/${alarmId}/notes`, v))().then(() => note.reset({ text: "", visibility: v.visibility })))}>
+        <form
+          className="flex flex-col gap-2"
+          onSubmit={note.handleSubmit((v) =>
+            run(() => post(`/api/alarms/${alarmId}/notes`, v))().then(() =>
+              note.reset({ text: "", visibility: v.visibility }),
+            ),
+          )}
+        >
           <label htmlFor={`note-${alarmId}`} className="text-sm font-semibold">
             Note
           </label>
-          <textarea id={`note-${alarmId}`} rows={3} className="rounded border border-line bg-panel p-2" {...note.register("text")} />
-          {note.formState.errors.text ? <p className="text-sm text-alarm">{note.formState.errors.text.message}</p> : null}
+          <textarea
+            id={`note-${alarmId}`}
+            rows={3}
+            className="rounded border border-line bg-panel p-2"
+            {...note.register("text")}
+          />
+          {note.formState.errors.text ? (
+            <p className="text-sm text-alarm">{note.formState.errors.text.message}</p>
+          ) : null}
           <fieldset className="flex flex-wrap gap-4 text-sm">
             <legend className="sr-only">Who sees it</legend>
             <label className="flex min-h-11 items-center gap-2">
@@ -86,22 +117,38 @@ export function AlarmActions({ alarmId, state, onDone }: { alarmId: string; stat
         </form>
       ) : null}
       {panel === "shelve" ? (
-        <form className="flex flex-col gap-2 sm:flex-row sm:items-end" onSubmit={shelve.handleSubmit((v) => run(() => post(`/api/alarms/${alarmId}/shelve`, v))())}>
+        <form
+          className="flex flex-col gap-2 sm:flex-row sm:items-end"
+          onSubmit={shelve.handleSubmit((v) => run(() => post(`/api/alarms/${alarmId}/shelve`, v))())}
+        >
           <div className="flex flex-col gap-1">
             <label htmlFor={`shelve-min-${alarmId}`} className="text-sm font-semibold">
               Minutes
             </label>
-            <input id={`shelve-min-${alarmId}`} type="number" min={1} max={1440} className="min-h-11 w-28 rounded border border-line bg-panel px-3" {...shelve.register("minutes", { valueAsNumber: true })} />
+            <input
+              id={`shelve-min-${alarmId}`}
+              type="number"
+              min={1}
+              max={1440}
+              className="min-h-11 w-28 rounded border border-line bg-panel px-3"
+              {...shelve.register("minutes", { valueAsNumber: true })}
+            />
           </div>
           <div className="flex grow flex-col gap-1">
             <label htmlFor={`shelve-why-${alarmId}`} className="text-sm font-semibold">
               Reason
             </label>
-            <input id={`shelve-why-${alarmId}`} className="min-h-11 rounded border border-line bg-panel px-3" {...shelve.register("reason")} />
+            <input
+              id={`shelve-why-${alarmId}`}
+              className="min-h-11 rounded border border-line bg-panel px-3"
+              {...shelve.register("reason")}
+            />
           </div>
           <Button type="submit">Shelve</Button>
           {shelve.formState.errors.reason || shelve.formState.errors.minutes ? (
-            <p className="text-sm text-alarm">{shelve.formState.errors.reason?.message ?? shelve.formState.errors.minutes?.message}</p>
+            <p className="text-sm text-alarm">
+              {shelve.formState.errors.reason?.message ?? shelve.formState.errors.minutes?.message}
+            </p>
           ) : null}
         </form>
       ) : null}

@@ -11,17 +11,39 @@ import { AlarmActions } from "./alarm-actions";
 import { AlarmNumbers } from "./alarm-numbers";
 import { ownerStateLabel, PriorityBadge, stateLabel } from "./priority";
 
-const frame: Record<number, string> = { 1: "border-critical", 2: "border-alarm", 3: "border-warning", 4: "border-line" };
+const frame: Record<number, string> = {
+  1: "border-critical",
+  2: "border-alarm",
+  3: "border-warning",
+  4: "border-line",
+};
 
 /** One alarm with its numbers, advice and caution; staff act on it, owners read it in plain words. */
-export function AlarmCard({ alarm, canAct, unitSystem, timeZone, onChanged }: { alarm: AlarmDto; canAct: boolean; unitSystem: UnitSystem; timeZone: string; onChanged?: () => void }) {
+export function AlarmCard({
+  alarm,
+  canAct,
+  unitSystem,
+  timeZone,
+  onChanged,
+}: {
+  alarm: AlarmDto;
+  canAct: boolean;
+  unitSystem: UnitSystem;
+  timeZone: string;
+  onChanged?: () => void;
+}) {
   const router = useRouter();
   const { data, mutate } = useSWR<{ alarm: AlarmWithHistoryDto }>(`/api/alarms/${alarm.id}`, fetchJson);
   const notes = data?.alarm.notes ?? [];
   const d = alarm.detail;
   const active = alarm.conditionActive;
   return (
-    <article className={`rounded-lg border-2 bg-panel p-4 ${active ? frame[alarm.priority] : "border-line"}`} data-testid="alarm-card" data-rule={alarm.ruleId} data-state={alarm.state}>
+    <article
+      className={`rounded-lg border-2 bg-panel p-4 ${active ? frame[alarm.priority] : "border-line"}`}
+      data-testid="alarm-card"
+      data-rule={alarm.ruleId}
+      data-state={alarm.state}
+    >
       <header className="flex flex-wrap items-center gap-2">
         <PriorityBadge priority={alarm.priority} />
         <span className="text-sm font-semibold">{alarm.equipment}</span>
@@ -63,7 +85,10 @@ export function AlarmCard({ alarm, canAct, unitSystem, timeZone, onChanged }: { 
           {notes.map((n) => (
             <li key={n.id} className="rounded bg-surface px-3 py-2" data-testid="alarm-note">
               <span className="font-semibold">{n.author}</span>
-              {canAct ? <span className="text-muted"> · {n.visibility === "customer" ? "shared with owner" : "internal"}</span> : null}: {n.text}
+              {canAct ? (
+                <span className="text-muted"> · {n.visibility === "customer" ? "shared with owner" : "internal"}</span>
+              ) : null}
+              : {n.text}
             </li>
           ))}
         </ul>

@@ -70,7 +70,15 @@ export function formatNumber(key: string, value: number | null, system: UnitSyst
   return value === null ? "—" : describe(key)[1](value, system, timeZone);
 }
 
-export function AlarmNumbers({ numbers, unitSystem, timeZone }: { numbers: Record<string, number | null>; unitSystem: UnitSystem; timeZone?: string }) {
+export function AlarmNumbers({
+  numbers,
+  unitSystem,
+  timeZone,
+}: {
+  numbers: Record<string, number | null>;
+  unitSystem: UnitSystem;
+  timeZone?: string;
+}) {
   const entries = Object.entries(numbers).filter(([, v]) => v !== null);
   if (!entries.length) return null;
   return (

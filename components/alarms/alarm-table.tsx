@@ -1,6 +1,13 @@
 "use client";
 
-import { createColumnHelper, flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from "@tanstack/react-table";
+import {
+  createColumnHelper,
+  flexRender,
+  getCoreRowModel,
+  getSortedRowModel,
+  useReactTable,
+  type SortingState,
+} from "@tanstack/react-table";
 import Link from "next/link";
 import { useMemo, useState } from "react";
 import useSWR from "swr";
@@ -34,7 +41,11 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
   const [state, setState] = useState(stateFilters[0].value);
   const [priority, setPriority] = useState("");
   const [sorting, setSorting] = useState<SortingState>([{ id: "priority", desc: false }]);
-  const query = new URLSearchParams({ ...(site && { site }), ...(state && { state }), ...(priority && { priority }) }).toString();
+  const query = new URLSearchParams({
+    ...(site && { site }),
+    ...(state && { state }),
+    ...(priority && { priority }),
+  }).toString();
   const { data, error, mutate } = useSWR<{ alarms: AlarmDto[] }>(`/api/alarms${query ? `?${query}` : ""}`, fetchJson);
   useSiteEvents("board", { onStatus: () => void mutate(), onReconnect: () => void mutate() });
 
@@ -43,19 +54,25 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
       column.accessor("priority", { header: "Priority", cell: (c) => <PriorityBadge priority={c.getValue()} /> }),
       column.accessor("siteName", { header: "Site", meta: { className: "hidden sm:table-cell" } }),
       column.accessor("equipment", { header: "Equipment", meta: { className: "hidden sm:table-cell" } }),
-      column.accessor((a) => (canAct ? a.detail.technicianMessage : a.detail.ownerMessage || a.detail.technicianMessage), {
-        id: "message",
-        header: "What",
-        cell: (c) => (
-          <>
-            <span className="block text-xs text-muted sm:hidden">{c.row.original.siteName}</span>
-            <Link href={`/alarms/${c.row.original.id}`} className="font-semibold hover:underline">
-              {c.getValue()}
-            </Link>
-          </>
-        ),
+      column.accessor(
+        (a) => (canAct ? a.detail.technicianMessage : a.detail.ownerMessage || a.detail.technicianMessage),
+        {
+          id: "message",
+          header: "What",
+          cell: (c) => (
+            <>
+              <span className="block text-xs text-muted sm:hidden">{c.row.original.siteName}</span>
+              <Link href={`/alarms/${c.row.original.id}`} className="font-semibold hover:underline">
+                {c.getValue()}
+              </Link>
+            </>
+          ),
+        },
+      ),
+      column.accessor("state", {
+        header: "State",
+        cell: (c) => (canAct ? stateLabel : ownerStateLabel)[c.getValue()] ?? c.getValue(),
       }),
-      column.accessor("state", { header: "State", cell: (c) => (canAct ? stateLabel : ownerStateLabel)[c.getValue()] ?? c.getValue() }),
       column.accessor("lastTransitionMs", {
         header: "Last change (site time)",
         // In each alarm's site time, as on the site page and the alarm's own page.
@@ -65,7 +82,14 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
     ],
     [canAct],
   );
-  const table = useReactTable({ data: data?.alarms ?? [], columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
+  const table = useReactTable({
+    data: data?.alarms ?? [],
+    columns,
+    state: { sorting },
+    onSortingChange: setSorting,
+    getCoreRowModel: getCoreRowModel(),
+    getSortedRowModel: getSortedRowModel(),
+  });
 
   const select = "min-h-11 rounded border border-line bg-panel px-2";
   return (
@@ -111,8 +135,23 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id}>
                 {g.headers.map((h) => (
-                  <th key={h.id} scope="col" className={`px-3 py-2 font-normal ${h.column.columnDef.meta?.className ?? ""}`} aria-sort={h.column.getIsSorted() ? (h.column.getIsSorted() === "asc" ? "ascending" : "descending") : undefined}>
-                    <button type="button" className="min-h-11 hover:underline" onClick={h.column.getToggleSortingHandler()}>
+                  <th
+                    key={h.id}
+                    scope="col"
+                    className={`px-3 py-2 font-normal ${h.column.columnDef.meta?.className ?? ""}`}
+                    aria-sort={
+                      h.column.getIsSorted()
+                        ? h.column.getIsSorted() === "asc"
+                          ? "ascending"
+                          : "descending"
+                        : undefined
+                    }
+                  >
+                    <button
+                      type="button"
+                      className="min-h-11 hover:underline"
+                      onClick={h.column.getToggleSortingHandler()}
+                    >
                       {flexRender(h.column.columnDef.header, h.getContext())}
                       {{ asc: " ▲", desc: " ▼" }[h.column.getIsSorted() as string] ?? ""}
                     </button>

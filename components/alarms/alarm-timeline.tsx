@@ -16,7 +16,15 @@ const causeLabel: Record<string, string> = {
 };
 
 /** The audit trail: every transition with event time, wall time, who and any note. */
-export function AlarmTimeline({ events, staff, timeZone }: { events: AlarmEventDto[]; staff: boolean; timeZone: string }) {
+export function AlarmTimeline({
+  events,
+  staff,
+  timeZone,
+}: {
+  events: AlarmEventDto[];
+  staff: boolean;
+  timeZone: string;
+}) {
   const labels = staff ? stateLabel : ownerStateLabel;
   return (
     <ol className="flex flex-col gap-2" data-testid="alarm-timeline">

@@ -11,7 +11,10 @@ const styles: Record<Priority, string> = {
 export function PriorityBadge({ priority }: { priority: number }) {
   const p = (priority >= 1 && priority <= 4 ? priority : 4) as Priority;
   return (
-    <span className={`inline-flex items-center rounded px-2 py-0.5 text-xs font-semibold uppercase tracking-wide ${styles[p]}`} title={priorityMeanings[p].response}>
+    <span
+      className={`inline-flex items-center rounded px-2 py-0.5 text-xs font-semibold uppercase tracking-wide ${styles[p]}`}
+      title={priorityMeanings[p].response}
+    >
       {priorityMeanings[p].label}
     </span>
   );

@@ -32,8 +32,22 @@ export function SignInForm() {
 
   return (
     <form onSubmit={handleSubmit(onSubmit)} noValidate className="flex flex-col gap-4">
-      <Field id="email" label="E-mail" type="email" autoComplete="username" error={errors.email?.message} {...register("email")} />
-      <Field id="password" label="Password" type="password" autoComplete="current-password" error={errors.password?.message} {...register("password")} />
+      <Field
+        id="email"
+        label="E-mail"
+        type="email"
+        autoComplete="username"
+        error={errors.email?.message}
+        {...register("email")}
+      />
+      <Field
+        id="password"
+        label="Password"
+        type="password"
+        autoComplete="current-password"
+        error={errors.password?.message}
+        {...register("password")}
+      />
       {formError ? (
         <p role="alert" className="rounded border border-alarm/40 bg-alarm/5 px-3 py-2 text-sm text-alarm">
           {formError}

@@ -56,8 +56,16 @@ export function Sparkline({
         legend: { show: false },
         ...(timeZone ? siteTimeZone(UPlot, timeZone) : {}),
         cursor: { show: false },
-        scales: { x: fromMs !== null && toMs !== null ? { time: true, range: (): uPlot.Range.MinMax => [fromMs / 1000, toMs / 1000] } : { time: true } },
-        axes: [{ size: 28, font: "11px Inter, sans-serif" }, { size: 40, font: "11px Inter, sans-serif" }],
+        scales: {
+          x:
+            fromMs !== null && toMs !== null
+              ? { time: true, range: (): uPlot.Range.MinMax => [fromMs / 1000, toMs / 1000] }
+              : { time: true },
+        },
+        axes: [
+          { size: 28, font: "11px Inter, sans-serif" },
+          { size: 40, font: "11px Inter, sans-serif" },
+        ],
         series: [{}, { label, stroke: "#1f2328", width: 1.5 }],
         hooks: {
           setScale: [exposeXRange],

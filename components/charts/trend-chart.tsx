@@ -61,7 +61,10 @@ export function TrendChart({
         for (const p of v.values) {
           if (p.pointId === pointId && typeof p.value === "number") {
             const shown = fromCanonical(p.value, measure, unitSystem);
-            setLiveTail((prev) => ({ key, points: [...(prev.key === key ? prev.points.slice(-2000) : []), [p.tsMs, shown]] }));
+            setLiveTail((prev) => ({
+              key,
+              points: [...(prev.key === key ? prev.points.slice(-2000) : []), [p.tsMs, shown]],
+            }));
           }
         }
       },
@@ -96,7 +99,8 @@ export function TrendChart({
     const existing = plot.current;
     if (existing && builtFor.current?.series === series && builtFor.current.label === label) {
       // An unzoomed view follows now; a zoomed one stays where it is.
-      const following = followedMax.current !== null && Math.abs((existing.scales.x.max ?? 0) - followedMax.current) < 0.5;
+      const following =
+        followedMax.current !== null && Math.abs((existing.scales.x.max ?? 0) - followedMax.current) < 0.5;
       existing.setData(columns, false);
       if (!following) return existing.redraw();
       const max = windowOf(fromMs, columns[0])[1];
@@ -146,18 +150,39 @@ export function TrendChart({
     <div className="flex flex-col gap-3">
       <div role="group" aria-label="Range" className="flex flex-wrap gap-2">
         {(Object.keys(ranges) as RangeLabel[]).map((r) => (
-          <button key={r} type="button" aria-pressed={r === range} onClick={() => setView({ range: r, fromMs: rangeStartMs(r) })} className={`min-h-11 rounded border px-4 text-sm ${r === range ? "border-ink bg-ink text-white" : "border-line bg-panel"}`}>
+          <button
+            key={r}
+            type="button"
+            aria-pressed={r === range}
+            onClick={() => setView({ range: r, fromMs: rangeStartMs(r) })}
+            className={`min-h-11 rounded border px-4 text-sm ${r === range ? "border-ink bg-ink text-white" : "border-line bg-panel"}`}
+          >
             {r}
           </button>
         ))}
       </div>
       {error ? <p className="text-alarm">{error.message}</p> : null}
-      {data && data.series.time.length === 0 && live.length === 0 ? <p className="text-muted">No readings in this range.</p> : null}
-      <div ref={box} className="w-full overflow-hidden rounded-lg border border-line bg-panel p-2" data-testid="trend" role="img" aria-label={`Trend of ${label}`} />
+      {data && data.series.time.length === 0 && live.length === 0 ? (
+        <p className="text-muted">No readings in this range.</p>
+      ) : null}
+      <div
+        ref={box}
+        className="w-full overflow-hidden rounded-lg border border-line bg-panel p-2"
+        data-testid="trend"
+        role="img"
+        aria-label={`Trend of ${label}`}
+      />
       {data ? (
         <p className="text-xs text-muted">
-          {data.series.source === "raw" ? "Raw readings" : data.series.source === "rollup_1h" ? "1-hour rollups" : "1-minute rollups"}
-          {data.series.bucketMs ? `, ${formatDuration(data.series.bucketMs / 1000)} buckets (min/max band, average line)` : ""}. Drag to zoom, double-click to reset.
+          {data.series.source === "raw"
+            ? "Raw readings"
+            : data.series.source === "rollup_1h"
+              ? "1-hour rollups"
+              : "1-minute rollups"}
+          {data.series.bucketMs
+            ? `, ${formatDuration(data.series.bucketMs / 1000)} buckets (min/max band, average line)`
+            : ""}
+          . Drag to zoom, double-click to reset.
         </p>
       ) : null}
     </div>

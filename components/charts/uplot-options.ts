@@ -8,4 +8,5 @@ export function siteTimeZone(UPlot: typeof uPlot, timeZone: string): Pick<uPlot.
 }
 
 /** Writes the shown time span (seconds) on the chart's root element, for tests: uPlot draws its axes on a canvas. */
-export const exposeXRange = (u: uPlot, scaleKey: string) => void (scaleKey === "x" && (u.root.dataset.xRange = `${u.scales.x.min},${u.scales.x.max}`));
+export const exposeXRange = (u: uPlot, scaleKey: string) =>
+  void (scaleKey === "x" && (u.root.dataset.xRange = `${u.scales.x.min},${u.scales.x.max}`));

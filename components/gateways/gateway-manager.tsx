@@ -15,15 +15,23 @@ type Credentials = { username: string; password: string; gateway: GatewayDto };
 type MapResult = { accepted: number; errors: Array<{ line: number; message: string }> };
 
 /** In the site's time, as the rest of the product reads times. */
-const when = (iso: string | null, timeZone: string) => (iso ? `${formatDateTime(Date.parse(iso), timeZone)} site time` : "never");
+const when = (iso: string | null, timeZone: string) =>
+  iso ? `${formatDateTime(Date.parse(iso), timeZone)} site time` : "never";
 
 /** A site's gateways: provision, rotate, revoke, upload point maps, and read their counters. */
 export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone: string }) {
-  const { data, mutate } = useSWR<{ gateways: GatewayDto[] }>(`/api/gateways?site=${encodeURIComponent(siteId)}`, fetchJson, { refreshInterval: 5000 });
+  const { data, mutate } = useSWR<{ gateways: GatewayDto[] }>(
+    `/api/gateways?site=${encodeURIComponent(siteId)}`,
+    fetchJson,
+    { refreshInterval: 5000 },
+  );
   const [secret, setSecret] = useState<Credentials | null>(null);
   const [message, setMessage] = useState<string | null>(null);
   const [mapResult, setMapResult] = useState<{ gatewayId: string; result: MapResult } | null>(null);
-  const form = useForm<CreateGatewayBody>({ resolver: zodResolver(createGatewaySchema), defaultValues: { siteId, protocol: "json" } });
+  const form = useForm<CreateGatewayBody>({
+    resolver: zodResolver(createGatewaySchema),
+    defaultValues: { siteId, protocol: "json" },
+  });
   const protocol = form.watch("protocol");
 
   async function act(fn: () => Promise<unknown>) {
@@ -38,9 +46,14 @@ export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone:
 
   async function upload(gatewayId: string, file: File) {
     setMessage(null);
-    const res = await fetch(`/api/gateways/${gatewayId}/point-map`, { method: "PUT", headers: { "content-type": "text/csv" }, body: await file.text() });
+    const res = await fetch(`/api/gateways/${gatewayId}/point-map`, {
+      method: "PUT",
+      headers: { "content-type": "text/csv" },
+      body: await file.text(),
+    });
     const body = await res.json().catch(() => null);
-    if (body && "accepted" in body) setMapResult({ gatewayId, result: { accepted: body.accepted, errors: body.errors ?? [] } });
+    if (body && "accepted" in body)
+      setMapResult({ gatewayId, result: { accepted: body.accepted, errors: body.errors ?? [] } });
     else setMessage(body?.error?.message ?? `Upload failed (${res.status})`);
     await mutate();
   }
@@ -49,7 +62,9 @@ export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone:
     <div className="flex flex-col gap-4">
       {secret ? (
         <div role="status" className="rounded-lg border border-advisory/40 bg-advisory/5 p-4 text-sm">
-          <p className="font-semibold">MQTT credentials for {secret.gateway.name}. Copy the password now: it is not shown again.</p>
+          <p className="font-semibold">
+            MQTT credentials for {secret.gateway.name}. Copy the password now: it is not shown again.
+          </p>
           <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-3 gap-y-1">
             <dt>User name</dt>
             <dd>
@@ -80,7 +95,9 @@ export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone:
               <h3 className="font-semibold">{g.name}</h3>
               <code className="text-sm text-muted">{g.username}</code>
               <span className="text-sm text-muted">{g.protocol === "json" ? "Liftline JSON" : "Sparkplug B"}</span>
-              <span className={`ml-auto rounded px-2 py-0.5 text-xs ${g.revokedAt ? "bg-stale text-white" : g.status.online ? "bg-surface" : "bg-stale text-white"}`}>
+              <span
+                className={`ml-auto rounded px-2 py-0.5 text-xs ${g.revokedAt ? "bg-stale text-white" : g.status.online ? "bg-surface" : "bg-stale text-white"}`}
+              >
                 {g.revokedAt ? "revoked" : g.status.online ? "online" : "offline"}
               </span>
             </div>
@@ -137,13 +154,21 @@ export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone:
                     }}
                   />
                 </label>
-                <Button variant="secondary" onClick={() => act(async () => setSecret(await fetchJson<Credentials>(`/api/gateways/${g.id}/rotate`, { method: "POST" })))}>
+                <Button
+                  variant="secondary"
+                  onClick={() =>
+                    act(async () =>
+                      setSecret(await fetchJson<Credentials>(`/api/gateways/${g.id}/rotate`, { method: "POST" })),
+                    )
+                  }
+                >
                   Rotate password
                 </Button>
                 <Button
                   variant="danger"
                   onClick={() => {
-                    if (window.confirm(`Revoke ${g.name}? It is disconnected at once and cannot connect again.`)) void act(() => fetchJson(`/api/gateways/${g.id}/revoke`, { method: "POST" }));
+                    if (window.confirm(`Revoke ${g.name}? It is disconnected at once and cannot connect again.`))
+                      void act(() => fetchJson(`/api/gateways/${g.id}/revoke`, { method: "POST" }));
                   }}
                 >
                   Revoke
@@ -156,7 +181,9 @@ export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone:
                   <p>Point map replaced: {mapResult.result.accepted} rows.</p>
                 ) : (
                   <>
-                    <p className="text-alarm">Nothing was changed: {mapResult.result.errors.length} row(s) need fixing.</p>
+                    <p className="text-alarm">
+                      Nothing was changed: {mapResult.result.errors.length} row(s) need fixing.
+                    </p>
                     <ul className="mt-1 max-h-40 overflow-y-auto font-mono text-xs">
                       {mapResult.result.errors.map((e, i) => (
                         <li key={i}>
@@ -170,7 +197,9 @@ export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone:
             ) : null}
           </li>
         ))}
-        {data && data.gateways.length === 0 ? <li className="text-muted">No gateway yet: provision one below.</li> : null}
+        {data && data.gateways.length === 0 ? (
+          <li className="text-muted">No gateway yet: provision one below.</li>
+        ) : null}
       </ul>
       <form
         noValidate
@@ -186,15 +215,28 @@ export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone:
         <Field id="gw-name" label="Name" error={form.formState.errors.name?.message} {...form.register("name")} />
         <label className="flex flex-col gap-1 text-sm font-semibold">
           Protocol
-          <select className="min-h-11 rounded border border-line bg-panel px-2 font-normal" {...form.register("protocol")}>
+          <select
+            className="min-h-11 rounded border border-line bg-panel px-2 font-normal"
+            {...form.register("protocol")}
+          >
             <option value="json">Liftline JSON</option>
             <option value="sparkplug">Sparkplug B 3.0</option>
           </select>
         </label>
         {protocol === "sparkplug" ? (
           <>
-            <Field id="gw-group" label="Sparkplug group id" error={form.formState.errors.groupId?.message} {...form.register("groupId", { setValueAs: (v) => v || undefined })} />
-            <Field id="gw-edge" label="Edge node id" error={form.formState.errors.edgeNodeId?.message} {...form.register("edgeNodeId", { setValueAs: (v) => v || undefined })} />
+            <Field
+              id="gw-group"
+              label="Sparkplug group id"
+              error={form.formState.errors.groupId?.message}
+              {...form.register("groupId", { setValueAs: (v) => v || undefined })}
+            />
+            <Field
+              id="gw-edge"
+              label="Edge node id"
+              error={form.formState.errors.edgeNodeId?.message}
+              {...form.register("edgeNodeId", { setValueAs: (v) => v || undefined })}
+            />
           </>
         ) : null}
         <div className="sm:col-span-2">

@@ -4,7 +4,11 @@ import { signOut } from "next-auth/react";
 
 export function SignOutButton() {
   return (
-    <button type="button" onClick={() => signOut({ callbackUrl: "/sign-in" })} className="min-h-11 rounded px-3 text-sm hover:bg-surface">
+    <button
+      type="button"
+      onClick={() => signOut({ callbackUrl: "/sign-in" })}
+      className="min-h-11 rounded px-3 text-sm hover:bg-surface"
+    >
       Sign out
     </button>
   );

@@ -22,7 +22,11 @@ export function RotaEditor({ canEdit, nowMs }: { canEdit: boolean; nowMs: number
     setActionError(null);
     try {
       // datetime-local values are the browser's local time; send them with their offset.
-      const body = { ...values, startsAt: new Date(values.startsAt).toISOString(), endsAt: new Date(values.endsAt).toISOString() };
+      const body = {
+        ...values,
+        startsAt: new Date(values.startsAt).toISOString(),
+        endsAt: new Date(values.endsAt).toISOString(),
+      };
       await fetchJson("/api/oncall", { method: "POST", body: JSON.stringify(body) });
       form.reset();
       await mutate();
@@ -50,8 +54,13 @@ export function RotaEditor({ canEdit, nowMs }: { canEdit: boolean; nowMs: number
         {(data?.shifts ?? []).map((s) => {
           const current = s.startsAt <= nowMs && nowMs < s.endsAt;
           return (
-            <li key={s.id} className={`flex flex-wrap items-center gap-x-4 gap-y-1 rounded-lg border bg-panel px-4 py-3 ${current ? "border-ink" : "border-line"}`}>
-              {current ? <span className="rounded bg-ink px-2 py-0.5 text-xs font-semibold text-white">On call now</span> : null}
+            <li
+              key={s.id}
+              className={`flex flex-wrap items-center gap-x-4 gap-y-1 rounded-lg border bg-panel px-4 py-3 ${current ? "border-ink" : "border-line"}`}
+            >
+              {current ? (
+                <span className="rounded bg-ink px-2 py-0.5 text-xs font-semibold text-white">On call now</span>
+              ) : null}
               <span className="text-sm">
                 {formatDateTime(s.startsAt)} → {formatDateTime(s.endsAt)}
               </span>
@@ -67,10 +76,16 @@ export function RotaEditor({ canEdit, nowMs }: { canEdit: boolean; nowMs: number
             </li>
           );
         })}
-        {data && data.shifts.length === 0 ? <li className="text-muted">Nobody is on the rota: high-priority alarms go to the admins.</li> : null}
+        {data && data.shifts.length === 0 ? (
+          <li className="text-muted">Nobody is on the rota: high-priority alarms go to the admins.</li>
+        ) : null}
       </ul>
       {canEdit ? (
-        <form onSubmit={form.handleSubmit(onAdd)} noValidate className="grid gap-3 rounded-lg border border-line bg-panel p-4 sm:grid-cols-2">
+        <form
+          onSubmit={form.handleSubmit(onAdd)}
+          noValidate
+          className="grid gap-3 rounded-lg border border-line bg-panel p-4 sm:grid-cols-2"
+        >
           <h2 className="font-semibold sm:col-span-2">Add a shift</h2>
           <label className="flex flex-col gap-1 text-sm">
             Starts

@@ -5,7 +5,11 @@ export type LiveSocket = Socket<ServerToClientEvents, ClientToServerEvents>;
 export type RoomSocket = Pick<LiveSocket, "active" | "connected" | "connect" | "on" | "off" | "emit">;
 
 export type SiteEventTarget = { siteId: string } | "board";
-export type SiteEventHandlers = { onStatus?: (s: SiteStatus) => void; onValues?: (v: SiteValues) => void; onReconnect?: () => void };
+export type SiteEventHandlers = {
+  onStatus?: (s: SiteStatus) => void;
+  onValues?: (v: SiteValues) => void;
+  onReconnect?: () => void;
+};
 
 interface Subscriber {
   /** null: the board, every site the viewer may see (status only). */
@@ -62,7 +66,8 @@ export function createSiteRooms(): SiteRooms {
         connectedOnce = true;
       };
       const onStatus = (status: SiteStatus) => {
-        for (const sub of [...subscribers]) if (sub.siteId === null || sub.siteId === status.siteId) sub.handlers.current.onStatus?.(status);
+        for (const sub of [...subscribers])
+          if (sub.siteId === null || sub.siteId === status.siteId) sub.handlers.current.onStatus?.(status);
       };
       const onValues = (values: SiteValues) => {
         for (const sub of [...subscribers]) if (sub.siteId === values.siteId) sub.handlers.current.onValues?.(values);

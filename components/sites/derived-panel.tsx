@@ -43,52 +43,96 @@ export function DerivedPanel({
   unitSystem: UnitSystem;
   timeZone: string;
 }) {
-  if (!snapshot) return <p className="text-muted">No readings yet: derived numbers appear once the site's gateway reports.</p>;
+  if (!snapshot)
+    return <p className="text-muted">No readings yet: derived numbers appear once the site's gateway reports.</p>;
   const scale = unitSystem === "ip" ? 1.8 : 1;
   return (
     <div className="grid gap-3 md:grid-cols-2">
       {snapshot.chillers.map((c) => (
         <section key={c.tag} className="rounded-lg border border-line bg-panel p-4" data-testid="chiller-derived">
           <h3 className="flex items-baseline justify-between font-semibold">
-            {c.tag} <span className="text-sm font-normal text-muted">{c.running === null ? "state unknown" : c.running ? "running" : "off"}</span>
+            {c.tag}{" "}
+            <span className="text-sm font-normal text-muted">
+              {c.running === null ? "state unknown" : c.running ? "running" : "off"}
+            </span>
           </h3>
           <dl className="mt-2 text-sm">
-            <Row label="Crossover margin (CW − CHW entering)" value={formatDelta(c.crossoverMarginK, unitSystem)} testId="margin" />
+            <Row
+              label="Crossover margin (CW − CHW entering)"
+              value={formatDelta(c.crossoverMarginK, unitSystem)}
+              testId="margin"
+            />
             <Row label="Time to crossover" value={crossoverText(c)} testId="time-to-crossover" />
-            <Row label="Restart lockout left" value={c.lockout.source === "unknown" ? "unknown" : formatDuration(c.lockout.lockoutLeftS)} testId="lockout-left" />
-            <Row label="Condenser − evaporator pressure" value={formatPressureDelta(c.crossoverPressureMarginKPa, unitSystem)} />
+            <Row
+              label="Restart lockout left"
+              value={c.lockout.source === "unknown" ? "unknown" : formatDuration(c.lockout.lockoutLeftS)}
+              testId="lockout-left"
+            />
+            <Row
+              label="Condenser − evaporator pressure"
+              value={formatPressureDelta(c.crossoverPressureMarginKPa, unitSystem)}
+            />
             <Row label="Lift (sat. condensing − evaporating)" value={formatDelta(c.liftK, unitSystem)} />
-            <Row label="Evaporator / condenser approach" value={`${formatDelta(c.evaporatorApproachK, unitSystem)} / ${formatDelta(c.condenserApproachK, unitSystem)}`} />
-            <Row label="Evaporator / condenser ΔT" value={`${formatDelta(c.evaporatorDeltaTK, unitSystem)} / ${formatDelta(c.condenserDeltaTK, unitSystem)}`} />
-            <Row label="Load" value={c.loadTons === null ? "—" : `${c.loadTons.toFixed(0)} tons${c.flowSource === "design" ? " (design flow)" : ""}`} />
-            <Row label="kW/ton · COP" value={c.kwPerTon === null ? "—" : `${c.kwPerTon.toFixed(2)} · ${c.cop?.toFixed(1) ?? "—"}`} />
+            <Row
+              label="Evaporator / condenser approach"
+              value={`${formatDelta(c.evaporatorApproachK, unitSystem)} / ${formatDelta(c.condenserApproachK, unitSystem)}`}
+            />
+            <Row
+              label="Evaporator / condenser ΔT"
+              value={`${formatDelta(c.evaporatorDeltaTK, unitSystem)} / ${formatDelta(c.condenserDeltaTK, unitSystem)}`}
+            />
+            <Row
+              label="Load"
+              value={
+                c.loadTons === null
+                  ? "—"
+                  : `${c.loadTons.toFixed(0)} tons${c.flowSource === "design" ? " (design flow)" : ""}`
+              }
+            />
+            <Row
+              label="kW/ton · COP"
+              value={c.kwPerTon === null ? "—" : `${c.kwPerTon.toFixed(2)} · ${c.cop?.toFixed(1) ?? "—"}`}
+            />
           </dl>
           {marginTrend[c.tag]?.tsMs.length ? (
             <div className="mt-3">
-              <p className="text-xs text-muted">Crossover margin, last hour ({unitSystem === "ip" ? "°F" : "K"}); dashed line = loops crossed</p>
+              <p className="text-xs text-muted">
+                Crossover margin, last hour ({unitSystem === "ip" ? "°F" : "K"}); dashed line = loops crossed
+              </p>
               <Sparkline
                 xs={marginTrend[c.tag].tsMs}
                 ys={marginTrend[c.tag].marginK.map((k) => k * scale)}
-                xRangeMs={windowEndingAt(Math.max(marginTrend[c.tag].tsMs.at(-1) ?? 0, c.inputsToMs ?? snapshot.atMs), marginTrendWindowS)}
+                xRangeMs={windowEndingAt(
+                  Math.max(marginTrend[c.tag].tsMs.at(-1) ?? 0, c.inputsToMs ?? snapshot.atMs),
+                  marginTrendWindowS,
+                )}
                 label={`${c.tag} crossover margin trend`}
                 timeZone={timeZone}
                 zeroLine
               />
             </div>
           ) : null}
-          <p className="mt-2 text-xs text-muted">As of {formatClock(c.inputsToMs ?? snapshot.atMs, timeZone)} site time</p>
+          <p className="mt-2 text-xs text-muted">
+            As of {formatClock(c.inputsToMs ?? snapshot.atMs, timeZone)} site time
+          </p>
         </section>
       ))}
       {snapshot.towers.map((t) => (
         <section key={t.tag} className="rounded-lg border border-line bg-panel p-4">
           <h3 className="flex items-baseline justify-between font-semibold">
-            {t.tag} <span className="text-sm font-normal text-muted">fan {t.fanDriveMode ?? "?"}{t.fanRunning === false ? ", not running" : ""}</span>
+            {t.tag}{" "}
+            <span className="text-sm font-normal text-muted">
+              fan {t.fanDriveMode ?? "?"}
+              {t.fanRunning === false ? ", not running" : ""}
+            </span>
           </h3>
           <dl className="mt-2 text-sm">
             <Row label="Range" value={formatDelta(t.rangeK, unitSystem)} />
             <Row label="Approach to wet bulb" value={formatDelta(t.approachK, unitSystem)} />
           </dl>
-          <p className="mt-2 text-xs text-muted">As of {formatClock(t.inputsToMs ?? snapshot.atMs, timeZone)} site time</p>
+          <p className="mt-2 text-xs text-muted">
+            As of {formatClock(t.inputsToMs ?? snapshot.atMs, timeZone)} site time
+          </p>
         </section>
       ))}
     </div>

@@ -27,7 +27,11 @@ export function RuleSettingsEditor({ siteId, canEdit }: { siteId: string; canEdi
       setIssues([{ path: "", message: "This is not valid JSON." }]);
       return;
     }
-    const res = await fetch(url, { method: "PUT", headers: { "content-type": "application/json" }, body: JSON.stringify(body) });
+    const res = await fetch(url, {
+      method: "PUT",
+      headers: { "content-type": "application/json" },
+      body: JSON.stringify(body),
+    });
     const json = await res.json().catch(() => null);
     if (!res.ok) {
       setIssues(json?.error?.details ?? [{ path: "", message: json?.error?.message ?? `Not saved (${res.status})` }]);
@@ -69,11 +73,15 @@ export function RuleSettingsEditor({ siteId, canEdit }: { siteId: string; canEdi
       ) : null}
       <details>
         <summary className="cursor-pointer font-semibold">Effective settings (overrides plus defaults)</summary>
-        <pre className="mt-2 overflow-x-auto rounded bg-panel p-3 text-xs">{JSON.stringify(data?.effective ?? {}, null, 2)}</pre>
+        <pre className="mt-2 overflow-x-auto rounded bg-panel p-3 text-xs">
+          {JSON.stringify(data?.effective ?? {}, null, 2)}
+        </pre>
       </details>
       <details>
         <summary className="cursor-pointer font-semibold">Documented defaults</summary>
-        <pre className="mt-2 overflow-x-auto rounded bg-panel p-3 text-xs">{JSON.stringify(data?.defaults ?? {}, null, 2)}</pre>
+        <pre className="mt-2 overflow-x-auto rounded bg-panel p-3 text-xs">
+          {JSON.stringify(data?.defaults ?? {}, null, 2)}
+        </pre>
       </details>
     </div>
   );

@@ -10,9 +10,19 @@ import { useSiteEvents } from "@/components/realtime/use-site-events";
 
 export type BoardSite = SiteSummaryDto & { status?: SiteStatus };
 
-const dataLabel: Record<SiteStatus["data"], string> = { live: "Live", stale: "Stale data", offline: "Gateway offline", no_gateway: "No gateway" };
+const dataLabel: Record<SiteStatus["data"], string> = {
+  live: "Live",
+  stale: "Stale data",
+  offline: "Gateway offline",
+  no_gateway: "No gateway",
+};
 const crossoverRules = new Set(["crossover_risk", "restart_race", "loops_crossed"]);
-const edge: Record<number, string> = { 1: "border-l-critical", 2: "border-l-alarm", 3: "border-l-warning", 4: "border-l-line" };
+const edge: Record<number, string> = {
+  1: "border-l-critical",
+  2: "border-l-alarm",
+  3: "border-l-warning",
+  4: "border-l-line",
+};
 
 function severity(s: BoardSite): number {
   const w = s.status?.worst;
@@ -20,10 +30,15 @@ function severity(s: BoardSite): number {
 }
 
 export function SiteBoard({ fallback, canAct }: { fallback: BoardSite[]; canAct: boolean }) {
-  const { data, error, mutate } = useSWR<{ sites: BoardSite[] }>("/api/sites", fetchJson, { fallbackData: { sites: fallback } });
+  const { data, error, mutate } = useSWR<{ sites: BoardSite[] }>("/api/sites", fetchJson, {
+    fallbackData: { sites: fallback },
+  });
   useSiteEvents("board", {
     onStatus: (status) =>
-      void mutate((current) => current && { sites: current.sites.map((s) => (s.id === status.siteId ? { ...s, status } : s)) }, { revalidate: false }),
+      void mutate(
+        (current) => current && { sites: current.sites.map((s) => (s.id === status.siteId ? { ...s, status } : s)) },
+        { revalidate: false },
+      ),
     onReconnect: () => void mutate(),
   });
   // The most urgent plant first: on a phone it is the one the technician must see.
@@ -49,7 +64,10 @@ export function SiteBoard({ fallback, canAct }: { fallback: BoardSite[]; canAct:
               >
                 <div className="flex items-start justify-between gap-2">
                   <h2 className="font-semibold">{site.name}</h2>
-                  <span className={`shrink-0 rounded px-2 py-0.5 text-xs ${site.status?.data === "live" ? "bg-surface text-muted" : "bg-stale text-white"}`} data-testid="site-data">
+                  <span
+                    className={`shrink-0 rounded px-2 py-0.5 text-xs ${site.status?.data === "live" ? "bg-surface text-muted" : "bg-stale text-white"}`}
+                    data-testid="site-data"
+                  >
                     {dataLabel[site.status?.data ?? "no_gateway"]}
                   </span>
                 </div>
@@ -58,11 +76,11 @@ export function SiteBoard({ fallback, canAct }: { fallback: BoardSite[]; canAct:
                   <div className="mt-3 flex flex-col gap-1" data-testid="site-worst" data-rule={w.ruleId}>
                     <div className="flex items-center gap-2">
                       <PriorityBadge priority={w.priority} />
-                      {crossover ? <span className="text-sm font-semibold text-alarm">Loops heading for crossover</span> : null}
+                      {crossover ? (
+                        <span className="text-sm font-semibold text-alarm">Loops heading for crossover</span>
+                      ) : null}
                     </div>
-                    <p className="text-sm font-semibold leading-snug">
-                      {canAct ? w.title : w.ownerTitle}
-                    </p>
+                    <p className="text-sm font-semibold leading-snug">{canAct ? w.title : w.ownerTitle}</p>
                   </div>
                 ) : (
                   <p className="mt-3 text-sm text-muted">No active warnings</p>

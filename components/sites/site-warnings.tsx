@@ -9,12 +9,30 @@ import { AlarmCard } from "@/components/alarms/alarm-card";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { DerivedPanel } from "./derived-panel";
 
-type Derived = { snapshot: SiteSnapshot | null; marginTrend: Record<string, { tsMs: number[]; marginK: number[] }>; marginTrendWindowS: number };
+type Derived = {
+  snapshot: SiteSnapshot | null;
+  marginTrend: Record<string, { tsMs: number[]; marginK: number[] }>;
+  marginTrendWindowS: number;
+};
 
 /** The site's active warnings and the numbers behind them, refreshed live. */
-export function SiteWarnings({ siteId, canAct, unitSystem, timeZone }: { siteId: string; canAct: boolean; unitSystem: UnitSystem; timeZone: string }) {
-  const alarms = useSWR<{ alarms: AlarmDto[] }>(`/api/alarms?site=${encodeURIComponent(siteId)}`, fetchJson, { refreshInterval: 30_000 });
-  const derived = useSWR<Derived>(`/api/sites/${encodeURIComponent(siteId)}/derived`, fetchJson, { refreshInterval: 10_000 });
+export function SiteWarnings({
+  siteId,
+  canAct,
+  unitSystem,
+  timeZone,
+}: {
+  siteId: string;
+  canAct: boolean;
+  unitSystem: UnitSystem;
+  timeZone: string;
+}) {
+  const alarms = useSWR<{ alarms: AlarmDto[] }>(`/api/alarms?site=${encodeURIComponent(siteId)}`, fetchJson, {
+    refreshInterval: 30_000,
+  });
+  const derived = useSWR<Derived>(`/api/sites/${encodeURIComponent(siteId)}/derived`, fetchJson, {
+    refreshInterval: 10_000,
+  });
   const refresh = () => {
     void alarms.mutate();
     void derived.mutate();
@@ -36,7 +54,14 @@ export function SiteWarnings({ siteId, canAct, unitSystem, timeZone }: { siteId:
         ) : null}
         <div className="flex flex-col gap-3">
           {shown.map((a) => (
-            <AlarmCard key={a.id} alarm={a} canAct={canAct} unitSystem={unitSystem} timeZone={timeZone} onChanged={refresh} />
+            <AlarmCard
+              key={a.id}
+              alarm={a}
+              canAct={canAct}
+              unitSystem={unitSystem}
+              timeZone={timeZone}
+              onChanged={refresh}
+            />
           ))}
         </div>
       </section>
@@ -45,7 +70,13 @@ export function SiteWarnings({ siteId, canAct, unitSystem, timeZone }: { siteId:
           <h2 id="derived-title" className="mb-2 text-lg font-semibold">
             Plant numbers
           </h2>
-          <DerivedPanel snapshot={derived.data?.snapshot ?? null} marginTrend={derived.data?.marginTrend ?? {}} marginTrendWindowS={derived.data?.marginTrendWindowS ?? 0} unitSystem={unitSystem} timeZone={timeZone} />
+          <DerivedPanel
+            snapshot={derived.data?.snapshot ?? null}
+            marginTrend={derived.data?.marginTrend ?? {}}
+            marginTrendWindowS={derived.data?.marginTrendWindowS ?? 0}
+            unitSystem={unitSystem}
+            timeZone={timeZone}
+          />
         </section>
       ) : null}
     </div>

@@ -47,9 +47,19 @@ export function TokenManager() {
 
   return (
     <div className="flex flex-col gap-6">
-      <form onSubmit={handleSubmit(onCreate)} noValidate className="flex flex-col gap-3 rounded-lg border border-line bg-panel p-4 sm:flex-row sm:items-end">
+      <form
+        onSubmit={handleSubmit(onCreate)}
+        noValidate
+        className="flex flex-col gap-3 rounded-lg border border-line bg-panel p-4 sm:flex-row sm:items-end"
+      >
         <div className="grow">
-          <Field id="token-name" label="New token name" placeholder="e.g. reporting script" error={errors.name?.message} {...register("name")} />
+          <Field
+            id="token-name"
+            label="New token name"
+            placeholder="e.g. reporting script"
+            error={errors.name?.message}
+            {...register("name")}
+          />
         </div>
         <Button type="submit" disabled={isSubmitting}>
           Create token
@@ -66,10 +76,15 @@ export function TokenManager() {
       {actionError || error ? <p className="text-alarm">{actionError ?? error?.message}</p> : null}
       <ul className="flex flex-col gap-2">
         {(data?.tokens ?? []).map((t) => (
-          <li key={t.id} className="flex flex-wrap items-center gap-x-4 gap-y-1 rounded-lg border border-line bg-panel px-4 py-3">
+          <li
+            key={t.id}
+            className="flex flex-wrap items-center gap-x-4 gap-y-1 rounded-lg border border-line bg-panel px-4 py-3"
+          >
             <span className="font-semibold">{t.name}</span>
             <code className="text-sm text-muted">{t.prefix}…</code>
-            <span className="text-sm text-muted">created {when(t.createdAt)} · last used {when(t.lastUsedAt)}</span>
+            <span className="text-sm text-muted">
+              created {when(t.createdAt)} · last used {when(t.lastUsedAt)}
+            </span>
             {t.revokedAt ? (
               <span className="ml-auto text-sm text-muted">revoked {when(t.revokedAt)}</span>
             ) : (

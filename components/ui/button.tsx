@@ -6,6 +6,15 @@ const variants = {
   danger: "border border-alarm/40 bg-panel text-alarm hover:bg-alarm/5",
 } as const;
 
-export function Button({ variant = "primary", className = "", ...props }: ButtonHTMLAttributes<HTMLButtonElement> & { variant?: keyof typeof variants }) {
-  return <button className={`inline-flex min-h-11 items-center justify-center rounded px-4 text-sm font-semibold ${variants[variant]} ${className}`} {...props} />;
+export function Button({
+  variant = "primary",
+  className = "",
+  ...props
+}: ButtonHTMLAttributes<HTMLButtonElement> & { variant?: keyof typeof variants }) {
+  return (
+    <button
+      className={`inline-flex min-h-11 items-center justify-center rounded px-4 text-sm font-semibold ${variants[variant]} ${className}`}
+      {...props}
+    />
+  );
 }

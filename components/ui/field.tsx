@@ -1,7 +1,12 @@
 import type { InputHTMLAttributes } from "react";
 
 /** A labelled input with its validation message tied to it for screen readers. */
-export function Field({ label, error, id, ...props }: InputHTMLAttributes<HTMLInputElement> & { label: string; id: string; error?: string }) {
+export function Field({
+  label,
+  error,
+  id,
+  ...props
+}: InputHTMLAttributes<HTMLInputElement> & { label: string; id: string; error?: string }) {
   const errorId = `${id}-error`;
   return (
     <div className="flex flex-col gap-1">

@@ -29,7 +29,11 @@ const dtoColumns = {
   detailJson: alarms.detailJson,
 };
 
-type DtoRow = Omit<AlarmDto, "state" | "shelvedUntilMs" | "shelveReason" | "detail"> & { state: string; machineJson: string; detailJson: string };
+type DtoRow = Omit<AlarmDto, "state" | "shelvedUntilMs" | "shelveReason" | "detail"> & {
+  state: string;
+  machineJson: string;
+  detailJson: string;
+};
 
 function toDto(row: DtoRow): AlarmDto {
   const { machineJson, detailJson, ...rest } = row;
@@ -94,7 +98,13 @@ export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHist
     .all()
     .map((e) => (staff ? e : { ...e, note: null }));
   const notes = db
-    .select({ id: alarmNotes.id, author: users.name, text: alarmNotes.text, visibility: alarmNotes.visibility, createdAt: alarmNotes.createdAt })
+    .select({
+      id: alarmNotes.id,
+      author: users.name,
+      text: alarmNotes.text,
+      visibility: alarmNotes.visibility,
+      createdAt: alarmNotes.createdAt,
+    })
     .from(alarmNotes)
     .innerJoin(users, eq(users.id, alarmNotes.userId))
     .where(and(eq(alarmNotes.alarmId, alarmId), staff ? undefined : eq(alarmNotes.visibility, "customer")))
@@ -104,7 +114,11 @@ export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHist
 }
 
 /** The alarm's site and key, when the viewer may see it (for commands). */
-export function findAlarmRef(db: Db, viewer: Viewer, alarmId: string): { id: string; siteId: string; key: string } | null {
+export function findAlarmRef(
+  db: Db,
+  viewer: Viewer,
+  alarmId: string,
+): { id: string; siteId: string; key: string } | null {
   return (
     db
       .select({ id: alarms.id, siteId: alarms.siteId, key: alarms.key })
@@ -115,10 +129,23 @@ export function findAlarmRef(db: Db, viewer: Viewer, alarmId: string): { id: str
   );
 }
 
-export function addNote(db: Db, viewer: Viewer, alarmId: string, text: string, visibility: "internal" | "customer"): AlarmNoteDto {
-  const id = db.insert(alarmNotes).values({ alarmId, userId: viewer.userId, text, visibility }).run().lastInsertRowid as number;
+export function addNote(
+  db: Db,
+  viewer: Viewer,
+  alarmId: string,
+  text: string,
+  visibility: "internal" | "customer",
+): AlarmNoteDto {
+  const id = db.insert(alarmNotes).values({ alarmId, userId: viewer.userId, text, visibility }).run()
+    .lastInsertRowid as number;
   return db
-    .select({ id: alarmNotes.id, author: users.name, text: alarmNotes.text, visibility: alarmNotes.visibility, createdAt: alarmNotes.createdAt })
+    .select({
+      id: alarmNotes.id,
+      author: users.name,
+      text: alarmNotes.text,
+      visibility: alarmNotes.visibility,
+      createdAt: alarmNotes.createdAt,
+    })
     .from(alarmNotes)
     .innerJoin(users, eq(users.id, alarmNotes.userId))
     .where(eq(alarmNotes.id, id))
@@ -152,75 +179,99 @@ export function saveAlarmChanges(
   details: ReadonlyMap<string, AlarmDetail>,
 ): StoredTransition[] {
   const stored: StoredTransition[] = [];
-  db.transaction((tx) => {
-    const ids = new Map<string, string>();
-    for (const a of changed) {
-      const detail = details.get(a.key);
-      const existing = tx.select({ id: alarms.id, activeSinceMs: alarms.activeSinceMs }).from(alarms).where(and(eq(alarms.siteId, siteId), eq(alarms.key, a.key))).get();
-      const becameActive = transitions.some((t) => t.alarmKey === a.key && t.cause === "condition_active");
-      const values = {
-        priority: a.priority,
-        state: a.state,
-        conditionActive: a.conditionActive,
-        machineJson: JSON.stringify(a),
-        lastTransitionMs: a.lastTransitionMs,
-        activeSinceMs: a.conditionActive ? (becameActive ? a.conditionSinceMs : (existing?.activeSinceMs ?? a.conditionSinceMs)) : (existing?.activeSinceMs ?? null),
-        updatedAt: Date.now(),
-        ...(detail ? { detailJson: JSON.stringify(detail) } : {}),
-      };
-      if (existing) {
-        tx.update(alarms)
-          .set({ ...values, ...(becameActive ? { activations: sql`${alarms.activations} + 1` } : {}) })
-          .where(eq(alarms.id, existing.id))
-          .run();
-        ids.set(a.key, existing.id);
-      } else {
-        const id = randomUUID();
-        tx.insert(alarms)
+  db.transaction(
+    (tx) => {
+      const ids = new Map<string, string>();
+      for (const a of changed) {
+        const detail = details.get(a.key);
+        const existing = tx
+          .select({ id: alarms.id, activeSinceMs: alarms.activeSinceMs })
+          .from(alarms)
+          .where(and(eq(alarms.siteId, siteId), eq(alarms.key, a.key)))
+          .get();
+        const becameActive = transitions.some((t) => t.alarmKey === a.key && t.cause === "condition_active");
+        const values = {
+          priority: a.priority,
+          state: a.state,
+          conditionActive: a.conditionActive,
+          machineJson: JSON.stringify(a),
+          lastTransitionMs: a.lastTransitionMs,
+          activeSinceMs: a.conditionActive
+            ? becameActive
+              ? a.conditionSinceMs
+              : (existing?.activeSinceMs ?? a.conditionSinceMs)
+            : (existing?.activeSinceMs ?? null),
+          updatedAt: Date.now(),
+          ...(detail ? { detailJson: JSON.stringify(detail) } : {}),
+        };
+        if (existing) {
+          tx.update(alarms)
+            .set({ ...values, ...(becameActive ? { activations: sql`${alarms.activations} + 1` } : {}) })
+            .where(eq(alarms.id, existing.id))
+            .run();
+          ids.set(a.key, existing.id);
+        } else {
+          const id = randomUUID();
+          tx.insert(alarms)
+            .values({
+              id,
+              siteId,
+              key: a.key,
+              ruleId: a.ruleId,
+              equipment: a.equipment,
+              ...values,
+              detailJson: JSON.stringify(detail ?? emptyDetail(a)),
+              activations: becameActive ? 1 : 0,
+            })
+            .run();
+          ids.set(a.key, id);
+        }
+      }
+      for (const t of transitions) {
+        const alarmId = ids.get(t.alarmKey);
+        if (!alarmId) continue;
+        tx.insert(alarmEvents)
           .values({
-            id,
+            alarmId,
             siteId,
-            key: a.key,
-            ruleId: a.ruleId,
-            equipment: a.equipment,
-            ...values,
-            detailJson: JSON.stringify(detail ?? emptyDetail(a)),
-            activations: becameActive ? 1 : 0,
+            fromState: t.from,
+            toState: t.to,
+            cause: t.cause,
+            priority: t.priority,
+            eventAtMs: t.atMs,
+            actorUserId: t.actor.kind === "person" ? t.actor.id : null,
+            note: t.note,
           })
           .run();
-        ids.set(a.key, id);
+        stored.push({ alarmId, record: t });
       }
-    }
-    for (const t of transitions) {
-      const alarmId = ids.get(t.alarmKey);
-      if (!alarmId) continue;
-      tx.insert(alarmEvents)
-        .values({
-          alarmId,
-          siteId,
-          fromState: t.from,
-          toState: t.to,
-          cause: t.cause,
-          priority: t.priority,
-          eventAtMs: t.atMs,
-          actorUserId: t.actor.kind === "person" ? t.actor.id : null,
-          note: t.note,
-        })
-        .run();
-      stored.push({ alarmId, record: t });
-    }
-  }, { behavior: "immediate" });
+    },
+    { behavior: "immediate" },
+  );
   return stored;
 }
 
 function emptyDetail(a: Alarm): AlarmDetail {
   const what = `${a.equipment}: ${a.ruleId.replaceAll("_", " ")}`;
-  return { technicianMessage: what, ownerMessage: "", advice: [], caution: null, numbers: {}, related: [], atMs: a.lastTransitionMs ?? 0 };
+  return {
+    technicianMessage: what,
+    ownerMessage: "",
+    advice: [],
+    caution: null,
+    numbers: {},
+    related: [],
+    atMs: a.lastTransitionMs ?? 0,
+  };
 }
 
 /** Per visible site: the worst annunciated alarm and how many wait for acknowledgement. */
-export function alarmSummaryBySite(db: Db, viewer: Viewer): Map<string, { worst: AlarmDto | null; unacknowledged: number }> {
-  const active = listAlarms(db, viewer, { states: ["unacknowledged", "acknowledged", "returned_unacknowledged", "latched"] });
+export function alarmSummaryBySite(
+  db: Db,
+  viewer: Viewer,
+): Map<string, { worst: AlarmDto | null; unacknowledged: number }> {
+  const active = listAlarms(db, viewer, {
+    states: ["unacknowledged", "acknowledged", "returned_unacknowledged", "latched"],
+  });
   const out = new Map<string, { worst: AlarmDto | null; unacknowledged: number }>();
   for (const a of active) {
     const s = out.get(a.siteId) ?? { worst: null, unacknowledged: 0 };
@@ -268,7 +319,11 @@ export function allAlarmMachines(db: Db): Alarm[] {
 
 /** The admin's stored overrides of a site's rule settings (defaults fill the rest). */
 export function getRuleOverrides(db: Db, siteId: string): unknown {
-  const row = db.select({ json: siteRuleSettings.settingsJson }).from(siteRuleSettings).where(eq(siteRuleSettings.siteId, siteId)).get();
+  const row = db
+    .select({ json: siteRuleSettings.settingsJson })
+    .from(siteRuleSettings)
+    .where(eq(siteRuleSettings.siteId, siteId))
+    .get();
   return row ? JSON.parse(row.json) : {};
 }
 
@@ -276,6 +331,9 @@ export function saveRuleOverrides(db: Db, viewer: Viewer, siteId: string, overri
   const settingsJson = JSON.stringify(overrides);
   db.insert(siteRuleSettings)
     .values({ siteId, settingsJson, updatedBy: viewer.userId === "system" ? null : viewer.userId })
-    .onConflictDoUpdate({ target: siteRuleSettings.siteId, set: { settingsJson, updatedAt: Date.now(), updatedBy: viewer.userId === "system" ? null : viewer.userId } })
+    .onConflictDoUpdate({
+      target: siteRuleSettings.siteId,
+      set: { settingsJson, updatedAt: Date.now(), updatedBy: viewer.userId === "system" ? null : viewer.userId },
+    })
     .run();
 }

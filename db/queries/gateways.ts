@@ -3,7 +3,17 @@ import { randomBytes } from "node:crypto";
 import bcrypt from "bcryptjs";
 import { and, asc, desc, eq, inArray, isNull, max, sql } from "drizzle-orm";
 import type { Db } from "../client";
-import { equipment, gatewayPointMaps, gatewayRejections, gateways, gatewayUnmappedPoints, points, sites, type GatewayProtocol, type GatewayState } from "../schema";
+import {
+  equipment,
+  gatewayPointMaps,
+  gatewayRejections,
+  gateways,
+  gatewayUnmappedPoints,
+  points,
+  sites,
+  type GatewayProtocol,
+  type GatewayState,
+} from "../schema";
 import { canSeeSite, siteScope } from "./sites";
 import { canAct, isAdmin, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
@@ -35,10 +45,16 @@ const newGatewayId = () => `gw-${randomBytes(6).toString("hex")}`;
 
 function topicsOf(g: { id: string; protocol: GatewayProtocol; groupId: string | null; edgeNodeId: string | null }) {
   if (g.protocol === "json") {
-    return { publish: [`liftline/${g.id}/readings`, `liftline/${g.id}/status`], subscribe: [`liftline/${g.id}/commands`] };
+    return {
+      publish: [`liftline/${g.id}/readings`, `liftline/${g.id}/status`],
+      subscribe: [`liftline/${g.id}/commands`],
+    };
   }
   const node = `${g.groupId}/+/${g.edgeNodeId}`;
-  return { publish: [`spBv1.0/${node}`, `spBv1.0/${node}/+`], subscribe: [`spBv1.0/${g.groupId}/NCMD/${g.edgeNodeId}`, `spBv1.0/${g.groupId}/DCMD/${g.edgeNodeId}/+`] };
+  return {
+    publish: [`spBv1.0/${node}`, `spBv1.0/${node}/+`],
+    subscribe: [`spBv1.0/${g.groupId}/NCMD/${g.edgeNodeId}`, `spBv1.0/${g.groupId}/DCMD/${g.edgeNodeId}/+`],
+  };
 }
 
 type GatewayRow = typeof gateways.$inferSelect;
@@ -176,7 +192,18 @@ export async function createGateway(db: Db, viewer: Viewer, input: CreateGateway
       .get();
     if (clash) throw new AppError("conflict", "Another gateway already uses this Sparkplug group and edge node id.");
   }
-  db.insert(gateways).values({ id, siteId: input.siteId, name: input.name, protocol: input.protocol, groupId, edgeNodeId, username: id, passwordHash }).run();
+  db.insert(gateways)
+    .values({
+      id,
+      siteId: input.siteId,
+      name: input.name,
+      protocol: input.protocol,
+      groupId,
+      edgeNodeId,
+      username: id,
+      passwordHash,
+    })
+    .run();
   const row = db.select().from(gateways).where(eq(gateways.id, id)).get()!;
   return { gateway: toDtos(db, [row])[0], username: id, password };
 }
@@ -198,7 +225,10 @@ export function revokeGateway(db: Db, viewer: Viewer, id: string): GatewayDto {
   if (!row) throw notFound("No such gateway.");
   requireAdmin(viewer);
   if (!row.revokedAt) {
-    db.update(gateways).set({ revokedAt: new Date(), state: "offline", stateChangedAt: new Date() }).where(eq(gateways.id, id)).run();
+    db.update(gateways)
+      .set({ revokedAt: new Date(), state: "offline", stateChangedAt: new Date() })
+      .where(eq(gateways.id, id))
+      .run();
   }
   return toDtos(db, [db.select().from(gateways).where(eq(gateways.id, id)).get()!])[0];
 }
@@ -206,7 +236,13 @@ export function revokeGateway(db: Db, viewer: Viewer, id: string): GatewayDto {
 export function getPointMap(db: Db, viewer: Viewer, id: string): PointMapEntryDto[] {
   if (!visibleGateway(db, viewer, id)) throw notFound("No such gateway.");
   return db
-    .select({ gatewayPoint: gatewayPointMaps.gatewayPoint, pointId: points.id, equipmentTag: equipment.tag, quantity: points.quantity, unit: gatewayPointMaps.unit })
+    .select({
+      gatewayPoint: gatewayPointMaps.gatewayPoint,
+      pointId: points.id,
+      equipmentTag: equipment.tag,
+      quantity: points.quantity,
+      unit: gatewayPointMaps.unit,
+    })
     .from(gatewayPointMaps)
     .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
     .innerJoin(equipment, eq(equipment.id, points.equipmentId))
@@ -219,7 +255,13 @@ export function getPointMap(db: Db, viewer: Viewer, id: string): PointMapEntryDt
  * Replaces a gateway's whole point map, or changes nothing: any row error (including rows
  * naming equipment or points the site does not have) leaves the old map in place.
  */
-export function replacePointMap(db: Db, viewer: Viewer, id: string, rows: PointMapLine[], parseErrors: LineError[]): { accepted: number; errors: LineError[] } {
+export function replacePointMap(
+  db: Db,
+  viewer: Viewer,
+  id: string,
+  rows: PointMapLine[],
+  parseErrors: LineError[],
+): { accepted: number; errors: LineError[] } {
   const gw = visibleGateway(db, viewer, id);
   if (!gw) throw notFound("No such gateway.");
   if (!canAct(viewer)) throw new AppError("forbidden", "Only service staff can change a point map.");
@@ -244,7 +286,10 @@ export function replacePointMap(db: Db, viewer: Viewer, id: string, rows: PointM
     } else if (pointId === undefined) {
       errors.push({ line: r.line, message: `${r.equipment} has no ${r.quantity} point` });
     } else if (targets.has(pointId)) {
-      errors.push({ line: r.line, message: `${r.equipment} ${r.quantity} is already fed by line ${targets.get(pointId)}` });
+      errors.push({
+        line: r.line,
+        message: `${r.equipment} ${r.quantity} is already fed by line ${targets.get(pointId)}`,
+      });
     } else {
       targets.set(pointId, r.line);
       resolved.push({ gatewayPoint: r.gateway_point, pointId, unit: r.unit });
@@ -252,16 +297,19 @@ export function replacePointMap(db: Db, viewer: Viewer, id: string, rows: PointM
   }
   errors.sort((a, b) => a.line - b.line);
   if (errors.length > 0) return { accepted: 0, errors };
-  db.transaction((tx) => {
-    tx.delete(gatewayPointMaps).where(eq(gatewayPointMaps.gatewayId, id)).run();
-    for (let i = 0; i < resolved.length; i += 500) {
-      tx.insert(gatewayPointMaps)
-        .values(resolved.slice(i, i + 500).map((r) => ({ gatewayId: id, ...r })))
-        .run();
-    }
-    // Names now mapped are no longer "unmapped".
-    tx.delete(gatewayUnmappedPoints).where(eq(gatewayUnmappedPoints.gatewayId, id)).run();
-  }, { behavior: "immediate" });
+  db.transaction(
+    (tx) => {
+      tx.delete(gatewayPointMaps).where(eq(gatewayPointMaps.gatewayId, id)).run();
+      for (let i = 0; i < resolved.length; i += 500) {
+        tx.insert(gatewayPointMaps)
+          .values(resolved.slice(i, i + 500).map((r) => ({ gatewayId: id, ...r })))
+          .run();
+      }
+      // Names now mapped are no longer "unmapped".
+      tx.delete(gatewayUnmappedPoints).where(eq(gatewayUnmappedPoints.gatewayId, id)).run();
+    },
+    { behavior: "immediate" },
+  );
   return { accepted: resolved.length, errors: [] };
 }
 
@@ -286,7 +334,13 @@ export async function verifyGatewayCredentials(
   const ok = await bcrypt.compare(password ?? "", row?.passwordHash ?? DUMMY_HASH);
   if (!row || !ok || password === undefined) return "bad_credentials";
   if (row.revokedAt) return "revoked";
-  return { gatewayId: row.id, siteId: row.siteId, protocol: row.protocol, groupId: row.groupId, edgeNodeId: row.edgeNodeId };
+  return {
+    gatewayId: row.id,
+    siteId: row.siteId,
+    protocol: row.protocol,
+    groupId: row.groupId,
+    edgeNodeId: row.edgeNodeId,
+  };
 }
 
 export interface IngestPoint {
@@ -309,7 +363,13 @@ export function loadIngestGateway(db: Db, gatewayId: string): IngestGateway | nu
   const g = db.select().from(gateways).where(eq(gateways.id, gatewayId)).get();
   if (!g) return null;
   const rows = db
-    .select({ name: gatewayPointMaps.gatewayPoint, unit: gatewayPointMaps.unit, pointId: points.id, quantity: points.quantity, expectedIntervalS: points.expectedIntervalS })
+    .select({
+      name: gatewayPointMaps.gatewayPoint,
+      unit: gatewayPointMaps.unit,
+      pointId: points.id,
+      quantity: points.quantity,
+      expectedIntervalS: points.expectedIntervalS,
+    })
     .from(gatewayPointMaps)
     .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
     .where(eq(gatewayPointMaps.gatewayId, gatewayId))
@@ -347,7 +407,9 @@ export function findSparkplugGatewayId(db: Db, groupId: string, edgeNodeId: stri
     db
       .select({ id: gateways.id })
       .from(gateways)
-      .where(and(eq(gateways.groupId, groupId), eq(gateways.edgeNodeId, edgeNodeId), eq(gateways.protocol, "sparkplug")))
+      .where(
+        and(eq(gateways.groupId, groupId), eq(gateways.edgeNodeId, edgeNodeId), eq(gateways.protocol, "sparkplug")),
+      )
       .get()?.id ?? null
   );
 }
@@ -358,7 +420,10 @@ export function setGatewayState(db: Db, gatewayId: string, state: GatewayState, 
 
 /** At start with the embedded broker nobody is connected yet, whatever the rows say. */
 export function markAllGatewaysOffline(db: Db, at: Date): void {
-  db.update(gateways).set({ state: "offline", stateChangedAt: at }).where(and(isNull(gateways.revokedAt), eq(gateways.state, "online"))).run();
+  db.update(gateways)
+    .set({ state: "offline", stateChangedAt: at })
+    .where(and(isNull(gateways.revokedAt), eq(gateways.state, "online")))
+    .run();
 }
 
 export interface PresenceRow {

@@ -23,7 +23,13 @@ export function listShifts(db: Db, fromMs: number): ShiftDto[] {
     .where(gt(onCallShifts.endsAt, fromMs))
     .orderBy(asc(onCallShifts.startsAt))
     .all();
-  const names = new Map(db.select({ id: users.id, name: users.name }).from(users).all().map((u) => [u.id, u.name]));
+  const names = new Map(
+    db
+      .select({ id: users.id, name: users.name })
+      .from(users)
+      .all()
+      .map((u) => [u.id, u.name]),
+  );
   return rows.map((r) => ({ ...r, backupName: r.backupUserId ? (names.get(r.backupUserId) ?? null) : null }));
 }
 
@@ -52,7 +58,10 @@ export function onCallCandidates(db: Db): Array<{ id: string; name: string; emai
 }
 
 export function contactOf(db: Db, userId: string): { id: string; name: string; email: string } | null {
-  return db.select({ id: users.id, name: users.name, email: users.email }).from(users).where(eq(users.id, userId)).get() ?? null;
+  return (
+    db.select({ id: users.id, name: users.name, email: users.email }).from(users).where(eq(users.id, userId)).get() ??
+    null
+  );
 }
 
 export function admins(db: Db): Array<{ id: string; name: string; email: string }> {
@@ -66,9 +75,20 @@ export function admins(db: Db): Array<{ id: string; name: string; email: string 
 /** High-priority alarms that still wait for someone to acknowledge them. */
 export function alarmsAwaitingAck(db: Db, maxPriority: number) {
   return db
-    .select({ id: alarms.id, siteId: alarms.siteId, priority: alarms.priority, activations: alarms.activations, state: alarms.state })
+    .select({
+      id: alarms.id,
+      siteId: alarms.siteId,
+      priority: alarms.priority,
+      activations: alarms.activations,
+      state: alarms.state,
+    })
     .from(alarms)
-    .where(and(inArray(alarms.state, ["unacknowledged", "returned_unacknowledged", "latched"]), lte(alarms.priority, maxPriority)))
+    .where(
+      and(
+        inArray(alarms.state, ["unacknowledged", "returned_unacknowledged", "latched"]),
+        lte(alarms.priority, maxPriority),
+      ),
+    )
     .all();
 }
 
@@ -80,7 +100,10 @@ export function notificationsFor(db: Db, alarmId: string, activation: number) {
     .all();
 }
 
-export function recordNotification(db: Db, row: { alarmId: string; activation: number; step: number; userId: string; email: string; sentAt: number }): void {
+export function recordNotification(
+  db: Db,
+  row: { alarmId: string; activation: number; step: number; userId: string; email: string; sentAt: number },
+): void {
   db.insert(alarmNotifications).values(row).onConflictDoNothing().run();
 }
 
@@ -89,17 +112,22 @@ const hashLink = (token: string) => createHash("sha256").update(token).digest("h
 /** A fresh single-use link token; only its hash is stored. */
 export function createAckLink(db: Db, alarmId: string, userId: string, expiresAt: number): string {
   const token = randomBytes(32).toString("base64url");
-  db.insert(ackLinks).values({ id: hashLink(token), alarmId, userId, expiresAt }).run();
+  db.insert(ackLinks)
+    .values({ id: hashLink(token), alarmId, userId, expiresAt })
+    .run();
   return token;
 }
 
 export type AckLinkLookup =
-  | { ok: true; alarmId: string; userId: string }
-  | { ok: false; reason: "unknown" | "expired" | "used" };
+  { ok: true; alarmId: string; userId: string } | { ok: false; reason: "unknown" | "expired" | "used" };
 
 /** What a link would acknowledge, without using it (the page shows it before the button). */
 export function peekAckLink(db: Db, token: string, nowMs: number): AckLinkLookup {
-  const row = db.select().from(ackLinks).where(eq(ackLinks.id, hashLink(token))).get();
+  const row = db
+    .select()
+    .from(ackLinks)
+    .where(eq(ackLinks.id, hashLink(token)))
+    .get();
   if (!row) return { ok: false, reason: "unknown" };
   if (row.usedAt !== null) return { ok: false, reason: "used" };
   if (row.expiresAt <= nowMs) return { ok: false, reason: "expired" };
@@ -120,7 +148,14 @@ export function consumeAckLink(db: Db, token: string, nowMs: number): AckLinkLoo
 
 export function listMail(db: Db, limit = 100): MailDto[] {
   return db
-    .select({ id: mailMessages.id, from: mailMessages.fromAddress, to: mailMessages.toAddress, subject: mailMessages.subject, text: mailMessages.text, receivedAt: mailMessages.receivedAt })
+    .select({
+      id: mailMessages.id,
+      from: mailMessages.fromAddress,
+      to: mailMessages.toAddress,
+      subject: mailMessages.subject,
+      text: mailMessages.text,
+      receivedAt: mailMessages.receivedAt,
+    })
     .from(mailMessages)
     .orderBy(desc(mailMessages.id))
     .limit(limit)
@@ -129,5 +164,7 @@ export function listMail(db: Db, limit = 100): MailDto[] {
 
 /** Stores a message the local SMTP sink received (the Outbox page reads them). */
 export function storeSinkMessage(db: Db, message: { from: string; to: string; subject: string; text: string }): void {
-  db.insert(mailMessages).values({ fromAddress: message.from, toAddress: message.to, subject: message.subject, text: message.text }).run();
+  db.insert(mailMessages)
+    .values({ fromAddress: message.from, toAddress: message.to, subject: message.subject, text: message.text })
+    .run();
 }

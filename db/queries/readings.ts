@@ -17,7 +17,6 @@ import { qualityNames } from "@/lib/quality";
 // Reading data for screens: trends (raw or 1-minute rollups, bucketed with min/max so spikes
 // stay visible) and the latest value of every point with its age. Viewer-scoped.
 
-
 export interface SeriesQuery {
   fromMs: number;
   toMs: number;
@@ -77,14 +76,29 @@ export function getSeries(
       .limit(q.maxPoints)
       .all()
       .reverse();
-    return { ...base, source: "raw", bucketMs: null, time: rows.map((r) => r.ts), min: [], max: [], avg: [], count: [], text: rows.map((r) => r.text ?? "") };
+    return {
+      ...base,
+      source: "raw",
+      bucketMs: null,
+      time: rows.map((r) => r.ts),
+      min: [],
+      max: [],
+      avg: [],
+      count: [],
+      text: rows.map((r) => r.text ?? ""),
+    };
   }
 
   const rawWidth = Math.ceil(span / q.maxPoints);
   const useRollups = rawWidth >= MINUTE_MS || q.fromMs < opts.nowMs - opts.rawRetentionMs;
 
   if (!useRollups) {
-    const n = db.select({ n: sql<number>`count(*)` }).from(readings).where(inRange).get()?.n ?? 0;
+    const n =
+      db
+        .select({ n: sql<number>`count(*)` })
+        .from(readings)
+        .where(inRange)
+        .get()?.n ?? 0;
     if (n <= q.maxPoints) {
       const rows = db
         .select({ ts: readings.ts, value: readings.value })
@@ -93,7 +107,16 @@ export function getSeries(
         .orderBy(asc(readings.ts))
         .all();
       const v = rows.map((r) => conv(r.value!));
-      return { ...base, source: "raw", bucketMs: null, time: rows.map((r) => r.ts), min: v, max: v, avg: v, count: rows.map(() => 1) };
+      return {
+        ...base,
+        source: "raw",
+        bucketMs: null,
+        time: rows.map((r) => r.ts),
+        min: v,
+        max: v,
+        avg: v,
+        count: rows.map(() => 1),
+      };
     }
     const w = Math.trunc(rawWidth);
     const rows = db
@@ -119,7 +142,13 @@ export function getSeries(
   // Buckets are whole minutes (or hours), so the width is too.
   const w = Math.max(tier, Math.ceil(rawWidth / tier) * tier);
   const rows = rollupBuckets(db.$client, pointId, Math.floor(q.fromMs / tier) * tier, q.toMs, w, tier);
-  return columnar(base, tier === HOUR_MS ? "rollup_1h" : "rollup_1m", w, rows.map((r) => ({ t: r.t, min: r.min, max: r.max, avg: r.sum / r.count, count: r.count })), conv);
+  return columnar(
+    base,
+    tier === HOUR_MS ? "rollup_1h" : "rollup_1m",
+    w,
+    rows.map((r) => ({ t: r.t, min: r.min, max: r.max, avg: r.sum / r.count, count: r.count })),
+    conv,
+  );
 }
 
 type Bucket = { t: number; min: number; max: number; sum: number; count: number };
@@ -152,7 +181,14 @@ function prepareBucketStatements(sqlite: Database.Database) {
  * from raw readings, a few minutes of one point, rather than asking the store worker for its
  * open minutes, which would wait behind whatever flush it is committing.
  */
-function rollupBuckets(sqlite: Database.Database, pointId: number, fromMs: number, toMs: number, w: number, tier: number): Bucket[] {
+function rollupBuckets(
+  sqlite: Database.Database,
+  pointId: number,
+  fromMs: number,
+  toMs: number,
+  w: number,
+  tier: number,
+): Bucket[] {
   let st = bucketStatements.get(sqlite);
   if (!st) bucketStatements.set(sqlite, (st = prepareBucketStatements(sqlite)));
   const s = st;
@@ -163,7 +199,8 @@ function rollupBuckets(sqlite: Database.Database, pointId: number, fromMs: numbe
     const minutesEnd = Math.min(toMs, sealedBefore);
     let out = hoursEnd > fromMs ? s.hours.all({ p: pointId, from: fromMs, to: hoursEnd, w }) : [];
     const minutesFrom = Math.max(fromMs, hoursEnd);
-    if (minutesEnd > minutesFrom) out = mergeBuckets(out, s.minutes.all({ p: pointId, from: minutesFrom, to: minutesEnd, w }));
+    if (minutesEnd > minutesFrom)
+      out = mergeBuckets(out, s.minutes.all({ p: pointId, from: minutesFrom, to: minutesEnd, w }));
     const rawFrom = Math.max(fromMs, sealedBefore);
     if (toMs > rawFrom) out = mergeBuckets(out, s.raw.all({ p: pointId, from: rawFrom, to: toMs, w }));
     return out;
@@ -184,7 +221,13 @@ function mergeBuckets(a: Bucket[], b: Bucket[]): Bucket[] {
     else if (x === undefined || y.t < x.t) out.push(b[j++]);
     else {
       // The bucket where one source ends and the next begins holds rows of both.
-      out.push({ t: x.t, min: Math.min(x.min, y.min), max: Math.max(x.max, y.max), sum: x.sum + y.sum, count: x.count + y.count });
+      out.push({
+        t: x.t,
+        min: Math.min(x.min, y.min),
+        max: Math.max(x.max, y.max),
+        sum: x.sum + y.sum,
+        count: x.count + y.count,
+      });
       i++;
       j++;
     }
@@ -218,9 +261,17 @@ function liveValue(measure: Measure, value: number | null, text: string | null):
 }
 
 /** A point's newest committed value held in memory by the running server (latest_values lags it). */
-export type LatestInMemory = (pointId: number) => { tsMs: number; value: number | boolean | string; quality: "good" | "uncertain" | "bad" } | undefined;
+export type LatestInMemory = (
+  pointId: number,
+) => { tsMs: number; value: number | boolean | string; quality: "good" | "uncertain" | "bad" } | undefined;
 
-export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: number, inMemory?: LatestInMemory): SiteLatestDto {
+export function getSiteLatest(
+  db: Db,
+  viewer: Viewer,
+  siteId: string,
+  nowMs: number,
+  inMemory?: LatestInMemory,
+): SiteLatestDto {
   if (!canSeeSite(db, viewer, siteId)) throw notFound("No such site.");
   const rows = db
     .select({
@@ -263,7 +314,7 @@ export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: num
       tsMs: r.ts,
       ageS: r.ts === null ? null : Math.max(0, Math.round((nowMs - r.ts) / 1000)),
       stale: r.ts === null || isStale(r.ts, r.expectedIntervalS, nowMs),
-      quality: r.quality === null ? null : qualityNames[r.quality] ?? "bad",
+      quality: r.quality === null ? null : (qualityNames[r.quality] ?? "bad"),
       expectedIntervalS: r.expectedIntervalS,
       mapped: r.mapped === 1,
     };
@@ -281,7 +332,13 @@ export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: num
     data: status?.data ?? "no_gateway",
     gateways: gws.map((g) => {
       const p = status?.gateways.get(g.id);
-      return { id: g.id, name: g.name, protocol: g.protocol, online: p?.online ?? false, lastMessageAt: p?.lastMessageAtMs ? new Date(p.lastMessageAtMs).toISOString() : null };
+      return {
+        id: g.id,
+        name: g.name,
+        protocol: g.protocol,
+        online: p?.online ?? false,
+        lastMessageAt: p?.lastMessageAtMs ? new Date(p.lastMessageAtMs).toISOString() : null,
+      };
     }),
     points: out,
   };
@@ -290,7 +347,12 @@ export function getSiteLatest(db: Db, viewer: Viewer, siteId: string, nowMs: num
 /** Points mapped through each gateway, grouped by gateway, with the event time of their newest stored reading. */
 export function mappedPoints(db: Db, onlySiteId?: string): Array<MappedPoint & { ts: number | null }> {
   return db
-    .select({ gatewayId: gatewayPointMaps.gatewayId, pointId: gatewayPointMaps.pointId, expectedIntervalS: points.expectedIntervalS, ts: latestValues.ts })
+    .select({
+      gatewayId: gatewayPointMaps.gatewayId,
+      pointId: gatewayPointMaps.pointId,
+      expectedIntervalS: points.expectedIntervalS,
+      ts: latestValues.ts,
+    })
     .from(gatewayPointMaps)
     .innerJoin(gateways, eq(gateways.id, gatewayPointMaps.gatewayId))
     .innerJoin(points, eq(points.id, gatewayPointMaps.pointId))
@@ -301,7 +363,11 @@ export function mappedPoints(db: Db, onlySiteId?: string): Array<MappedPoint & {
 }
 
 export function allSiteIds(db: Db): string[] {
-  return db.select({ id: sites.id }).from(sites).all().map((s) => s.id);
+  return db
+    .select({ id: sites.id })
+    .from(sites)
+    .all()
+    .map((s) => s.id);
 }
 
 /**
@@ -311,13 +377,27 @@ export function allSiteIds(db: Db): string[] {
 export function siteDataStatus(db: Db, nowMs: number, siteId: string): SiteStatusRow | undefined {
   const mapped = mappedPoints(db, siteId);
   const ts = new Map(mapped.map((m) => [m.pointId, m.ts]));
-  return siteStatuses({ siteIds: [siteId], presence: listGatewayPresence(db), freshness: freshnessByGateway(mapped, (id) => ts.get(id), nowMs), nowMs }).get(siteId);
+  return siteStatuses({
+    siteIds: [siteId],
+    presence: listGatewayPresence(db),
+    freshness: freshnessByGateway(mapped, (id) => ts.get(id), nowMs),
+    nowMs,
+  }).get(siteId);
 }
 
 /** Every point's stored latest value as screens get it (booleans as booleans), to seed the live publisher. */
-export function storedLatestValues(db: Db): Array<{ pointId: number; tsMs: number; value: number | boolean | string; quality: (typeof qualityNames)[number] }> {
+export function storedLatestValues(
+  db: Db,
+): Array<{ pointId: number; tsMs: number; value: number | boolean | string; quality: (typeof qualityNames)[number] }> {
   const rows = db
-    .select({ pointId: latestValues.pointId, ts: latestValues.ts, value: latestValues.value, text: latestValues.text, quality: latestValues.quality, quantity: points.quantity })
+    .select({
+      pointId: latestValues.pointId,
+      ts: latestValues.ts,
+      value: latestValues.value,
+      text: latestValues.text,
+      quality: latestValues.quality,
+      quantity: points.quantity,
+    })
     .from(latestValues)
     .innerJoin(points, eq(points.id, latestValues.pointId))
     .all();
@@ -331,12 +411,21 @@ export function storedLatestValues(db: Db): Array<{ pointId: number; tsMs: numbe
 
 /** All point ids, for the pruner to walk one primary-key range at a time. */
 export function allPointIds(db: Db): number[] {
-  return db.select({ id: points.id }).from(points).orderBy(asc(points.id)).all().map((p) => p.id);
+  return db
+    .select({ id: points.id })
+    .from(points)
+    .orderBy(asc(points.id))
+    .all()
+    .map((p) => p.id);
 }
 
 /** Every point's equipment tag and quantity: how the rule checks name a reading. */
 export function pointRuleNames(db: Db): Array<{ pointId: number; tag: string; quantity: string }> {
-  return db.select({ pointId: points.id, tag: equipment.tag, quantity: points.quantity }).from(points).innerJoin(equipment, eq(equipment.id, points.equipmentId)).all();
+  return db
+    .select({ pointId: points.id, tag: equipment.tag, quantity: points.quantity })
+    .from(points)
+    .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+    .all();
 }
 
 /** One point's equipment tag and quantity, with the statement prepared once (points added later). */

@@ -23,7 +23,15 @@ const summaryColumns = {
   customerName: organizations.name,
 };
 
-type SummaryRow = { id: string; name: string; kind: string; address: string; timeZone: string; customerId: string; customerName: string };
+type SummaryRow = {
+  id: string;
+  name: string;
+  kind: string;
+  address: string;
+  timeZone: string;
+  customerId: string;
+  customerName: string;
+};
 
 function toSummary(row: SummaryRow, equipmentCount: number): SiteSummaryDto {
   const { customerId, customerName, ...site } = row;
@@ -43,7 +51,12 @@ export function listSites(db: Db, viewer: Viewer): SiteSummaryDto[] {
     db
       .select({ siteId: equipment.siteId, n: count() })
       .from(equipment)
-      .where(inArray(equipment.siteId, rows.map((r) => r.id)))
+      .where(
+        inArray(
+          equipment.siteId,
+          rows.map((r) => r.id),
+        ),
+      )
       .groupBy(equipment.siteId)
       .all()
       .map((r) => [r.siteId, r.n]),
@@ -53,12 +66,23 @@ export function listSites(db: Db, viewer: Viewer): SiteSummaryDto[] {
 
 /** The ids of every site the viewer may see (for socket rooms and bulk checks). */
 export function visibleSiteIds(db: Db, viewer: Viewer): string[] {
-  return db.select({ id: sites.id }).from(sites).where(siteScope(viewer)).all().map((r) => r.id);
+  return db
+    .select({ id: sites.id })
+    .from(sites)
+    .where(siteScope(viewer))
+    .all()
+    .map((r) => r.id);
 }
 
 /** True when the viewer may see the site; callers answer 404 otherwise, never 403. */
 export function canSeeSite(db: Db, viewer: Viewer, siteId: string): boolean {
-  return db.select({ id: sites.id }).from(sites).where(and(eq(sites.id, siteId), siteScope(viewer))).get() !== undefined;
+  return (
+    db
+      .select({ id: sites.id })
+      .from(sites)
+      .where(and(eq(sites.id, siteId), siteScope(viewer)))
+      .get() !== undefined
+  );
 }
 
 // The order a technician walks a plant in: the chillers, heat rejection, pumps, then the load.
@@ -105,7 +129,12 @@ export function getSite(db: Db, viewer: Viewer, siteId: string): SiteDetailDto |
           highLimit: points.highLimit,
         })
         .from(points)
-        .where(inArray(points.equipmentId, equipmentRows.map((e) => e.id)))
+        .where(
+          inArray(
+            points.equipmentId,
+            equipmentRows.map((e) => e.id),
+          ),
+        )
         .orderBy(asc(points.id))
         .all()
     : [];
@@ -126,7 +155,14 @@ export function getSite(db: Db, viewer: Viewer, siteId: string): SiteDetailDto |
 /** A site's equipment records as the plant calculations take them. */
 export function siteEquipment(db: Db, siteId: string): Site {
   return db
-    .select({ tag: equipment.tag, kind: equipment.kind, capacityTons: equipment.capacityTons, designFlowLps: equipment.designFlowLps, refrigerant: equipment.refrigerant, serves: equipment.serves })
+    .select({
+      tag: equipment.tag,
+      kind: equipment.kind,
+      capacityTons: equipment.capacityTons,
+      designFlowLps: equipment.designFlowLps,
+      refrigerant: equipment.refrigerant,
+      serves: equipment.serves,
+    })
     .from(equipment)
     .where(eq(equipment.siteId, siteId))
     .all()

@@ -22,7 +22,14 @@ const dtoColumns = {
   revokedAt: apiTokens.revokedAt,
 };
 
-type DtoRow = { id: string; name: string; prefix: string; createdAt: Date; lastUsedAt: Date | null; revokedAt: Date | null };
+type DtoRow = {
+  id: string;
+  name: string;
+  prefix: string;
+  createdAt: Date;
+  lastUsedAt: Date | null;
+  revokedAt: Date | null;
+};
 
 function toDto(row: DtoRow): ApiTokenDto {
   return {

@@ -40,7 +40,13 @@ export async function verifyCredentials(db: Db, email: string, password: string)
 
 /** An account that may act now: a disabled one is no viewer (its sessions, links and pages stop). */
 export function getViewerById(db: Db, userId: string): Viewer | null {
-  return db.select(viewerColumns).from(users).where(and(eq(users.id, userId), eq(users.disabled, false))).get() ?? null;
+  return (
+    db
+      .select(viewerColumns)
+      .from(users)
+      .where(and(eq(users.id, userId), eq(users.disabled, false)))
+      .get() ?? null
+  );
 }
 
 export interface CreateUserInput {

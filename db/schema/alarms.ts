@@ -54,7 +54,10 @@ export const alarmEvents = sqliteTable(
     actorUserId: text("actor_user_id").references(() => users.id),
     note: text("note"),
   },
-  (t) => [index("alarm_events_alarm_idx").on(t.alarmId, t.id), index("alarm_events_site_time_idx").on(t.siteId, t.eventAtMs)],
+  (t) => [
+    index("alarm_events_alarm_idx").on(t.alarmId, t.id),
+    index("alarm_events_site_time_idx").on(t.siteId, t.eventAtMs),
+  ],
 );
 
 export const alarmNotes = sqliteTable(

@@ -29,7 +29,9 @@ export const users = sqliteTable(
     organizationId: text("organization_id")
       .notNull()
       .references(() => organizations.id),
-    unitSystem: text("unit_system", { enum: ["ip", "si"] }).notNull().default("ip"),
+    unitSystem: text("unit_system", { enum: ["ip", "si"] })
+      .notNull()
+      .default("ip"),
     disabled: integer("disabled", { mode: "boolean" }).notNull().default(false),
     createdAt: createdAt(),
   },

@@ -43,12 +43,32 @@ function plant(layout: SiteLayout): DemoEquipment[] {
   const list: DemoEquipment[] = [];
   chillers.forEach((c, i) => {
     const n = i + 1;
-    list.push({ tag: `CH-${n}`, name: `Chiller ${n}`, kind: "chiller", capacityTons: c.tons, refrigerant: c.refrigerant, designFlowLps: chwFlow(c.tons) });
-    list.push({ tag: `CHWP-${n}`, name: `Chilled water pump ${n}`, kind: "pump", designFlowLps: chwFlow(c.tons), serves: `CH-${n}` });
-    list.push({ tag: `CWP-${n}`, name: `Condenser water pump ${n}`, kind: "pump", designFlowLps: cwFlow(c.tons), serves: `CH-${n}` });
+    list.push({
+      tag: `CH-${n}`,
+      name: `Chiller ${n}`,
+      kind: "chiller",
+      capacityTons: c.tons,
+      refrigerant: c.refrigerant,
+      designFlowLps: chwFlow(c.tons),
+    });
+    list.push({
+      tag: `CHWP-${n}`,
+      name: `Chilled water pump ${n}`,
+      kind: "pump",
+      designFlowLps: chwFlow(c.tons),
+      serves: `CH-${n}`,
+    });
+    list.push({
+      tag: `CWP-${n}`,
+      name: `Condenser water pump ${n}`,
+      kind: "pump",
+      designFlowLps: cwFlow(c.tons),
+      serves: `CH-${n}`,
+    });
   });
   list.push({ tag: "CT-1", name: "Cooling tower 1", kind: "cooling_tower", capacityTons: towerTons });
-  for (let i = 1; i <= layout.airHandlers; i++) list.push({ tag: `AHU-${i}`, name: `Air handler ${i}`, kind: "air_handler" });
+  for (let i = 1; i <= layout.airHandlers; i++)
+    list.push({ tag: `AHU-${i}`, name: `Air handler ${i}`, kind: "air_handler" });
   list.push({ tag: "WS-1", name: "Weather station", kind: "weather_station" });
   return list;
 }
@@ -60,7 +80,12 @@ export const DEMO_SITES: DemoSite[] = [
     kind: "Medical office",
     address: "1450 Larkspur Avenue, Riverton",
     timeZone: "America/Chicago",
-    customer: { id: "org-harborview", name: "Harborview Medical Partners", userEmail: "facilities@harborview.example", userName: "Morgan Ellis" },
+    customer: {
+      id: "org-harborview",
+      name: "Harborview Medical Partners",
+      userEmail: "facilities@harborview.example",
+      userName: "Morgan Ellis",
+    },
     layout: "medical-office",
     equipment: plant(siteLayouts["medical-office"]),
   },
@@ -70,7 +95,12 @@ export const DEMO_SITES: DemoSite[] = [
     kind: "Data hall",
     address: "88 Flint Quarry Road, Ashbury",
     timeZone: "America/Chicago",
-    customer: { id: "org-quarry-ridge", name: "Quarry Ridge Data Centers", userEmail: "ops@quarryridge.example", userName: "Sam Achebe" },
+    customer: {
+      id: "org-quarry-ridge",
+      name: "Quarry Ridge Data Centers",
+      userEmail: "ops@quarryridge.example",
+      userName: "Sam Achebe",
+    },
     layout: "data-hall",
     equipment: plant(siteLayouts["data-hall"]),
   },
@@ -80,7 +110,12 @@ export const DEMO_SITES: DemoSite[] = [
     kind: "School",
     address: "300 Schoolhouse Lane, Millbrook",
     timeZone: "America/New_York",
-    customer: { id: "org-millbrook", name: "Millbrook Unified School District", userEmail: "facilities@millbrook.example", userName: "Jordan Whitfield" },
+    customer: {
+      id: "org-millbrook",
+      name: "Millbrook Unified School District",
+      userEmail: "facilities@millbrook.example",
+      userName: "Jordan Whitfield",
+    },
     layout: "school",
     equipment: plant(siteLayouts.school),
   },
@@ -102,7 +137,12 @@ export interface DemoAccount {
 export function demoAccounts(): DemoAccount[] {
   return [
     ...DEMO_STAFF.map((s) => ({ role: s.role, email: s.email, name: s.name, organization: SERVICE_ORG.name })),
-    ...DEMO_SITES.map((s) => ({ role: "customer" as const, email: s.customer.userEmail, name: s.customer.userName, organization: s.customer.name })),
+    ...DEMO_SITES.map((s) => ({
+      role: "customer" as const,
+      email: s.customer.userEmail,
+      name: s.customer.userName,
+      organization: s.customer.name,
+    })),
   ];
 }
 
@@ -113,48 +153,108 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
   let inserted = 0;
   const count = (r: { changes: number }) => (inserted += r.changes);
 
-  db.transaction((tx) => {
-    count(tx.insert(organizations).values(SERVICE_ORG).onConflictDoNothing().run());
-    for (const staff of DEMO_STAFF) {
-      count(tx.insert(users).values({ ...staff, organizationId: SERVICE_ORG.id, passwordHash }).onConflictDoNothing().run());
-    }
-    for (const site of DEMO_SITES) {
-      const { customer } = site;
-      count(tx.insert(organizations).values({ id: customer.id, name: customer.name, kind: "customer" }).onConflictDoNothing().run());
-      count(
-        tx
-          .insert(users)
-          .values({ id: `user-${customer.id}`, email: customer.userEmail, name: customer.userName, role: "customer", organizationId: customer.id, passwordHash })
-          .onConflictDoNothing()
-          .run(),
-      );
-      count(
-        tx
-          .insert(sites)
-          .values({ id: site.id, name: site.name, kind: site.kind, address: site.address, timeZone: site.timeZone, organizationId: customer.id })
-          .onConflictDoNothing()
-          .run(),
-      );
-      for (const e of site.equipment) {
-        const equipmentId = `${site.id}:${e.tag}`;
-        const row: NewEquipment = { id: equipmentId, siteId: site.id, ...e };
-        count(tx.insert(equipment).values(row).onConflictDoNothing().run());
-        for (const key of pointsByKind[e.kind]) {
-          count(
-            tx
-              .insert(points)
-              .values({ equipmentId, key, quantity: key, unit: canonicalUnitOf(key), brickClass: quantities[key].brickClass, expectedIntervalS: 5 })
-              .onConflictDoNothing()
-              .run(),
-          );
+  db.transaction(
+    (tx) => {
+      count(tx.insert(organizations).values(SERVICE_ORG).onConflictDoNothing().run());
+      for (const staff of DEMO_STAFF) {
+        count(
+          tx
+            .insert(users)
+            .values({ ...staff, organizationId: SERVICE_ORG.id, passwordHash })
+            .onConflictDoNothing()
+            .run(),
+        );
+      }
+      for (const site of DEMO_SITES) {
+        const { customer } = site;
+        count(
+          tx
+            .insert(organizations)
+            .values({ id: customer.id, name: customer.name, kind: "customer" })
+            .onConflictDoNothing()
+            .run(),
+        );
+        count(
+          tx
+            .insert(users)
+            .values({
+              id: `user-${customer.id}`,
+              email: customer.userEmail,
+              name: customer.userName,
+              role: "customer",
+              organizationId: customer.id,
+              passwordHash,
+            })
+            .onConflictDoNothing()
+            .run(),
+        );
+        count(
+          tx
+            .insert(sites)
+            .values({
+              id: site.id,
+              name: site.name,
+              kind: site.kind,
+              address: site.address,
+              timeZone: site.timeZone,
+              organizationId: customer.id,
+            })
+            .onConflictDoNothing()
+            .run(),
+        );
+        for (const e of site.equipment) {
+          const equipmentId = `${site.id}:${e.tag}`;
+          const row: NewEquipment = { id: equipmentId, siteId: site.id, ...e };
+          count(tx.insert(equipment).values(row).onConflictDoNothing().run());
+          for (const key of pointsByKind[e.kind]) {
+            count(
+              tx
+                .insert(points)
+                .values({
+                  equipmentId,
+                  key,
+                  quantity: key,
+                  unit: canonicalUnitOf(key),
+                  brickClass: quantities[key].brickClass,
+                  expectedIntervalS: 5,
+                })
+                .onConflictDoNothing()
+                .run(),
+            );
+          }
         }
       }
-    }
-    // Two weeks of on-call from the first start: the technicians take turns, each backing the other.
-    const weekMs = 7 * 24 * 3600_000;
-    const from = Date.now() - 3600_000;
-    count(tx.insert(onCallShifts).values({ id: "demo-shift-1", startsAt: from, endsAt: from + weekMs, primaryUserId: "user-tech-1", backupUserId: "user-tech-2" }).onConflictDoNothing().run());
-    count(tx.insert(onCallShifts).values({ id: "demo-shift-2", startsAt: from + weekMs, endsAt: from + 2 * weekMs, primaryUserId: "user-tech-2", backupUserId: "user-tech-1" }).onConflictDoNothing().run());
-  }, { behavior: "immediate" });
+      // Two weeks of on-call from the first start: the technicians take turns, each backing the other.
+      const weekMs = 7 * 24 * 3600_000;
+      const from = Date.now() - 3600_000;
+      count(
+        tx
+          .insert(onCallShifts)
+          .values({
+            id: "demo-shift-1",
+            startsAt: from,
+            endsAt: from + weekMs,
+            primaryUserId: "user-tech-1",
+            backupUserId: "user-tech-2",
+          })
+          .onConflictDoNothing()
+          .run(),
+      );
+      count(
+        tx
+          .insert(onCallShifts)
+          .values({
+            id: "demo-shift-2",
+            startsAt: from + weekMs,
+            endsAt: from + 2 * weekMs,
+            primaryUserId: "user-tech-2",
+            backupUserId: "user-tech-1",
+          })
+          .onConflictDoNothing()
+          .run(),
+      );
+    },
+    { behavior: "immediate" },
+  );
   return { inserted };
 }

@@ -2,7 +2,16 @@
 // their on/off delays) into the state machine and returns every transition record.
 
 import type { Priority } from "./priority";
-import { alarmKey, newAlarm, stepAlarm, type Actor, type Alarm, type AlarmEvent, type AlarmStepResult, type TransitionRecord } from "./state-machine";
+import {
+  alarmKey,
+  newAlarm,
+  stepAlarm,
+  type Actor,
+  type Alarm,
+  type AlarmEvent,
+  type AlarmStepResult,
+  type TransitionRecord,
+} from "./state-machine";
 
 export type AlarmBook = ReadonlyMap<string, Alarm>;
 
@@ -25,7 +34,11 @@ export function emptyAlarmBook(): AlarmBook {
  * Applies conditions observed at `atMs`. Suppression is applied before the condition so an
  * alarm that becomes meaningless is hidden before it could annunciate. Also expires shelves.
  */
-export function applyConditions(book: AlarmBook, conditions: readonly ConditionInput[], atMs: number): { book: AlarmBook; transitions: TransitionRecord[] } {
+export function applyConditions(
+  book: AlarmBook,
+  conditions: readonly ConditionInput[],
+  atMs: number,
+): { book: AlarmBook; transitions: TransitionRecord[] } {
   // Copied on the first change only: most evaluations change nothing.
   let next: Map<string, Alarm> | null = null;
   const current = (): AlarmBook => next ?? book;
@@ -70,13 +83,25 @@ export function applyConditions(book: AlarmBook, conditions: readonly ConditionI
 
 /** True when applying `c` to `a` would change nothing and record nothing. */
 function unchanged(a: Alarm, c: ConditionInput): boolean {
-  return a.shelf === null && a.priority === c.priority && a.conditionActive === c.active && a.suppressedReason === null && (c.suppressedReason ?? null) === null;
+  return (
+    a.shelf === null &&
+    a.priority === c.priority &&
+    a.conditionActive === c.active &&
+    a.suppressedReason === null &&
+    (c.suppressedReason ?? null) === null
+  );
 }
 
 /** A person's command on one alarm (acknowledge, shelve, unshelve, out of service…). */
 export function commandAlarm(book: AlarmBook, key: string, event: AlarmEvent): { book: AlarmBook } & AlarmStepResult {
   const a = book.get(key);
-  if (!a) return { book, alarm: newAlarm({ ruleId: "unknown", equipment: key, priority: 4 }), transitions: [], rejected: "no such alarm" };
+  if (!a)
+    return {
+      book,
+      alarm: newAlarm({ ruleId: "unknown", equipment: key, priority: 4 }),
+      transitions: [],
+      rejected: "no such alarm",
+    };
   const r = stepAlarm(a, event);
   const next = new Map(book);
   next.set(key, r.alarm);

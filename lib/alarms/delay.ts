@@ -15,9 +15,18 @@ export interface DelayState {
   rawSinceMs: number;
 }
 
-export function stepDelay(prev: DelayState | undefined, rawActive: boolean, atMs: number, d: DelaySettings): DelayState {
+export function stepDelay(
+  prev: DelayState | undefined,
+  rawActive: boolean,
+  atMs: number,
+  d: DelaySettings,
+): DelayState {
   const state: DelayState =
-    prev === undefined ? { active: false, rawActive, rawSinceMs: atMs } : prev.rawActive === rawActive ? prev : { ...prev, rawActive, rawSinceMs: atMs };
+    prev === undefined
+      ? { active: false, rawActive, rawSinceMs: atMs }
+      : prev.rawActive === rawActive
+        ? prev
+        : { ...prev, rawActive, rawSinceMs: atMs };
   if (state.active === rawActive) return state;
   const heldS = (atMs - state.rawSinceMs) / 1000;
   const needS = rawActive ? d.onDelayS : d.offDelayS;

@@ -44,7 +44,13 @@ export interface Activation {
 export function activationsOf(records: readonly TransitionRecord[]): Activation[] {
   return records
     .filter((r) => r.cause === "condition_active" && r.to === "unacknowledged")
-    .map((r) => ({ alarmKey: r.alarmKey, ruleId: r.ruleId, equipment: r.equipment, priority: r.priority, atMs: r.atMs }))
+    .map((r) => ({
+      alarmKey: r.alarmKey,
+      ruleId: r.ruleId,
+      equipment: r.equipment,
+      priority: r.priority,
+      atMs: r.atMs,
+    }))
     .sort((a, b) => a.atMs - b.atMs);
 }
 
@@ -55,10 +61,16 @@ export interface Flood {
   activations: number;
 }
 
-export function findFloods(times: readonly number[], toMs: number, t: HealthThresholds = defaultHealthThresholds): Flood[] {
+export function findFloods(
+  times: readonly number[],
+  toMs: number,
+  t: HealthThresholds = defaultHealthThresholds,
+): Flood[] {
   const sorted = [...times].sort((a, b) => a - b);
   // The trailing 10-min count only changes when an activation enters or leaves the window.
-  const candidates = [...new Set([...sorted, ...sorted.map((x) => x + TEN_MIN_MS)])].filter((c) => c <= toMs).sort((a, b) => a - b);
+  const candidates = [...new Set([...sorted, ...sorted.map((x) => x + TEN_MIN_MS)])]
+    .filter((c) => c <= toMs)
+    .sort((a, b) => a - b);
   const countAt = (c: number) => sorted.filter((x) => x > c - TEN_MIN_MS && x <= c).length;
   const floods: Flood[] = [];
   let open: number | null = null;
@@ -67,13 +79,23 @@ export function findFloods(times: readonly number[], toMs: number, t: HealthThre
     if (open === null && n > t.floodStartAbove) open = c;
     else if (open !== null && n < t.floodEndBelow) {
       const start = open;
-      floods.push({ startMs: start, endMs: c, ongoing: false, activations: sorted.filter((x) => x > start - TEN_MIN_MS && x <= c).length });
+      floods.push({
+        startMs: start,
+        endMs: c,
+        ongoing: false,
+        activations: sorted.filter((x) => x > start - TEN_MIN_MS && x <= c).length,
+      });
       open = null;
     }
   }
   if (open !== null) {
     const start = open;
-    floods.push({ startMs: start, endMs: toMs, ongoing: true, activations: sorted.filter((x) => x > start - TEN_MIN_MS && x <= toMs).length });
+    floods.push({
+      startMs: start,
+      endMs: toMs,
+      ongoing: true,
+      activations: sorted.filter((x) => x > start - TEN_MIN_MS && x <= toMs).length,
+    });
   }
   return floods;
 }
@@ -92,9 +114,22 @@ export interface AlarmHealth {
   timeInFloodFraction: number;
   topAlarms: { alarmKey: string; ruleId: string; equipment: string; count: number; share: number }[];
   topShare: number;
-  chattering: { alarmKey: string; ruleId: string; equipment: string; maxTransitionsInWindow: number; firstAtMs: number }[];
+  chattering: {
+    alarmKey: string;
+    ruleId: string;
+    equipment: string;
+    maxTransitionsInWindow: number;
+    firstAtMs: number;
+  }[];
   stale: { alarmKey: string; ruleId: string; equipment: string; activeSinceMs: number; activeForS: number }[];
-  priorityDistribution: { priority: Priority; label: string; count: number; share: number; target: string; withinGuidance: boolean }[];
+  priorityDistribution: {
+    priority: Priority;
+    label: string;
+    count: number;
+    share: number;
+    target: string;
+    withinGuidance: boolean;
+  }[];
 }
 
 function withinTarget(p: Priority, share: number): boolean {
@@ -124,21 +159,34 @@ export function computeAlarmHealth(args: {
   }
   const average = acts.length / (periodMs / TEN_MIN_MS) / people;
   const peak = Math.max(0, ...buckets.values()) / people;
-  const assessment = average < t.acceptablePer10Min ? "acceptable" : average <= t.manageablePer10Min ? "manageable" : "overloaded";
+  const assessment =
+    average < t.acceptablePer10Min ? "acceptable" : average <= t.manageablePer10Min ? "manageable" : "overloaded";
 
-  const floods = findFloods(acts.map((a) => a.atMs), args.toMs, t);
+  const floods = findFloods(
+    acts.map((a) => a.atMs),
+    args.toMs,
+    t,
+  );
   const floodMs = floods.reduce((s, f) => s + (f.endMs - f.startMs), 0);
 
   const byKey = new Map<string, Activation[]>();
   for (const a of acts) byKey.set(a.alarmKey, [...(byKey.get(a.alarmKey) ?? []), a]);
   const topAlarms = [...byKey.entries()]
-    .map(([alarmKey, list]) => ({ alarmKey, ruleId: list[0].ruleId, equipment: list[0].equipment, count: list.length, share: list.length / acts.length }))
+    .map(([alarmKey, list]) => ({
+      alarmKey,
+      ruleId: list[0].ruleId,
+      equipment: list[0].equipment,
+      count: list.length,
+      share: list.length / acts.length,
+    }))
     .sort((a, b) => b.count - a.count || a.alarmKey.localeCompare(b.alarmKey))
     .slice(0, t.topN);
 
   // Chattering counts condition changes, shown or hidden, within a short window.
   const changes = new Map<string, TransitionRecord[]>();
-  for (const r of inRange) if (r.cause === "condition_active" || r.cause === "condition_cleared") changes.set(r.alarmKey, [...(changes.get(r.alarmKey) ?? []), r]);
+  for (const r of inRange)
+    if (r.cause === "condition_active" || r.cause === "condition_cleared")
+      changes.set(r.alarmKey, [...(changes.get(r.alarmKey) ?? []), r]);
   const chattering: AlarmHealth["chattering"] = [];
   for (const [alarmKey, list] of changes) {
     const times = list.map((r) => r.atMs).sort((a, b) => a - b);
@@ -148,12 +196,27 @@ export function computeAlarmHealth(args: {
       while (times[j] - times[i] > t.chatterWindowS * 1000) i++;
       if (j - i + 1 > best) [best, firstAtMs] = [j - i + 1, times[i]];
     }
-    if (best >= t.chatterTransitions) chattering.push({ alarmKey, ruleId: list[0].ruleId, equipment: list[0].equipment, maxTransitionsInWindow: best, firstAtMs });
+    if (best >= t.chatterTransitions)
+      chattering.push({
+        alarmKey,
+        ruleId: list[0].ruleId,
+        equipment: list[0].equipment,
+        maxTransitionsInWindow: best,
+        firstAtMs,
+      });
   }
 
   const stale = (args.alarms ?? [])
-    .filter((a) => a.conditionActive && a.conditionSinceMs !== null && args.toMs - a.conditionSinceMs > t.staleAfterS * 1000)
-    .map((a) => ({ alarmKey: a.key, ruleId: a.ruleId, equipment: a.equipment, activeSinceMs: a.conditionSinceMs!, activeForS: (args.toMs - a.conditionSinceMs!) / 1000 }));
+    .filter(
+      (a) => a.conditionActive && a.conditionSinceMs !== null && args.toMs - a.conditionSinceMs > t.staleAfterS * 1000,
+    )
+    .map((a) => ({
+      alarmKey: a.key,
+      ruleId: a.ruleId,
+      equipment: a.equipment,
+      activeSinceMs: a.conditionSinceMs!,
+      activeForS: (args.toMs - a.conditionSinceMs!) / 1000,
+    }));
 
   const priorityDistribution = priorities.map((p) => {
     const count = acts.filter((a) => a.priority === p).length;

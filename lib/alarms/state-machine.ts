@@ -125,7 +125,14 @@ function settle(a: Alarm, wasHidden: boolean): Alarm {
   return { ...next, state: displayedState(next) };
 }
 
-function record(before: Alarm, after: Alarm, cause: TransitionCause, atMs: number, actor: Actor, note?: string | null): TransitionRecord {
+function record(
+  before: Alarm,
+  after: Alarm,
+  cause: TransitionCause,
+  atMs: number,
+  actor: Actor,
+  note?: string | null,
+): TransitionRecord {
   return {
     alarmKey: after.key,
     ruleId: after.ruleId,
@@ -144,7 +151,10 @@ function record(before: Alarm, after: Alarm, cause: TransitionCause, atMs: numbe
 function expireShelf(a: Alarm, atMs: number): AlarmStepResult {
   if (!a.shelf || atMs < a.shelf.untilMs) return { alarm: a, transitions: [] };
   const after = settle({ ...a, shelf: null, lastTransitionMs: a.shelf.untilMs }, true);
-  return { alarm: after, transitions: [record(a, after, "shelf_expired", a.shelf.untilMs, systemActor, a.shelf.reason)] };
+  return {
+    alarm: after,
+    transitions: [record(a, after, "shelf_expired", a.shelf.untilMs, systemActor, a.shelf.reason)],
+  };
 }
 
 function onCondition(a: Alarm, active: boolean, atMs: number): Alarm {
@@ -155,7 +165,10 @@ function onCondition(a: Alarm, active: boolean, atMs: number): Alarm {
     else if (annunciation === "unacknowledged") annunciation = a.latching ? "latched" : "returned_unacknowledged";
     else if (annunciation === "acknowledged") annunciation = a.latching ? "latched" : "normal";
   }
-  return settle({ ...a, annunciation, conditionActive: active, conditionSinceMs: active ? atMs : null, lastTransitionMs: atMs }, false);
+  return settle(
+    { ...a, annunciation, conditionActive: active, conditionSinceMs: active ? atMs : null, lastTransitionMs: atMs },
+    false,
+  );
 }
 
 const reject = (a: Alarm, why: string): AlarmStepResult => ({ alarm: a, transitions: [], rejected: why });
@@ -190,32 +203,59 @@ export function stepAlarm(alarm: Alarm, event: AlarmEvent): AlarmStepResult {
       };
       const to = next[a.annunciation];
       if (!to) return { ...reject(a, "nothing to acknowledge"), transitions: pre };
-      return done(settle({ ...a, annunciation: to, lastTransitionMs: event.atMs }, false), "acknowledged", event.actor, event.note);
+      return done(
+        settle({ ...a, annunciation: to, lastTransitionMs: event.atMs }, false),
+        "acknowledged",
+        event.actor,
+        event.note,
+      );
     }
     case "shelve": {
       if (a.outOfService) return { ...reject(a, "out of service"), transitions: pre };
       if (!event.reason.trim()) return { ...reject(a, "a shelving reason is required"), transitions: pre };
       if (event.untilMs <= event.atMs) return { ...reject(a, "shelving must end in the future"), transitions: pre };
       const shelf: Shelf = { untilMs: event.untilMs, reason: event.reason, by: event.actor };
-      return done(settle({ ...a, shelf, lastTransitionMs: event.atMs }, wasHidden), "shelved", event.actor, event.note ?? event.reason);
+      return done(
+        settle({ ...a, shelf, lastTransitionMs: event.atMs }, wasHidden),
+        "shelved",
+        event.actor,
+        event.note ?? event.reason,
+      );
     }
     case "unshelve": {
       if (!a.shelf) return { ...reject(a, "not shelved"), transitions: pre };
-      return done(settle({ ...a, shelf: null, lastTransitionMs: event.atMs }, wasHidden), "unshelved", event.actor, event.note);
+      return done(
+        settle({ ...a, shelf: null, lastTransitionMs: event.atMs }, wasHidden),
+        "unshelved",
+        event.actor,
+        event.note,
+      );
     }
     case "suppress": {
       if (a.suppressedReason === event.reason) return expired;
-      return done(settle({ ...a, suppressedReason: event.reason, lastTransitionMs: event.atMs }, wasHidden), "suppressed", systemActor, event.reason);
+      return done(
+        settle({ ...a, suppressedReason: event.reason, lastTransitionMs: event.atMs }, wasHidden),
+        "suppressed",
+        systemActor,
+        event.reason,
+      );
     }
     case "unsuppress": {
       if (a.suppressedReason === null) return expired;
-      return done(settle({ ...a, suppressedReason: null, lastTransitionMs: event.atMs }, wasHidden), "unsuppressed", systemActor);
+      return done(
+        settle({ ...a, suppressedReason: null, lastTransitionMs: event.atMs }, wasHidden),
+        "unsuppressed",
+        systemActor,
+      );
     }
     case "remove_from_service": {
       if (a.outOfService) return { ...reject(a, "already out of service"), transitions: pre };
       if (!event.reason.trim()) return { ...reject(a, "a reason is required"), transitions: pre };
       return done(
-        settle({ ...a, outOfService: { reason: event.reason, by: event.actor }, lastTransitionMs: event.atMs }, wasHidden),
+        settle(
+          { ...a, outOfService: { reason: event.reason, by: event.actor }, lastTransitionMs: event.atMs },
+          wasHidden,
+        ),
         "removed_from_service",
         event.actor,
         event.reason,
@@ -223,7 +263,12 @@ export function stepAlarm(alarm: Alarm, event: AlarmEvent): AlarmStepResult {
     }
     case "return_to_service": {
       if (!a.outOfService) return { ...reject(a, "not out of service"), transitions: pre };
-      return done(settle({ ...a, outOfService: null, lastTransitionMs: event.atMs }, wasHidden), "returned_to_service", event.actor, event.note);
+      return done(
+        settle({ ...a, outOfService: null, lastTransitionMs: event.atMs }, wasHidden),
+        "returned_to_service",
+        event.actor,
+        event.note,
+      );
     }
   }
 }

@@ -11,5 +11,3 @@ export const alarmStates = [
   "out_of_service", // taken out of service for maintenance
 ] as const;
 export type AlarmState = (typeof alarmStates)[number];
-
-

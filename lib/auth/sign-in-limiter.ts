@@ -27,7 +27,10 @@ export function createSignInLimiter(opts: SignInLimiterOptions): SignInLimiter {
 
   return {
     async retryAfterS(account, address) {
-      const [a, b] = await Promise.all([blockedFor(byAccount, opts.maxPerAccount, account), blockedFor(byAddress, opts.maxPerAddress, address)]);
+      const [a, b] = await Promise.all([
+        blockedFor(byAccount, opts.maxPerAccount, account),
+        blockedFor(byAddress, opts.maxPerAddress, address),
+      ]);
       return Math.max(a, b);
     },
     async recordFailure(account, address) {

@@ -27,5 +27,12 @@ export function isAdmin(viewer: Pick<Viewer, "role">): boolean {
 
 /** The server acting on its own (demo provisioning, board summaries): the service company's full view. */
 export function systemViewer(serviceOrganizationId: string): Viewer {
-  return { userId: "system", role: "admin", organizationId: serviceOrganizationId, name: "Liftline", email: "system@liftline.invalid", unitSystem: "ip" };
+  return {
+    userId: "system",
+    role: "admin",
+    organizationId: serviceOrganizationId,
+    name: "Liftline",
+    email: "system@liftline.invalid",
+    unitSystem: "ip",
+  };
 }

@@ -21,5 +21,11 @@ export function formatClock(ms: number | null | undefined, timeZone?: string): s
 
 export function formatDateTime(ms: number | null | undefined, timeZone?: string): string {
   if (ms === null || ms === undefined || !Number.isFinite(ms)) return "—";
-  return new Date(ms).toLocaleString("en-US", { month: "short", day: "numeric", hour: "2-digit", minute: "2-digit", timeZone });
+  return new Date(ms).toLocaleString("en-US", {
+    month: "short",
+    day: "numeric",
+    hour: "2-digit",
+    minute: "2-digit",
+    timeZone,
+  });
 }

@@ -2,7 +2,10 @@ import type { AlarmState } from "@/lib/alarms/states";
 import type { Condition } from "@/lib/rules/condition";
 
 /** The latest condition's words and numbers, as of the evaluation at `atMs` (event time). */
-export type AlarmDetail = Pick<Condition, "technicianMessage" | "ownerMessage" | "advice" | "caution" | "numbers" | "related" | "atMs">;
+export type AlarmDetail = Pick<
+  Condition,
+  "technicianMessage" | "ownerMessage" | "advice" | "caution" | "numbers" | "related" | "atMs"
+>;
 
 export interface AlarmDto {
   id: string;

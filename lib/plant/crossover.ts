@@ -72,7 +72,8 @@ export function timeToCrossover(
   const sinceLastS = (nowMs - fit.lastTsMs) / 1000;
   const fittedMarginK = fit.valueAtLast + fit.slopePerS * sinceLastS;
   if (fittedMarginK <= 0) return { status: "crossed", fittedMarginK, atMs: nowMs };
-  if (-fit.slopePerS < o.minClosingRateKPerS) return { status: "not_closing", closingRateKPerMin, fittedMarginK, atMs: nowMs };
+  if (-fit.slopePerS < o.minClosingRateKPerS)
+    return { status: "not_closing", closingRateKPerMin, fittedMarginK, atMs: nowMs };
   const p = projectToValue({ ...fit, valueAtLast: fittedMarginK }, 0);
   if (!p) return { status: "not_closing", closingRateKPerMin, fittedMarginK, atMs: nowMs };
   return {

@@ -25,7 +25,8 @@ export function restartLockoutLeft(i: LockoutInputs): LockoutLeft {
     return { lockoutLeftS: Math.max(0, i.inhibitLeftS.value - elapsedS), source: "controller" };
   }
   const candidates: number[] = [];
-  if (i.lastStartMs != null && i.startToStartS != null) candidates.push(i.lastStartMs + i.startToStartS * 1000 - i.nowMs);
+  if (i.lastStartMs != null && i.startToStartS != null)
+    candidates.push(i.lastStartMs + i.startToStartS * 1000 - i.nowMs);
   if (i.lastStopMs != null && i.stopToStartS != null) candidates.push(i.lastStopMs + i.stopToStartS * 1000 - i.nowMs);
   if (candidates.length === 0) return { lockoutLeftS: 0, source: "unknown" };
   return { lockoutLeftS: Math.max(0, ...candidates) / 1000, source: "timers" };

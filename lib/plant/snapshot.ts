@@ -2,11 +2,25 @@
 // and what the rules reason with. Pure: the caller passes the latest values and event time.
 
 import type { QuantityKey } from "@/lib/quantities";
-import { crossoverMarginK, crossoverPressureMarginKPa, timeToCrossover, type TimeToCrossoverOptions, type TimeToCrossoverResult } from "./crossover";
+import {
+  crossoverMarginK,
+  crossoverPressureMarginKPa,
+  timeToCrossover,
+  type TimeToCrossoverOptions,
+  type TimeToCrossoverResult,
+} from "./crossover";
 import { cop, kwPerTon } from "./efficiency";
 import { restartLockoutLeft, type LockoutLeft } from "./lockout";
 import { condenserApproachK, evaporatorApproachK, liftK, pressureLiftKPa } from "./refrigerant-side";
-import { booleanAt, equipmentOfKind, servingEquipment, towersServing, type Equipment, type LatestValues, type Site } from "./site";
+import {
+  booleanAt,
+  equipmentOfKind,
+  servingEquipment,
+  towersServing,
+  type Equipment,
+  type LatestValues,
+  type Site,
+} from "./site";
 import { towerApproachK, towerRangeK } from "./tower";
 import type { TimedValue } from "./trend";
 import { kwToTons } from "./units";
@@ -82,7 +96,10 @@ export interface SnapshotOptions {
 class InputReader {
   fromMs: number | null = null;
   toMs: number | null = null;
-  constructor(private readonly latest: LatestValues, private readonly tag: string) {}
+  constructor(
+    private readonly latest: LatestValues,
+    private readonly tag: string,
+  ) {}
   num(q: QuantityKey, tag = this.tag): number | null {
     const p = this.latest[tag]?.[q];
     if (!p || typeof p.value !== "number" || !Number.isFinite(p.value)) return null;
@@ -100,8 +117,11 @@ class InputReader {
   }
 }
 
-const diff = <A extends number | null, B extends number | null>(a: A, b: B, f: (a: number, b: number) => number): number | null =>
-  a === null || b === null ? null : f(a, b);
+const diff = <A extends number | null, B extends number | null>(
+  a: A,
+  b: B,
+  f: (a: number, b: number) => number,
+): number | null => (a === null || b === null ? null : f(a, b));
 
 /** All pumps serving the chiller report proven flow (and at least one serves it). */
 export function pumpsProven(site: Site, latest: LatestValues, chillerTag: string): boolean {
@@ -120,7 +140,13 @@ function condenserWaterEnteringC(site: Site, r: InputReader, chillerTag: string)
   return null;
 }
 
-export function chillerSnapshot(site: Site, latest: LatestValues, chiller: Equipment, nowMs: number, options: SnapshotOptions = {}): ChillerSnapshot {
+export function chillerSnapshot(
+  site: Site,
+  latest: LatestValues,
+  chiller: Equipment,
+  nowMs: number,
+  options: SnapshotOptions = {},
+): ChillerSnapshot {
   const r = new InputReader(latest, chiller.tag);
   const running = r.bool("run_status");
   const chwIn = r.num("chilled_water_entering_temp");
@@ -174,7 +200,9 @@ export function chillerSnapshot(site: Site, latest: LatestValues, chiller: Equip
     crossoverMarginK: diff(cwIn, chwIn, crossoverMarginK),
     crossoverPressureMarginKPa: running ? diff(condP, evapP, crossoverPressureMarginKPa) : null,
     timeToCrossover: h?.marginSamples ? timeToCrossover(h.marginSamples, nowMs, options.timeToCrossover) : null,
-    slowTimeToCrossover: h?.slowMarginSamples ? timeToCrossover(h.slowMarginSamples, nowMs, options.slowTimeToCrossover) : null,
+    slowTimeToCrossover: h?.slowMarginSamples
+      ? timeToCrossover(h.slowMarginSamples, nowMs, options.slowTimeToCrossover)
+      : null,
     lockout,
     inputsFromMs: r.fromMs,
     inputsToMs: r.toMs,
@@ -205,7 +233,12 @@ export function towerSnapshot(latest: LatestValues, tower: Equipment, wetBulb: n
 }
 
 /** Derived numbers for every chiller and tower of a site, as of `nowMs` (event time). */
-export function computeSiteSnapshot(site: Site, latest: LatestValues, nowMs: number, options: SnapshotOptions = {}): SiteSnapshot {
+export function computeSiteSnapshot(
+  site: Site,
+  latest: LatestValues,
+  nowMs: number,
+  options: SnapshotOptions = {},
+): SiteSnapshot {
   const wb = wetBulbC(site, latest);
   return {
     atMs: nowMs,

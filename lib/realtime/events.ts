@@ -12,7 +12,12 @@ export type JoinSite = z.infer<typeof joinSiteSchema>;
 /** Latest values of one site's points, coalesced; values in canonical SI units. */
 export interface SiteValues {
   siteId: string;
-  values: Array<{ pointId: number; tsMs: number; value: number | boolean | string; quality: "good" | "uncertain" | "bad" }>;
+  values: Array<{
+    pointId: number;
+    tsMs: number;
+    value: number | boolean | string;
+    quality: "good" | "uncertain" | "bad";
+  }>;
 }
 
 /** One site's status as the board shows it. */
@@ -20,7 +25,14 @@ export interface SiteStatus {
   siteId: string;
   data: SiteDataState;
   /** `title` is for technicians; `ownerTitle` says the same in plain words for building owners. */
-  worst: { priority: number; ruleId: string; equipment: string; title: string; ownerTitle: string; active: boolean } | null;
+  worst: {
+    priority: number;
+    ruleId: string;
+    equipment: string;
+    title: string;
+    ownerTitle: string;
+    active: boolean;
+  } | null;
   unacknowledged: number;
 }
 

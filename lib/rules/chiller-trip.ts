@@ -22,13 +22,23 @@ export function chillerTripped(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         latching: s.latching,
-        technicianMessage: active ? `${chiller.tag} tripped: ${what}${text ? ` — "${text}"` : ""}.` : `${chiller.tag}: no controller alarm.`,
-        ownerMessage: active ? "A chiller has shut itself down on a fault and needs a technician." : "No chiller faults.",
+        technicianMessage: active
+          ? `${chiller.tag} tripped: ${what}${text ? ` — "${text}"` : ""}.`
+          : `${chiller.tag}: no controller alarm.`,
+        ownerMessage: active
+          ? "A chiller has shut itself down on a fault and needs a technician."
+          : "No chiller faults.",
         advice: active
-          ? ["Read the controller's fault log and find the cause before resetting.", "Watch the crossover margin while the chiller is off."]
+          ? [
+              "Read the controller's fault log and find the cause before resetting.",
+              "Watch the crossover margin while the chiller is off.",
+            ]
           : [],
         caution: active ? QUALIFIED_CAUTION : null,
-        numbers: { latchedAlarm: latched === null ? null : Number(latched), driveFault: driveFault === null ? null : Number(driveFault) },
+        numbers: {
+          latchedAlarm: latched === null ? null : Number(latched),
+          driveFault: driveFault === null ? null : Number(driveFault),
+        },
         related: text ? [text] : [],
       }),
     ];

@@ -19,8 +19,12 @@ export function commLost(ctx: RuleContext): Condition[] {
       active: offline,
       priority: s.priority,
       atMs: ctx.nowMs,
-      technicianMessage: offline ? "Site gateway offline: no live data; warnings cannot fire until it reconnects." : "Site gateway connected.",
-      ownerMessage: offline ? "We have lost contact with your plant's monitoring link; we cannot see its status right now." : "Monitoring link connected.",
+      technicianMessage: offline
+        ? "Site gateway offline: no live data; warnings cannot fire until it reconnects."
+        : "Site gateway connected.",
+      ownerMessage: offline
+        ? "We have lost contact with your plant's monitoring link; we cannot see its status right now."
+        : "Monitoring link connected.",
       advice: offline ? ["Check the gateway's power and network at the site, or call someone on site."] : [],
     }),
   );
@@ -30,7 +34,9 @@ export function commLost(ctx: RuleContext): Condition[] {
     // a gateway has not sent every point, and that is not a lost link.
     const sinceMs = lastMs ?? ctx.history.firstSeenAt();
     const ageS = sinceMs === null ? null : (ctx.nowMs - sinceMs) / 1000;
-    const stale = ctx.comms.staleEquipment ? ctx.comms.staleEquipment.includes(e.tag) : ageS === null || ageS > s.staleAfterS;
+    const stale = ctx.comms.staleEquipment
+      ? ctx.comms.staleEquipment.includes(e.tag)
+      : ageS === null || ageS > s.staleAfterS;
     // A gateway that is offline already says it; per-equipment staleness would only repeat it.
     const active = stale && !offline;
     out.push(

@@ -63,9 +63,11 @@ export function chillerCalledFor(ctx: RuleContext, chiller: Equipment): boolean 
 
 /** Condenser water entering the chiller: its own sensor, else the leaving water of a tower serving it. */
 export function condenserEnteringSource(ctx: RuleContext, chiller: Equipment): { tag: string; q: QuantityKey } | null {
-  if (ctx.history.latestAt(chiller.tag, "condenser_water_entering_temp", ctx.nowMs)) return { tag: chiller.tag, q: "condenser_water_entering_temp" };
+  if (ctx.history.latestAt(chiller.tag, "condenser_water_entering_temp", ctx.nowMs))
+    return { tag: chiller.tag, q: "condenser_water_entering_temp" };
   for (const t of towersServing(ctx.site, chiller.tag))
-    if (ctx.history.latestAt(t.tag, "condenser_water_leaving_temp", ctx.nowMs)) return { tag: t.tag, q: "condenser_water_leaving_temp" };
+    if (ctx.history.latestAt(t.tag, "condenser_water_leaving_temp", ctx.nowMs))
+      return { tag: t.tag, q: "condenser_water_leaving_temp" };
   return null;
 }
 

@@ -18,14 +18,19 @@ function chillerView(ctx: RuleContext, chiller: Equipment): ChillerSnapshot | un
 type Closing = Extract<TimeToCrossoverResult, { status: "closing" }>;
 
 /** The sooner of the short- and long-window projections, and whether either sees the loops crossed. */
-export function crossoverOutlook(s: ChillerSnapshot): { closing: (Closing & { fit: "short" | "long" }) | null; crossed: boolean } {
+export function crossoverOutlook(s: ChillerSnapshot): {
+  closing: (Closing & { fit: "short" | "long" }) | null;
+  crossed: boolean;
+} {
   const fits = [
     { r: s.timeToCrossover, fit: "short" as const },
     { r: s.slowTimeToCrossover, fit: "long" as const },
   ];
   const crossed = fits.some((f) => f.r?.status === "crossed");
   let closing: (Closing & { fit: "short" | "long" }) | null = null;
-  for (const f of fits) if (f.r?.status === "closing" && (!closing || f.r.timeToCrossoverS < closing.timeToCrossoverS)) closing = { ...f.r, fit: f.fit };
+  for (const f of fits)
+    if (f.r?.status === "closing" && (!closing || f.r.timeToCrossoverS < closing.timeToCrossoverS))
+      closing = { ...f.r, fit: f.fit };
   return { closing, crossed };
 }
 
@@ -33,15 +38,18 @@ function crossoverNumbers(s: ChillerSnapshot): Record<string, number | null> {
   const { closing, crossed } = crossoverOutlook(s);
   const short = s.timeToCrossover;
   return {
-    marginK: closing?.fittedMarginK ?? (short && short.status !== "insufficient_data" ? short.fittedMarginK : s.crossoverMarginK),
+    marginK:
+      closing?.fittedMarginK ??
+      (short && short.status !== "insufficient_data" ? short.fittedMarginK : s.crossoverMarginK),
     measuredMarginK: s.crossoverMarginK,
     pressureMarginKPa: s.crossoverPressureMarginKPa,
     timeToCrossoverS: closing ? closing.timeToCrossoverS : crossed ? 0 : null,
     timeToCrossoverEarliestS: closing?.earliestS ?? null,
     timeToCrossoverLatestS: closing && Number.isFinite(closing.latestS) ? closing.latestS : null,
-    closingRateKPerMin: closing?.closingRateKPerMin ?? (short?.status === "not_closing" ? short.closingRateKPerMin : null),
+    closingRateKPerMin:
+      closing?.closingRateKPerMin ?? (short?.status === "not_closing" ? short.closingRateKPerMin : null),
     fitResidualK: closing?.residualStdDevK ?? null,
-        lockoutLeftS: s.lockout.lockoutLeftS,
+    lockoutLeftS: s.lockout.lockoutLeftS,
   };
 }
 
@@ -67,10 +75,13 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
     const closingSoon = t !== null && t.timeToCrossoverS <= warnS && t.fittedMarginK <= warnMarginK;
     const smallAndClosing = t !== null && t.fittedMarginK <= smallMarginK;
     // Once raised, the risk stays up through the crossing itself; "loops crossed" then adds its alarm.
-    const active = calledFor && (closingSoon || smallAndClosing || (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
+    const active =
+      calledFor && (closingSoon || smallAndClosing || (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
     const n = crossoverNumbers(v);
     const when = n.timeToCrossoverS !== null ? `in about ${formatDuration(n.timeToCrossoverS)}` : "soon";
-    const band = t ? ` (fit band ${formatDuration(t.earliestS)}–${Number.isFinite(t.latestS) ? formatDuration(t.latestS) : "open"})` : "";
+    const band = t
+      ? ` (fit band ${formatDuration(t.earliestS)}–${Number.isFinite(t.latestS) ? formatDuration(t.latestS) : "open"})`
+      : "";
     return [
       makeCondition({
         ruleId: "crossover_risk",
@@ -108,8 +119,14 @@ export function restartRace(ctx: RuleContext): Condition[] {
     const latched = bool(ctx, chiller.tag, "chiller_alarm") === true;
     const latchedText = latched ? str(ctx, chiller.tag, "fault_text") : null;
     // The race is lost when the loops cross before the compressor can be back on load.
-    const active = off && chillerCalledFor(ctx, chiller) && ttcS !== null && (latched || ttcS < neededS + (was ? s.deadBandS : 0));
-    const n = { ...crossoverNumbers(v), compressorLoadS: s.compressorLoadS, restartNeedsS: latched ? null : neededS, latchedAlarm: Number(latched) };
+    const active =
+      off && chillerCalledFor(ctx, chiller) && ttcS !== null && (latched || ttcS < neededS + (was ? s.deadBandS : 0));
+    const n = {
+      ...crossoverNumbers(v),
+      compressorLoadS: s.compressorLoadS,
+      restartNeedsS: latched ? null : neededS,
+      latchedAlarm: Number(latched),
+    };
     const held = latched
       ? `is off on a latched alarm${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} and will not restart until someone resets it (anti-recycle ${formatDuration(lockoutS)} left)`
       : `is off and locked out for ${formatDuration(lockoutS)} more`;

@@ -34,10 +34,23 @@ export function driveTempTowardTrip(ctx: RuleContext): Condition[] {
         technicianMessage: active
           ? `${chiller.tag}: drive at ${fmtTemp(tempC)}, trip ${fmtTemp(tripC)}${riseKPerMin !== null ? `, rising ${fmtRate(riseKPerMin)}` : ""}${toTrip ? `; trip in about ${formatDuration(toTrip.timeS)}` : ""}.`
           : `${chiller.tag}: drive temperature ${fmtTemp(tempC)}.`,
-        ownerMessage: active ? "The chiller's compressor drive is heating up and may shut the chiller down." : "Compressor drive temperature is normal.",
-        advice: active ? ["Reduce compressor load.", "Check drive cooling: refrigerant or water cooling of the drive, and whether the loops are crossed."] : [],
+        ownerMessage: active
+          ? "The chiller's compressor drive is heating up and may shut the chiller down."
+          : "Compressor drive temperature is normal.",
+        advice: active
+          ? [
+              "Reduce compressor load.",
+              "Check drive cooling: refrigerant or water cooling of the drive, and whether the loops are crossed.",
+            ]
+          : [],
         caution: active ? QUALIFIED_CAUTION : null,
-        numbers: { driveTempC: tempC, tripC, riseKPerMin, timeToTripS: toTrip?.timeS ?? null, timeToTripEarliestS: toTrip?.earliestS ?? null },
+        numbers: {
+          driveTempC: tempC,
+          tripC,
+          riseKPerMin,
+          timeToTripS: toTrip?.timeS ?? null,
+          timeToTripEarliestS: toTrip?.earliestS ?? null,
+        },
       }),
     ];
   });

@@ -70,14 +70,22 @@ export function efficiencyDrift(ctx: RuleContext): Condition[] {
       minLoadFraction: s.minLoadFraction,
     });
     const enough = avg.coverage >= s.minCoverage;
-    const kwDrift = baseline.kwPerTon !== undefined && avg.kwPerTon !== null ? avg.kwPerTon / baseline.kwPerTon - 1 : null;
-    const approachDrift = baseline.condenserApproachK !== undefined && avg.condenserApproachK !== null ? avg.condenserApproachK - baseline.condenserApproachK : null;
+    const kwDrift =
+      baseline.kwPerTon !== undefined && avg.kwPerTon !== null ? avg.kwPerTon / baseline.kwPerTon - 1 : null;
+    const approachDrift =
+      baseline.condenserApproachK !== undefined && avg.condenserApproachK !== null
+        ? avg.condenserApproachK - baseline.condenserApproachK
+        : null;
     const kwHigh = kwDrift !== null && kwDrift > s.kwPerTonDriftFraction;
     const approachHigh = approachDrift !== null && approachDrift > s.approachDriftK;
     const active = enough && (kwHigh || approachHigh);
     const parts = [
-      kwHigh ? `kW/ton ${avg.kwPerTon!.toFixed(3)} is ${(kwDrift! * 100).toFixed(0)} % above its baseline ${baseline.kwPerTon!.toFixed(3)}` : null,
-      approachHigh ? `condenser approach ${avg.condenserApproachK!.toFixed(1)} K is ${approachDrift!.toFixed(1)} K above its baseline` : null,
+      kwHigh
+        ? `kW/ton ${avg.kwPerTon!.toFixed(3)} is ${(kwDrift! * 100).toFixed(0)} % above its baseline ${baseline.kwPerTon!.toFixed(3)}`
+        : null,
+      approachHigh
+        ? `condenser approach ${avg.condenserApproachK!.toFixed(1)} K is ${approachDrift!.toFixed(1)} K above its baseline`
+        : null,
     ].filter((p): p is string => p !== null);
     return [
       makeCondition({
@@ -86,9 +94,18 @@ export function efficiencyDrift(ctx: RuleContext): Condition[] {
         active,
         priority: s.priority,
         atMs: ctx.nowMs,
-        technicianMessage: active ? `${chiller.tag}: ${parts.join("; ")} (averaged over ${(s.averagingWindowS / 60).toFixed(0)} min at comparable load).` : `${chiller.tag}: efficiency in line with its baseline.`,
-        ownerMessage: active ? "A chiller is using more energy than it used to for the same cooling; maintenance is recommended." : "Chiller efficiency is in line with its usual performance.",
-        advice: active ? ["Plan condenser tube inspection/cleaning and check water treatment.", "Check refrigerant charge and non-condensables at the next visit."] : [],
+        technicianMessage: active
+          ? `${chiller.tag}: ${parts.join("; ")} (averaged over ${(s.averagingWindowS / 60).toFixed(0)} min at comparable load).`
+          : `${chiller.tag}: efficiency in line with its baseline.`,
+        ownerMessage: active
+          ? "A chiller is using more energy than it used to for the same cooling; maintenance is recommended."
+          : "Chiller efficiency is in line with its usual performance.",
+        advice: active
+          ? [
+              "Plan condenser tube inspection/cleaning and check water treatment.",
+              "Check refrigerant charge and non-condensables at the next visit.",
+            ]
+          : [],
         numbers: {
           kwPerTon: avg.kwPerTon,
           baselineKwPerTon: baseline.kwPerTon ?? null,

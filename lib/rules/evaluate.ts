@@ -31,10 +31,23 @@ export const rules: Record<RuleId, Rule> = {
 };
 
 /** The site's derived numbers at `nowMs`, including time to crossover and lockout from history. */
-export function snapshotFromHistory(site: Site, history: HistoryView, settings: RuleSettings, nowMs: number): SiteSnapshot {
+export function snapshotFromHistory(
+  site: Site,
+  history: HistoryView,
+  settings: RuleSettings,
+  nowMs: number,
+): SiteSnapshot {
   const c = settings.crossoverRisk;
   const perChiller: Record<string, ChillerHistoryInputs> = {};
-  const probe: RuleContext = { site, history, settings, nowMs, comms: {}, snapshot: { atMs: nowMs, chillers: [], towers: [], wetBulbC: null }, wasActive: () => false };
+  const probe: RuleContext = {
+    site,
+    history,
+    settings,
+    nowMs,
+    comms: {},
+    snapshot: { atMs: nowMs, chillers: [], towers: [], wetBulbC: null },
+    wasActive: () => false,
+  };
   for (const chiller of site.filter((e) => e.kind === "chiller")) {
     const edges = history.edges(chiller.tag, "run_status", nowMs);
     const lastStartMs = lastEdgeMs(edges.rises);
@@ -51,8 +64,18 @@ export function snapshotFromHistory(site: Site, history: HistoryView, settings: 
   }
   return computeSiteSnapshot(site, history.latestValuesAt(nowMs), nowMs, {
     history: perChiller,
-    timeToCrossover: { windowS: c.fitWindowS, minSamples: c.minSamples, minSpanS: c.minSpanS, minClosingRateKPerS: c.minClosingRateKPerMin / 60 },
-    slowTimeToCrossover: { windowS: c.slowFitWindowS, minSamples: c.minSamples, minSpanS: c.slowMinSpanS, minClosingRateKPerS: c.slowMinClosingRateKPerMin / 60 },
+    timeToCrossover: {
+      windowS: c.fitWindowS,
+      minSamples: c.minSamples,
+      minSpanS: c.minSpanS,
+      minClosingRateKPerS: c.minClosingRateKPerMin / 60,
+    },
+    slowTimeToCrossover: {
+      windowS: c.slowFitWindowS,
+      minSamples: c.minSamples,
+      minSpanS: c.slowMinSpanS,
+      minClosingRateKPerS: c.slowMinClosingRateKPerMin / 60,
+    },
     fallbackStartToStartS: settings.timers.fallbackStartToStartS,
     fallbackStopToStartS: settings.timers.fallbackStopToStartS,
   });

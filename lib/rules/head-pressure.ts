@@ -15,7 +15,9 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
     if (pKPa === null) return [];
     const tripKPa = s.tripKPaByTag[chiller.tag] ?? s.tripKPa;
     const running = bool(ctx, chiller.tag, "run_status") === true;
-    const fit = fitTrend(ctx.history.numbers(chiller.tag, "condenser_refrigerant_pressure", ctx.nowMs - s.riseWindowS * 1000, ctx.nowMs));
+    const fit = fitTrend(
+      ctx.history.numbers(chiller.tag, "condenser_refrigerant_pressure", ctx.nowMs - s.riseWindowS * 1000, ctx.nowMs),
+    );
     const riseKPaPerMin = fit ? fit.slopePerS * 60 : null;
     const was = ctx.wasActive("head_pressure_near_trip", chiller.tag);
     const near = pKPa >= tripKPa - s.warnWithinKPa - (was ? s.deadBandKPa : 0);
@@ -32,8 +34,15 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
         technicianMessage: active
           ? `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}, ${(tripKPa - pKPa).toFixed(0)} kPa below the ${fmtPressure(tripKPa)} trip and rising ${riseKPaPerMin!.toFixed(1)} kPa/min${toTrip ? `; trip in about ${formatDuration(toTrip.timeS)}` : ""}.`
           : `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}.`,
-        ownerMessage: active ? "The chiller is close to shutting itself down on high pressure." : "Chiller pressures are normal.",
-        advice: active ? ["Check tower fans and condenser-water flow; restore heat rejection.", "Reduce chiller load if heat rejection cannot be restored quickly."] : [],
+        ownerMessage: active
+          ? "The chiller is close to shutting itself down on high pressure."
+          : "Chiller pressures are normal.",
+        advice: active
+          ? [
+              "Check tower fans and condenser-water flow; restore heat rejection.",
+              "Reduce chiller load if heat rejection cannot be restored quickly.",
+            ]
+          : [],
         numbers: { condenserPressureKPa: pKPa, tripKPa, riseKPaPerMin, timeToTripS: toTrip?.timeS ?? null },
       }),
     ];

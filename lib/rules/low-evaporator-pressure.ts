@@ -31,7 +31,9 @@ export function lowEvaporatorPressure(ctx: RuleContext): Condition[] {
         technicianMessage: active
           ? `${chiller.tag}: saturated evaporating temperature ${fmtTemp(satC)}, at or below the ${fmtTemp(s.limitC)} freeze-risk limit.`
           : `${chiller.tag}: evaporator pressure normal.`,
-        ownerMessage: active ? "A chiller is running colder than is safe for its water tubes." : "Chiller evaporator pressure is normal.",
+        ownerMessage: active
+          ? "A chiller is running colder than is safe for its water tubes."
+          : "Chiller evaporator pressure is normal.",
         advice: active ? ["Check chilled-water flow and the leaving-water setpoint.", "Check refrigerant charge."] : [],
         numbers: { evaporatorSaturatedC: satC, limitC: s.limitC },
       }),

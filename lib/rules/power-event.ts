@@ -17,14 +17,25 @@ interface Fault {
 
 /** "14:03:05 CDT": the site's own clock, as its people and its controllers' logs read it. */
 function clockTime(atMs: number, timeZone = "UTC"): string {
-  return new Date(atMs).toLocaleTimeString("en-US", { hourCycle: "h23", hour: "2-digit", minute: "2-digit", second: "2-digit", timeZone, timeZoneName: "short" });
+  return new Date(atMs).toLocaleTimeString("en-US", {
+    hourCycle: "h23",
+    hour: "2-digit",
+    minute: "2-digit",
+    second: "2-digit",
+    timeZone,
+    timeZoneName: "short",
+  });
 }
 
 export function powerEventSuspected(ctx: RuleContext): Condition[] {
   const s = ctx.settings.powerEvent;
   if (!s.enabled) return [];
   const drives = ctx.site.flatMap((e): { tag: string; point: QuantityKey }[] =>
-    e.kind === "chiller" ? [{ tag: e.tag, point: "drive_fault" }] : e.kind === "cooling_tower" ? [{ tag: e.tag, point: "fan_drive_fault" }] : [],
+    e.kind === "chiller"
+      ? [{ tag: e.tag, point: "drive_fault" }]
+      : e.kind === "cooling_tower"
+        ? [{ tag: e.tag, point: "fan_drive_fault" }]
+        : [],
   );
   const sinceMs = ctx.nowMs - (s.holdS + s.windowS) * 1000;
   const faults: Fault[] = drives
@@ -33,7 +44,10 @@ export function powerEventSuspected(ctx: RuleContext): Condition[] {
       const rises = ctx.history.edges(d.tag, d.point, ctx.nowMs).rises.map((atMs) => ({ ...d, atMs, what: label }));
       const toOff =
         d.point === "fan_drive_fault"
-          ? ctx.history.changes(d.tag, "fan_drive_mode", ctx.nowMs).filter((c) => c.to === "off").map((c) => ({ ...d, atMs: c.tsMs, what: "fan drive changed to off" }))
+          ? ctx.history
+              .changes(d.tag, "fan_drive_mode", ctx.nowMs)
+              .filter((c) => c.to === "off")
+              .map((c) => ({ ...d, atMs: c.tsMs, what: "fan drive changed to off" }))
           : [];
       return [...rises, ...toOff].filter((f) => f.atMs >= sinceMs);
     })
@@ -61,14 +75,20 @@ export function powerEventSuspected(ctx: RuleContext): Condition[] {
       technicianMessage: active
         ? `Utility power event suspected: ${new Set(group.map((f) => f.tag)).size} drives faulted within ${s.windowS} s — ${names.join("; ")}.`
         : "No correlated drive faults.",
-      ownerMessage: active ? "Several machines stopped at the same moment, likely from a brief power interruption." : "No sign of a power interruption.",
+      ownerMessage: active
+        ? "Several machines stopped at the same moment, likely from a brief power interruption."
+        : "No sign of a power interruption.",
       advice: active
         ? [
             "Check every drive's mode after the power returns: a drive may come back in off rather than auto.",
             "Check that the chillers, pumps and tower fans restarted as they should.",
           ]
         : [],
-      numbers: { faultedDrives: active ? new Set(group.map((f) => f.tag)).size : 0, firstFaultMs: group[0]?.atMs ?? null, lastFaultMs: lastMs },
+      numbers: {
+        faultedDrives: active ? new Set(group.map((f) => f.tag)).size : 0,
+        firstFaultMs: group[0]?.atMs ?? null,
+        lastFaultMs: lastMs,
+      },
       related: active ? names : [],
     }),
   ];

@@ -27,7 +27,10 @@ const ruleSettingKey: Record<Condition["ruleId"], keyof RuleSettings> = {
   low_evaporator_pressure: "lowEvaporatorPressure",
 };
 
-export function delaysFor(settings: RuleSettings, ruleId: Condition["ruleId"]): { onDelayS: number; offDelayS: number } {
+export function delaysFor(
+  settings: RuleSettings,
+  ruleId: Condition["ruleId"],
+): { onDelayS: number; offDelayS: number } {
   const s = settings[ruleSettingKey[ruleId]] as { onDelayS?: number; offDelayS?: number };
   return { onDelayS: s.onDelayS ?? 0, offDelayS: s.offDelayS ?? 0 };
 }
@@ -50,7 +53,13 @@ export interface SiteMonitor {
   setAlarms(book: AlarmBook): void;
 }
 
-export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; retentionS?: number; alarms?: AlarmBook; timeZone?: string }): SiteMonitor {
+export function createSiteMonitor(args: {
+  site: Site;
+  settings?: RuleSettings;
+  retentionS?: number;
+  alarms?: AlarmBook;
+  timeZone?: string;
+}): SiteMonitor {
   const settings = args.settings ?? defaultRuleSettings;
   // The longest look back any rule (or the site page's 1 h margin trend) takes, plus slack: a
   // portfolio holds this much of every point in memory (2 h had been ~2.3 GB for 100,000 points).
@@ -75,7 +84,15 @@ export function createSiteMonitor(args: { site: Site; settings?: RuleSettings; r
     history,
     ingest: (readings) => history.addAll(readings),
     evaluate(nowMs, comms) {
-      const { conditions, snapshot } = evaluateRules({ site: args.site, history, settings, nowMs, comms, previous, timeZone: args.timeZone });
+      const { conditions, snapshot } = evaluateRules({
+        site: args.site,
+        history,
+        settings,
+        nowMs,
+        comms,
+        previous,
+        timeZone: args.timeZone,
+      });
       // Only the active ones are read back (dead bands); holding every condition until the next
       // evaluation would keep it alive through young-generation collections.
       // Copies, as the rules saw them: the loop below sets `active` to the delayed state.

@@ -124,7 +124,12 @@ export const ruleSettingsSchema = z.strictObject({
     .strictObject({
       ...common(4, 30 * 60, 30 * 60),
       /** The equipment's own baseline, by chiller tag. */
-      baselines: z.record(z.string(), z.strictObject({ kwPerTon: positive.optional(), condenserApproachK: z.number().optional() })).default({}),
+      baselines: z
+        .record(
+          z.string(),
+          z.strictObject({ kwPerTon: positive.optional(), condenserApproachK: z.number().optional() }),
+        )
+        .default({}),
       kwPerTonDriftFraction: positive.default(0.15),
       approachDriftK: positive.default(1.5),
       averagingWindowS: positive.default(60 * 60),

@@ -21,11 +21,20 @@ export function towerFanNotRunning(ctx: RuleContext): Condition[] {
       const speedPct = num(ctx, tower.tag, "fan_speed");
       const running = bool(ctx, tower.tag, "fan_status");
       const commandedNotRunning = speedPct !== null && speedPct >= s.commandedAtPct && running === false;
-      const problem = mode === "off" ? "fan drive is in off" : faulted ? "fan drive is faulted" : commandedNotRunning ? "fan is commanded but not running" : null;
+      const problem =
+        mode === "off"
+          ? "fan drive is in off"
+          : faulted
+            ? "fan drive is faulted"
+            : commandedNotRunning
+              ? "fan is commanded but not running"
+              : null;
 
       const was = ctx.wasActive("tower_fan_not_running", tower.tag);
       const aboveK = waterC - setpointC;
-      const fit = fitTrend(ctx.history.numbers(tower.tag, "condenser_water_leaving_temp", ctx.nowMs - s.riseWindowS * 1000, ctx.nowMs));
+      const fit = fitTrend(
+        ctx.history.numbers(tower.tag, "condenser_water_leaving_temp", ctx.nowMs - s.riseWindowS * 1000, ctx.nowMs),
+      );
       const riseKPerMin = fit ? fit.slopePerS * 60 : null;
       // "Rising above setpoint": above it and not falling (once raised, the dead band holds it).
       const hot = was ? aboveK > s.aboveSetpointK - s.deadBandK : aboveK > s.aboveSetpointK && (riseKPerMin ?? 0) >= 0;
@@ -45,7 +54,9 @@ export function towerFanNotRunning(ctx: RuleContext): Condition[] {
             : "Cooling-tower fans are working as needed.",
           advice: active
             ? [
-                mode === "off" ? "Return the fan drive to auto at the drive or from the building controls." : "Check the fan drive for a fault and reset it if the cause is understood.",
+                mode === "off"
+                  ? "Return the fan drive to auto at the drive or from the building controls."
+                  : "Check the fan drive for a fault and reset it if the cause is understood.",
                 "Confirm the fan runs and the condenser water starts to fall.",
               ]
             : [],

@@ -22,7 +22,11 @@ export const noteSchema = z.object({
 export type NoteInput = z.infer<typeof noteSchema>;
 
 export const shelveSchema = z.object({
-  minutes: z.number({ error: "Minutes must be a number" }).int().min(1, "At least a minute").max(24 * 60, "At most 24 hours"),
+  minutes: z
+    .number({ error: "Minutes must be a number" })
+    .int()
+    .min(1, "At least a minute")
+    .max(24 * 60, "At most 24 hours"),
   reason: z.string().trim().min(3, "Give a reason").max(500),
 });
 export type ShelveInput = z.infer<typeof shelveSchema>;

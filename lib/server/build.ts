@@ -8,8 +8,31 @@ import path from "node:path";
 const SKIPPED_TOP_FOLDERS = new Set([".git", ".next", ".next-test", "data", "test-results", "coverage", "tests"]);
 // Code, styles, config and the static assets `app/` may hold (icons, images, fonts, robots.txt).
 const SOURCE_EXTENSIONS = new Set([
-  ".ts", ".tsx", ".js", ".jsx", ".mjs", ".cjs", ".mts", ".cts", ".json", ".css",
-  ".svg", ".png", ".jpg", ".jpeg", ".gif", ".webp", ".avif", ".ico", ".woff", ".woff2", ".ttf", ".otf", ".txt", ".xml", ".webmanifest",
+  ".ts",
+  ".tsx",
+  ".js",
+  ".jsx",
+  ".mjs",
+  ".cjs",
+  ".mts",
+  ".cts",
+  ".json",
+  ".css",
+  ".svg",
+  ".png",
+  ".jpg",
+  ".jpeg",
+  ".gif",
+  ".webp",
+  ".avif",
+  ".ico",
+  ".woff",
+  ".woff2",
+  ".ttf",
+  ".otf",
+  ".txt",
+  ".xml",
+  ".webmanifest",
 ]);
 // Written by `next build` and `next dev`; git ignores it, the tree walk skips it by name.
 const GENERATED_FILES = new Set(["next-env.d.ts"]);
@@ -24,7 +47,11 @@ function isSource(rel: string): boolean {
 /** Tracked files plus untracked ones git does not ignore, relative to dir; null when dir is not a git working tree. */
 function gitFiles(dir: string): string[] | null {
   if (!fs.existsSync(path.join(dir, ".git"))) return null;
-  const res = spawnSync("git", ["ls-files", "-z", "--cached", "--others", "--exclude-standard"], { cwd: dir, encoding: "utf8", maxBuffer: 64 * 1024 * 1024 });
+  const res = spawnSync("git", ["ls-files", "-z", "--cached", "--others", "--exclude-standard"], {
+    cwd: dir,
+    encoding: "utf8",
+    maxBuffer: 64 * 1024 * 1024,
+  });
   if (res.error || res.status !== 0) return null;
   const files = res.stdout.split("\0").filter(Boolean);
   return files.length > 0 ? files : null;
@@ -42,7 +69,8 @@ function walkFiles(dir: string, rel = ""): string[] {
   for (const e of entries) {
     const child = rel ? path.join(rel, e.name) : e.name;
     if (e.isDirectory()) {
-      if (e.name !== "node_modules" && !(rel === "" && SKIPPED_TOP_FOLDERS.has(e.name))) files.push(...walkFiles(dir, child));
+      if (e.name !== "node_modules" && !(rel === "" && SKIPPED_TOP_FOLDERS.has(e.name)))
+        files.push(...walkFiles(dir, child));
     } else files.push(child);
   }
   return files;
@@ -56,7 +84,8 @@ function walkFiles(dir: string, rel = ""): string[] {
 function newestSourceMtimeMs(dir: string): number {
   const files = (gitFiles(dir) ?? walkFiles(dir)).filter(isSource);
   const folders = new Set<string>();
-  for (const f of files) for (let d = path.dirname(f); d !== "." && d !== "" && !folders.has(d); d = path.dirname(d)) folders.add(d);
+  for (const f of files)
+    for (let d = path.dirname(f); d !== "." && d !== "" && !folders.has(d); d = path.dirname(d)) folders.add(d);
   let newest = 0;
   for (const entry of [...files, ...folders]) {
     try {

@@ -20,7 +20,10 @@ export const configSchema = z.object({
   AUTH_SECRET: z.string().min(32, "AUTH_SECRET must be at least 32 characters").optional(),
   NEXTAUTH_URL: z.url().optional(),
   LIFTLINE_DEMO: flag(true),
-  LIFTLINE_DEMO_PASSWORD: z.string().min(8, "LIFTLINE_DEMO_PASSWORD must be at least 8 characters").default("liftline-demo"),
+  LIFTLINE_DEMO_PASSWORD: z
+    .string()
+    .min(8, "LIFTLINE_DEMO_PASSWORD must be at least 8 characters")
+    .default("liftline-demo"),
   LIFTLINE_SIMULATOR: flag(true),
   LIFTLINE_BUILD_IF_NEEDED: flag(true),
   SMTP_URL: z.url({ protocol: /^smtps?$/ }).optional(),

@@ -12,7 +12,11 @@ export function route<C>(handler: Handler<C>): Handler<C> {
     } catch (err) {
       if (isAppError(err)) return Response.json(err.toBody(), { status: err.status });
       if (err instanceof ZodError) {
-        const e = new AppError("bad_request", "The request is not valid.", err.issues.map((i) => ({ path: i.path.join("."), message: i.message })));
+        const e = new AppError(
+          "bad_request",
+          "The request is not valid.",
+          err.issues.map((i) => ({ path: i.path.join("."), message: i.message })),
+        );
         return Response.json(e.toBody(), { status: 400 });
       }
       console.error(`[api] ${request.method} ${new URL(request.url).pathname}:`, err);

@@ -105,14 +105,17 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     onMappingChanged: live.mappingChanged,
     log,
   }).catch((err: unknown) => {
-    const where = config.MQTT_URL ? `connect to the MQTT broker at ${config.MQTT_URL}` : `start the MQTT broker on port ${config.MQTT_PORT}`;
+    const where = config.MQTT_URL
+      ? `connect to the MQTT broker at ${config.MQTT_URL}`
+      : `start the MQTT broker on port ${config.MQTT_PORT}`;
     throw new Error(`Could not ${where}: ${err instanceof Error ? err.message : err}`, { cause: err });
   });
 
   // Demo mode's simulated plants publish through their own gateways, like real ones.
   let simulation: SimulationManager | undefined;
   if (config.LIFTLINE_DEMO && config.LIFTLINE_SIMULATOR) {
-    if (gatewaySide.mqttPort === null) log("Simulated gateways run only with the embedded broker; skipped with MQTT_URL set.");
+    if (gatewaySide.mqttPort === null)
+      log("Simulated gateways run only with the embedded broker; skipped with MQTT_URL set.");
     else
       simulation = await createSimulationManager({
         db,
@@ -145,10 +148,14 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   const address = httpServer.address();
   const httpPort = typeof address === "object" && address ? address.port : config.PORT;
 
-  log(`Liftline is running at ${publicUrl} (${dev ? "development" : "production"}; HTTP port ${httpPort}, ${gatewaySide.mqttPort === null ? `MQTT broker ${config.MQTT_URL}` : `MQTT port ${gatewaySide.mqttPort}`})`);
+  log(
+    `Liftline is running at ${publicUrl} (${dev ? "development" : "production"}; HTTP port ${httpPort}, ${gatewaySide.mqttPort === null ? `MQTT broker ${config.MQTT_URL}` : `MQTT port ${gatewaySide.mqttPort}`})`,
+  );
   if (simulation) {
     await simulation.startDefaults();
-    log("Simulated plants: two normal days and one power-blip incident (Millbrook High School), each through its own gateway. Set LIFTLINE_SIMULATOR=0 to run without them.");
+    log(
+      "Simulated plants: two normal days and one power-blip incident (Millbrook High School), each through its own gateway. Set LIFTLINE_SIMULATOR=0 to run without them.",
+    );
   }
   if (config.LIFTLINE_DEMO) {
     log(`Demo sign-ins (demo data only; password: ${config.LIFTLINE_DEMO_PASSWORD}):`);

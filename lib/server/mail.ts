@@ -17,7 +17,11 @@ export interface Mailer {
 
 const MAX_SINK_MESSAGE_BYTES = 1024 * 1024;
 
-async function startSink(db: Db, port: number, log: (line: string) => void): Promise<{ server: SMTPServer; port: number }> {
+async function startSink(
+  db: Db,
+  port: number,
+  log: (line: string) => void,
+): Promise<{ server: SMTPServer; port: number }> {
   const server = new SMTPServer({
     authOptional: true,
     disabledCommands: ["STARTTLS", "AUTH"],
@@ -45,7 +49,13 @@ async function startSink(db: Db, port: number, log: (line: string) => void): Pro
   return { server, port: typeof address === "object" && address ? address.port : port };
 }
 
-export async function createMailer(opts: { db: Db; smtpUrl?: string; sinkPort: number; from: string; log: (line: string) => void }): Promise<Mailer> {
+export async function createMailer(opts: {
+  db: Db;
+  smtpUrl?: string;
+  sinkPort: number;
+  from: string;
+  log: (line: string) => void;
+}): Promise<Mailer> {
   let sink: { server: SMTPServer; port: number } | null = null;
   let transport: nodemailer.Transporter;
   if (opts.smtpUrl) {

@@ -24,6 +24,13 @@ export const condenserPumpLoss: Scenario = {
     { atS: 0, command: { kind: "note", message: "Warm afternoon, lead chiller carrying the load" } },
     { atS: pumpTripAtS, command: { kind: "pump-trip", equipment: cwPumpTag(0), reason: "motor overload" } },
     { atS: 60 * 60, command: { kind: "pump-reset", equipment: cwPumpTag(0) } },
-    { atS: 65 * 60, command: { kind: "drill", source: "scenario", action: { type: "reset-alarm", equipment: layout.chillers[0].tag } } },
+    {
+      atS: 65 * 60,
+      command: {
+        kind: "drill",
+        source: "scenario",
+        action: { type: "reset-alarm", equipment: layout.chillers[0].tag },
+      },
+    },
   ],
 };

@@ -22,7 +22,8 @@ let cachedRh: number | undefined;
 export const designSteady: Scenario = {
   name: "design-steady",
   title: "Design point, steady",
-  description: "Held at 95 °F dry bulb / 78 °F wet bulb with the building at ~97 % of installed capacity, all chillers staged: a commissioning check against the rating conditions.",
+  description:
+    "Held at 95 °F dry bulb / 78 °F wet bulb with the building at ~97 % of installed capacity, all chillers staged: a commissioning check against the rating conditions.",
   defaultDurationS: 3 * 3600,
   startHour: 14,
   initial: () => ({}),
@@ -30,7 +31,13 @@ export const designSteady: Scenario = {
     cachedRh ??= rhForWetBulb(designDryC, fToC(layout.design.wetBulbF));
     // AHU design loads add up to peakLoadFraction × installed tons; scale to 97 % of installed.
     const loadFraction = 0.97 / layout.design.peakLoadFraction;
-    return { dryBulbC: designDryC, rhPct: cachedRh, loadFraction, ahusScheduled: layout.airHandlers, coilAirC: fToC(80) };
+    return {
+      dryBulbC: designDryC,
+      rhPct: cachedRh,
+      loadFraction,
+      ahusScheduled: layout.airHandlers,
+      coilAirC: fToC(80),
+    };
   },
   script: () => [{ atS: 0, command: { kind: "note", message: "Design point hold: 95 °F / 78 °F wet bulb" } }],
 };

@@ -25,9 +25,20 @@ export const fouledCondenser: Scenario = {
   },
   script(layout) {
     const tag = layout.chillers[0].tag;
-    const out: ScriptedEvent[] = [{ atS: 0, command: { kind: "note", message: `${tag} condenser tubes begin to foul (scale build-up, no chemical treatment)` } }];
+    const out: ScriptedEvent[] = [
+      {
+        atS: 0,
+        command: {
+          kind: "note",
+          message: `${tag} condenser tubes begin to foul (scale build-up, no chemical treatment)`,
+        },
+      },
+    ];
     for (let hour = 6; hour <= days * 24; hour += 6) {
-      out.push({ atS: hour * 3600, command: { kind: "condenser-fouling", equipment: tag, factor: 1 + ((finalFouling - 1) * hour) / (days * 24) } });
+      out.push({
+        atS: hour * 3600,
+        command: { kind: "condenser-fouling", equipment: tag, factor: 1 + ((finalFouling - 1) * hour) / (days * 24) },
+      });
     }
     return out;
   },

@@ -5,7 +5,8 @@ import { buildingLoadFraction, coilAirC, diurnalWeather, hourOf } from "./profil
 export const normalDay: Scenario = {
   name: "normal-day",
   title: "Normal day",
-  description: "A full summer day (75–93 °F, wet bulb up to ~75 °F); load follows occupancy; chillers stage on and off; nothing abnormal.",
+  description:
+    "A full summer day (75–93 °F, wet bulb up to ~75 °F); load follows occupancy; chillers stage on and off; nothing abnormal.",
   defaultDurationS: 24 * 3600,
   startHour: 0,
   initial: () => ({}),

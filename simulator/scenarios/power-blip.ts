@@ -26,23 +26,60 @@ export const powerBlip: Scenario = {
   script: (layout) => [
     {
       atS: 0,
-      command: { kind: "note", message: `Mild day; ${layout.chillers.length > 1 ? layout.chillers.slice(1).map((c) => c.tag).join(", ") + " out of service (condenser tubes being cleaned); " : ""}${layout.chillers[0].tag} carrying the building` },
+      command: {
+        kind: "note",
+        message: `Mild day; ${
+          layout.chillers.length > 1
+            ? layout.chillers
+                .slice(1)
+                .map((c) => c.tag)
+                .join(", ") + " out of service (condenser tubes being cleaned); "
+            : ""
+        }${layout.chillers[0].tag} carrying the building`,
+      },
     },
     { atS: powerBlipAtS, command: { kind: "power-blip", durationS: 2 } },
-    { atS: lateResetAtS, command: { kind: "note", message: "Late response: alarm reset after the loops have crossed" } },
-    { atS: lateResetAtS, command: { kind: "drill", source: "scenario", action: { type: "reset-alarm", equipment: layout.chillers[0].tag } } },
+    {
+      atS: lateResetAtS,
+      command: { kind: "note", message: "Late response: alarm reset after the loops have crossed" },
+    },
+    {
+      atS: lateResetAtS,
+      command: {
+        kind: "drill",
+        source: "scenario",
+        action: { type: "reset-alarm", equipment: layout.chillers[0].tag },
+      },
+    },
   ],
 };
 
 /** The right actions, early: fan back to auto, shed air handlers, shorten the timers, reset, restart before crossover. */
-export function powerBlipRightActions(layout: { chillers: Array<{ tag: string }>; airHandlers: number }, tripAtS: number) {
+export function powerBlipRightActions(
+  layout: { chillers: Array<{ tag: string }>; airHandlers: number },
+  tripAtS: number,
+) {
   const ch = layout.chillers[0].tag;
   const shed = Array.from({ length: Math.max(0, layout.airHandlers - 1) }, (_, i) => ahuTag(i + 1));
   return [
     { atS: tripAtS + 60, action: { type: "set-fan-drive-mode" as const, equipment: "CT-1", mode: "auto" as const } },
-    ...shed.map((equipment) => ({ atS: tripAtS + 90, action: { type: "set-air-handler" as const, equipment, run: false } })),
-    { atS: tripAtS + 120, action: { type: "set-anti-recycle-timer" as const, equipment: ch, timer: "start-to-start" as const, seconds: 120 } },
-    { atS: tripAtS + 120, action: { type: "set-anti-recycle-timer" as const, equipment: ch, timer: "stop-to-start" as const, seconds: 60 } },
+    ...shed.map((equipment) => ({
+      atS: tripAtS + 90,
+      action: { type: "set-air-handler" as const, equipment, run: false },
+    })),
+    {
+      atS: tripAtS + 120,
+      action: {
+        type: "set-anti-recycle-timer" as const,
+        equipment: ch,
+        timer: "start-to-start" as const,
+        seconds: 120,
+      },
+    },
+    {
+      atS: tripAtS + 120,
+      action: { type: "set-anti-recycle-timer" as const, equipment: ch, timer: "stop-to-start" as const, seconds: 60 },
+    },
     { atS: tripAtS + 240, action: { type: "reset-alarm" as const, equipment: ch } },
   ];
 }

@@ -5,7 +5,13 @@ import { fToC } from "@/lib/plant/units";
 export const hourOf = (startHour: number, tS: number): number => (((startHour + tS / 3600) % 24) + 24) % 24;
 
 /** Dry bulb and humidity over a day: warmest at 15:00, coolest at 03:00; humidity moves opposite (a cosine day). */
-export function diurnalWeather(hour: number, minF: number, maxF: number, rhAtMin: number, rhAtMax: number): { dryBulbC: number; rhPct: number } {
+export function diurnalWeather(
+  hour: number,
+  minF: number,
+  maxF: number,
+  rhAtMin: number,
+  rhAtMax: number,
+): { dryBulbC: number; rhPct: number } {
   const x = (1 + Math.cos((2 * Math.PI * (hour - 15)) / 24)) / 2; // 1 at 15:00, 0 at 03:00
   return { dryBulbC: fToC(minF + (maxF - minF) * x), rhPct: rhAtMin + (rhAtMax - rhAtMin) * x };
 }
@@ -32,7 +38,11 @@ export function occupancy(layout: SiteLayout, hour: number): { occ: number; ahus
 }
 
 /** Building load fraction of design: a base (24/7 areas, data equipment) plus occupancy scaled by how hot it is. */
-export function buildingLoadFraction(layout: SiteLayout, hour: number, dryBulbC: number): { loadFraction: number; ahus: number } {
+export function buildingLoadFraction(
+  layout: SiteLayout,
+  hour: number,
+  dryBulbC: number,
+): { loadFraction: number; ahus: number } {
   const { occ, ahus } = occupancy(layout, hour);
   const heat = Math.min(1.05, Math.max(0, (dryBulbC - fToC(60)) / (fToC(95) - fToC(60))));
   if (layout.loadProfile === "constant") return { loadFraction: 0.85 + 0.1 * heat, ahus };

@@ -21,5 +21,7 @@ export const slowCrossover: Scenario = {
     const loadFraction = ((0.18 + 0.1 * occ) * lead) / (layout.design.peakLoadFraction * plantTons(layout));
     return { ...w, loadFraction: loadFraction * layout.airHandlers, ahusScheduled: 1, coilAirC: coilAirC(w.dryBulbC) };
   },
-  script: () => [{ atS: 0, command: { kind: "note", message: "Cold day, interior load only; tower on natural draft" } }],
+  script: () => [
+    { atS: 0, command: { kind: "note", message: "Cold day, interior load only; tower on natural draft" } },
+  ],
 };

@@ -55,7 +55,8 @@ const env = z
       .default("")
       .transform((s, ctx) => {
         const sizes = (s || "").split(",").filter(Boolean).map(Number);
-        if (sizes.some((n) => !Number.isInteger(n) || n < 1 || n > 5000)) ctx.addIssue({ code: "custom", message: "sizes from 1 to 5000" });
+        if (sizes.some((n) => !Number.isInteger(n) || n < 1 || n > 5000))
+          ctx.addIssue({ code: "custom", message: "sizes from 1 to 5000" });
         return sizes;
       }),
     /** Readings each gateway keeps unacknowledged during a capacity run (as whole messages). */
@@ -82,13 +83,16 @@ const env = z
 
 const PASSWORD = "bench-gateway-password";
 if (env.BENCH_CAPACITY_PER_MESSAGE.length === 0) env.BENCH_CAPACITY_PER_MESSAGE.push(env.BENCH_POINTS_PER_GATEWAY, 20);
-const chillerKeys = pointsByKind.chiller.filter((k) => quantities[k].measure !== "text" && quantities[k].measure !== "state");
+const chillerKeys = pointsByKind.chiller.filter(
+  (k) => quantities[k].measure !== "text" && quantities[k].measure !== "state",
+);
 
 /** A healthy chiller's readings (canonical units) from the simulator's design-day scenario. */
 function designValues(): Map<QuantityKey, number | boolean> {
   const out = new Map<QuantityKey, number | boolean>();
   for (const sample of runScenario({ scenario: "design-steady", seed: 1, startMs: Date.now(), durationS: 5 })) {
-    for (const r of sample.readings) if (r.equipment === "CH-1" && typeof r.value !== "string") out.set(r.quantity, r.value);
+    for (const r of sample.readings)
+      if (r.equipment === "CH-1" && typeof r.value !== "string") out.set(r.quantity, r.value);
     break;
   }
   return out;
@@ -112,7 +116,9 @@ interface BenchGateway {
 function seedTrendHistory(sqlite: Database.Database, pointId: number, base: number) {
   const MINUTE_MS = 60_000;
   const end = Math.floor((Date.now() - 60_000) / MINUTE_MS) * MINUTE_MS;
-  const insert = sqlite.prepare("insert into readings_1m (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, ?, ?, ?, ?, ?, ?)");
+  const insert = sqlite.prepare(
+    "insert into readings_1m (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, ?, ?, ?, ?, ?, ?)",
+  );
   sqlite.transaction(() => {
     for (let bucket = end - 30 * 86_400_000; bucket < end; bucket += MINUTE_MS) {
       const v = base * (1 + 0.03 * Math.sin((2 * Math.PI * bucket) / 86_400_000));
@@ -137,20 +143,40 @@ function prepareDatabase(file: string): BenchGateway[] {
     tx.insert(organizations).values({ id: "org-bench", name: "Bench customer", kind: "customer" }).run();
     for (let g = 0; g < env.BENCH_GATEWAYS; g++) {
       const siteId = `bench-${g}`;
-      tx.insert(sites).values({ id: siteId, name: `Bench plant ${g}`, organizationId: "org-bench", kind: "Bench", address: "-", timeZone: "UTC" }).run();
+      tx.insert(sites)
+        .values({
+          id: siteId,
+          name: `Bench plant ${g}`,
+          organizationId: "org-bench",
+          kind: "Bench",
+          address: "-",
+          timeZone: "UTC",
+        })
+        .run();
       const id = `gw-bench${g}`;
-      tx.insert(gateways).values({ id, siteId, name: `Bench ${g}`, protocol: "json", username: id, passwordHash: hash }).run();
+      tx.insert(gateways)
+        .values({ id, siteId, name: `Bench ${g}`, protocol: "json", username: id, passwordHash: hash })
+        .run();
       const names: string[] = [];
       const values: Array<number | boolean> = [];
       let firstPointId = 0;
       for (let e = 0; names.length < env.BENCH_POINTS_PER_GATEWAY; e++) {
         const equipmentId = `${siteId}:CH-${e + 1}`;
-        tx.insert(equipment).values({ id: equipmentId, siteId, tag: `CH-${e + 1}`, name: `Chiller ${e + 1}`, kind: "chiller" }).run();
+        tx.insert(equipment)
+          .values({ id: equipmentId, siteId, tag: `CH-${e + 1}`, name: `Chiller ${e + 1}`, kind: "chiller" })
+          .run();
         for (const key of chillerKeys) {
           if (names.length >= env.BENCH_POINTS_PER_GATEWAY) break;
           const p = tx
             .insert(points)
-            .values({ equipmentId, key, quantity: key, unit: canonicalUnitOf(key), brickClass: quantities[key].brickClass, expectedIntervalS: 5 })
+            .values({
+              equipmentId,
+              key,
+              quantity: key,
+              unit: canonicalUnitOf(key),
+              brickClass: quantities[key].brickClass,
+              expectedIntervalS: 5,
+            })
             .returning({ id: points.id })
             .get();
           if (names.length === 0) firstPointId = p.id;
@@ -171,7 +197,8 @@ function prepareDatabase(file: string): BenchGateway[] {
 
 const pct = (xs: number[], q: number) => (xs.length ? quantile(xs, q) : NaN);
 const fmt = (n: number) => (Number.isFinite(n) ? Math.round(n).toLocaleString("en-US") : "n/a");
-const lat = (xs: number[]) => `p50 ${pct(xs, 0.5).toFixed(0)} ms, p99 ${pct(xs, 0.99).toFixed(0)} ms, max ${xs.length ? xs.reduce((m, v) => (v > m ? v : m), -Infinity).toFixed(0) : "n/a"} ms`;
+const lat = (xs: number[]) =>
+  `p50 ${pct(xs, 0.5).toFixed(0)} ms, p99 ${pct(xs, 0.99).toFixed(0)} ms, max ${xs.length ? xs.reduce((m, v) => (v > m ? v : m), -Infinity).toFixed(0) : "n/a"} ms`;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 /** CPU seconds (user + system) a process used so far, from /proc (Linux only; NaN elsewhere). */
@@ -200,7 +227,7 @@ const ownCpuSeconds = () => {
 /** Waits (at most 30 s) until the server used under a tenth of a core for a whole second: the previous phase's checkpoints and rollups are done. */
 async function serverIdle(pid: number | undefined) {
   const until = Date.now() + 30_000;
-  for (let before = processCpuSeconds(pid); Date.now() < until; ) {
+  for (let before = processCpuSeconds(pid); Date.now() < until;) {
     await sleep(1000);
     const now = processCpuSeconds(pid);
     // Also done when CPU time cannot be read (NaN off Linux): nothing to wait for then.
@@ -244,7 +271,10 @@ function makePublisher(g: BenchGateway, client: BenchGatewayConnection) {
       cursor++;
       const base = g.values[idx];
       // ±0.2 % scatter (deterministic), rounded like a controller reports it.
-      const value = typeof base === "boolean" ? base : Math.round(base * (1 + (((cursor * 7919) % 401) - 200) / 100_000) * 1000) / 1000;
+      const value =
+        typeof base === "boolean"
+          ? base
+          : Math.round(base * (1 + (((cursor * 7919) % 401) - 200) / 100_000) * 1000) / 1000;
       const tsMs = now + (cycle % 1000);
       if (tsMs !== isoMs) {
         isoMs = tsMs;
@@ -259,9 +289,17 @@ function makePublisher(g: BenchGateway, client: BenchGatewayConnection) {
 }
 
 function connectGateway(url: string, id: string): Promise<BenchGatewayConnection> {
-  if (env.BENCH_CLIENT === "packet") return connectBenchGateway(url, { clientId: id, username: id, password: PASSWORD });
+  if (env.BENCH_CLIENT === "packet")
+    return connectBenchGateway(url, { clientId: id, username: id, password: PASSWORD });
   return new Promise((resolve, reject) => {
-    const c = mqtt.connect(url, { username: id, password: PASSWORD, clientId: id, protocolVersion: 4, reconnectPeriod: 0, connectTimeout: 120_000 });
+    const c = mqtt.connect(url, {
+      username: id,
+      password: PASSWORD,
+      clientId: id,
+      protocolVersion: 4,
+      reconnectPeriod: 0,
+      connectTimeout: 120_000,
+    });
     c.once("error", reject);
     c.once("connect", () =>
       resolve({
@@ -274,9 +312,15 @@ function connectGateway(url: string, id: string): Promise<BenchGatewayConnection
 
 async function main() {
   const pointCount = env.BENCH_GATEWAYS * env.BENCH_POINTS_PER_GATEWAY;
-  console.log(`Machine: ${os.cpus().length} × ${os.cpus()[0]?.model ?? "cpu"}, ${Math.round(os.totalmem() / 2 ** 30)} GB, Node ${process.version}`);
-  console.log(`Setup: ${env.BENCH_GATEWAYS} gateways × ${env.BENCH_POINTS_PER_GATEWAY} points = ${fmt(pointCount)} points, at most ${env.BENCH_PER_MESSAGE} readings a message; in the portfolio phase each gateway publishes every ${env.BENCH_GATEWAY_PUBLISH_MS} ms; gateway client: ${env.BENCH_CLIENT === "packet" ? "mqtt-packet frames on plain sockets" : "mqtt.js"}`);
-  console.log(`Server settings: LIVE_PUSH_MS=${process.env.LIVE_PUSH_MS ?? "default"}, INGEST_FLUSH_MS=${process.env.INGEST_FLUSH_MS ?? "default"}, INGEST_MAX_BATCH_ROWS=${process.env.INGEST_MAX_BATCH_ROWS ?? "default"}`);
+  console.log(
+    `Machine: ${os.cpus().length} × ${os.cpus()[0]?.model ?? "cpu"}, ${Math.round(os.totalmem() / 2 ** 30)} GB, Node ${process.version}`,
+  );
+  console.log(
+    `Setup: ${env.BENCH_GATEWAYS} gateways × ${env.BENCH_POINTS_PER_GATEWAY} points = ${fmt(pointCount)} points, at most ${env.BENCH_PER_MESSAGE} readings a message; in the portfolio phase each gateway publishes every ${env.BENCH_GATEWAY_PUBLISH_MS} ms; gateway client: ${env.BENCH_CLIENT === "packet" ? "mqtt-packet frames on plain sockets" : "mqtt.js"}`,
+  );
+  console.log(
+    `Server settings: LIVE_PUSH_MS=${process.env.LIVE_PUSH_MS ?? "default"}, INGEST_FLUSH_MS=${process.env.INGEST_FLUSH_MS ?? "default"}, INGEST_MAX_BATCH_ROWS=${process.env.INGEST_MAX_BATCH_ROWS ?? "default"}`,
+  );
 
   // The yardstick, with the machine to itself: three trials of each transaction size now, on
   // a table as empty as the server's, and three more for each capacity run once the server has
@@ -326,8 +370,12 @@ async function main() {
 
     // Warm the series route (a development server compiles it on first use), then time it idle.
     const trendUrl = `${server.url}/api/points/${gws[0].firstPointId}/series?from=${Date.now() - 30 * 86_400_000}&to=${Date.now()}&maxPoints=1000`;
-    const first = (await (await fetch(trendUrl, { headers: { cookie: cookie! } })).json()) as { series: { time: number[]; count: number[] } };
-    console.log(`30-day trend of point ${gws[0].firstPointId}: ${first.series.time.length} buckets over ${fmt(first.series.count.reduce((a, b) => a + b, 0))} readings`);
+    const first = (await (await fetch(trendUrl, { headers: { cookie: cookie! } })).json()) as {
+      series: { time: number[]; count: number[] };
+    };
+    console.log(
+      `30-day trend of point ${gws[0].firstPointId}: ${first.series.time.length} buckets over ${fmt(first.series.count.reduce((a, b) => a + b, 0))} readings`,
+    );
     const idleTrend: number[] = [];
     for (let i = 0; i < 20; i++) {
       const t0 = performance.now();
@@ -345,7 +393,9 @@ async function main() {
       const t0 = performance.now();
       try {
         // One retry: the first request after a pause (below) may find its kept-alive socket closed.
-        const res = await fetch(trendUrl, { headers: { cookie: cookie! } }).catch(() => fetch(trendUrl, { headers: { cookie: cookie! } }));
+        const res = await fetch(trendUrl, { headers: { cookie: cookie! } }).catch(() =>
+          fetch(trendUrl, { headers: { cookie: cookie! } }),
+        );
         await res.arrayBuffer();
         if (!res.ok) throw new Error(`HTTP ${res.status}`);
         trendSamples.push([at, performance.now() - t0]);
@@ -421,7 +471,9 @@ async function main() {
         const so = win(portfolioSockets);
         const tr = win(trendSamples);
         const mark = sec < env.BENCH_WARMUP_SECONDS ? " warm-up" : sec * 1000 >= warmupMs + steadyMs ? " drain" : "";
-        console.log(`  ${String(sec).padStart(3)}s ${fmt(ackedPerSecond[sec] ?? 0).padStart(7)}  ack ${pct(a, 0.5).toFixed(0).padStart(5)}/${pct(a, 0.99).toFixed(0).padStart(5)}  socket ${pct(so, 0.5).toFixed(0).padStart(5)}/${pct(so, 0.99).toFixed(0).padStart(5)}  trend ${tr.map((v) => v.toFixed(0)).join(",")}${mark}`);
+        console.log(
+          `  ${String(sec).padStart(3)}s ${fmt(ackedPerSecond[sec] ?? 0).padStart(7)}  ack ${pct(a, 0.5).toFixed(0).padStart(5)}/${pct(a, 0.99).toFixed(0).padStart(5)}  socket ${pct(so, 0.5).toFixed(0).padStart(5)}/${pct(so, 0.99).toFixed(0).padStart(5)}  trend ${tr.map((v) => v.toFixed(0)).join(",")}${mark}`,
+        );
       }
     }
     const inSteady = (xs: Samples) => xs.filter(([t]) => t >= warmupMs && t < warmupMs + steadyMs).map(([, v]) => v);
@@ -432,12 +484,18 @@ async function main() {
     const serverCpuS = cpu.server[1] - cpu.server[0];
     const clientCpuS = cpu.client[1] - cpu.client[0];
     console.log("");
-    console.log(`Portfolio: offered ${fmt(env.BENCH_RATE)} readings/s for ${env.BENCH_WARMUP_SECONDS} s warm-up + ${env.BENCH_SECONDS} s steady; ${fmt(published)} published, ${fmt(acked)} acknowledged`);
+    console.log(
+      `Portfolio: offered ${fmt(env.BENCH_RATE)} readings/s for ${env.BENCH_WARMUP_SECONDS} s warm-up + ${env.BENCH_SECONDS} s steady; ${fmt(published)} published, ${fmt(acked)} acknowledged`,
+    );
     console.log(`  steady state: ${fmt(steadyRate)} readings/s acknowledged (= committed)`);
     console.log(`  publish → PUBACK (after commit): ${lat(inSteady(ackSamples))}`);
-    console.log(`  publish → browser socket (site:values, ${env.BENCH_WATCHED_SITES} watched sites): ${lat(sock)} (${fmt(sock.length)} values)`);
+    console.log(
+      `  publish → browser socket (site:values, ${env.BENCH_WATCHED_SITES} watched sites): ${lat(sock)} (${fmt(sock.length)} values)`,
+    );
     console.log(`  30-day trend request while ingesting: ${lat(trend)} (${trend.length} requests)`);
-    console.log(`  CPU: server ${((serverCpuS / env.BENCH_SECONDS) * 100).toFixed(0)} % of one core (${((serverCpuS / Math.max(1, ackedAtEnd - ackedAtSteadyStart)) * 1e6).toFixed(1)} µs per reading), bench client ${((clientCpuS / env.BENCH_SECONDS) * 100).toFixed(0)} %`);
+    console.log(
+      `  CPU: server ${((serverCpuS / env.BENCH_SECONDS) * 100).toFixed(0)} % of one core (${((serverCpuS / Math.max(1, ackedAtEnd - ackedAtSteadyStart)) * 1e6).toFixed(1)} µs per reading), bench client ${((clientCpuS / env.BENCH_SECONDS) * 100).toFixed(0)} %`,
+    );
     console.log(`  warm-up: PUBACK ${lat(inWarmup(ackSamples))}; socket ${lat(inWarmup(portfolioSockets))}`);
 
     // ---- Phase 2: capacity, once per message size ---------------------------------------
@@ -493,11 +551,17 @@ async function main() {
       const cs = capCpu.server[1] - capCpu.server[0];
       const cc = capCpu.client[1] - capCpu.client[0];
       console.log("");
-      console.log(`Capacity with ${perMessage}-reading messages: every gateway keeps ${inflight} in flight; ${env.BENCH_CAPACITY_SECONDS} s measured after a ${capWarmMs / 1000} s ramp`);
-      console.log(`  committed ${fmt(capacity)} readings/s into a table that held ${fmt(tableRows)} readings at the start (ratios to the yardstick below, after the server stops)`);
+      console.log(
+        `Capacity with ${perMessage}-reading messages: every gateway keeps ${inflight} in flight; ${env.BENCH_CAPACITY_SECONDS} s measured after a ${capWarmMs / 1000} s ramp`,
+      );
+      console.log(
+        `  committed ${fmt(capacity)} readings/s into a table that held ${fmt(tableRows)} readings at the start (ratios to the yardstick below, after the server stops)`,
+      );
       console.log(`  publish → PUBACK: ${lat(inCap(capAcks))}; publish → browser socket: ${lat(inCap(socketSamples))}`);
       console.log(`  30-day trend request: ${lat(capTrend)} (${capTrend.length} requests)`);
-      console.log(`  CPU: server ${((cs / env.BENCH_CAPACITY_SECONDS) * 100).toFixed(0)} % of one core (${((cs / Math.max(1, capEnd - ackedAtStart)) * 1e6).toFixed(1)} µs per reading), bench client ${((cc / env.BENCH_CAPACITY_SECONDS) * 100).toFixed(0)} %`);
+      console.log(
+        `  CPU: server ${((cs / env.BENCH_CAPACITY_SECONDS) * 100).toFixed(0)} % of one core (${((cs / Math.max(1, capEnd - ackedAtStart)) * 1e6).toFixed(1)} µs per reading), bench client ${((cc / env.BENCH_CAPACITY_SECONDS) * 100).toFixed(0)} %`,
+      );
       const until = Date.now() + 30_000;
       while (capAcked < capSent && Date.now() < until) await sleep(50);
     }
@@ -506,11 +570,18 @@ async function main() {
 
     const db = new Database(server.databasePath, { readonly: true });
     const committed = (db.prepare("select count(*) as n from readings").get() as { n: number }).n;
-    const rejected = (db.prepare("select coalesce(sum(count), 0) as n from gateway_rejections").get() as { n: number }).n;
+    const rejected = (db.prepare("select coalesce(sum(count), 0) as n from gateway_rejections").get() as { n: number })
+      .n;
     // Healthy plants should raise nothing; a storm of alarms would be measuring something else.
-    const raised = db.prepare("select rule_id as rule, count(*) as n from alarms where site_id like 'bench-%' and (condition_active = 1 or state != 'normal') group by rule_id").all() as Array<{ rule: string; n: number }>;
+    const raised = db
+      .prepare(
+        "select rule_id as rule, count(*) as n from alarms where site_id like 'bench-%' and (condition_active = 1 or state != 'normal') group by rule_id",
+      )
+      .all() as Array<{ rule: string; n: number }>;
     db.close();
-    console.log(`Alarms on the bench plants: ${raised.length ? raised.map((r) => `${r.rule} × ${r.n}`).join(", ") : "none"}`);
+    console.log(
+      `Alarms on the bench plants: ${raised.length ? raised.map((r) => `${r.rule} × ${r.n}`).join(", ") : "none"}`,
+    );
     console.log("");
     console.log(`Stored: ${fmt(committed)} readings; rejected by the server: ${fmt(rejected)}`);
     // The rest needs the machine to itself: the server stops, then the yardstick on tables the
@@ -520,22 +591,31 @@ async function main() {
     await server.stop();
     const ratios = [];
     for (const c of capacities) {
-      const sameSize = await yardstick(`for the ${c.perMessage}-reading capacity run, after the server stopped`, c.tableRows);
+      const sameSize = await yardstick(
+        `for the ${c.perMessage}-reading capacity run, after the server stopped`,
+        c.tableRows,
+      );
       const of = (rate: number) => `${((c.rate / rate) * 100).toFixed(0)} %`;
-      console.log(`  ${c.perMessage}-reading capacity ${fmt(c.rate)}/s = ${of(sameSize.k1)} of the 1,000-row rate and ${of(sameSize.k5)} of the 5,000-row rate on that table (medians of 3 trials); ${of(emptyTable.k1)} and ${of(emptyTable.k5)} of the rates into an empty table`);
+      console.log(
+        `  ${c.perMessage}-reading capacity ${fmt(c.rate)}/s = ${of(sameSize.k1)} of the 1,000-row rate and ${of(sameSize.k5)} of the 5,000-row rate on that table (medians of 3 trials); ${of(emptyTable.k1)} and ${of(emptyTable.k5)} of the rates into an empty table`,
+      );
       ratios.push({ ...c, raw1k: sameSize.k1 });
     }
     console.log("");
     console.log("Goals:");
     const p99 = pct(sock, 0.99);
-    console.log(`  portfolio ${fmt(env.BENCH_RATE)}/s sustained with publish → browser p99 ≤ 250 ms: ${steadyRate >= env.BENCH_RATE * 0.98 && p99 <= 250 ? "met" : "NOT met"} (${fmt(steadyRate)}/s, p99 ${p99.toFixed(0)} ms)`);
+    console.log(
+      `  portfolio ${fmt(env.BENCH_RATE)}/s sustained with publish → browser p99 ≤ 250 ms: ${steadyRate >= env.BENCH_RATE * 0.98 && p99 <= 250 ? "met" : "NOT met"} (${fmt(steadyRate)}/s, p99 ${p99.toFixed(0)} ms)`,
+    );
     for (const c of ratios) {
       console.log(
         `  end-to-end ≥ 40 % of the raw 1,000-row insert rate on a table of the same size (${fmt(c.tableRows)} readings), ${c.perMessage}-reading messages: ${c.rate >= 0.4 * c.raw1k ? "met" : "NOT met"} (${((c.rate / c.raw1k) * 100).toFixed(0)} %; ${((c.rate / emptyTable.k1) * 100).toFixed(0)} % of the rate into an empty table)`,
       );
     }
     const trendMax = Math.max(...trend);
-    console.log(`  30-day trend ≤ 50 ms while ingesting (portfolio phase): ${trendMax <= 50 && portfolioTrendFailures === 0 ? "met" : "NOT met"} (max ${trendMax.toFixed(0)} ms${portfolioTrendFailures ? `, ${portfolioTrendFailures} requests failed` : ""})`);
+    console.log(
+      `  30-day trend ≤ 50 ms while ingesting (portfolio phase): ${trendMax <= 50 && portfolioTrendFailures === 0 ? "met" : "NOT met"} (max ${trendMax.toFixed(0)} ms${portfolioTrendFailures ? `, ${portfolioTrendFailures} requests failed` : ""})`,
+    );
   } finally {
     for (const c of clients) c.end();
     await server.stop();

@@ -15,7 +15,10 @@ export interface BenchGatewayConnection {
   end(): void;
 }
 
-export function connectBenchGateway(url: string, opts: { clientId: string; username: string; password: string; timeoutMs?: number }): Promise<BenchGatewayConnection> {
+export function connectBenchGateway(
+  url: string,
+  opts: { clientId: string; username: string; password: string; timeoutMs?: number },
+): Promise<BenchGatewayConnection> {
   const { hostname, port } = new URL(url);
   return new Promise((resolve, reject) => {
     const socket = net.connect({ host: hostname, port: Number(port), noDelay: true });
@@ -47,7 +50,9 @@ export function connectBenchGateway(url: string, opts: { clientId: string; usern
             while (waiting[id]) id = (id % 65_535) + 1;
             nextId = (id % 65_535) + 1;
             waiting[id] = onAck;
-            socket.write(generate({ cmd: "publish", topic, payload, qos: 1, messageId: id, retain: false, dup: false }));
+            socket.write(
+              generate({ cmd: "publish", topic, payload, qos: 1, messageId: id, retain: false, dup: false }),
+            );
           },
           end: () => socket.destroy(),
         });
@@ -57,10 +62,23 @@ export function connectBenchGateway(url: string, opts: { clientId: string; usern
     socket.on("data", (chunk) => incoming.parse(chunk));
     // After CONNACK a lost connection shows in the bench as acknowledgements that stop; say why.
     socket.on("error", (err) => (connected ? console.error(`${opts.clientId}: ${err.message}`) : fail(err)));
-    socket.on("close", () => (connected ? undefined : fail(new Error(`${opts.clientId}: connection closed before CONNACK`))));
+    socket.on("close", () =>
+      connected ? undefined : fail(new Error(`${opts.clientId}: connection closed before CONNACK`)),
+    );
     socket.once("connect", () =>
       // keepalive 0: no PINGREQ (MQTT 3.1.1 §3.1.2.10); the bench's connections are always busy.
-      socket.write(generate({ cmd: "connect", protocolId: "MQTT", protocolVersion: 4, clientId: opts.clientId, clean: true, keepalive: 0, username: opts.username, password: Buffer.from(opts.password) })),
+      socket.write(
+        generate({
+          cmd: "connect",
+          protocolId: "MQTT",
+          protocolVersion: 4,
+          clientId: opts.clientId,
+          clean: true,
+          keepalive: 0,
+          username: opts.username,
+          password: Buffer.from(opts.password),
+        }),
+      ),
     );
   });
 }

@@ -11,7 +11,9 @@ export function seedRawPoints(sqlite: Database.Database, count: number): void {
   sqlite.exec(
     "insert into organizations (id, name, kind) values ('o','o','customer'); insert into sites (id,name,organization_id,kind,address,time_zone) values ('s','s','o','k','a','UTC'); insert into equipment (id, site_id, tag, name, kind) values ('e','s','T','n','chiller')",
   );
-  const insertPoint = sqlite.prepare("insert into points (equipment_id, key, quantity, unit, brick_class) values ('e', ?, 'compressor_power', 'kW', 'x')");
+  const insertPoint = sqlite.prepare(
+    "insert into points (equipment_id, key, quantity, unit, brick_class) values ('e', ?, 'compressor_power', 'kW', 'x')",
+  );
   sqlite.transaction(() => {
     for (let i = 0; i < count; i++) insertPoint.run(`k${i}`);
   })();
@@ -30,9 +32,12 @@ export interface RawTemplate {
  * second on per round, so every reading lands at the end of its point's range in the b-tree.
  */
 function insertReadings(sqlite: Database.Database, pointCount: number) {
-  const ins = sqlite.prepare("insert or ignore into readings (point_id, ts, value, text, quality) values (?, ?, ?, null, 0)");
+  const ins = sqlite.prepare(
+    "insert or ignore into readings (point_id, ts, value, text, quality) values (?, ?, ?, null, 0)",
+  );
   return sqlite.transaction((from: number, to: number) => {
-    for (let i = from; i < to; i++) ins.run((i % pointCount) + 1, 1_700_000_000_000 + Math.floor(i / pointCount) * 1000, i * 0.5);
+    for (let i = from; i < to; i++)
+      ins.run((i % pointCount) + 1, 1_700_000_000_000 + Math.floor(i / pointCount) * 1000, i * 0.5);
   });
 }
 

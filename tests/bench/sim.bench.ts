@@ -8,10 +8,21 @@ const durationS = 24 * 3600;
 function bench(label: string, sampleEveryS: number): number {
   const t0 = performance.now();
   let readings = 0;
-  for (const s of runScenario({ scenario: "normal-day", seed: 1, startMs: Date.UTC(2026, 5, 1), durationS, stepS: 1, sampleEveryS, layout })) readings += s.readings.length;
+  for (const s of runScenario({
+    scenario: "normal-day",
+    seed: 1,
+    startMs: Date.UTC(2026, 5, 1),
+    durationS,
+    stepS: 1,
+    sampleEveryS,
+    layout,
+  }))
+    readings += s.readings.length;
   const wallS = (performance.now() - t0) / 1000;
   const factor = durationS / wallS;
-  console.log(`${label}: ${durationS / 3600} simulated h in ${wallS.toFixed(2)} s wall → ${(factor / 3600).toFixed(1)} simulated h per wall second (${Math.round(factor).toLocaleString("en-US")}× real time), ${readings.toLocaleString("en-US")} readings`);
+  console.log(
+    `${label}: ${durationS / 3600} simulated h in ${wallS.toFixed(2)} s wall → ${(factor / 3600).toFixed(1)} simulated h per wall second (${Math.round(factor).toLocaleString("en-US")}× real time), ${readings.toLocaleString("en-US")} readings`,
+  );
   return factor;
 }
 
@@ -19,4 +30,6 @@ bench("warm-up run", 60);
 const withReadings = bench("3 chillers, 1 s steps, readings every 10 s", 10);
 const sparse = bench("3 chillers, 1 s steps, readings every 60 s", 60);
 const target = 10_000;
-console.log(`target ${target.toLocaleString("en-US")}× real time: ${Math.min(withReadings, sparse) >= target ? "met" : "NOT met"}`);
+console.log(
+  `target ${target.toLocaleString("en-US")}× real time: ${Math.min(withReadings, sparse) >= target ? "met" : "NOT met"}`,
+);

@@ -43,7 +43,7 @@ function arrivals(startMs: number) {
   return (rows: number) => {
     const pointId = new Int32Array(rows);
     const ts = new Float64Array(rows);
-    for (let i = 0; i < rows; ) {
+    for (let i = 0; i < rows;) {
       const g = Math.floor(random() * GATEWAYS);
       for (let k = 0; k < PER_MESSAGE && i < rows; k++, i++) {
         const c = cursor[g]++;
@@ -96,7 +96,16 @@ async function run(pageSize: number) {
       messages: 1,
       receivedAtMs: Date.now(),
     }));
-    const flush: FlushWire = { id, nowMs: Date.now(), pointId, ts, value: new Float64Array(flushRows).fill(6.5), quality: new Uint8Array(flushRows), texts: [], batches };
+    const flush: FlushWire = {
+      id,
+      nowMs: Date.now(),
+      pointId,
+      ts,
+      value: new Float64Array(flushRows).fill(6.5),
+      quality: new Uint8Array(flushRows),
+      texts: [],
+      batches,
+    };
     const start = performance.now();
     store.write(flush);
     flushMs.push(performance.now() - start);

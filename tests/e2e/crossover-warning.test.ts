@@ -1,5 +1,13 @@
 import { describe, expect, it } from "vitest";
-import { hasChromium, useServerAndBrowser, screenshot, shownXRange, signInAs, viewports, watchConsole } from "../helpers/browser";
+import {
+  hasChromium,
+  useServerAndBrowser,
+  screenshot,
+  shownXRange,
+  signInAs,
+  viewports,
+  watchConsole,
+} from "../helpers/browser";
 import { signIn } from "../helpers/server";
 
 // The product's reason to exist, end to end: a simulated plant publishes over MQTT as a gateway,
@@ -30,7 +38,12 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
 
     // The board updates live over socket.io: no reload in between.
     const worst = card.getByTestId("site-worst");
-    await expect.poll(async () => (await worst.count()) && (await worst.getAttribute("data-rule")), { timeout: 120_000, interval: 1000 }).toMatch(CROSSOVER_RULES);
+    await expect
+      .poll(async () => (await worst.count()) && (await worst.getAttribute("data-rule")), {
+        timeout: 120_000,
+        interval: 1000,
+      })
+      .toMatch(CROSSOVER_RULES);
     await screenshot(page, "board-crossover-technician-phone");
 
     await card.click();
@@ -54,7 +67,9 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
       await ackNote.fill("Acknowledged from the road");
       await alarm.getByRole("button", { name: "Acknowledge" }).click();
     }
-    await expect.poll(() => alarm.getAttribute("data-state"), { timeout: 15_000 }).toMatch(/acknowledged|normal|latched/);
+    await expect
+      .poll(() => alarm.getAttribute("data-state"), { timeout: 15_000 })
+      .toMatch(/acknowledged|normal|latched/);
     await screenshot(page, "site-crossover-acknowledged-phone");
     expect(problems.filter((p) => !p.includes("WebSocket"))).toEqual([]);
     await tech.close();
@@ -72,7 +87,17 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     await screenshot(ownerPage, "site-crossover-owner-phone");
 
     const alarmId = (await ownerAlarm.getByRole("link").first().getAttribute("href"))!.split("/").pop();
-    const refused = await ownerPage.evaluate(async (id) => (await fetch(`/api/alarms/${id}/ack`, { method: "POST", headers: { "content-type": "application/json" }, body: "{}" })).status, alarmId);
+    const refused = await ownerPage.evaluate(
+      async (id) =>
+        (
+          await fetch(`/api/alarms/${id}/ack`, {
+            method: "POST",
+            headers: { "content-type": "application/json" },
+            body: "{}",
+          })
+        ).status,
+      alarmId,
+    );
     expect(refused).toBe(403);
     await owner.close();
   }, 240_000);

@@ -12,7 +12,12 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
   it("a reading published over MQTT appears on the site page within a second", async () => {
     const cookie = await adminCookie(env.server);
     const gw = await provisionGateway(env.server, cookie, { siteId: "harborview-mob" });
-    const map = await putPointMap(env.server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nCH1-LCHWT,CH-1,chilled_water_leaving_temp,degF\n");
+    const map = await putPointMap(
+      env.server,
+      cookie,
+      gw.gateway.id,
+      "gateway_point,equipment,quantity,unit\nCH1-LCHWT,CH-1,chilled_water_leaving_temp,degF\n",
+    );
     expect(map.status).toBe(200);
     const client = await connectGateway(env.server, gw);
 
@@ -20,14 +25,20 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     const page = await context.newPage();
     await signInAs(page, env.server.url, "luis@tallgrass.example");
     await page.goto(`${env.server.url}/sites/harborview-mob`);
-    const cell = page.locator("[data-testid=point-row][data-equipment='CH-1'][data-point=chilled_water_leaving_temp] [data-testid=point-value]");
+    const cell = page.locator(
+      "[data-testid=point-row][data-equipment='CH-1'][data-point=chilled_water_leaving_temp] [data-testid=point-value]",
+    );
     await expect.poll(() => cell.textContent()).toBe("no data");
     // Give the page's socket time to join its site room before publishing.
     await page.waitForTimeout(1000);
 
     const value = 44.3 + Math.round(Math.random() * 10) / 10; // °F, shown as sent to a technician in IP units
     const published = Date.now();
-    await client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ seq: 1, sentAt: new Date().toISOString(), readings: [{ point: "CH1-LCHWT", value }] }), { qos: 1 });
+    await client.publishAsync(
+      `liftline/${gw.gateway.id}/readings`,
+      JSON.stringify({ seq: 1, sentAt: new Date().toISOString(), readings: [{ point: "CH1-LCHWT", value }] }),
+      { qos: 1 },
+    );
     await cell.filter({ hasText: `${value.toFixed(1)} °F` }).waitFor({ timeout: 1000 + 500 });
     const elapsedMs = Date.now() - published;
     console.log(`publish → shown on the site page: ${elapsedMs} ms`);
@@ -58,7 +69,16 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
   it("a board socket is sent site status but not every reading; a site page's socket gets the readings", async () => {
     const cookie = await adminCookie(env.server);
     const gw = await provisionGateway(env.server, cookie, { siteId: "quarry-ridge-dh2", name: "Board rooms" });
-    expect((await putPointMap(env.server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nKW,CH-1,compressor_power,kW\n")).status).toBe(200);
+    expect(
+      (
+        await putPointMap(
+          env.server,
+          cookie,
+          gw.gateway.id,
+          "gateway_point,equipment,quantity,unit\nKW,CH-1,compressor_power,kW\n",
+        )
+      ).status,
+    ).toBe(200);
     const connect = async () => {
       const socket = io(env.server.url, { extraHeaders: { cookie }, transports: ["websocket"] });
       await new Promise<void>((resolve, reject) => {
@@ -76,7 +96,11 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     await board.emitWithAck("board:join");
     await sitePage.emitWithAck("site:join", { siteId: "quarry-ridge-dh2" });
     const client = await connectGateway(env.server, gw);
-    await client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ sentAt: new Date().toISOString(), readings: [{ point: "KW", value: 250 }] }), { qos: 1 });
+    await client.publishAsync(
+      `liftline/${gw.gateway.id}/readings`,
+      JSON.stringify({ sentAt: new Date().toISOString(), readings: [{ point: "KW", value: 250 }] }),
+      { qos: 1 },
+    );
     await expect.poll(() => seen.site.values, { timeout: 2000 }).toBeGreaterThan(0);
     // The new gateway's presence changes the board status within a status round.
     await expect.poll(() => seen.board.status, { timeout: 5000 }).toBeGreaterThan(0);
@@ -89,12 +113,28 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
   it("a point's 30-day trend spans the chosen 30 days and follows live values; a zoom survives them and a double-click goes back", async () => {
     const cookie = await adminCookie(env.server);
     const gw = await provisionGateway(env.server, cookie, { siteId: "harborview-mob", name: "Trend range" });
-    expect((await putPointMap(env.server, cookie, gw.gateway.id, "gateway_point,equipment,quantity,unit\nCH1-ECWT,CH-1,condenser_water_entering_temp,degF\n")).status).toBe(200);
+    expect(
+      (
+        await putPointMap(
+          env.server,
+          cookie,
+          gw.gateway.id,
+          "gateway_point,equipment,quantity,unit\nCH1-ECWT,CH-1,condenser_water_entering_temp,degF\n",
+        )
+      ).status,
+    ).toBe(200);
     const client = await connectGateway(env.server, gw);
-    const publish = (value: number) => client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ sentAt: new Date().toISOString(), readings: [{ point: "CH1-ECWT", value }] }), { qos: 1 });
+    const publish = (value: number) =>
+      client.publishAsync(
+        `liftline/${gw.gateway.id}/readings`,
+        JSON.stringify({ sentAt: new Date().toISOString(), readings: [{ point: "CH1-ECWT", value }] }),
+        { qos: 1 },
+      );
     await publish(82.1);
     const latest = await api(env.server, cookie, "/api/sites/harborview-mob/latest");
-    const point = (latest.body as { latest: { points: Array<{ pointId: number; equipmentTag: string; key: string }> } }).latest.points.find((p) => p.equipmentTag === "CH-1" && p.key === "condenser_water_entering_temp")!;
+    const point = (
+      latest.body as { latest: { points: Array<{ pointId: number; equipmentTag: string; key: string }> } }
+    ).latest.points.find((p) => p.equipmentTag === "CH-1" && p.key === "condenser_water_entering_temp")!;
 
     const context = await env.browser.newContext({ viewport: viewports.desktop });
     const page = await context.newPage();

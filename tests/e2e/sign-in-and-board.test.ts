@@ -1,7 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { hasChromium, useServerAndBrowser, screenshot, signInAs, viewports, watchConsole } from "../helpers/browser";
 
-
 describe.skipIf(!hasChromium)("sign-in and the board in Chromium", () => {
   const env = useServerAndBrowser();
 

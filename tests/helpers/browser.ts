@@ -8,7 +8,9 @@ import { DEMO_PASSWORD, ROOT, startServer, type StartOptions, type TestServer } 
 export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
 export const hasChromium = fs.existsSync(CHROMIUM_PATH);
 if (!hasChromium) {
-  console.warn(`\n!!! Browser tests SKIPPED: no Chromium at ${CHROMIUM_PATH}. Install it (apt-get install -y chromium) — CI does. !!!\n`);
+  console.warn(
+    `\n!!! Browser tests SKIPPED: no Chromium at ${CHROMIUM_PATH}. Install it (apt-get install -y chromium) — CI does. !!!\n`,
+  );
 }
 
 export const SCREENSHOT_DIR = path.join(ROOT, "test-results", "screenshots");
@@ -19,7 +21,15 @@ export async function launchBrowser(): Promise<Browser> {
     executablePath: CHROMIUM_PATH,
     headless: true,
     // This machine has no outside network: keep Chromium from trying to reach it.
-    args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
+    args: [
+      "--no-sandbox",
+      "--disable-gpu",
+      "--disable-quic",
+      "--no-first-run",
+      "--disable-background-networking",
+      "--disable-component-update",
+      "--disable-sync",
+    ],
   });
 }
 

@@ -21,7 +21,12 @@ export async function adminCookie(server: TestServer): Promise<string> {
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- response bodies are checked field by field by the tests' assertions
 type JsonBody = any;
 
-export async function api(server: TestServer, cookie: string, path: string, init: RequestInit = {}): Promise<{ status: number; body: JsonBody }> {
+export async function api(
+  server: TestServer,
+  cookie: string,
+  path: string,
+  init: RequestInit = {},
+): Promise<{ status: number; body: JsonBody }> {
   const res = await fetch(`${server.url}${path}`, { ...init, headers: { cookie, ...(init.headers ?? {}) } });
   const text = await res.text();
   let body: unknown = text;
@@ -33,7 +38,11 @@ export async function api(server: TestServer, cookie: string, path: string, init
   return { status: res.status, body };
 }
 
-export async function provisionGateway(server: TestServer, cookie: string, input: { siteId: string; name?: string; protocol?: "json" | "sparkplug"; groupId?: string; edgeNodeId?: string }): Promise<ProvisionedGateway> {
+export async function provisionGateway(
+  server: TestServer,
+  cookie: string,
+  input: { siteId: string; name?: string; protocol?: "json" | "sparkplug"; groupId?: string; edgeNodeId?: string },
+): Promise<ProvisionedGateway> {
   const res = await api(server, cookie, "/api/gateways", {
     method: "POST",
     headers: { "content-type": "application/json" },
@@ -44,11 +53,19 @@ export async function provisionGateway(server: TestServer, cookie: string, input
 }
 
 export async function putPointMap(server: TestServer, cookie: string, gatewayId: string, csv: string) {
-  return api(server, cookie, `/api/gateways/${gatewayId}/point-map`, { method: "PUT", headers: { "content-type": "text/csv" }, body: csv });
+  return api(server, cookie, `/api/gateways/${gatewayId}/point-map`, {
+    method: "PUT",
+    headers: { "content-type": "text/csv" },
+    body: csv,
+  });
 }
 
 /** Connects and resolves on CONNACK 0; rejects with the refusal (err.code = CONNACK return code). */
-export function connectGateway(server: TestServer, creds: { username: string; password: string }, extra: IClientOptions = {}): Promise<MqttClient> {
+export function connectGateway(
+  server: TestServer,
+  creds: { username: string; password: string },
+  extra: IClientOptions = {},
+): Promise<MqttClient> {
   return new Promise((resolve, reject) => {
     const client = mqtt.connect(server.mqttUrl, {
       protocolVersion: 4,
@@ -67,14 +84,20 @@ export function connectGateway(server: TestServer, creds: { username: string; pa
 }
 
 export function publishQos1(client: MqttClient, topic: string, payload: string | Buffer): Promise<void> {
-  return new Promise((resolve, reject) => client.publish(topic, payload, { qos: 1 }, (err) => (err ? reject(err) : resolve())));
+  return new Promise((resolve, reject) =>
+    client.publish(topic, payload, { qos: 1 }, (err) => (err ? reject(err) : resolve())),
+  );
 }
 
 export function endClient(client: MqttClient): Promise<void> {
   return new Promise((resolve) => client.end(false, {}, () => resolve()));
 }
 
-export async function waitFor<T>(fn: () => Promise<T | undefined | null | false>, timeoutMs = 10_000, stepMs = 100): Promise<T> {
+export async function waitFor<T>(
+  fn: () => Promise<T | undefined | null | false>,
+  timeoutMs = 10_000,
+  stepMs = 100,
+): Promise<T> {
   const until = Date.now() + timeoutMs;
   for (;;) {
     const v = await fn();
@@ -85,6 +108,10 @@ export async function waitFor<T>(fn: () => Promise<T | undefined | null | false>
 }
 
 /** A JSON readings message as the wire contract describes it. */
-export function readingsMessage(readings: Array<{ point: string; value: unknown; ts?: string; quality?: string }>, seq = 1, sentAt = new Date().toISOString()) {
+export function readingsMessage(
+  readings: Array<{ point: string; value: unknown; ts?: string; quality?: string }>,
+  seq = 1,
+  sentAt = new Date().toISOString(),
+) {
   return JSON.stringify({ seq, sentAt, readings });
 }

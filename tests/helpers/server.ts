@@ -96,7 +96,11 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
   // --cpu-prof for benchmarks).
   const nodeArgs = [...SERVER_NODE_FLAGS, ...(process.env.LIFTLINE_TEST_NODE_ARGS ?? "").split(" ").filter(Boolean)];
   // The IPC channel carries server.ts's readiness message with the ports it listens on.
-  const child = spawn(process.execPath, [...nodeArgs, "--import", "tsx", "--import", "./lib/server/server-only-hook.mjs", "server.ts"], { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe", "ipc"] });
+  const child = spawn(
+    process.execPath,
+    [...nodeArgs, "--import", "tsx", "--import", "./lib/server/server-only-hook.mjs", "server.ts"],
+    { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe", "ipc"] },
+  );
   // A caller that dies without stop() (an uncaught error in a benchmark) must not leave a server
   // behind: four once kept running for an hour and took a fifth of a core from later bench runs.
   const killOnExit = () => child.kill("SIGKILL");
@@ -107,7 +111,10 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
   child.stderr!.on("data", (d) => (out += d));
 
   const ready = await new Promise<ReadyMessage>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`server did not start in time:\n${out}`)), opts.timeoutMs ?? 120_000);
+    const timer = setTimeout(
+      () => reject(new Error(`server did not start in time:\n${out}`)),
+      opts.timeoutMs ?? 120_000,
+    );
     child.on("message", (m: ReadyMessage) => {
       if (m?.type !== "ready") return;
       clearTimeout(timer);
@@ -143,7 +150,11 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
 }
 
 /** Signs in through next-auth's credentials endpoint; returns the session cookie header. */
-export async function signIn(baseUrl: string, email: string, password = DEMO_PASSWORD): Promise<{ status: number; cookie: string | null; error: string | null }> {
+export async function signIn(
+  baseUrl: string,
+  email: string,
+  password = DEMO_PASSWORD,
+): Promise<{ status: number; cookie: string | null; error: string | null }> {
   const csrfRes = await fetch(`${baseUrl}/api/auth/csrf`);
   const jar = cookieJar(csrfRes.headers.getSetCookie());
   const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };

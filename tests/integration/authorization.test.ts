@@ -114,7 +114,11 @@ describe("pages", () => {
 
 describe("API tokens", () => {
   it("work as a bearer token with the owner's scope, record their use, and stop working once revoked", async () => {
-    const created = await call("customer", "/api/tokens", { method: "POST", body: JSON.stringify({ name: "report script" }), headers: { "content-type": "application/json" } });
+    const created = await call("customer", "/api/tokens", {
+      method: "POST",
+      body: JSON.stringify({ name: "report script" }),
+      headers: { "content-type": "application/json" },
+    });
     expect(created.status).toBe(201);
     const { token, apiToken } = await created.json();
     expect(token).toMatch(/^llt_/);
@@ -163,11 +167,19 @@ describe("API tokens", () => {
   });
 
   it("reject an invalid body with 400 and the field at fault", async () => {
-    const res = await call("technician", "/api/tokens", { method: "POST", body: JSON.stringify({ name: "" }), headers: { "content-type": "application/json" } });
+    const res = await call("technician", "/api/tokens", {
+      method: "POST",
+      body: JSON.stringify({ name: "" }),
+      headers: { "content-type": "application/json" },
+    });
     expect(res.status).toBe(400);
     const body = await res.json();
     expect(body.error.details[0].path).toBe("name");
-    const bad = await call("technician", "/api/tokens", { method: "POST", body: "{not json", headers: { "content-type": "application/json" } });
+    const bad = await call("technician", "/api/tokens", {
+      method: "POST",
+      body: "{not json",
+      headers: { "content-type": "application/json" },
+    });
     expect(bad.status).toBe(400);
   });
 });

@@ -28,7 +28,12 @@ beforeEach(async () => {
   seedDemo(db, "demo-password-1");
   mailer = await createMailer({ db, sinkPort: 0, from: "Liftline <alerts@liftline.invalid>", log: () => {} });
   now = START;
-  createShift(db, { startsAt: START - 3600_000, endsAt: START + 7 * 24 * 3600_000, primaryUserId: "user-tech-1", backupUserId: "user-tech-2" });
+  createShift(db, {
+    startsAt: START - 3600_000,
+    endsAt: START + 7 * 24 * 3600_000,
+    primaryUserId: "user-tech-1",
+    backupUserId: "user-tech-2",
+  });
 });
 afterEach(async () => {
   await mailer.close();
@@ -39,7 +44,15 @@ afterEach(async () => {
 function raiseAlarm(): string {
   const fresh = newAlarm({ ruleId: "crossover_risk", equipment: "CH-1", priority: 1 });
   const { alarm, transitions } = stepAlarm(fresh, { type: "condition", atMs: now, active: true });
-  const detail = { technicianMessage: "Loops cross in about 12 min", ownerMessage: "Cooling at risk", advice: ["Restore heat rejection"], caution: "Qualified technicians only.", numbers: {}, related: [], atMs: now };
+  const detail = {
+    technicianMessage: "Loops cross in about 12 min",
+    ownerMessage: "Cooling at risk",
+    advice: ["Restore heat rejection"],
+    caution: "Qualified technicians only.",
+    numbers: {},
+    related: [],
+    atMs: now,
+  };
   const stored = saveAlarmChanges(db, "millbrook-high", [alarm], transitions, new Map([[alarm.key, detail]]));
   return stored[0].alarmId;
 }
@@ -51,7 +64,14 @@ const waitForMail = async (n: number) => {
 
 describe("on-call escalation", () => {
   it("e-mails the primary at once, the backup after the delay, then the admins, while nobody acknowledges", async () => {
-    const escalator = createEscalator({ db, mailer, clock, publicUrl: "http://liftline.test", policy: { maxPriority: 2, delayMs: DELAY_MS }, log: () => {} });
+    const escalator = createEscalator({
+      db,
+      mailer,
+      clock,
+      publicUrl: "http://liftline.test",
+      policy: { maxPriority: 2, delayMs: DELAY_MS },
+      log: () => {},
+    });
     raiseAlarm();
     expect(await escalator.run()).toBe(1);
     let mail = await waitForMail(1);
@@ -74,7 +94,14 @@ describe("on-call escalation", () => {
   });
 
   it("stops escalating once someone acknowledges, and the e-mailed link works once", async () => {
-    const escalator = createEscalator({ db, mailer, clock, publicUrl: "http://liftline.test", policy: { maxPriority: 2, delayMs: DELAY_MS }, log: () => {} });
+    const escalator = createEscalator({
+      db,
+      mailer,
+      clock,
+      publicUrl: "http://liftline.test",
+      policy: { maxPriority: 2, delayMs: DELAY_MS },
+      log: () => {},
+    });
     const service = createAlarmService({ db, clock });
     const alarmId = raiseAlarm();
     await escalator.run();
@@ -93,7 +120,14 @@ describe("on-call escalation", () => {
   });
 
   it("refuses an expired link", async () => {
-    const escalator = createEscalator({ db, mailer, clock, publicUrl: "http://liftline.test", policy: { maxPriority: 2, delayMs: DELAY_MS }, log: () => {} });
+    const escalator = createEscalator({
+      db,
+      mailer,
+      clock,
+      publicUrl: "http://liftline.test",
+      policy: { maxPriority: 2, delayMs: DELAY_MS },
+      log: () => {},
+    });
     raiseAlarm();
     await escalator.run();
     const [mail] = await waitForMail(1);
@@ -103,7 +137,14 @@ describe("on-call escalation", () => {
   });
 
   it("does not e-mail low-priority alarms", async () => {
-    const escalator = createEscalator({ db, mailer, clock, publicUrl: "http://liftline.test", policy: { maxPriority: 2, delayMs: DELAY_MS }, log: () => {} });
+    const escalator = createEscalator({
+      db,
+      mailer,
+      clock,
+      publicUrl: "http://liftline.test",
+      policy: { maxPriority: 2, delayMs: DELAY_MS },
+      log: () => {},
+    });
     const fresh = newAlarm({ ruleId: "efficiency_drift", equipment: "CH-1", priority: 4 });
     const { alarm, transitions } = stepAlarm(fresh, { type: "condition", atMs: now, active: true });
     saveAlarmChanges(db, "millbrook-high", [alarm], transitions, new Map());

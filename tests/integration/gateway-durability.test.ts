@@ -1,7 +1,16 @@
 import Database from "better-sqlite3";
 import { afterAll, describe, expect, it } from "vitest";
 import { startServer, type TestServer } from "../helpers/server";
-import { adminCookie, api, connectGateway, endClient, provisionGateway, putPointMap, readingsMessage, type ProvisionedGateway } from "../helpers/mqtt";
+import {
+  adminCookie,
+  api,
+  connectGateway,
+  endClient,
+  provisionGateway,
+  putPointMap,
+  readingsMessage,
+  type ProvisionedGateway,
+} from "../helpers/mqtt";
 
 // No acknowledged reading is lost: QoS 1 publishes stream in, the server is killed with
 // SIGKILL mid-stream, and after a restart every reading whose PUBACK the publisher saw is in
@@ -23,9 +32,20 @@ describe("durability across kill -9", () => {
     server = await startServer();
     const admin = await adminCookie(server);
     const gw: ProvisionedGateway = await provisionGateway(server, admin, { siteId: SITE, name: "Crash test" });
-    expect((await putPointMap(server, admin, gw.gateway.id, "gateway_point,equipment,quantity,unit\nKW,CH-1,compressor_power,kW\n")).status).toBe(200);
+    expect(
+      (
+        await putPointMap(
+          server,
+          admin,
+          gw.gateway.id,
+          "gateway_point,equipment,quantity,unit\nKW,CH-1,compressor_power,kW\n",
+        )
+      ).status,
+    ).toBe(200);
     const site = await api(server, admin, `/api/sites/${SITE}`);
-    const pointId: number = site.body.site.equipment.find((e: { tag: string }) => e.tag === "CH-1").points.find((p: { key: string }) => p.key === "compressor_power").id;
+    const pointId: number = site.body.site.equipment
+      .find((e: { tag: string }) => e.tag === "CH-1")
+      .points.find((p: { key: string }) => p.key === "compressor_power").id;
 
     const client = await connectGateway(server, gw, { clientId: "crash-test" });
     const base = Date.now() - 60_000;
@@ -41,7 +61,10 @@ describe("durability across kill -9", () => {
         const ts = Array.from({ length: PER_MESSAGE }, (_, i) => base + first + i);
         seq++;
         sent.push(...ts);
-        const payload = readingsMessage(ts.map((t) => ({ point: "KW", value: t % 1000, ts: new Date(t).toISOString() })), seq);
+        const payload = readingsMessage(
+          ts.map((t) => ({ point: "KW", value: t % 1000, ts: new Date(t).toISOString() })),
+          seq,
+        );
         await new Promise<void>((resolve) =>
           client.publish(`liftline/${gw.gateway.id}/readings`, payload, { qos: 1 }, (err) => {
             if (!err) for (const t of ts) acked.add(t);
@@ -64,9 +87,20 @@ describe("durability across kill -9", () => {
       const db = new Database(server!.databasePath, { readonly: true });
       try {
         const rows = db.prepare("select ts from readings where point_id = ?").all(pointId) as Array<{ ts: number }>;
-        const rollupCount = (db.prepare("select coalesce(sum(count), 0) as n from readings_1m where point_id = ?").get(pointId) as { n: number }).n;
-        const accepted = (db.prepare("select readings_accepted as n from gateways where id = ?").get(gw.gateway.id) as { n: number }).n;
-        return { stored: new Set(rows.map((r) => r.ts)), rowCount: rows.length, storedRollupCount: rollupCount, accepted };
+        const rollupCount = (
+          db.prepare("select coalesce(sum(count), 0) as n from readings_1m where point_id = ?").get(pointId) as {
+            n: number;
+          }
+        ).n;
+        const accepted = (
+          db.prepare("select readings_accepted as n from gateways where id = ?").get(gw.gateway.id) as { n: number }
+        ).n;
+        return {
+          stored: new Set(rows.map((r) => r.ts)),
+          rowCount: rows.length,
+          storedRollupCount: rollupCount,
+          accepted,
+        };
       } finally {
         db.close();
       }
@@ -74,7 +108,11 @@ describe("durability across kill -9", () => {
     // A day-long trend is drawn from rollups: stored minutes plus the minutes still open.
     const check = async () => {
       const s = stored();
-      const res = await api(server!, admin, `/api/points/${pointId}/series?from=${base - 86_400_000}&to=${Date.now() + 120_000}&maxPoints=100`);
+      const res = await api(
+        server!,
+        admin,
+        `/api/points/${pointId}/series?from=${base - 86_400_000}&to=${Date.now() + 120_000}&maxPoints=100`,
+      );
       expect(res.body.series.source).toBe("rollup_1m");
       const rollupCount = (res.body.series.count as number[]).reduce((a, b) => a + b, 0);
       return { ...s, rollupCount };
@@ -92,7 +130,11 @@ describe("durability across kill -9", () => {
     const again = await connectGateway(server, gw, { clientId: "crash-test" });
     for (let i = 0; i < sent.length; i += 500) {
       const ts = sent.slice(i, i + 500);
-      await again.publishAsync(`liftline/${gw.gateway.id}/readings`, readingsMessage(ts.map((t) => ({ point: "KW", value: t % 1000, ts: new Date(t).toISOString() }))), { qos: 1 });
+      await again.publishAsync(
+        `liftline/${gw.gateway.id}/readings`,
+        readingsMessage(ts.map((t) => ({ point: "KW", value: t % 1000, ts: new Date(t).toISOString() }))),
+        { qos: 1 },
+      );
     }
     await endClient(again);
     c = await check();

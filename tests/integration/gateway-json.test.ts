@@ -42,7 +42,16 @@ const iso = (ms: number) => new Date(ms).toISOString();
 async function gatewayStatus(gw: ProvisionedGateway) {
   const res = await api(server, admin, `/api/gateways/${gw.gateway.id}`);
   expect(res.status).toBe(200);
-  return res.body.gateway as { counters: { messages: number; readingsAccepted: number; readingsDuplicate: number; rejected: Record<string, number> }; unmapped: Array<{ point: string; count: number }>; status: { online: boolean } };
+  return res.body.gateway as {
+    counters: {
+      messages: number;
+      readingsAccepted: number;
+      readingsDuplicate: number;
+      rejected: Record<string, number>;
+    };
+    unmapped: Array<{ point: string; count: number }>;
+    status: { online: boolean };
+  };
 }
 
 function closed(client: MqttClient): Promise<void> {
@@ -54,7 +63,8 @@ beforeAll(async () => {
   admin = await adminCookie(server);
   gwA = await provisionGateway(server, admin, { siteId: SITE, name: "Gateway A" });
   gwB = await provisionGateway(server, admin, { siteId: SITE, name: "Gateway B" });
-  for (const gw of [gwA, gwB]) expect((await putPointMap(server, admin, gw.gateway.id, POINT_MAP)).body).toEqual({ accepted: 6, errors: [] });
+  for (const gw of [gwA, gwB])
+    expect((await putPointMap(server, admin, gw.gateway.id, POINT_MAP)).body).toEqual({ accepted: 6, errors: [] });
   const site = await api(server, admin, `/api/sites/${SITE}`);
   const ch1 = site.body.site.equipment.find((e: { tag: string }) => e.tag === "CH-1");
   lchwtPointId = ch1.points.find((p: { key: string }) => p.key === "chilled_water_leaving_temp").id;
@@ -70,10 +80,18 @@ describe("JSON gateway ingest", () => {
   it("stores published readings and returns them from the series API in the viewer's units", async () => {
     const t0 = Date.now() - 60_000;
     const values = [44.3, 45.1, 43.9];
-    await publishQos1(clientA, topicOf(gwA), readingsMessage(values.map((v, i) => ({ point: "CH1-LCHWT", value: v, ts: iso(t0 + i * 5000) }))));
+    await publishQos1(
+      clientA,
+      topicOf(gwA),
+      readingsMessage(values.map((v, i) => ({ point: "CH1-LCHWT", value: v, ts: iso(t0 + i * 5000) }))),
+    );
 
     // PUBACK came after the commit, so the readings are readable right away.
-    const res = await api(server, admin, `/api/points/${lchwtPointId}/series?from=${iso(t0 - 1000)}&to=${iso(t0 + 60_000)}&maxPoints=100`);
+    const res = await api(
+      server,
+      admin,
+      `/api/points/${lchwtPointId}/series?from=${iso(t0 - 1000)}&to=${iso(t0 + 60_000)}&maxPoints=100`,
+    );
     expect(res.status).toBe(200);
     const s = res.body.series;
     expect(s.source).toBe("raw");
@@ -95,17 +113,28 @@ describe("JSON gateway ingest", () => {
     const base = Math.floor((Date.now() - 3 * 3_600_000) / 60_000) * 60_000;
     const readings = [];
     for (let m = 0; m < 30; m++) {
-      for (let k = 0; k < 6; k++) readings.push({ point: "CH1-KW", value: m === 17 && k === 3 ? 900 : 200, ts: iso(base + m * 60_000 + k * 10_000) });
+      for (let k = 0; k < 6; k++)
+        readings.push({
+          point: "CH1-KW",
+          value: m === 17 && k === 3 ? 900 : 200,
+          ts: iso(base + m * 60_000 + k * 10_000),
+        });
     }
     await publishQos1(clientA, topicOf(gwA), readingsMessage(readings));
     const site = await api(server, admin, `/api/sites/${SITE}`);
-    const kwId = site.body.site.equipment.find((e: { tag: string }) => e.tag === "CH-1").points.find((p: { key: string }) => p.key === "compressor_power").id;
+    const kwId = site.body.site.equipment
+      .find((e: { tag: string }) => e.tag === "CH-1")
+      .points.find((p: { key: string }) => p.key === "compressor_power").id;
     // 24 h in 10 buckets reads hours; 3 h in 100 buckets reads minutes (108 s wide → 2 min).
     for (const [hours, maxPoints, source] of [
       [24, 10, "rollup_1h"],
       [3, 100, "rollup_1m"],
     ] as const) {
-      const res = await api(server, admin, `/api/points/${kwId}/series?from=${base}&to=${base + hours * 3_600_000}&maxPoints=${maxPoints}`);
+      const res = await api(
+        server,
+        admin,
+        `/api/points/${kwId}/series?from=${base}&to=${base + hours * 3_600_000}&maxPoints=${maxPoints}`,
+      );
       expect(res.status).toBe(200);
       const s = res.body.series;
       expect(s.source).toBe(source);
@@ -140,8 +169,12 @@ describe("JSON gateway ingest", () => {
 
 describe("broker access control", () => {
   it("refuses a wrong password and an unknown user with CONNACK 4 (MQTT 3.1.1 §3.2.2.3)", async () => {
-    await expect(connectGateway(server, { username: gwA.username, password: "wrong-password" })).rejects.toMatchObject({ code: 4 });
-    await expect(connectGateway(server, { username: "gw-nobody", password: gwA.password })).rejects.toMatchObject({ code: 4 });
+    await expect(connectGateway(server, { username: gwA.username, password: "wrong-password" })).rejects.toMatchObject({
+      code: 4,
+    });
+    await expect(connectGateway(server, { username: "gw-nobody", password: gwA.password })).rejects.toMatchObject({
+      code: 4,
+    });
   });
 
   it("refuses a revoked gateway with CONNACK 5 and drops its live connection", async () => {
@@ -189,7 +222,11 @@ describe("broker access control", () => {
         if (p.cmd === "suback") resolve(p.granted as number[]);
       }),
     );
-    clientA.subscribe([topicOf(gwA, "commands"), topicOf(gwB, "commands"), "liftline/#", "$SYS/#"], { qos: 1 }, () => {});
+    clientA.subscribe(
+      [topicOf(gwA, "commands"), topicOf(gwB, "commands"), "liftline/#", "$SYS/#"],
+      { qos: 1 },
+      () => {},
+    );
     expect(await suback).toEqual([1, 128, 128, 128]);
     expect(clientA.connected).toBe(true);
   });
@@ -204,16 +241,21 @@ describe("broker access control", () => {
 
   it("lets only an admin manage gateways: 403 for staff and customers on a visible site, 404 on an invisible one", async () => {
     const body = JSON.stringify({ siteId: SITE, name: "X", protocol: "json" });
-    const post = (cookie: string) => api(server, cookie, "/api/gateways", { method: "POST", headers: { "content-type": "application/json" }, body });
+    const post = (cookie: string) =>
+      api(server, cookie, "/api/gateways", { method: "POST", headers: { "content-type": "application/json" }, body });
     const tech = await signIn(server.url, "luis@tallgrass.example");
     const own = await signIn(server.url, "facilities@harborview.example");
     const other = await signIn(server.url, "ops@quarryridge.example");
     expect((await post(tech.cookie!)).status).toBe(403);
     expect((await post(own.cookie!)).status).toBe(403);
     expect((await post(other.cookie!)).status).toBe(404);
-    expect((await api(server, own.cookie!, `/api/gateways/${gwA.gateway.id}/rotate`, { method: "POST" })).status).toBe(403);
+    expect((await api(server, own.cookie!, `/api/gateways/${gwA.gateway.id}/rotate`, { method: "POST" })).status).toBe(
+      403,
+    );
     expect((await putPointMap(server, own.cookie!, gwA.gateway.id, POINT_MAP)).status).toBe(403);
-    expect((await api(server, other.cookie!, `/api/gateways/${gwA.gateway.id}/revoke`, { method: "POST" })).status).toBe(404);
+    expect(
+      (await api(server, other.cookie!, `/api/gateways/${gwA.gateway.id}/revoke`, { method: "POST" })).status,
+    ).toBe(404);
     expect((await fetch(`${server.url}/api/gateways?site=${SITE}`)).status).toBe(401);
   });
 
@@ -231,11 +273,25 @@ describe("bad-input corpus", () => {
     const sentAt = iso(now);
     const good = (point: string, value: unknown, dt = 0) => ({ point, value, ts: iso(now - 3000 - dt) });
     const msg = (readings: unknown[]) => JSON.stringify({ seq: 1, sentAt, readings });
-    type Case = { name: string; topic?: string; payload: string | Buffer; reasons: Record<string, number>; accepted?: number };
+    type Case = {
+      name: string;
+      topic?: string;
+      payload: string | Buffer;
+      reasons: Record<string, number>;
+      accepted?: number;
+    };
     const cases: Case[] = [
       { name: "truncated JSON", payload: '{"seq":1,"sentAt":', reasons: { malformed_json: 1 } },
-      { name: "NaN literal", payload: `{"sentAt":"${sentAt}","readings":[{"point":"CH1-LCHWT","value":NaN}]}`, reasons: { malformed_json: 1 } },
-      { name: "Infinity literal", payload: `{"sentAt":"${sentAt}","readings":[{"point":"CH1-LCHWT","value":Infinity}]}`, reasons: { malformed_json: 1 } },
+      {
+        name: "NaN literal",
+        payload: `{"sentAt":"${sentAt}","readings":[{"point":"CH1-LCHWT","value":NaN}]}`,
+        reasons: { malformed_json: 1 },
+      },
+      {
+        name: "Infinity literal",
+        payload: `{"sentAt":"${sentAt}","readings":[{"point":"CH1-LCHWT","value":Infinity}]}`,
+        reasons: { malformed_json: 1 },
+      },
       { name: "empty payload", payload: "", reasons: { malformed_json: 1 } },
       { name: "binary garbage", payload: Buffer.from([0xff, 0xfe, 0x00, 0x81, 0x9c]), reasons: { malformed_json: 1 } },
       { name: "trailing garbage", payload: msg([]) + "}", reasons: { malformed_json: 1 } },
@@ -243,24 +299,82 @@ describe("bad-input corpus", () => {
       { name: "JSON null", payload: "null", reasons: { invalid_message: 1 } },
       { name: "JSON string", payload: '"hello"', reasons: { invalid_message: 1 } },
       { name: "empty object", payload: "{}", reasons: { invalid_message: 1 } },
-      { name: "readings not an array", payload: JSON.stringify({ sentAt, readings: {} }), reasons: { invalid_message: 1 } },
-      { name: "sentAt missing", payload: JSON.stringify({ readings: [good("CH1-KW", 1)] }), reasons: { invalid_message: 1 } },
-      { name: "sentAt not a time", payload: JSON.stringify({ sentAt: "yesterday", readings: [] }), reasons: { invalid_message: 1 } },
-      { name: "seq negative", payload: JSON.stringify({ seq: -1, sentAt, readings: [] }), reasons: { invalid_message: 1 } },
-      { name: "seq a string", payload: JSON.stringify({ seq: "7", sentAt, readings: [] }), reasons: { invalid_message: 1 } },
-      { name: "more than 5000 readings", payload: msg(Array.from({ length: 5001 }, () => ({ point: "X", value: 1 }))), reasons: { invalid_message: 1 } },
-      { name: "payload over 256 KB", payload: msg([{ point: "CH1-FAULT", value: "x".repeat(300 * 1024) }]), reasons: { too_large: 1 } },
-      { name: "unknown channel of its own", topic: topicOf(gwA, "telemetry"), payload: msg([good("CH1-KW", 1)]), reasons: { bad_topic: 1 } },
-      { name: "status not online/offline", topic: topicOf(gwA, "status"), payload: "maybe", reasons: { invalid_message: 1 } },
-      { name: "value an object", payload: msg([{ point: "CH1-KW", value: { v: 1 } }]), reasons: { invalid_reading: 1 } },
+      {
+        name: "readings not an array",
+        payload: JSON.stringify({ sentAt, readings: {} }),
+        reasons: { invalid_message: 1 },
+      },
+      {
+        name: "sentAt missing",
+        payload: JSON.stringify({ readings: [good("CH1-KW", 1)] }),
+        reasons: { invalid_message: 1 },
+      },
+      {
+        name: "sentAt not a time",
+        payload: JSON.stringify({ sentAt: "yesterday", readings: [] }),
+        reasons: { invalid_message: 1 },
+      },
+      {
+        name: "seq negative",
+        payload: JSON.stringify({ seq: -1, sentAt, readings: [] }),
+        reasons: { invalid_message: 1 },
+      },
+      {
+        name: "seq a string",
+        payload: JSON.stringify({ seq: "7", sentAt, readings: [] }),
+        reasons: { invalid_message: 1 },
+      },
+      {
+        name: "more than 5000 readings",
+        payload: msg(Array.from({ length: 5001 }, () => ({ point: "X", value: 1 }))),
+        reasons: { invalid_message: 1 },
+      },
+      {
+        name: "payload over 256 KB",
+        payload: msg([{ point: "CH1-FAULT", value: "x".repeat(300 * 1024) }]),
+        reasons: { too_large: 1 },
+      },
+      {
+        name: "unknown channel of its own",
+        topic: topicOf(gwA, "telemetry"),
+        payload: msg([good("CH1-KW", 1)]),
+        reasons: { bad_topic: 1 },
+      },
+      {
+        name: "status not online/offline",
+        topic: topicOf(gwA, "status"),
+        payload: "maybe",
+        reasons: { invalid_message: 1 },
+      },
+      {
+        name: "value an object",
+        payload: msg([{ point: "CH1-KW", value: { v: 1 } }]),
+        reasons: { invalid_reading: 1 },
+      },
       { name: "value null", payload: msg([{ point: "CH1-KW", value: null }]), reasons: { invalid_reading: 1 } },
       { name: "point missing", payload: msg([{ value: 1 }]), reasons: { invalid_reading: 1 } },
       { name: "point empty", payload: msg([{ point: "", value: 1 }]), reasons: { invalid_reading: 1 } },
-      { name: "point name too long", payload: msg([{ point: "P".repeat(200), value: 1 }]), reasons: { invalid_reading: 1 } },
+      {
+        name: "point name too long",
+        payload: msg([{ point: "P".repeat(200), value: 1 }]),
+        reasons: { invalid_reading: 1 },
+      },
       { name: "unknown field", payload: msg([{ ...good("CH1-KW", 1), unit: "kW" }]), reasons: { invalid_reading: 1 } },
-      { name: "ts not a time", payload: msg([{ point: "CH1-KW", value: 1, ts: "soon" }]), reasons: { invalid_reading: 1 } },
-      { name: "quality unknown", payload: msg([{ ...good("CH1-KW", 1), quality: "excellent" }]), reasons: { invalid_reading: 1 } },
-      { name: "text value too long", payload: msg([good("CH1-FAULT", "f".repeat(201))]), reasons: { invalid_reading: 1 } },
+      {
+        name: "ts not a time",
+        payload: msg([{ point: "CH1-KW", value: 1, ts: "soon" }]),
+        reasons: { invalid_reading: 1 },
+      },
+      {
+        name: "quality unknown",
+        payload: msg([{ ...good("CH1-KW", 1), quality: "excellent" }]),
+        reasons: { invalid_reading: 1 },
+      },
+      {
+        name: "text value too long",
+        payload: msg([good("CH1-FAULT", "f".repeat(201))]),
+        reasons: { invalid_reading: 1 },
+      },
       { name: "reading not an object", payload: msg([42]), reasons: { invalid_reading: 1 } },
       { name: "text for a temperature", payload: msg([good("CH1-LCHWT", "44.3")]), reasons: { wrong_type: 1 } },
       { name: "boolean for a temperature", payload: msg([good("CH1-LCHWT", true)]), reasons: { wrong_type: 1 } },
@@ -268,12 +382,28 @@ describe("bad-input corpus", () => {
       { name: "unknown drive mode", payload: msg([good("CT1-MODE", "turbo")]), reasons: { wrong_type: 1 } },
       { name: "number for a fault text", payload: msg([good("CH1-FAULT", 17)]), reasons: { wrong_type: 1 } },
       { name: "overflows when converted", payload: msg([good("CH1-EVAP", 1.7e308)]), reasons: { wrong_type: 1 } },
-      { name: "10 minutes in the future", payload: msg([{ point: "CH1-KW", value: 1, ts: iso(now + 10 * 60_000) }]), reasons: { future_timestamp: 1 } },
-      { name: "older than raw retention", payload: msg([{ point: "CH1-KW", value: 1, ts: iso(now - 30 * 86_400_000) }]), reasons: { too_old: 1 } },
+      {
+        name: "10 minutes in the future",
+        payload: msg([{ point: "CH1-KW", value: 1, ts: iso(now + 10 * 60_000) }]),
+        reasons: { future_timestamp: 1 },
+      },
+      {
+        name: "older than raw retention",
+        payload: msg([{ point: "CH1-KW", value: 1, ts: iso(now - 30 * 86_400_000) }]),
+        reasons: { too_old: 1 },
+      },
       { name: "unknown point", payload: msg([good("CH9-MYSTERY", 1)]), reasons: { unmapped_point: 1 } },
       {
         name: "mixed: good readings kept beside bad ones",
-        payload: msg([good("CH1-KW", 250, 0), { point: "CH1-KW", value: "high" }, good("CH1-RUN", true, 10), good("CH9-MYSTERY", 2, 20), good("CT1-MODE", "Auto", 30), { point: "CH1-KW", value: 1, ts: iso(now + 3_600_000) }, good("CH1-FAULT", "Low evaporator pressure", 40)]),
+        payload: msg([
+          good("CH1-KW", 250, 0),
+          { point: "CH1-KW", value: "high" },
+          good("CH1-RUN", true, 10),
+          good("CH9-MYSTERY", 2, 20),
+          good("CT1-MODE", "Auto", 30),
+          { point: "CH1-KW", value: 1, ts: iso(now + 3_600_000) },
+          good("CH1-FAULT", "Low evaporator pressure", 40),
+        ]),
         reasons: { wrong_type: 1, unmapped_point: 1, future_timestamp: 1 },
         accepted: 4,
       },
@@ -299,7 +429,8 @@ describe("bad-input corpus", () => {
 
     // The good readings of the mixed message are there, converted and typed.
     const latest = (await api(server, admin, `/api/sites/${SITE}/latest`)).body.latest;
-    const byKey = (tag: string, key: string) => latest.points.find((p: { equipmentTag: string; key: string }) => p.equipmentTag === tag && p.key === key);
+    const byKey = (tag: string, key: string) =>
+      latest.points.find((p: { equipmentTag: string; key: string }) => p.equipmentTag === tag && p.key === key);
     expect(byKey("CH-1", "run_status").value).toBe(true);
     expect(byKey("CT-1", "fan_drive_mode").value).toBe("auto");
     expect(byKey("CH-1", "fault_text").value).toBe("Low evaporator pressure");

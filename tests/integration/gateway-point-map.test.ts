@@ -1,6 +1,16 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { startServer, type TestServer } from "../helpers/server";
-import { adminCookie, api, connectGateway, endClient, provisionGateway, publishQos1, putPointMap, readingsMessage, type ProvisionedGateway } from "../helpers/mqtt";
+import {
+  adminCookie,
+  api,
+  connectGateway,
+  endClient,
+  provisionGateway,
+  publishQos1,
+  putPointMap,
+  readingsMessage,
+  type ProvisionedGateway,
+} from "../helpers/mqtt";
 
 // Point-map CSV upload through the real API: a good file is applied whole, a file with bad
 // rows is refused with every error by line number and nothing half-applied, and the units a
@@ -78,7 +88,9 @@ describe("point-map CSV", () => {
   it("refuses a file without the required columns", async () => {
     const res = await putPointMap(server, admin, gw.gateway.id, "name,tag\nA,B\n");
     expect(res.status).toBe(400);
-    expect(res.body.errors).toEqual([{ line: 1, message: expect.stringMatching(/missing column\(s\): gateway_point, equipment, quantity, unit/) }]);
+    expect(res.body.errors).toEqual([
+      { line: 1, message: expect.stringMatching(/missing column\(s\): gateway_point, equipment, quantity, unit/) },
+    ]);
   });
 
   it("converts each declared unit to the point's canonical unit on ingest", async () => {
@@ -99,7 +111,9 @@ describe("point-map CSV", () => {
     );
     await endClient(client);
     const latest = (await api(server, admin, `/api/sites/${SITE}/latest`)).body.latest;
-    const v = (key: string) => latest.points.find((p: { equipmentTag: string; key: string }) => p.equipmentTag === "CH-1" && p.key === key).value as number;
+    const v = (key: string) =>
+      latest.points.find((p: { equipmentTag: string; key: string }) => p.equipmentTag === "CH-1" && p.key === key)
+        .value as number;
     // NIST SP 811 B.9: t/°C = (t/°F − 32)/1.8
     expect(v("chilled_water_leaving_temp")).toBeCloseTo((44 - 32) / 1.8, 6);
     expect(v("chilled_water_entering_temp")).toBeCloseTo(12.5, 9);

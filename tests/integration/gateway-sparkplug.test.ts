@@ -21,18 +21,41 @@ let pointIds: Record<string, number>;
 
 async function latestOf(pointId: number) {
   const res = await api(server, admin, `/api/sites/${SITE}/latest`);
-  return res.body.latest.points.find((p: { pointId: number }) => p.pointId === pointId) as { value: unknown; tsMs: number | null };
+  return res.body.latest.points.find((p: { pointId: number }) => p.pointId === pointId) as {
+    value: unknown;
+    tsMs: number | null;
+  };
 }
 
 beforeAll(async () => {
   server = await startServer();
   admin = await adminCookie(server);
-  gw = await provisionGateway(server, admin, { siteId: SITE, name: "Sparkplug node", protocol: "sparkplug", groupId: "millbrook", edgeNodeId: "plant-edge-1" });
-  const csv = ["gateway_point,equipment,quantity,unit", "CH1/LCHWT,CH-1,chilled_water_leaving_temp,degF", "CH1/Running,CH-1,run_status,bool", "Tower/FanSpeed,CT-1,fan_speed,%", "Tower/Mode,CT-1,fan_drive_mode,state"].join("\n");
+  gw = await provisionGateway(server, admin, {
+    siteId: SITE,
+    name: "Sparkplug node",
+    protocol: "sparkplug",
+    groupId: "millbrook",
+    edgeNodeId: "plant-edge-1",
+  });
+  const csv = [
+    "gateway_point,equipment,quantity,unit",
+    "CH1/LCHWT,CH-1,chilled_water_leaving_temp,degF",
+    "CH1/Running,CH-1,run_status,bool",
+    "Tower/FanSpeed,CT-1,fan_speed,%",
+    "Tower/Mode,CT-1,fan_drive_mode,state",
+  ].join("\n");
   expect((await putPointMap(server, admin, gw.gateway.id, csv)).body.accepted).toBe(4);
   const site = await api(server, admin, `/api/sites/${SITE}`);
-  const find = (tag: string, key: string) => site.body.site.equipment.find((e: { tag: string }) => e.tag === tag).points.find((p: { key: string }) => p.key === key).id;
-  pointIds = { lchwt: find("CH-1", "chilled_water_leaving_temp"), run: find("CH-1", "run_status"), fan: find("CT-1", "fan_speed"), mode: find("CT-1", "fan_drive_mode") };
+  const find = (tag: string, key: string) =>
+    site.body.site.equipment
+      .find((e: { tag: string }) => e.tag === tag)
+      .points.find((p: { key: string }) => p.key === key).id;
+  pointIds = {
+    lchwt: find("CH-1", "chilled_water_leaving_temp"),
+    run: find("CH-1", "run_status"),
+    fan: find("CT-1", "fan_speed"),
+    mode: find("CT-1", "fan_drive_mode"),
+  };
 }, 240_000);
 
 afterAll(async () => {
@@ -42,7 +65,15 @@ afterAll(async () => {
 
 describe("Sparkplug B edge node", () => {
   it("stores NBIRTH and NDATA metrics, by name and by alias", async () => {
-    node = newClient({ serverUrl: server.mqttUrl, username: gw.username, password: gw.password, groupId: "millbrook", edgeNode: "plant-edge-1", clientId: "plant-edge-1", version: "spBv1.0" });
+    node = newClient({
+      serverUrl: server.mqttUrl,
+      username: gw.username,
+      password: gw.password,
+      groupId: "millbrook",
+      edgeNode: "plant-edge-1",
+      clientId: "plant-edge-1",
+      version: "spBv1.0",
+    });
     await new Promise<void>((resolve) => node.on("birth", () => resolve()));
     const t = Date.now() - 2000;
     node.publishNodeBirth({
@@ -53,7 +84,13 @@ describe("Sparkplug B edge node", () => {
         { name: "Node Control/Rebirth", type: "Boolean", value: false },
       ],
     });
-    node.publishDeviceBirth("Tower", { timestamp: t, metrics: [{ name: "FanSpeed", alias: 10, type: "Double", value: 55.5, timestamp: t }, { name: "Mode", alias: 11, type: "String", value: "auto", timestamp: t }] });
+    node.publishDeviceBirth("Tower", {
+      timestamp: t,
+      metrics: [
+        { name: "FanSpeed", alias: 10, type: "Double", value: 55.5, timestamp: t },
+        { name: "Mode", alias: 11, type: "String", value: "auto", timestamp: t },
+      ],
+    });
     await waitFor(async () => (await latestOf(pointIds.fan)).value === 55.5);
     expect((await latestOf(pointIds.lchwt)).value).toBeCloseTo((44 - 32) / 1.8, 5); // NIST SP 811 B.9
     expect((await latestOf(pointIds.run)).value).toBe(true);
@@ -62,7 +99,10 @@ describe("Sparkplug B edge node", () => {
     // NDATA by alias only (Sparkplug B 3.0 §6.4.3: aliases replace names after the birth).
     const t2 = Date.now() - 1000;
     node.publishNodeData({ timestamp: t2, metrics: [{ alias: 1, type: "Float", value: 46.4, timestamp: t2 }] });
-    node.publishDeviceData("Tower", { timestamp: t2, metrics: [{ alias: 10, type: "Double", value: 61.25, timestamp: t2 }] });
+    node.publishDeviceData("Tower", {
+      timestamp: t2,
+      metrics: [{ alias: 10, type: "Double", value: 61.25, timestamp: t2 }],
+    });
     await waitFor(async () => (await latestOf(pointIds.fan)).value === 61.25);
     const l = await latestOf(pointIds.lchwt);
     expect(l.value).toBeCloseTo((46.4 - 32) / 1.8, 5);
@@ -75,27 +115,45 @@ describe("Sparkplug B edge node", () => {
 
   it("answers a seq gap with an NCMD Node Control/Rebirth", async () => {
     // A second client of the same node listens for its commands (the broker lets the node's credentials subscribe there).
-    const listener = mqtt.connect(server.mqttUrl, { username: gw.username, password: gw.password, clientId: "plant-edge-1-cmd", protocolVersion: 4 });
+    const listener = mqtt.connect(server.mqttUrl, {
+      username: gw.username,
+      password: gw.password,
+      clientId: "plant-edge-1-cmd",
+      protocolVersion: 4,
+    });
     await new Promise<void>((resolve) => listener.once("connect", () => resolve()));
     await listener.subscribeAsync("spBv1.0/millbrook/NCMD/plant-edge-1", { qos: 0 });
     const command = new Promise<{ name: string; value: unknown }[]>((resolve) =>
-      listener.on("message", (_topic, payload) => resolve(codec.decodePayload(new Uint8Array(payload)).metrics as { name: string; value: unknown }[])),
+      listener.on("message", (_topic, payload) =>
+        resolve(codec.decodePayload(new Uint8Array(payload)).metrics as { name: string; value: unknown }[]),
+      ),
     );
     // Skip two sequence numbers (§6.4.5: seq must increase by one per message).
     // sparkplug-client keeps its counter private; reach it the way a faulty node would skip.
     const internals = node as unknown as { incrementSeqNum(): number; connected: boolean };
     internals.incrementSeqNum();
     internals.incrementSeqNum();
-    node.publishNodeData({ timestamp: Date.now(), metrics: [{ alias: 2, type: "Boolean", value: false, timestamp: Date.now() }] });
+    node.publishNodeData({
+      timestamp: Date.now(),
+      metrics: [{ alias: 2, type: "Boolean", value: false, timestamp: Date.now() }],
+    });
     const metrics = await command;
     expect(metrics).toEqual([expect.objectContaining({ name: "Node Control/Rebirth", value: true })]);
     listener.end(true);
   });
 
   it("marks the node offline on an NDEATH whose bdSeq matches the birth (§6.4.7), while it is still connected", async () => {
-    const stale = mqtt.connect(server.mqttUrl, { username: gw.username, password: gw.password, clientId: "plant-edge-1-death", protocolVersion: 4 });
+    const stale = mqtt.connect(server.mqttUrl, {
+      username: gw.username,
+      password: gw.password,
+      clientId: "plant-edge-1-death",
+      protocolVersion: 4,
+    });
     await new Promise<void>((resolve) => stale.once("connect", () => resolve()));
-    const death = (bdSeq: number) => Buffer.from(codec.encodePayload({ timestamp: Date.now(), metrics: [{ name: "bdSeq", type: "UInt64", value: bdSeq }] }));
+    const death = (bdSeq: number) =>
+      Buffer.from(
+        codec.encodePayload({ timestamp: Date.now(), metrics: [{ name: "bdSeq", type: "UInt64", value: bdSeq }] }),
+      );
     const statusOf = async () => (await api(server, admin, `/api/gateways/${gw.gateway.id}`)).body.gateway.status;
     await waitFor(async () => (await statusOf()).online);
 

@@ -5,7 +5,9 @@ let server: TestServer;
 const WINDOW_S = 3;
 
 beforeAll(async () => {
-  server = await startServer({ env: { SIGNIN_WINDOW_S: String(WINDOW_S), SIGNIN_MAX_PER_ACCOUNT: "3", SIGNIN_MAX_PER_ADDRESS: "50" } });
+  server = await startServer({
+    env: { SIGNIN_WINDOW_S: String(WINDOW_S), SIGNIN_MAX_PER_ACCOUNT: "3", SIGNIN_MAX_PER_ADDRESS: "50" },
+  });
 });
 afterAll(() => server?.stop());
 

@@ -33,7 +33,13 @@ async function latest(): Promise<LatestPoint[]> {
 beforeAll(async () => {
   server = await startServer();
   admin = await adminCookie(server);
-  gw = await provisionGateway(server, admin, { siteId: SITE, name: "Simulated Sparkplug node", protocol: "sparkplug", groupId: GROUP, edgeNodeId: EDGE });
+  gw = await provisionGateway(server, admin, {
+    siteId: SITE,
+    name: "Simulated Sparkplug node",
+    protocol: "sparkplug",
+    groupId: GROUP,
+    edgeNodeId: EDGE,
+  });
   const layout = getLayout("medical-office")!;
   // The host names device metrics `{deviceId}/{metric}` (gateway/PROTOCOL.md), so the Sparkplug map is the
   // simulator's JSON point map with the device (= equipment tag) in front of each name.
@@ -66,7 +72,17 @@ describe("simulator as a Sparkplug B edge node", () => {
     });
     const startedAt = Date.now();
     // A few seconds of publishing: births, then DDATA every 250 ms tick.
-    await waitFor(async () => (await latest()).some((p) => p.equipmentTag === "CH-1" && p.key === "chilled_water_leaving_temp" && typeof p.value === "number" && (p.tsMs ?? 0) > 0), 20_000);
+    await waitFor(
+      async () =>
+        (await latest()).some(
+          (p) =>
+            p.equipmentTag === "CH-1" &&
+            p.key === "chilled_water_leaving_temp" &&
+            typeof p.value === "number" &&
+            (p.tsMs ?? 0) > 0,
+        ),
+      20_000,
+    );
     await new Promise((r) => setTimeout(r, 4000));
 
     const points = await latest();
@@ -78,7 +94,9 @@ describe("simulator as a Sparkplug B edge node", () => {
     expect(of("CH-1", "run_status")!.value).toBe(true);
     expect(of("CT-1", "fan_drive_mode")!.value).toBe("auto");
     // Every point of the site's plant has a value now, and none lies in the future.
-    const plant = points.filter((p) => ["CH-1", "CT-1", "CHWP-1", "CWP-1", "AHU-1", "AHU-2", "AHU-3", "WS-1"].includes(p.equipmentTag));
+    const plant = points.filter((p) =>
+      ["CH-1", "CT-1", "CHWP-1", "CWP-1", "AHU-1", "AHU-2", "AHU-3", "WS-1"].includes(p.equipmentTag),
+    );
     expect(plant.length).toBeGreaterThan(0);
     for (const p of plant) {
       expect(p.value, `${p.equipmentTag}/${p.key}`).not.toBeNull();
@@ -100,6 +118,9 @@ describe("simulator as a Sparkplug B edge node", () => {
     // NDEATH on a planned stop marks the node offline (its bdSeq matches the birth's).
     await sim.stop();
     sim = undefined;
-    await waitFor(async () => (await api(server, admin, `/api/gateways/${gw.gateway.id}`)).body.gateway.status.online === false, 10_000);
+    await waitFor(
+      async () => (await api(server, admin, `/api/gateways/${gw.gateway.id}`)).body.gateway.status.online === false,
+      10_000,
+    );
   }, 60_000);
 });

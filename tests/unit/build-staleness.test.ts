@@ -23,7 +23,14 @@ const SOURCES = [
   "package-lock.json",
 ];
 // Written by tools, never bundled: none of these may make the build stale.
-const NOT_SOURCES = ["node_modules/next/index.js", ".next/server/app/page.js", ".next-test/dev/server.js", "test-results/vitest.json", "data/liftline.db", "tests/unit/units.test.ts"];
+const NOT_SOURCES = [
+  "node_modules/next/index.js",
+  ".next/server/app/page.js",
+  ".next-test/dev/server.js",
+  "test-results/vitest.json",
+  "data/liftline.db",
+  "tests/unit/units.test.ts",
+];
 
 const HOUR = 3_600_000;
 let dir: string;
@@ -99,11 +106,14 @@ describe.each([
     expect(buildIsStale(dir)).toBe(true);
   });
 
-  it.each(["gateway/point-map.ts", "simulator/scenarios.ts", "app/api/sites/route.ts"])("is true after %s is deleted", (rel) => {
-    fs.rmSync(path.join(dir, rel));
-    touch(path.dirname(rel), builtAt + 10_000);
-    expect(buildIsStale(dir)).toBe(true);
-  });
+  it.each(["gateway/point-map.ts", "simulator/scenarios.ts", "app/api/sites/route.ts"])(
+    "is true after %s is deleted",
+    (rel) => {
+      fs.rmSync(path.join(dir, rel));
+      touch(path.dirname(rel), builtAt + 10_000);
+      expect(buildIsStale(dir)).toBe(true);
+    },
+  );
 
   it.each(NOT_SOURCES)("stays false after %s changes", (rel) => {
     touch(rel, builtAt + 10_000);

@@ -46,7 +46,8 @@ describe("other refrigerants", () => {
     expect(saturationTempC("R-1234ze(E)", 101.325)).toBeCloseTo(-18.973, 1);
   });
   it("R-1234ze(E) runs at lower pressure than R-134a at chiller temperatures (its known property; no table value)", () => {
-    for (const t of [5, 20, 40]) expect(saturationPressureKPa("R-1234ze(E)", t)).toBeLessThan(0.8 * saturationPressureKPa("R-134a", t));
+    for (const t of [5, 20, 40])
+      expect(saturationPressureKPa("R-1234ze(E)", t)).toBeLessThan(0.8 * saturationPressureKPa("R-134a", t));
   });
   it("R-513A (approximate, ±3 %): slightly above R-134a, as an R-134a drop-in azeotrope (recalled, not verified)", () => {
     for (const t of [5, 20, 40]) {

@@ -4,7 +4,8 @@ import { fromCanonical, STANDARD_ATMOSPHERE_KPA, toCanonical } from "@/lib/units
 // Conversion factors checked against NIST Special Publication 811 (2008 edition),
 // "Guide for the Use of the International System of Units", Appendix B.8 (factors by unit)
 // and B.9 (temperature). NIST gives 7 significant digits, so checks are to 1 part in 10^6.
-const close = (actual: number, expected: number, rel = 1e-6) => expect(Math.abs(actual - expected)).toBeLessThanOrEqual(Math.abs(expected) * rel + 1e-12);
+const close = (actual: number, expected: number, rel = 1e-6) =>
+  expect(Math.abs(actual - expected)).toBeLessThanOrEqual(Math.abs(expected) * rel + 1e-12);
 
 describe("wire units to canonical SI (NIST SP 811)", () => {
   it("psi → kPa: 1 lbf/in² = 6.894757 E+03 Pa (B.8)", () => {

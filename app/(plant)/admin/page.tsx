@@ -7,9 +7,21 @@ import { requirePageViewer } from "../../(auth)/auth";
 export const metadata: Metadata = { title: "Admin" };
 
 const sections = [
-  { href: "/admin/gateways", title: "Gateways", text: "Provision site gateways, rotate or revoke their credentials, upload point maps, see their counters." },
-  { href: "/admin/simulator", title: "Simulated sites", text: "Run a plant scenario on a demo site at a chosen speed; training drills." },
-  { href: "/admin/alarm-health", title: "Alarm-system health", text: "Alarm rates, floods, frequent, chattering and stale alarms, priority split." },
+  {
+    href: "/admin/gateways",
+    title: "Gateways",
+    text: "Provision site gateways, rotate or revoke their credentials, upload point maps, see their counters.",
+  },
+  {
+    href: "/admin/simulator",
+    title: "Simulated sites",
+    text: "Run a plant scenario on a demo site at a chosen speed; training drills.",
+  },
+  {
+    href: "/admin/alarm-health",
+    title: "Alarm-system health",
+    text: "Alarm rates, floods, frequent, chattering and stale alarms, priority split.",
+  },
   { href: "/admin/outbox", title: "Outbox", text: "E-mail caught by the local SMTP sink." },
   { href: "/on-call", title: "On-call rota", text: "Who is primary and backup, by day or week." },
 ];

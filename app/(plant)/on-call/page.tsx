@@ -18,7 +18,8 @@ export default async function OnCallPage() {
     <section>
       <h1 className="text-2xl font-semibold">On call</h1>
       <p className="mb-4 mt-1 max-w-prose text-muted">
-        High-priority alarms e-mail the primary at once; if nobody acknowledges within the escalation delay (10 minutes by default), the backup, then the admins.
+        High-priority alarms e-mail the primary at once; if nobody acknowledges within the escalation delay (10 minutes
+        by default), the backup, then the admins.
       </p>
       <RotaEditor canEdit={isAdmin(viewer)} nowMs={now()} />
     </section>

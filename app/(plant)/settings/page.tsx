@@ -16,10 +16,12 @@ export default async function SettingsPage() {
         <fieldset className="flex flex-col gap-2">
           <legend className="font-semibold">Units</legend>
           <label className="flex min-h-11 items-center gap-2">
-            <input type="radio" name="unitSystem" value="ip" defaultChecked={viewer.unitSystem === "ip"} /> Inch-pound (°F, psig, gpm)
+            <input type="radio" name="unitSystem" value="ip" defaultChecked={viewer.unitSystem === "ip"} /> Inch-pound
+            (°F, psig, gpm)
           </label>
           <label className="flex min-h-11 items-center gap-2">
-            <input type="radio" name="unitSystem" value="si" defaultChecked={viewer.unitSystem === "si"} /> SI (°C, kPa absolute, L/s)
+            <input type="radio" name="unitSystem" value="si" defaultChecked={viewer.unitSystem === "si"} /> SI (°C, kPa
+            absolute, L/s)
           </label>
         </fieldset>
         <Button type="submit" className="self-start">

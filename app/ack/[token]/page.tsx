@@ -10,10 +10,11 @@ import { ackLinkRefusal as refusal, ACK_TOKEN_PATTERN } from "@/lib/oncall/ack-l
 export const metadata: Metadata = { title: "Acknowledge alarm" };
 export const dynamic = "force-dynamic";
 
-
 function lookUp(token: string) {
   const db = getDb();
-  const link = ACK_TOKEN_PATTERN.test(token) ? peekAckLink(db, token, Date.now()) : ({ ok: false, reason: "unknown" } as const);
+  const link = ACK_TOKEN_PATTERN.test(token)
+    ? peekAckLink(db, token, Date.now())
+    : ({ ok: false, reason: "unknown" } as const);
   const viewer = link.ok ? getViewerById(db, link.userId) : null;
   const alarm = link.ok && viewer ? getAlarm(db, viewer, link.alarmId) : null;
   return { link, viewer, alarm };

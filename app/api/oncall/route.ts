@@ -22,6 +22,11 @@ export const POST = route(async (request) => {
   if (!staff.has(input.primaryUserId) || (input.backupUserId && !staff.has(input.backupUserId))) {
     throw new AppError("bad_request", "On-call people must be admins or technicians.");
   }
-  const shift = createShift(db, { startsAt: Date.parse(input.startsAt), endsAt: Date.parse(input.endsAt), primaryUserId: input.primaryUserId, backupUserId: input.backupUserId });
+  const shift = createShift(db, {
+    startsAt: Date.parse(input.startsAt),
+    endsAt: Date.parse(input.endsAt),
+    primaryUserId: input.primaryUserId,
+    backupUserId: input.backupUserId,
+  });
   return Response.json({ shift }, { status: 201 });
 });

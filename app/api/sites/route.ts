@@ -8,6 +8,10 @@ export const GET = route(async (request) => {
   const viewer = await requireApiViewer(request);
   const db = getDb();
   const sites = listSites(db, viewer);
-  const statuses = boardStatuses(db, viewer, sites.map((s) => s.id));
+  const statuses = boardStatuses(
+    db,
+    viewer,
+    sites.map((s) => s.id),
+  );
   return Response.json({ sites: sites.map((s) => ({ ...s, status: statuses.get(s.id) })) });
 });

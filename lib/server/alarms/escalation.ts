@@ -1,6 +1,14 @@
 import type { Db } from "@/db/client";
 import { getAlarm } from "@/db/queries/alarms";
-import { admins, alarmsAwaitingAck, allShifts, contactOf, createAckLink, notificationsFor, recordNotification } from "@/db/queries/oncall";
+import {
+  admins,
+  alarmsAwaitingAck,
+  allShifts,
+  contactOf,
+  createAckLink,
+  notificationsFor,
+  recordNotification,
+} from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";
 import { dueSteps, stepLabel, type EscalationPolicy, type EscalationStep } from "@/lib/oncall/escalation";
 import { shiftAt } from "@/lib/oncall/rota";
@@ -17,7 +25,14 @@ export interface Escalator {
   run(): Promise<number>;
 }
 
-export function createEscalator(deps: { db: Db; mailer: Mailer; clock: () => number; publicUrl: string; policy: EscalationPolicy; log: (line: string) => void }): Escalator {
+export function createEscalator(deps: {
+  db: Db;
+  mailer: Mailer;
+  clock: () => number;
+  publicUrl: string;
+  policy: EscalationPolicy;
+  log: (line: string) => void;
+}): Escalator {
   const { db } = deps;
   let running: Promise<number> | null = null;
 
@@ -60,7 +75,9 @@ export function createEscalator(deps: { db: Db; mailer: Mailer; clock: () => num
             `${alarm.siteName}: ${alarm.detail.technicianMessage}`,
             "",
             `Priority: ${meaning?.label ?? alarm.priority}. ${meaning?.response ?? ""}`,
-            ...(alarm.detail.advice.length ? ["", "What to consider:", ...alarm.detail.advice.map((s) => `- ${s}`)] : []),
+            ...(alarm.detail.advice.length
+              ? ["", "What to consider:", ...alarm.detail.advice.map((s) => `- ${s}`)]
+              : []),
             ...(alarm.detail.caution ? ["", alarm.detail.caution] : []),
             "",
             `Acknowledge (works once, expires in ${ACK_LINK_TTL_MS / 3600_000} h): ${link}`,
@@ -69,8 +86,22 @@ export function createEscalator(deps: { db: Db; mailer: Mailer; clock: () => num
             `You are receiving this as ${person.why}.`,
           ].join("\n");
           try {
-            await deps.mailer.send({ to: person.email, subject: `[Liftline P${alarm.priority}] ${alarm.siteName}: ${alarm.detail.technicianMessage}`.slice(0, 180), text });
-            recordNotification(db, { alarmId: a.id, activation: a.activations, step, userId: person.id, email: person.email, sentAt: nowMs });
+            await deps.mailer.send({
+              to: person.email,
+              subject: `[Liftline P${alarm.priority}] ${alarm.siteName}: ${alarm.detail.technicianMessage}`.slice(
+                0,
+                180,
+              ),
+              text,
+            });
+            recordNotification(db, {
+              alarmId: a.id,
+              activation: a.activations,
+              step,
+              userId: person.id,
+              email: person.email,
+              sentAt: nowMs,
+            });
             sent++;
           } catch (err) {
             deps.log(`[escalation] could not e-mail ${person.email}: ${err instanceof Error ? err.message : err}`);

@@ -105,7 +105,8 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
       }
       list.push(reading(rows.ts(i), p.tag, p.quantity, rows.live(i)));
     }
-    for (const [siteId, readings] of bySite) guarded(siteId, () => deps.service.record(siteId, readings) && due.add(siteId));
+    for (const [siteId, readings] of bySite)
+      guarded(siteId, () => deps.service.record(siteId, readings) && due.add(siteId));
     bySite.clear();
     if (due.size > 0) schedule();
   };

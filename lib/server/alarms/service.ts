@@ -7,7 +7,14 @@ import { canAct, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
 import type { Reading, Site } from "@/lib/plant/site";
 import type { SiteSnapshot } from "@/lib/plant/snapshot";
-import { createSiteMonitor, marginSeries, parseRuleSettings, type CommStatus, type RuleContext, type SiteMonitor } from "@/lib/rules";
+import {
+  createSiteMonitor,
+  marginSeries,
+  parseRuleSettings,
+  type CommStatus,
+  type RuleContext,
+  type SiteMonitor,
+} from "@/lib/rules";
 
 // Runs the rule checks of every site on the readings ingestion commits, on event time,
 // and keeps the alarms' ISA-18.2 state in the database. People's commands (acknowledge,
@@ -40,7 +47,11 @@ export interface AlarmService {
   /** The last derived numbers of a site (for its page), or null before any reading. */
   snapshot(siteId: string): SiteSnapshot | null;
   /** Crossover margin per chiller over the last `windowS` of event time, at most `maxPoints` each. */
-  marginTrend(siteId: string, windowS: number, maxPoints?: number): Record<string, { tsMs: number[]; marginK: number[] }>;
+  marginTrend(
+    siteId: string,
+    windowS: number,
+    maxPoints?: number,
+  ): Record<string, { tsMs: number[]; marginK: number[] }>;
   /** Forgets a site's monitor so settings are re-read on the next reading. */
   reload(siteId: string): void;
   /** Wall-clock housekeeping: shelf expiry and silence, extrapolating event time. */
@@ -79,7 +90,12 @@ export function createAlarmService(deps: {
       const site = siteEquipment(db, siteId);
       s = {
         site,
-        monitor: createSiteMonitor({ site, settings: loadRuleSettings(db, siteId), alarms: book, timeZone: siteTimeZone(db, siteId) }),
+        monitor: createSiteMonitor({
+          site,
+          settings: loadRuleSettings(db, siteId),
+          alarms: book,
+          timeZone: siteTimeZone(db, siteId),
+        }),
         lastEvaluatedMs: -Infinity,
         latestEventMs: -Infinity,
         latestWallMs: deps.clock(),
@@ -96,7 +112,11 @@ export function createAlarmService(deps: {
     const changed: Alarm[] = [];
     for (const [key, a] of after) {
       // Rows exist for alarms that ever left normal; keep their words fresh while active.
-      if (before.get(key) !== a && (transitions.some((t) => t.alarmKey === key) || a.conditionActive || a.state !== "normal")) changed.push(a);
+      if (
+        before.get(key) !== a &&
+        (transitions.some((t) => t.alarmKey === key) || a.conditionActive || a.state !== "normal")
+      )
+        changed.push(a);
     }
     if (changed.length || transitions.length) saveAlarmChanges(db, siteId, changed, transitions, s.details);
     if (transitions.length) deps.onAlarmsChanged?.(siteId, transitions);
@@ -175,7 +195,10 @@ export function createAlarmService(deps: {
       const s = sites.get(siteId);
       if (!s || !Number.isFinite(s.latestEventMs)) return {};
       // marginSeries reads only the site, the history and the time from its context.
-      const probe = { site: s.site, history: s.monitor.history, nowMs: s.latestEventMs } as Pick<RuleContext, "site" | "history" | "nowMs"> as RuleContext;
+      const probe = { site: s.site, history: s.monitor.history, nowMs: s.latestEventMs } as Pick<
+        RuleContext,
+        "site" | "history" | "nowMs"
+      > as RuleContext;
       const out: Record<string, { tsMs: number[]; marginK: number[] }> = {};
       for (const chiller of s.site.filter((e) => e.kind === "chiller")) {
         const series = marginSeries(probe, chiller, windowS);

@@ -29,7 +29,13 @@ export async function startAlarmSystem(deps: {
   clock?: () => number;
 }): Promise<AlarmSystem> {
   const clock = deps.clock ?? Date.now;
-  const mailer = await createMailer({ db: deps.db, smtpUrl: deps.config.SMTP_URL, sinkPort: deps.config.SMTP_PORT, from: deps.config.MAIL_FROM, log: deps.log });
+  const mailer = await createMailer({
+    db: deps.db,
+    smtpUrl: deps.config.SMTP_URL,
+    sinkPort: deps.config.SMTP_PORT,
+    from: deps.config.MAIL_FROM,
+    log: deps.log,
+  });
   const escalator = createEscalator({
     db: deps.db,
     mailer,
@@ -54,7 +60,10 @@ export async function startAlarmSystem(deps: {
     void escalator.run();
   }, TICK_MS);
   timer.unref();
-  if (mailer.sinkPort) deps.log(`Mail goes to the local SMTP sink on port ${mailer.sinkPort} (admin Outbox page); set SMTP_URL to send real mail.`);
+  if (mailer.sinkPort)
+    deps.log(
+      `Mail goes to the local SMTP sink on port ${mailer.sinkPort} (admin Outbox page); set SMTP_URL to send real mail.`,
+    );
   return {
     service,
     escalator,

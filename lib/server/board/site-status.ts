@@ -10,11 +10,21 @@ type AlarmSide = Pick<SiteStatus, "worst" | "unacknowledged">;
 function toWorst(worst: AlarmDto | null | undefined): SiteStatus["worst"] {
   if (!worst) return null;
   const d = worst.detail;
-  return { priority: worst.priority, ruleId: worst.ruleId, equipment: worst.equipment, title: d.technicianMessage, ownerTitle: d.ownerMessage || d.technicianMessage, active: worst.conditionActive };
+  return {
+    priority: worst.priority,
+    ruleId: worst.ruleId,
+    equipment: worst.equipment,
+    title: d.technicianMessage,
+    ownerTitle: d.ownerMessage || d.technicianMessage,
+    active: worst.conditionActive,
+  };
 }
 
 /** The alarm half of a site's board status (worst active alarm, unacknowledged count). */
-function alarmSide(summary: Map<string, { worst: AlarmDto | null; unacknowledged: number }>, siteId: string): AlarmSide {
+function alarmSide(
+  summary: Map<string, { worst: AlarmDto | null; unacknowledged: number }>,
+  siteId: string,
+): AlarmSide {
   const a = summary.get(siteId);
   return { worst: toWorst(a?.worst), unacknowledged: a?.unacknowledged ?? 0 };
 }
@@ -23,7 +33,11 @@ function alarmSide(summary: Map<string, { worst: AlarmDto | null; unacknowledged
  * The alarm side of every site's status push, read with the service company's full view: one
  * summary query serves a whole status round, and an alarm change makes the next one fresh.
  */
-export function createBoardAlarmSummary(db: Db, viewer: Viewer, clock: () => number = Date.now): { side(siteId: string): AlarmSide; invalidate(): void } {
+export function createBoardAlarmSummary(
+  db: Db,
+  viewer: Viewer,
+  clock: () => number = Date.now,
+): { side(siteId: string): AlarmSide; invalidate(): void } {
   let atMs = -Infinity;
   let bySite = new Map<string, { worst: AlarmDto | null; unacknowledged: number }>();
   return {
@@ -45,6 +59,7 @@ export function boardStatuses(db: Db, viewer: Viewer, siteIds: readonly string[]
   const summary = alarmSummaryBySite(db, viewer);
   const dataStatus = getRuntime()?.siteDataStatus;
   const out = new Map<string, SiteStatus>();
-  for (const siteId of siteIds) out.set(siteId, { siteId, data: dataStatus ? dataStatus(siteId) : "no_gateway", ...alarmSide(summary, siteId) });
+  for (const siteId of siteIds)
+    out.set(siteId, { siteId, data: dataStatus ? dataStatus(siteId) : "no_gateway", ...alarmSide(summary, siteId) });
   return out;
 }

@@ -1,7 +1,13 @@
 import type { Db } from "@/db/client";
 import { listGatewayPresence } from "@/db/queries/gateways";
 import { allSiteIds, mappedPoints, storedLatestValues } from "@/db/queries/readings";
-import { freshnessByGateway, siteStatuses, type GatewayFreshness, type MappedPoint, type SiteStatusRow } from "@/lib/freshness";
+import {
+  freshnessByGateway,
+  siteStatuses,
+  type GatewayFreshness,
+  type MappedPoint,
+  type SiteStatusRow,
+} from "@/lib/freshness";
 import type { CommittedRows } from "@/gateway/row-columns";
 import { qualityNames } from "@/lib/quality";
 import { boardRoom, siteRoom, type SiteStatus, type SiteValues } from "@/lib/realtime/events";
@@ -84,7 +90,12 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
   function computeStatuses() {
     const nowMs = now();
     const m = currentMapping();
-    statuses = siteStatuses({ siteIds: m.siteIds, presence: listGatewayPresence(opts.db), freshness: freshnessByGateway(m.mapped, latestTs, nowMs), nowMs });
+    statuses = siteStatuses({
+      siteIds: m.siteIds,
+      presence: listGatewayPresence(opts.db),
+      freshness: freshnessByGateway(m.mapped, latestTs, nowMs),
+      nowMs,
+    });
     return statuses;
   }
 
@@ -122,7 +133,8 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
   function pushValues() {
     if (pending.size === 0) return;
     const at = performance.now();
-    for (const [siteId, values] of pending) if (at - (lastPushed.get(siteId) ?? -Infinity) >= pushMs) pushSite(siteId, values, at);
+    for (const [siteId, values] of pending)
+      if (at - (lastPushed.get(siteId) ?? -Infinity) >= pushMs) pushSite(siteId, values, at);
   }
 
   let statusRound: Promise<void> | undefined;
@@ -170,7 +182,8 @@ export function createLivePublisher(opts: LivePublisherOptions): LivePublisher {
           v.tsMs = ts;
           v.value = rows.live(i);
           v.quality = qualityNames[rows.quality(i)];
-        } else latest.set(pointId, (v = { pointId, tsMs: ts, value: rows.live(i), quality: qualityNames[rows.quality(i)] }));
+        } else
+          latest.set(pointId, (v = { pointId, tsMs: ts, value: rows.live(i), quality: qualityNames[rows.quality(i)] }));
         const siteId = rows.siteId(i);
         if (siteId !== lastSite || !site) {
           lastSite = siteId;

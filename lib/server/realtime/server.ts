@@ -6,14 +6,19 @@ import { canSeeSite, visibleSiteIds } from "@/db/queries/sites";
 import { getViewerById } from "@/db/queries/users";
 import { SESSION_COOKIES } from "@/lib/auth/session";
 import type { Viewer } from "@/lib/auth/viewer";
-import { boardRoom, joinSiteSchema, siteRoom, type ClientToServerEvents, type ServerToClientEvents } from "@/lib/realtime/events";
+import {
+  boardRoom,
+  joinSiteSchema,
+  siteRoom,
+  type ClientToServerEvents,
+  type ServerToClientEvents,
+} from "@/lib/realtime/events";
 
 interface SocketData {
   viewer: Viewer;
 }
 
 export type RealtimeServer = Server<ClientToServerEvents, ServerToClientEvents, Record<string, never>, SocketData>;
-
 
 function readCookie(header: string | undefined, name: string): string | undefined {
   if (!header) return undefined;
@@ -25,7 +30,11 @@ function readCookie(header: string | undefined, name: string): string | undefine
 }
 
 /** The viewer behind a browser's session cookie, or null. */
-export async function viewerFromCookie(db: Db, cookieHeader: string | undefined, secret: string): Promise<Viewer | null> {
+export async function viewerFromCookie(
+  db: Db,
+  cookieHeader: string | undefined,
+  secret: string,
+): Promise<Viewer | null> {
   for (const name of SESSION_COOKIES) {
     const token = readCookie(cookieHeader, name);
     if (!token) continue;
@@ -56,14 +65,20 @@ export function createRealtimeServer(httpServer: HttpServer, deps: { db: Db; sec
       if (typeof ack !== "function") return;
       if (!parsed.success) return ack({ error: { code: "bad_request", message: "siteId is required" } });
       // Same answer for a site that does not exist and one the viewer may not see.
-      if (!canSeeSite(deps.db, viewer, parsed.data.siteId)) return ack({ error: { code: "not_found", message: "No such site." } });
+      if (!canSeeSite(deps.db, viewer, parsed.data.siteId))
+        return ack({ error: { code: "not_found", message: "No such site." } });
       void socket.join(siteRoom(parsed.data.siteId));
       ack({ data: { siteId: parsed.data.siteId } });
     });
     socket.on("site:leave", (payload, ack) => {
       const parsed = joinSiteSchema.safeParse(payload);
       if (parsed.success) void socket.leave(siteRoom(parsed.data.siteId));
-      if (typeof ack === "function") ack(parsed.success ? { data: { siteId: parsed.data.siteId } } : { error: { code: "bad_request", message: "siteId is required" } });
+      if (typeof ack === "function")
+        ack(
+          parsed.success
+            ? { data: { siteId: parsed.data.siteId } }
+            : { error: { code: "bad_request", message: "siteId is required" } },
+        );
     });
     socket.on("board:join", (ack) => {
       const siteIds = visibleSiteIds(deps.db, viewer);

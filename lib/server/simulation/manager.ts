@@ -58,11 +58,14 @@ export async function createSimulationManager(deps: {
   for (const site of DEMO_SITES) {
     const layout = getLayout(site.layout)!;
     let gw = listGateways(db, systemAdmin, site.id).find((g) => g.name === SIMULATED_GATEWAY_NAME && !g.revokedAt);
-    if (!gw) gw = (await createGateway(db, systemAdmin, { siteId: site.id, name: SIMULATED_GATEWAY_NAME, protocol: "json" })).gateway;
+    if (!gw)
+      gw = (await createGateway(db, systemAdmin, { siteId: site.id, name: SIMULATED_GATEWAY_NAME, protocol: "json" }))
+        .gateway;
     // Through the same parser as an uploaded CSV, so the demo map is validated like any other.
     const { rows, errors } = parsePointMapCsv(pointMapCsv(layout));
     const result = replacePointMap(db, systemAdmin, gw.id, rows, errors);
-    if (result.errors.length) log(`[sim] point map for ${site.id}: ${result.errors.length} rows refused, first: ${result.errors[0].message}`);
+    if (result.errors.length)
+      log(`[sim] point map for ${site.id}: ${result.errors.length} rows refused, first: ${result.errors[0].message}`);
     deps.gatewayChanged?.(gw.id, "point_map");
     gatewayIds.set(site.id, gw.id);
   }
@@ -73,7 +76,13 @@ export async function createSimulationManager(deps: {
     deps.onSiteReset?.(siteId, pointIds);
   }
 
-  async function start(siteId: string, scenario: string, speed: number, seed = 7, leadInS?: number): Promise<SimulatedSiteStatus> {
+  async function start(
+    siteId: string,
+    scenario: string,
+    speed: number,
+    seed = 7,
+    leadInS?: number,
+  ): Promise<SimulatedSiteStatus> {
     const site = DEMO_SITES.find((s) => s.id === siteId);
     const gatewayId = gatewayIds.get(siteId);
     if (!site || !gatewayId) throw new Error(`${siteId} is not a simulated site`);
@@ -86,7 +95,18 @@ export async function createSimulationManager(deps: {
     resetSite(siteId, startMs);
     // A fresh password each start: the server never stores a gateway's secret, only its hash.
     const { username, password } = await rotateGatewayPassword(db, systemAdmin, gatewayId);
-    const gateway = startSimulatedGateway({ mqttUrl: deps.mqttUrl, username, password, scenario, speed, seed, siteLayout: site.layout, loop: true, startMs, log: (line) => log(`[sim] ${line}`) });
+    const gateway = startSimulatedGateway({
+      mqttUrl: deps.mqttUrl,
+      username,
+      password,
+      scenario,
+      speed,
+      seed,
+      siteLayout: site.layout,
+      loop: true,
+      startMs,
+      log: (line) => log(`[sim] ${line}`),
+    });
     runs.set(siteId, { gateway, speed, startedAt: now() });
     log(`[sim] ${site.name}: ${scenario} at ${speed}×`);
     return status(siteId);
@@ -102,14 +122,21 @@ export async function createSimulationManager(deps: {
   function status(siteId: string): SimulatedSiteStatus {
     const site = DEMO_SITES.find((s) => s.id === siteId)!;
     const run = runs.get(siteId);
-    return { siteId, siteName: site.name, layout: site.layout, gatewayId: gatewayIds.get(siteId)!, run: run ? { ...run.gateway.status(), speed: run.speed, startedAt: run.startedAt } : null };
+    return {
+      siteId,
+      siteName: site.name,
+      layout: site.layout,
+      gatewayId: gatewayIds.get(siteId)!,
+      run: run ? { ...run.gateway.status(), speed: run.speed, startedAt: run.startedAt } : null,
+    };
   }
 
   return {
     list: () => DEMO_SITES.map((s) => status(s.id)),
     start,
     async startDefaults() {
-      for (const [siteId, run] of Object.entries(DEFAULT_RUNS)) await start(siteId, run.scenario, run.speed, 7, run.leadInS);
+      for (const [siteId, run] of Object.entries(DEFAULT_RUNS))
+        await start(siteId, run.scenario, run.speed, 7, run.leadInS);
     },
     stop,
     async close() {

@@ -8,7 +8,15 @@ describe("on/off delays (ISA-18.2 alarm attributes; starting values REFERENCES.m
     const d = { onDelayS: 60, offDelayS: 30 };
     let s: DelayState | undefined;
     const seen: boolean[] = [];
-    for (const [t, raw] of [[0, true], [30, true], [59, true], [60, true], [70, false], [99, false], [100, false]] as const) {
+    for (const [t, raw] of [
+      [0, true],
+      [30, true],
+      [59, true],
+      [60, true],
+      [70, false],
+      [99, false],
+      [100, false],
+    ] as const) {
       s = stepDelay(s, raw, T0 + t * 1000, d);
       seen.push(s.active);
     }
@@ -28,7 +36,13 @@ describe("on/off delays (ISA-18.2 alarm attributes; starting values REFERENCES.m
 });
 
 describe("alarm book", () => {
-  const cond = (active: boolean, extra = {}) => ({ ruleId: "low_evaporator_pressure", equipment: "CH-1", active, priority: 2 as const, ...extra });
+  const cond = (active: boolean, extra = {}) => ({
+    ruleId: "low_evaporator_pressure",
+    equipment: "CH-1",
+    active,
+    priority: 2 as const,
+    ...extra,
+  });
 
   it("creates alarms on first sight and records only changes", () => {
     let r = applyConditions(emptyAlarmBook(), [cond(false)], T0);
@@ -56,7 +70,14 @@ describe("alarm book", () => {
     let r = applyConditions(emptyAlarmBook(), [cond(true)], T0);
     const a = acknowledge(r.book, "low_evaporator_pressure:CH-1", T0 + 1000, { kind: "person", id: "u1" }, "on my way");
     expect(a.alarm.state).toBe("acknowledged");
-    const s = shelve(a.book, "low_evaporator_pressure:CH-1", T0 + 2000, { kind: "person", id: "u1" }, 10, "sensor fault");
+    const s = shelve(
+      a.book,
+      "low_evaporator_pressure:CH-1",
+      T0 + 2000,
+      { kind: "person", id: "u1" },
+      10,
+      "sensor fault",
+    );
     expect(s.alarm.state).toBe("shelved");
     r = applyConditions(s.book, [], T0 + 2000 + 10 * 60_000);
     expect(r.transitions.map((t) => t.cause)).toEqual(["shelf_expired"]);

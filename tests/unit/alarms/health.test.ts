@@ -7,23 +7,45 @@ const MIN = 60_000;
 
 function activation(key: string, atMs: number, priority: Priority = 4): TransitionRecord {
   const [ruleId, equipment] = key.split(":");
-  return { alarmKey: key, ruleId, equipment, priority, from: "normal", to: "unacknowledged", cause: "condition_active", atMs, actor: { kind: "system" }, note: null, conditionActive: true };
+  return {
+    alarmKey: key,
+    ruleId,
+    equipment,
+    priority,
+    from: "normal",
+    to: "unacknowledged",
+    cause: "condition_active",
+    atMs,
+    actor: { kind: "system" },
+    note: null,
+    conditionActive: true,
+  };
 }
 function cleared(key: string, atMs: number): TransitionRecord {
-  return { ...activation(key, atMs), from: "unacknowledged", to: "returned_unacknowledged", cause: "condition_cleared", conditionActive: false };
+  return {
+    ...activation(key, atMs),
+    from: "unacknowledged",
+    to: "returned_unacknowledged",
+    cause: "condition_cleared",
+    conditionActive: false,
+  };
 }
 
 describe("alarm rate per on-call person", () => {
   it("< 1 per 10 min per person is acceptable, 1–2 manageable, above is overloaded (EEMUA 191 / ISA-18.2 [C])", () => {
     const hour = 3600_000;
     const five = Array.from({ length: 5 }, (_, i) => activation(`r${i}:CH-1`, T0 + i * 10 * MIN));
-    expect(computeAlarmHealth({ records: five, fromMs: T0, toMs: T0 + hour, onCallPeople: 1 }).rate).toMatchObject({ assessment: "acceptable" });
+    expect(computeAlarmHealth({ records: five, fromMs: T0, toMs: T0 + hour, onCallPeople: 1 }).rate).toMatchObject({
+      assessment: "acceptable",
+    });
     const nine = Array.from({ length: 9 }, (_, i) => activation(`r${i}:CH-1`, T0 + i * 6 * MIN));
     const h = computeAlarmHealth({ records: nine, fromMs: T0, toMs: T0 + hour, onCallPeople: 1 });
     expect(h.rate.averagePer10MinPerPerson).toBeCloseTo(1.5, 10);
     expect(h.rate.assessment).toBe("manageable");
     // Two people on call share the same load.
-    expect(computeAlarmHealth({ records: nine, fromMs: T0, toMs: T0 + hour, onCallPeople: 2 }).rate.assessment).toBe("acceptable");
+    expect(computeAlarmHealth({ records: nine, fromMs: T0, toMs: T0 + hour, onCallPeople: 2 }).rate.assessment).toBe(
+      "acceptable",
+    );
   });
 });
 
@@ -40,7 +62,12 @@ describe("floods", () => {
   });
 
   it("10 in 10 minutes is not a flood", () => {
-    expect(findFloods(Array.from({ length: 10 }, (_, i) => T0 + i * 30_000), T0 + 3600_000)).toHaveLength(0);
+    expect(
+      findFloods(
+        Array.from({ length: 10 }, (_, i) => T0 + i * 30_000),
+        T0 + 3600_000,
+      ),
+    ).toHaveLength(0);
   });
 
   it("reports time in flood", () => {
@@ -66,20 +93,39 @@ describe("most frequent, chattering, stale, priority split", () => {
     const k = "head_pressure_near_trip:CH-1";
     const chatter = [activation(k, T0), cleared(k, T0 + 20_000), activation(k, T0 + 40_000)];
     const spread = [activation(k, T0), cleared(k, T0 + 40_000), activation(k, T0 + 80_000)];
-    expect(computeAlarmHealth({ records: chatter, fromMs: T0, toMs: T0 + 3600_000, onCallPeople: 1 }).chattering).toHaveLength(1);
-    expect(computeAlarmHealth({ records: spread, fromMs: T0, toMs: T0 + 3600_000, onCallPeople: 1 }).chattering).toHaveLength(0);
+    expect(
+      computeAlarmHealth({ records: chatter, fromMs: T0, toMs: T0 + 3600_000, onCallPeople: 1 }).chattering,
+    ).toHaveLength(1);
+    expect(
+      computeAlarmHealth({ records: spread, fromMs: T0, toMs: T0 + 3600_000, onCallPeople: 1 }).chattering,
+    ).toHaveLength(0);
   });
 
   it("stale: active more than 24 h (REFERENCES.md §7 [M])", () => {
-    const old = { ...newAlarm({ ruleId: "efficiency_drift", equipment: "CH-2", priority: 4 }), conditionActive: true, conditionSinceMs: T0 - 25 * 3600_000 };
-    const fresh = { ...newAlarm({ ruleId: "comm_lost", equipment: "CH-1", priority: 3 }), conditionActive: true, conditionSinceMs: T0 - 3600_000 };
-    const h = computeAlarmHealth({ records: [], alarms: [old, fresh], fromMs: T0 - 86400_000, toMs: T0, onCallPeople: 1 });
+    const old = {
+      ...newAlarm({ ruleId: "efficiency_drift", equipment: "CH-2", priority: 4 }),
+      conditionActive: true,
+      conditionSinceMs: T0 - 25 * 3600_000,
+    };
+    const fresh = {
+      ...newAlarm({ ruleId: "comm_lost", equipment: "CH-1", priority: 3 }),
+      conditionActive: true,
+      conditionSinceMs: T0 - 3600_000,
+    };
+    const h = computeAlarmHealth({
+      records: [],
+      alarms: [old, fresh],
+      fromMs: T0 - 86400_000,
+      toMs: T0,
+      onCallPeople: 1,
+    });
     expect(h.stale.map((s) => s.alarmKey)).toEqual(["efficiency_drift:CH-2"]);
     expect(h.stale[0].activeForS).toBe(25 * 3600);
   });
 
   it("priority split against ~80 / 15 / 5 % and < 1 % for the highest (ISA-18.2 [M])", () => {
-    const mk = (p: Priority, n: number) => Array.from({ length: n }, (_, i) => activation(`p${p}-${i}:CH-1`, T0 + i * 1000 + p * 100_000, p));
+    const mk = (p: Priority, n: number) =>
+      Array.from({ length: n }, (_, i) => activation(`p${p}-${i}:CH-1`, T0 + i * 1000 + p * 100_000, p));
     const good = [...mk(4, 80), ...mk(3, 15), ...mk(2, 5)];
     const h = computeAlarmHealth({ records: good, fromMs: T0, toMs: T0 + 86400_000, onCallPeople: 1 });
     expect(h.priorityDistribution.every((d) => d.withinGuidance)).toBe(true);

@@ -6,7 +6,10 @@ const tech: Actor = { kind: "person", id: "tech-7" };
 const T0 = Date.UTC(2025, 6, 1, 14, 0, 0);
 
 /** Runs events in order; returns the final alarm and every record. */
-function run(events: AlarmEvent[], start: Alarm = newAlarm({ ruleId: "crossover_risk", equipment: "CH-1", priority: 2 })) {
+function run(
+  events: AlarmEvent[],
+  start: Alarm = newAlarm({ ruleId: "crossover_risk", equipment: "CH-1", priority: 2 }),
+) {
   let a = start;
   const records: TransitionRecord[] = [];
   const rejected: string[] = [];
@@ -28,13 +31,22 @@ describe("core lifecycle", () => {
     const r = run([on(0), ack(10, "fan back in auto"), off(60)]);
     expect(r.path).toEqual(["normal>unacknowledged", "unacknowledged>acknowledged", "acknowledged>normal"]);
     expect(r.alarm.state).toBe("normal");
-    expect(r.records[1]).toMatchObject({ cause: "acknowledged", actor: tech, note: "fan back in auto", atMs: T0 + 10_000 });
+    expect(r.records[1]).toMatchObject({
+      cause: "acknowledged",
+      actor: tech,
+      note: "fan back in auto",
+      atMs: T0 + 10_000,
+    });
     expect(r.records[0]).toMatchObject({ actor: { kind: "system" }, atMs: T0, conditionActive: true });
   });
 
   it("unacknowledged → returned to normal unacknowledged → (ack) normal", () => {
     const r = run([on(0), off(30), ack(40)]);
-    expect(r.path).toEqual(["normal>unacknowledged", "unacknowledged>returned_unacknowledged", "returned_unacknowledged>normal"]);
+    expect(r.path).toEqual([
+      "normal>unacknowledged",
+      "unacknowledged>returned_unacknowledged",
+      "returned_unacknowledged>normal",
+    ]);
   });
 
   it("returned unacknowledged → unacknowledged when the condition comes back", () => {
@@ -57,7 +69,12 @@ describe("core lifecycle", () => {
   it("a latching alarm holds after the condition clears until acknowledged", () => {
     const start = newAlarm({ ruleId: "chiller_tripped", equipment: "CH-1", priority: 2, latching: true });
     const r = run([on(0), ack(5), off(30), ack(60)], start);
-    expect(r.path).toEqual(["normal>unacknowledged", "unacknowledged>acknowledged", "acknowledged>latched", "latched>normal"]);
+    expect(r.path).toEqual([
+      "normal>unacknowledged",
+      "unacknowledged>acknowledged",
+      "acknowledged>latched",
+      "latched>normal",
+    ]);
     const r2 = run([on(0), off(30)], start);
     expect(r2.alarm.state).toBe("latched");
   });
@@ -74,9 +91,19 @@ describe("shelving", () => {
 
   it("shelves with a reason and expiry, keeps tracking the condition, and re-annunciates on expiry if still active", () => {
     const r = run([on(0), shelve(10, 30), off(60), on(120), { type: "tick", atMs: T0 + 10_000 + 30 * 60_000 }]);
-    expect(r.path).toEqual(["normal>unacknowledged", "unacknowledged>shelved", "shelved>shelved", "shelved>shelved", "shelved>unacknowledged"]);
+    expect(r.path).toEqual([
+      "normal>unacknowledged",
+      "unacknowledged>shelved",
+      "shelved>shelved",
+      "shelved>shelved",
+      "shelved>unacknowledged",
+    ]);
     const expiry = r.records.at(-1)!;
-    expect(expiry).toMatchObject({ cause: "shelf_expired", actor: { kind: "system" }, atMs: T0 + 10_000 + 30 * 60_000 });
+    expect(expiry).toMatchObject({
+      cause: "shelf_expired",
+      actor: { kind: "system" },
+      atMs: T0 + 10_000 + 30 * 60_000,
+    });
     expect(r.records[1]).toMatchObject({ cause: "shelved", note: "tower fan under repair", actor: tech });
   });
 
@@ -88,7 +115,12 @@ describe("shelving", () => {
 
   it("expires a shelf first on any later event, at the expiry time", () => {
     const r = run([on(0), shelve(10, 1), off(600)]);
-    expect(r.records.map((x) => x.cause)).toEqual(["condition_active", "shelved", "shelf_expired", "condition_cleared"]);
+    expect(r.records.map((x) => x.cause)).toEqual([
+      "condition_active",
+      "shelved",
+      "shelf_expired",
+      "condition_cleared",
+    ]);
     expect(r.records[2].atMs).toBe(T0 + 70_000);
     expect(r.alarm.state).toBe("returned_unacknowledged");
   });
@@ -117,24 +149,32 @@ describe("suppressed by design", () => {
   it("hides the alarm while suppressed and re-evaluates when lifted", () => {
     const start = newAlarm({ ruleId: "low_evaporator_pressure", equipment: "CH-1", priority: 2 });
     const r = run(
-      [
-        { type: "suppress", atMs: T0, reason: "chiller off" },
-        on(10),
-        { type: "unsuppress", atMs: T0 + 60_000 },
-      ],
+      [{ type: "suppress", atMs: T0, reason: "chiller off" }, on(10), { type: "unsuppress", atMs: T0 + 60_000 }],
       start,
     );
-    expect(r.path).toEqual(["normal>suppressed_by_design", "suppressed_by_design>suppressed_by_design", "suppressed_by_design>unacknowledged"]);
+    expect(r.path).toEqual([
+      "normal>suppressed_by_design",
+      "suppressed_by_design>suppressed_by_design",
+      "suppressed_by_design>unacknowledged",
+    ]);
     expect(r.records[0]).toMatchObject({ cause: "suppressed", note: "chiller off" });
   });
 
   it("returns to normal on unsuppress when the condition is clear", () => {
-    const r = run([on(0), { type: "suppress", atMs: T0 + 1000, reason: "chiller off" }, off(20), { type: "unsuppress", atMs: T0 + 30_000 }]);
+    const r = run([
+      on(0),
+      { type: "suppress", atMs: T0 + 1000, reason: "chiller off" },
+      off(20),
+      { type: "unsuppress", atMs: T0 + 30_000 },
+    ]);
     expect(r.alarm.state).toBe("normal");
   });
 
   it("a repeated suppress with the same reason records nothing", () => {
-    const r = run([{ type: "suppress", atMs: T0, reason: "chiller off" }, { type: "suppress", atMs: T0 + 1, reason: "chiller off" }]);
+    const r = run([
+      { type: "suppress", atMs: T0, reason: "chiller off" },
+      { type: "suppress", atMs: T0 + 1, reason: "chiller off" },
+    ]);
     expect(r.records).toHaveLength(1);
   });
 });
@@ -163,12 +203,18 @@ describe("out of service", () => {
   });
 
   it("returns to unacknowledged if the condition is active on return", () => {
-    const r = run([{ type: "remove_from_service", atMs: T0, actor: tech, reason: "calibration" }, on(10), { type: "return_to_service", atMs: T0 + 20_000, actor: tech }]);
+    const r = run([
+      { type: "remove_from_service", atMs: T0, actor: tech, reason: "calibration" },
+      on(10),
+      { type: "return_to_service", atMs: T0 + 20_000, actor: tech },
+    ]);
     expect(r.alarm.state).toBe("unacknowledged");
   });
 
   it("needs a reason", () => {
-    expect(run([{ type: "remove_from_service", atMs: T0, actor: tech, reason: "" }]).rejected).toEqual(["a reason is required"]);
+    expect(run([{ type: "remove_from_service", atMs: T0, actor: tech, reason: "" }]).rejected).toEqual([
+      "a reason is required",
+    ]);
   });
 });
 

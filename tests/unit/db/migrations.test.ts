@@ -15,14 +15,18 @@ function freshDb(): Db {
   return db;
 }
 
-const count = (d: Db, table: string) => (d.$client.prepare(`select count(*) as n from ${table}`).get() as { n: number }).n;
+const count = (d: Db, table: string) =>
+  (d.$client.prepare(`select count(*) as n from ${table}`).get() as { n: number }).n;
 
 describe("migrations", () => {
   it("apply to a fresh database and create every table", () => {
     const d = freshDb();
     migrateDb(d);
-    const tables = (d.$client.prepare("select name from sqlite_master where type='table'").all() as { name: string }[]).map((t) => t.name);
-    for (const t of ["organizations", "users", "sites", "equipment", "points", "api_tokens"]) expect(tables).toContain(t);
+    const tables = (
+      d.$client.prepare("select name from sqlite_master where type='table'").all() as { name: string }[]
+    ).map((t) => t.name);
+    for (const t of ["organizations", "users", "sites", "equipment", "points", "api_tokens"])
+      expect(tables).toContain(t);
   });
 
   it("run twice without error (already-applied migrations are skipped)", () => {
@@ -36,9 +40,13 @@ describe("migrations", () => {
     expect(d.$client.pragma("journal_mode", { simple: true })).toBe("wal");
     expect(d.$client.pragma("foreign_keys", { simple: true })).toBe(1);
     migrateDb(d);
-    expect(() => d.$client.prepare("insert into sites (id, name, organization_id, kind, address, time_zone) values ('x','x','no-such-org','x','x','UTC')").run()).toThrow(
-      /FOREIGN KEY/,
-    );
+    expect(() =>
+      d.$client
+        .prepare(
+          "insert into sites (id, name, organization_id, kind, address, time_zone) values ('x','x','no-such-org','x','x','UTC')",
+        )
+        .run(),
+    ).toThrow(/FOREIGN KEY/);
   });
 });
 

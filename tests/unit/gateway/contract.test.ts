@@ -92,16 +92,45 @@ describe("fastReading parity with readingSchema", () => {
   it("agrees with the schema on random combinations of good and bad parts", () => {
     // A small deterministic generator (no dependency), so a failure can be replayed.
     let state = 20261201;
-    const rnd = () => ((state = (state * 1103515245 + 12345) % 2 ** 31) / 2 ** 31);
+    const rnd = () => (state = (state * 1103515245 + 12345) % 2 ** 31) / 2 ** 31;
     const pick = <T>(xs: readonly T[]) => xs[Math.floor(rnd() * xs.length)];
     const points = ["CH1-KW", "", "P".repeat(MAX_POINT_NAME), "P".repeat(MAX_POINT_NAME + 1), 5, null, undefined];
-    const values = [1, -0, 1.5e308, Number.NaN, true, "auto", "", "x".repeat(MAX_TEXT_VALUE + 1), null, {}, [], undefined];
-    const times = [ts, "2026-12-01T14:02:59+01:00", "2026-13-01T00:00:00Z", "2026-12-01 14:02:59Z", "2026-02-29T00:00:00.000Z", "2024-02-29T23:59:59.999Z", "", 0, null, undefined];
+    const values = [
+      1,
+      -0,
+      1.5e308,
+      Number.NaN,
+      true,
+      "auto",
+      "",
+      "x".repeat(MAX_TEXT_VALUE + 1),
+      null,
+      {},
+      [],
+      undefined,
+    ];
+    const times = [
+      ts,
+      "2026-12-01T14:02:59+01:00",
+      "2026-13-01T00:00:00Z",
+      "2026-12-01 14:02:59Z",
+      "2026-02-29T00:00:00.000Z",
+      "2024-02-29T23:59:59.999Z",
+      "",
+      0,
+      null,
+      undefined,
+    ];
     const qualities = ["good", "uncertain", "bad", "Good", "", 1, null, undefined];
     const extras = [undefined, undefined, undefined, ["unit", "kW"], ["seq", 1]] as const;
     for (let i = 0; i < 5000; i++) {
       const raw: Record<string, unknown> = {};
-      for (const [key, choices] of [["point", points], ["value", values], ["ts", times], ["quality", qualities]] as const) {
+      for (const [key, choices] of [
+        ["point", points],
+        ["value", values],
+        ["ts", times],
+        ["quality", qualities],
+      ] as const) {
         const v = pick(choices as readonly unknown[]);
         // Absent, or present (sometimes explicitly undefined, which JSON never produces).
         if (v !== undefined || rnd() < 0.2) raw[key] = v;

@@ -57,16 +57,28 @@ function insertRaw(db: Db, rows: Array<[pointId: number, ts: number]>) {
 
 /** The same buckets in both rollup tables (the pruner treats minutes and hours alike). */
 function insertRollups(db: Db, rows: Array<[pointId: number, bucket: number]>) {
-  const st = ["readings_1m", "readings_1h"].map((t) => db.$client.prepare(`insert into ${t} (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, 1, 2, 3, 2, 2, ?)`));
+  const st = ["readings_1m", "readings_1h"].map((t) =>
+    db.$client.prepare(
+      `insert into ${t} (point_id, bucket, min, max, sum, count, last, last_ts) values (?, ?, 1, 2, 3, 2, 2, ?)`,
+    ),
+  );
   db.$client.transaction(() => {
     for (const [p, b] of rows) for (const s of st) s.run(p, b, b + 30_000);
   })();
 }
 
-const rawTs = (db: Db, pointId: number) => (db.$client.prepare("select ts from readings where point_id = ? order by ts").all(pointId) as Array<{ ts: number }>).map((r) => r.ts);
+const rawTs = (db: Db, pointId: number) =>
+  (
+    db.$client.prepare("select ts from readings where point_id = ? order by ts").all(pointId) as Array<{ ts: number }>
+  ).map((r) => r.ts);
 const rollupBuckets = (db: Db, pointId: number) =>
-  (db.$client.prepare("select bucket from readings_1m where point_id = ? order by bucket").all(pointId) as Array<{ bucket: number }>).map((r) => r.bucket);
-const count = (db: Db, table: string) => (db.$client.prepare(`select count(*) as n from ${table}`).get() as { n: number }).n;
+  (
+    db.$client.prepare("select bucket from readings_1m where point_id = ? order by bucket").all(pointId) as Array<{
+      bucket: number;
+    }>
+  ).map((r) => r.bucket);
+const count = (db: Db, table: string) =>
+  (db.$client.prepare(`select count(*) as n from ${table}`).get() as { n: number }).n;
 
 /** Gaps between event-loop turns while `work` runs: setImmediate re-arms itself each turn. */
 async function loopGaps<T>(work: () => Promise<T>): Promise<{ result: T; gaps: number[]; turns: number }> {
@@ -101,13 +113,21 @@ describe("retention pruner", () => {
     const rollOld = [rollupBefore - 365 * DAY_MS, rollupBefore - MINUTE_MS];
     const rollKept = [rollupBefore, rollupBefore + MINUTE_MS, NOW - 30 * DAY_MS, NOW - MINUTE_MS];
     for (const p of [1, 2, 207]) {
-      insertRaw(db, [...rawOld, ...rawKept].map((ts) => [p, ts]));
-      insertRollups(db, [...rollOld, ...rollKept].map((b) => [p, b]));
+      insertRaw(
+        db,
+        [...rawOld, ...rawKept].map((ts) => [p, ts]),
+      );
+      insertRollups(
+        db,
+        [...rollOld, ...rollKept].map((b) => [p, b]),
+      );
     }
     // Point 3 went quiet 40 days ago: its old readings go, its latest value stays (the screen
     // shows it as stale, not as missing).
     insertRaw(db, [[3, NOW - 40 * DAY_MS]]);
-    const st = db.$client.prepare("insert into latest_values (point_id, ts, value, quality, received_at) values (?, ?, ?, 0, ?)");
+    const st = db.$client.prepare(
+      "insert into latest_values (point_id, ts, value, quality, received_at) values (?, ?, ?, 0, ?)",
+    );
     st.run(1, NOW, 5, NOW);
     st.run(3, NOW - 40 * DAY_MS, 7, NOW - 40 * DAY_MS);
     const latestBefore = db.$client.prepare("select * from latest_values order by point_id").all();
@@ -134,7 +154,16 @@ describe("retention pruner", () => {
   it("walks the rollup tables once a day, raw readings at every pass", async () => {
     const db = setup();
     const t = { now: NOW };
-    const pruner = track(db, startPruner({ db, clock: { now: () => t.now }, rawRetentionMs: 14 * DAY_MS, rollupRetentionMs: 730 * DAY_MS, firstRunMs: 3_600_000 }));
+    const pruner = track(
+      db,
+      startPruner({
+        db,
+        clock: { now: () => t.now },
+        rawRetentionMs: 14 * DAY_MS,
+        rollupRetentionMs: 730 * DAY_MS,
+        firstRunMs: 3_600_000,
+      }),
+    );
     expect(await pruner.runOnce()).toEqual({ readings: 0, rollups: 0 });
     // An hour later a rollup and a raw reading are past retention: only the reading goes.
     t.now = NOW + 3_600_000;
@@ -160,7 +189,18 @@ describe("retention pruner", () => {
       [5, NOW - 10 * DAY_MS],
     ]);
     const lines: string[] = [];
-    track(db, startPruner({ db, clock, rawRetentionMs: 3 * DAY_MS, rollupRetentionMs: 30 * DAY_MS, firstRunMs: 10, everyMs: 60_000, log: (l) => lines.push(l) }));
+    track(
+      db,
+      startPruner({
+        db,
+        clock,
+        rawRetentionMs: 3 * DAY_MS,
+        rollupRetentionMs: 30 * DAY_MS,
+        firstRunMs: 10,
+        everyMs: 60_000,
+        log: (l) => lines.push(l),
+      }),
+    );
     const until = performance.now() + 5000;
     // The pass logs once it has walked every point.
     while (lines.length === 0 && performance.now() < until) await new Promise((r) => setTimeout(r, 10));
@@ -186,7 +226,16 @@ describe("retention pruner", () => {
     insertRaw(db, recent);
     expect(count(db, "readings")).toBe(205_000);
 
-    db.insert(gateways).values({ id: "gw-prune", siteId: "harborview-mob", name: "prune", protocol: "json", username: "gw-prune", passwordHash: "-" }).run();
+    db.insert(gateways)
+      .values({
+        id: "gw-prune",
+        siteId: "harborview-mob",
+        name: "prune",
+        protocol: "json",
+        username: "gw-prune",
+        passwordHash: "-",
+      })
+      .run();
     // Inline: the writer shares its thread with the pruner, as the store worker does in the server.
     const writer = createBatchWriter({ db, flushMs: 5, checkpointMs: 0, thread: "inline" });
     const pruner = track(db, startPruner({ db, clock, rawRetentionMs: 14 * DAY_MS, rollupRetentionMs: 730 * DAY_MS }));
@@ -197,7 +246,12 @@ describe("retention pruner", () => {
     const ingest = (async () => {
       for (let i = 0; writing; i++) {
         const t0 = performance.now();
-        await writer.submit({ gatewayId: "gw-prune", messages: 1, receivedAtMs: NOW, rows: [{ pointId: 100, siteId: "harborview-mob", ts: NOW - i, value: i, text: null, quality: 0, live: i }] });
+        await writer.submit({
+          gatewayId: "gw-prune",
+          messages: 1,
+          receivedAtMs: NOW,
+          rows: [{ pointId: 100, siteId: "harborview-mob", ts: NOW - i, value: i, text: null, quality: 0, live: i }],
+        });
         commitMs.push(performance.now() - t0);
         await new Promise((r) => setTimeout(r, 5));
       }
@@ -211,7 +265,13 @@ describe("retention pruner", () => {
 
     expect(result).toEqual({ readings: 200_000, rollups: 0 });
     expect(count(db, "readings")).toBe(100 * 50 + commitMs.length);
-    for (const p of [1, 25, 50]) expect(rawTs(db, p)).toEqual(recent.filter(([q]) => q === p).map(([, ts]) => ts).sort((a, b) => a - b));
+    for (const p of [1, 25, 50])
+      expect(rawTs(db, p)).toEqual(
+        recent
+          .filter(([q]) => q === p)
+          .map(([, ts]) => ts)
+          .sort((a, b) => a - b),
+      );
     // Slices are ~5 ms of work (pruner.ts SLICE_MS) plus one 2,000-row delete: measured p90
     // 6.5–7.8 ms, longest 8.6–18.2 ms in 4 runs of the whole unit suite (the longest includes a
     // writer flush landing in the same timers phase). Beside other test files on 2 cores one stretch can be descheduled, hence a

@@ -5,9 +5,16 @@ import { fitTrend, timeToCrossover, type TimedValue } from "@/lib/plant";
 const T0 = Date.UTC(2025, 6, 1, 14, 0, 0);
 
 /** margin(t) = start + rate·t, sampled every stepS for durationS. */
-function linear(startK: number, rateKPerMin: number, durationS: number, stepS = 10, noise: (i: number) => number = () => 0): TimedValue[] {
+function linear(
+  startK: number,
+  rateKPerMin: number,
+  durationS: number,
+  stepS = 10,
+  noise: (i: number) => number = () => 0,
+): TimedValue[] {
   const out: TimedValue[] = [];
-  for (let i = 0; i * stepS <= durationS; i++) out.push({ tsMs: T0 + i * stepS * 1000, value: startK + (rateKPerMin / 60) * i * stepS + noise(i) });
+  for (let i = 0; i * stepS <= durationS; i++)
+    out.push({ tsMs: T0 + i * stepS * 1000, value: startK + (rateKPerMin / 60) * i * stepS + noise(i) });
   return out;
 }
 
@@ -46,7 +53,10 @@ describe("time to crossover", () => {
   });
 
   it("a steady margin with sensor noise gives no projection", () => {
-    const r = timeToCrossover(linear(8, 0, 600, 10, (i) => (i % 2 ? 0.05 : -0.05)), T0 + 600_000);
+    const r = timeToCrossover(
+      linear(8, 0, 600, 10, (i) => (i % 2 ? 0.05 : -0.05)),
+      T0 + 600_000,
+    );
     expect(r.status).toBe("not_closing");
   });
 

@@ -1,17 +1,35 @@
 import { describe, expect, it } from "vitest";
-import { computeSiteSnapshot, latestFromReadings, restartLockoutLeft, waterLoadKw, type Reading, type Site } from "@/lib/plant";
+import {
+  computeSiteSnapshot,
+  latestFromReadings,
+  restartLockoutLeft,
+  waterLoadKw,
+  type Reading,
+  type Site,
+} from "@/lib/plant";
 
 const T0 = Date.UTC(2025, 6, 1, 14, 0, 0);
 
 describe("restart lockout left", () => {
   it("prefers the controller's countdown and counts it down since it was read", () => {
-    const r = restartLockoutLeft({ nowMs: T0 + 30_000, inhibitLeftS: { value: 600, tsMs: T0 }, lastStopMs: T0, stopToStartS: 60 });
+    const r = restartLockoutLeft({
+      nowMs: T0 + 30_000,
+      inhibitLeftS: { value: 600, tsMs: T0 },
+      lastStopMs: T0,
+      stopToStartS: 60,
+    });
     expect(r).toEqual({ lockoutLeftS: 570, source: "controller" });
   });
 
   it("else takes the later of start-to-start and stop-to-start from the last start and stop", () => {
     // Started at T0, stopped 5 min later: start-to-start 20 min ends at T0+20 min, stop-to-start 5 min at T0+10 min.
-    const r = restartLockoutLeft({ nowMs: T0 + 6 * 60_000, lastStartMs: T0, lastStopMs: T0 + 5 * 60_000, startToStartS: 1200, stopToStartS: 300 });
+    const r = restartLockoutLeft({
+      nowMs: T0 + 6 * 60_000,
+      lastStartMs: T0,
+      lastStopMs: T0 + 5 * 60_000,
+      startToStartS: 1200,
+      stopToStartS: 300,
+    });
     expect(r.source).toBe("timers");
     expect(r.lockoutLeftS).toBeCloseTo(14 * 60, 6);
   });
@@ -29,7 +47,12 @@ describe("site snapshot", () => {
     { tag: "CHWP-1", kind: "pump", serves: "CH-1" },
     { tag: "WS-1", kind: "weather_station" },
   ];
-  const r = (quantity: Reading["quantity"], value: Reading["value"], equipment = "CH-1", tsMs = T0): Reading => ({ tsMs, equipment, quantity, value });
+  const r = (quantity: Reading["quantity"], value: Reading["value"], equipment = "CH-1", tsMs = T0): Reading => ({
+    tsMs,
+    equipment,
+    quantity,
+    value,
+  });
   const base: Reading[] = [
     r("run_status", true),
     r("chilled_water_entering_temp", 12.5),
@@ -66,7 +89,8 @@ describe("site snapshot", () => {
   });
 
   it("gives no load from design flow when the pump is not proven", () => {
-    const c = computeSiteSnapshot(site, latestFromReadings([...base, r("pump_status", false, "CHWP-1")]), T0).chillers[0];
+    const c = computeSiteSnapshot(site, latestFromReadings([...base, r("pump_status", false, "CHWP-1")]), T0)
+      .chillers[0];
     expect(c.loadKw).toBeNull();
     expect(c.kwPerTon).toBeNull();
   });
@@ -78,12 +102,19 @@ describe("site snapshot", () => {
   });
 
   it("uses the tower's leaving water for the margin when the chiller has no condenser-entering sensor", () => {
-    const c = computeSiteSnapshot(site, latestFromReadings(base.filter((x) => !(x.equipment === "CH-1" && x.quantity === "condenser_water_entering_temp"))), T0).chillers[0];
+    const c = computeSiteSnapshot(
+      site,
+      latestFromReadings(
+        base.filter((x) => !(x.equipment === "CH-1" && x.quantity === "condenser_water_entering_temp")),
+      ),
+      T0,
+    ).chillers[0];
     expect(c.crossoverMarginK).toBeCloseTo(16.9, 6);
   });
 
   it("reports the pressure margin only while running", () => {
-    const c = computeSiteSnapshot(site, latestFromReadings([...base, r("run_status", false, "CH-1", T0 + 1)]), T0 + 1).chillers[0];
+    const c = computeSiteSnapshot(site, latestFromReadings([...base, r("run_status", false, "CH-1", T0 + 1)]), T0 + 1)
+      .chillers[0];
     expect(c.crossoverPressureMarginKPa).toBeNull();
     expect(c.crossoverMarginK).not.toBeNull();
   });

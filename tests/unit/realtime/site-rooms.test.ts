@@ -49,12 +49,19 @@ function fakeSocket() {
 }
 
 const status = (siteId: string): SiteStatus => ({ siteId, data: "live", worst: null, unacknowledged: 0 });
-const values = (siteId: string): SiteValues => ({ siteId, values: [{ pointId: 1, tsMs: 1, value: 1, quality: "good" }] });
+const values = (siteId: string): SiteValues => ({
+  siteId,
+  values: [{ pointId: 1, tsMs: 1, value: 1, quality: "good" }],
+});
 
 function panel() {
   const seen = { status: [] as string[], values: [] as string[], reconnects: 0 };
   const handlers: { current: SiteEventHandlers } = {
-    current: { onStatus: (s) => seen.status.push(s.siteId), onValues: (v) => seen.values.push(v.siteId), onReconnect: () => seen.reconnects++ },
+    current: {
+      onStatus: (s) => seen.status.push(s.siteId),
+      onValues: (v) => seen.values.push(v.siteId),
+      onReconnect: () => seen.reconnects++,
+    },
   };
   return { handlers, seen };
 }

@@ -11,21 +11,40 @@ function noise(i: number): number {
 }
 
 describe("no chatter at a limit", () => {
-  const loopsAtZero = (tS: number): Partial<Frame> => ({ running: false, chwInC: 20 + 0.4 * noise(tS / 10), chwOutC: 20, cwInC: 20, cwOutC: 20 });
+  const loopsAtZero = (tS: number): Partial<Frame> => ({
+    running: false,
+    chwInC: 20 + 0.4 * noise(tS / 10),
+    chwOutC: 20,
+    cwInC: 20,
+    cwOutC: 20,
+  });
 
   it("loops crossed: margin hovering at 0 ± 0.4 K for an hour", () => {
     const r = runFrames({ durationS: 3600, frame: loopsAtZero });
     expect(r.activations("loops_crossed:CH-1")).toBeLessThanOrEqual(1);
-    const bare = runFrames({ durationS: 3600, frame: loopsAtZero, settings: { loopsCrossed: { deadBandK: 0, onDelayS: 0, offDelayS: 0 } } });
+    const bare = runFrames({
+      durationS: 3600,
+      frame: loopsAtZero,
+      settings: { loopsCrossed: { deadBandK: 0, onDelayS: 0, offDelayS: 0 } },
+    });
     expect(bare.activations("loops_crossed:CH-1")).toBeGreaterThan(5);
   });
 
-  const fanAtLimit = (tS: number): Partial<Frame> => ({ towerMode: "off", fanRunning: false, fanSpeedPct: 0, cwInC: 29.4 + 0.5 + 0.3 * noise(tS / 10) });
+  const fanAtLimit = (tS: number): Partial<Frame> => ({
+    towerMode: "off",
+    fanRunning: false,
+    fanSpeedPct: 0,
+    cwInC: 29.4 + 0.5 + 0.3 * noise(tS / 10),
+  });
 
   it("tower fan: condenser water hovering at setpoint + 0.5 K ± 0.3 K with the drive in off", () => {
     const r = runFrames({ durationS: 3600, frame: fanAtLimit });
     expect(r.activations("tower_fan_not_running:CT-1")).toBeLessThanOrEqual(1);
-    const bare = runFrames({ durationS: 3600, frame: fanAtLimit, settings: { towerFan: { deadBandK: 0, onDelayS: 0, offDelayS: 0 } } });
+    const bare = runFrames({
+      durationS: 3600,
+      frame: fanAtLimit,
+      settings: { towerFan: { deadBandK: 0, onDelayS: 0, offDelayS: 0 } },
+    });
     expect(bare.activations("tower_fan_not_running:CT-1")).toBeGreaterThan(5);
   });
 
@@ -34,7 +53,11 @@ describe("no chatter at a limit", () => {
   it("low evaporator pressure: saturated temperature hovering at the 1.1 °C limit ± 0.3 K", () => {
     const r = runFrames({ durationS: 3600, frame: lowEvapAtLimit });
     expect(r.activations("low_evaporator_pressure:CH-1")).toBeLessThanOrEqual(1);
-    const bare = runFrames({ durationS: 3600, frame: lowEvapAtLimit, settings: { lowEvaporatorPressure: { deadBandK: 0, onDelayS: 0, offDelayS: 0 } } });
+    const bare = runFrames({
+      durationS: 3600,
+      frame: lowEvapAtLimit,
+      settings: { lowEvaporatorPressure: { deadBandK: 0, onDelayS: 0, offDelayS: 0 } },
+    });
     expect(bare.activations("low_evaporator_pressure:CH-1")).toBeGreaterThan(5);
   });
 });

@@ -27,7 +27,9 @@ function model(retentionS: number) {
       return undefined;
     },
     numbers(fromMs: number, toMs: number) {
-      return list.filter((s) => s.tsMs >= fromMs && s.tsMs <= toMs && typeof s.value === "number").map((s) => ({ tsMs: s.tsMs, value: s.value as number }));
+      return list
+        .filter((s) => s.tsMs >= fromMs && s.tsMs <= toMs && typeof s.value === "number")
+        .map((s) => ({ tsMs: s.tsMs, value: s.value as number }));
     },
   };
 }
@@ -68,7 +70,9 @@ describe("rule history in typed arrays", () => {
         expect(h.latestAt("CH-1", "chilled_water_leaving_temp", at)).toEqual(m.num.latestAt(at));
         expect(h.latestAt("CH-1", "run_status", at)).toEqual(m.bool.latestAt(at));
         expect(h.latestAt("CT-1", "fan_drive_mode", at)).toEqual(m.mixed.latestAt(at));
-        expect(h.numbers("CH-1", "chilled_water_leaving_temp", at - 120_000, at)).toEqual(m.num.numbers(at - 120_000, at));
+        expect(h.numbers("CH-1", "chilled_water_leaving_temp", at - 120_000, at)).toEqual(
+          m.num.numbers(at - 120_000, at),
+        );
         expect(h.numbers("CT-1", "fan_drive_mode", at - 120_000, at)).toEqual(m.mixed.numbers(at - 120_000, at));
       }
     }
@@ -96,13 +100,27 @@ describe("crossover margin series", () => {
     let t = 1_700_000_000_000;
     for (let i = 0; i < 600; i++) {
       t += 1000 * (1 + Math.floor(random() * 8));
-      if (random() < 0.7) h.add({ tsMs: t, equipment: "CH-1", quantity: "chilled_water_entering_temp", value: 10 + random() * 10 });
-      if (random() < 0.7) h.add({ tsMs: t + (random() < 0.3 ? 0 : 500), equipment: "CH-1", quantity: "condenser_water_entering_temp", value: 12 + random() * 20 });
+      if (random() < 0.7)
+        h.add({ tsMs: t, equipment: "CH-1", quantity: "chilled_water_entering_temp", value: 10 + random() * 10 });
+      if (random() < 0.7)
+        h.add({
+          tsMs: t + (random() < 0.3 ? 0 : 500),
+          equipment: "CH-1",
+          quantity: "condenser_water_entering_temp",
+          value: 12 + random() * 20,
+        });
     }
     const ctx = { site, history: h, nowMs: t - 30_000 } as unknown as RuleContext;
     const windowS = 900;
     const fromMs = ctx.nowMs - windowS * 1000;
-    const times = [...new Set([...h.numbers("CH-1", "chilled_water_entering_temp", fromMs, ctx.nowMs), ...h.numbers("CH-1", "condenser_water_entering_temp", fromMs, ctx.nowMs)].map((s) => s.tsMs))].sort((x, y) => x - y);
+    const times = [
+      ...new Set(
+        [
+          ...h.numbers("CH-1", "chilled_water_entering_temp", fromMs, ctx.nowMs),
+          ...h.numbers("CH-1", "condenser_water_entering_temp", fromMs, ctx.nowMs),
+        ].map((s) => s.tsMs),
+      ),
+    ].sort((x, y) => x - y);
     const expected = times.flatMap((at) => {
       const cw = h.latestAt("CH-1", "condenser_water_entering_temp", at);
       const chw = h.latestAt("CH-1", "chilled_water_entering_temp", at);

@@ -4,14 +4,16 @@ import { describe, expect, it } from "vitest";
 import { runFrames, secondsOf, type Frame } from "./synthetic";
 
 /** Chiller tripped and off while the building still calls for cooling; margin closes 0.3 K/min from 11.8 K → crosses at ≈ 39.3 min. */
-const closingOff = (inhibitLeftAt: (tS: number) => number | null = () => null) => (tS: number): Partial<Frame> => ({
-  running: false,
-  chwInC: 12.2 + (0.15 / 60) * tS,
-  chwOutC: 12.2 + (0.15 / 60) * tS,
-  cwInC: 24 - (0.15 / 60) * tS,
-  cwOutC: 24 - (0.15 / 60) * tS,
-  inhibitLeftS: inhibitLeftAt(tS),
-});
+const closingOff =
+  (inhibitLeftAt: (tS: number) => number | null = () => null) =>
+  (tS: number): Partial<Frame> => ({
+    running: false,
+    chwInC: 12.2 + (0.15 / 60) * tS,
+    chwOutC: 12.2 + (0.15 / 60) * tS,
+    cwInC: 24 - (0.15 / 60) * tS,
+    cwOutC: 24 - (0.15 / 60) * tS,
+    inhibitLeftS: inhibitLeftAt(tS),
+  });
 const crossingS = 11.8 / (0.3 / 60);
 
 describe("crossover risk (rule 1)", () => {
@@ -46,12 +48,20 @@ describe("crossover risk (rule 1)", () => {
     // Under 3 K from 1.5 h; the short fit alone sees 0.017 K/min as noise.
     expect(first!).toBeGreaterThanOrEqual(1.5 * 3600);
     expect(first!).toBeLessThanOrEqual(1.5 * 3600 + 120);
-    const short = runFrames({ durationS: 3 * 3600, stepS: 20, frame: (tS) => ({ cwInC: 12.2 + 4.5 - tS / 3600 }), settings: { crossoverRisk: { slowFitWindowS: 600 } } });
+    const short = runFrames({
+      durationS: 3 * 3600,
+      stepS: 20,
+      frame: (tS) => ({ cwInC: 12.2 + 4.5 - tS / 3600 }),
+      settings: { crossoverRisk: { slowFitWindowS: 600 } },
+    });
     expect(short.firstActivation("crossover_risk:CH-1")).toBeNull();
   });
 
   it("stays quiet on an opening margin", () => {
-    const r = runFrames({ durationS: 3000, frame: (tS) => ({ ...closingOff()(tS), chwInC: 12.2 - (0.1 / 60) * tS, cwInC: 20 }) });
+    const r = runFrames({
+      durationS: 3000,
+      frame: (tS) => ({ ...closingOff()(tS), chwInC: 12.2 - (0.1 / 60) * tS, cwInC: 20 }),
+    });
     expect(r.firstActivation("crossover_risk:CH-1")).toBeNull();
   });
 
@@ -87,7 +97,15 @@ describe("restart race (rule 2)", () => {
   });
 
   it("a latched alarm holds the restart until someone resets it: the race is on as soon as the margin closes", () => {
-    const r = runFrames({ durationS: 600, frame: (tS) => ({ ...closingOff(() => 0)(tS), chillerAlarm: true, faultText: "High discharge pressure trip at 160.1 psig" }), keep: true });
+    const r = runFrames({
+      durationS: 600,
+      frame: (tS) => ({
+        ...closingOff(() => 0)(tS),
+        chillerAlarm: true,
+        faultText: "High discharge pressure trip at 160.1 psig",
+      }),
+      keep: true,
+    });
     const first = secondsOf(r.firstActivation("restart_race:CH-1"));
     expect(first).not.toBeNull();
     expect(first!).toBeLessThanOrEqual(90);
@@ -104,10 +122,15 @@ describe("restart race (rule 2)", () => {
     // Stopped at t = 60 s after running; default stop-to-start 300 s, start-to-start 1200 s from… no start seen → stop-to-start only.
     const r = runFrames({
       durationS: 600,
-      frame: (tS) => (tS < 60 ? { inhibitLeftS: null } : { ...closingOff(() => null)(tS), chwInC: 12.2 + (1 / 60) * tS, cwInC: 20 - (1 / 60) * tS }),
+      frame: (tS) =>
+        tS < 60
+          ? { inhibitLeftS: null }
+          : { ...closingOff(() => null)(tS), chwInC: 12.2 + (1 / 60) * tS, cwInC: 20 - (1 / 60) * tS },
       keep: true,
     });
-    const c = r.evaluations.find((x) => x.atMs === r.evaluations[0].atMs + 120_000)!.conditions.find((x) => x.ruleId === "restart_race")!;
+    const c = r.evaluations
+      .find((x) => x.atMs === r.evaluations[0].atMs + 120_000)!
+      .conditions.find((x) => x.ruleId === "restart_race")!;
     expect(c.numbers.lockoutLeftS).toBeCloseTo(240, 0);
   });
 });
@@ -129,7 +152,11 @@ describe("loops crossed (rule 3)", () => {
 describe("tower fan not running when needed (rule 4)", () => {
   const rising = (tS: number) => 29.4 + (0.2 / 60) * tS;
   it("drive in off while condenser water rises above setpoint", () => {
-    const r = runFrames({ durationS: 600, frame: (tS) => ({ towerMode: "off", fanRunning: false, fanSpeedPct: 0, cwInC: rising(tS) }), keep: true });
+    const r = runFrames({
+      durationS: 600,
+      frame: (tS) => ({ towerMode: "off", fanRunning: false, fanSpeedPct: 0, cwInC: rising(tS) }),
+      keep: true,
+    });
     const first = secondsOf(r.firstActivation("tower_fan_not_running:CT-1"))!;
     // Above setpoint + 0.5 K from t = 150 s, then the 60 s on-delay.
     expect(first).toBeGreaterThanOrEqual(210);
@@ -140,8 +167,18 @@ describe("tower fan not running when needed (rule 4)", () => {
   });
 
   it("commanded but not running, and a faulted drive", () => {
-    expect(runFrames({ durationS: 600, frame: (tS) => ({ fanSpeedPct: 80, fanRunning: false, cwInC: rising(tS) }) }).firstActivation("tower_fan_not_running:CT-1")).not.toBeNull();
-    expect(runFrames({ durationS: 600, frame: (tS) => ({ towerFault: true, fanRunning: false, cwInC: rising(tS) }) }).firstActivation("tower_fan_not_running:CT-1")).not.toBeNull();
+    expect(
+      runFrames({
+        durationS: 600,
+        frame: (tS) => ({ fanSpeedPct: 80, fanRunning: false, cwInC: rising(tS) }),
+      }).firstActivation("tower_fan_not_running:CT-1"),
+    ).not.toBeNull();
+    expect(
+      runFrames({
+        durationS: 600,
+        frame: (tS) => ({ towerFault: true, fanRunning: false, cwInC: rising(tS) }),
+      }).firstActivation("tower_fan_not_running:CT-1"),
+    ).not.toBeNull();
   });
 
   it("quiet when the fan is off because the water is already cold enough", () => {
@@ -164,7 +201,9 @@ describe("head pressure nearing trip (rule 5)", () => {
   });
 
   it("quiet when high but steady", () => {
-    expect(runFrames({ durationS: 900, frame: () => ({ condKPa: 1100 }) }).firstActivation("head_pressure_near_trip:CH-1")).toBeNull();
+    expect(
+      runFrames({ durationS: 900, frame: () => ({ condKPa: 1100 }) }).firstActivation("head_pressure_near_trip:CH-1"),
+    ).toBeNull();
   });
 });
 
@@ -175,13 +214,17 @@ describe("drive temperature toward trip (rule 6)", () => {
     // ttc ≤ 900 s once 40 + t/60 ≥ 50.6 → t ≈ 636 s; 15 s on-delay.
     expect(first).toBeGreaterThanOrEqual(640);
     expect(first).toBeLessThanOrEqual(670);
-    const c = r.evaluations.find((e) => e.atMs === r.firstActivation("drive_temp_toward_trip:CH-1"))!.conditions.find((x) => x.ruleId === "drive_temp_toward_trip")!;
+    const c = r.evaluations
+      .find((e) => e.atMs === r.firstActivation("drive_temp_toward_trip:CH-1"))!
+      .conditions.find((x) => x.ruleId === "drive_temp_toward_trip")!;
     expect(c.numbers.timeToTripS).toBeGreaterThan(800);
     expect(c.numbers.timeToTripS).toBeLessThan(900);
   });
 
   it("quiet when warm but steady", () => {
-    expect(runFrames({ durationS: 900, frame: () => ({ driveC: 50 }) }).firstActivation("drive_temp_toward_trip:CH-1")).toBeNull();
+    expect(
+      runFrames({ durationS: 900, frame: () => ({ driveC: 50 }) }).firstActivation("drive_temp_toward_trip:CH-1"),
+    ).toBeNull();
   });
 });
 
@@ -189,7 +232,11 @@ describe("utility power event suspected (rule 7)", () => {
   it("two drives faulting within 30 s: names both correlated faults", () => {
     const r = runFrames({
       durationS: 300,
-      frame: (tS) => ({ driveFault: tS >= 100 && tS < 200, faultText: tS >= 100 ? "Drive DC bus undervoltage" : "", towerFault: tS >= 110 && tS < 150 }),
+      frame: (tS) => ({
+        driveFault: tS >= 100 && tS < 200,
+        faultText: tS >= 100 ? "Drive DC bus undervoltage" : "",
+        towerFault: tS >= 110 && tS < 150,
+      }),
       keep: true,
     });
     expect(secondsOf(r.firstActivation("power_event_suspected:site"))).toBe(110);
@@ -215,15 +262,30 @@ describe("utility power event suspected (rule 7)", () => {
   });
 
   it("a fan drive that comes back in off counts as the second drive", () => {
-    const r = runFrames({ durationS: 300, frame: (tS) => ({ driveFault: tS >= 100 && tS < 110, towerMode: tS >= 100 ? "off" : "auto" }), keep: true });
+    const r = runFrames({
+      durationS: 300,
+      frame: (tS) => ({ driveFault: tS >= 100 && tS < 110, towerMode: tS >= 100 ? "off" : "auto" }),
+      keep: true,
+    });
     expect(secondsOf(r.firstActivation("power_event_suspected:site"))).toBe(100);
-    expect(r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "power_event_suspected")!.related.join(" ")).toMatch(/CT-1 fan drive changed to off/);
+    expect(
+      r.evaluations
+        .at(-1)!
+        .conditions.find((x) => x.ruleId === "power_event_suspected")!
+        .related.join(" "),
+    ).toMatch(/CT-1 fan drive changed to off/);
   });
 
   it("one drive, or two far apart, is not a power event", () => {
-    expect(runFrames({ durationS: 300, frame: (tS) => ({ driveFault: tS >= 100 }) }).firstActivation("power_event_suspected:site")).toBeNull();
     expect(
-      runFrames({ durationS: 600, frame: (tS) => ({ driveFault: tS >= 100, towerFault: tS >= 400 }) }).firstActivation("power_event_suspected:site"),
+      runFrames({ durationS: 300, frame: (tS) => ({ driveFault: tS >= 100 }) }).firstActivation(
+        "power_event_suspected:site",
+      ),
+    ).toBeNull();
+    expect(
+      runFrames({ durationS: 600, frame: (tS) => ({ driveFault: tS >= 100, towerFault: tS >= 400 }) }).firstActivation(
+        "power_event_suspected:site",
+      ),
     ).toBeNull();
   });
 });
@@ -232,11 +294,17 @@ describe("chiller tripped / latched alarm (rule 8)", () => {
   it("raises from the latched alarm point with the fault text, and latches until acknowledged", () => {
     const r = runFrames({
       durationS: 300,
-      frame: (tS) => ({ chillerAlarm: tS >= 60 && tS < 120, running: tS < 60, faultText: tS >= 60 ? "High discharge pressure trip at 160.2 psig" : "" }),
+      frame: (tS) => ({
+        chillerAlarm: tS >= 60 && tS < 120,
+        running: tS < 60,
+        faultText: tS >= 60 ? "High discharge pressure trip at 160.2 psig" : "",
+      }),
       keep: true,
     });
     expect(secondsOf(r.firstActivation("chiller_tripped:CH-1"))).toBe(60);
-    const c = r.evaluations.find((e) => e.atMs === r.firstActivation("chiller_tripped:CH-1"))!.conditions.find((x) => x.ruleId === "chiller_tripped")!;
+    const c = r.evaluations
+      .find((e) => e.atMs === r.firstActivation("chiller_tripped:CH-1"))!
+      .conditions.find((x) => x.ruleId === "chiller_tripped")!;
     expect(c.technicianMessage).toMatch(/High discharge pressure trip at 160.2 psig/);
     expect(r.evaluations.at(-1)!.alarms.get("chiller_tripped:CH-1")!.state).toBe("latched");
   });
@@ -266,7 +334,14 @@ describe("communication lost (rule 9)", () => {
 
 describe("efficiency drift (rule 10)", () => {
   // 60.6 L/s × 4.186 × 5.5 K = 1395 kW = 396.7 tons (REFERENCES.md §2 form).
-  const settings = { efficiencyDrift: { baselines: { "CH-1": { kwPerTon: 0.55, condenserApproachK: 1.1 } }, averagingWindowS: 600, onDelayS: 60, offDelayS: 60 } };
+  const settings = {
+    efficiencyDrift: {
+      baselines: { "CH-1": { kwPerTon: 0.55, condenserApproachK: 1.1 } },
+      averagingWindowS: 600,
+      onDelayS: 60,
+      offDelayS: 60,
+    },
+  };
   it("maintenance priority when kW/ton runs 15 % over the equipment's own baseline", () => {
     const r = runFrames({ durationS: 900, stepS: 30, frame: () => ({ powerKw: 0.7 * 396.7 }), settings, keep: true });
     expect(r.firstActivation("efficiency_drift:CH-1")).not.toBeNull();
@@ -276,7 +351,12 @@ describe("efficiency drift (rule 10)", () => {
   });
 
   it("condenser approach above baseline", () => {
-    const r = runFrames({ durationS: 900, stepS: 30, frame: () => ({ powerKw: 0.55 * 396.7, condSatC: 34.6 + 3.5 }), settings });
+    const r = runFrames({
+      durationS: 900,
+      stepS: 30,
+      frame: () => ({ powerKw: 0.55 * 396.7, condSatC: 34.6 + 3.5 }),
+      settings,
+    });
     expect(r.firstActivation("efficiency_drift:CH-1")).not.toBeNull();
   });
 
@@ -298,7 +378,11 @@ describe("low evaporator pressure: suppressed by design while the chiller is off
 
 describe("a normal running plant", () => {
   it("raises nothing in two hours", () => {
-    const r = runFrames({ durationS: 7200, stepS: 15, frame: (tS) => ({ chwInC: 12.2 + 0.2 * Math.sin(tS / 300), condKPa: 900 + 10 * Math.sin(tS / 200) }) });
+    const r = runFrames({
+      durationS: 7200,
+      stepS: 15,
+      frame: (tS) => ({ chwInC: 12.2 + 0.2 * Math.sin(tS / 300), condKPa: 900 + 10 * Math.sin(tS / 200) }),
+    });
     expect(r.transitions.filter((t) => t.to === "unacknowledged")).toEqual([]);
   });
 });

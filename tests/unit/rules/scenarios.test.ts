@@ -44,7 +44,8 @@ function replay(scenario: string, durationS: number, seed = 1): Replay {
   return { transitions, crossedAtMs, inhibitLeftAt, wallMs: performance.now() - wall0 };
 }
 
-const activations = (r: Replay, key: string) => r.transitions.filter((t) => t.alarmKey === key && t.cause === "condition_active" && t.to === "unacknowledged");
+const activations = (r: Replay, key: string) =>
+  r.transitions.filter((t) => t.alarmKey === key && t.cause === "condition_active" && t.to === "unacknowledged");
 
 describe("power-blip, no action", () => {
   const durationS = 75 * 60; // the scenario's late reset comes at 80 min
@@ -106,7 +107,13 @@ describe("normal-day, 24 h", () => {
     r = replay("normal-day", durationS);
   });
   it("raises zero crossover, fan or head-pressure warnings", () => {
-    const watched = ["crossover_risk", "restart_race", "loops_crossed", "tower_fan_not_running", "head_pressure_near_trip"];
+    const watched = [
+      "crossover_risk",
+      "restart_race",
+      "loops_crossed",
+      "tower_fan_not_running",
+      "head_pressure_near_trip",
+    ];
     const raised = r.transitions.filter((t) => watched.includes(t.ruleId) && t.to === "unacknowledged");
     expect(raised).toEqual([]);
   });

@@ -129,7 +129,11 @@ export function runFrames(args: {
   timeZone?: string;
 }): RunResult {
   const stepS = args.stepS ?? 10;
-  const monitor = createSiteMonitor({ site, settings: parseRuleSettings(args.settings ?? {}), timeZone: args.timeZone });
+  const monitor = createSiteMonitor({
+    site,
+    settings: parseRuleSettings(args.settings ?? {}),
+    timeZone: args.timeZone,
+  });
   const transitions: TransitionRecord[] = [];
   const evaluations: SiteEvaluation[] = [];
   for (let tS = 0; tS <= args.durationS; tS += stepS) {
@@ -139,7 +143,8 @@ export function runFrames(args: {
     transitions.push(...e.transitions);
     if (args.keep) evaluations.push(e);
   }
-  const acts = (key: string) => transitions.filter((t) => t.alarmKey === key && t.cause === "condition_active" && t.to === "unacknowledged");
+  const acts = (key: string) =>
+    transitions.filter((t) => t.alarmKey === key && t.cause === "condition_active" && t.to === "unacknowledged");
   return {
     transitions,
     evaluations,

@@ -24,8 +24,14 @@ describe("energy balance (ASHRAE Handbook: Btu/h = 500 × gpm × ΔT, tons = gpm
       expect(Math.abs(tons / (modelKW / 3.516853) - 1)).toBeLessThan(0.02);
     });
     it(`${ch}: condenser heat from its readings = evaporator heat + compressor kW within 3 %`, () => {
-      const qEvap = 500 * gpm(avg(ch, "chilled_water_flow")) * (avgF(ch, "chilled_water_entering_temp") - avgF(ch, "chilled_water_leaving_temp"));
-      const qCond = 500 * gpm(avg(ch, "condenser_water_flow")) * (avgF(ch, "condenser_water_leaving_temp") - avgF(ch, "condenser_water_entering_temp"));
+      const qEvap =
+        500 *
+        gpm(avg(ch, "chilled_water_flow")) *
+        (avgF(ch, "chilled_water_entering_temp") - avgF(ch, "chilled_water_leaving_temp"));
+      const qCond =
+        500 *
+        gpm(avg(ch, "condenser_water_flow")) *
+        (avgF(ch, "condenser_water_leaving_temp") - avgF(ch, "condenser_water_entering_temp"));
       const work = avg(ch, "compressor_power") * 3412.14;
       expect(Math.abs(qCond / (qEvap + work) - 1)).toBeLessThan(0.03);
       // and the balance is not trivially met by ignoring work: condenser heat exceeds evaporator heat by > 10 %

@@ -5,7 +5,12 @@ import { writeCsv } from "@/simulator/csv";
 
 function csv(seed: number): string {
   let out = "";
-  writeCsv(runScenario({ scenario: "power-blip", seed, startMs: Date.UTC(2026, 0, 1), durationS: 3600 }), defaultLayout, (c) => (out += c), true);
+  writeCsv(
+    runScenario({ scenario: "power-blip", seed, startMs: Date.UTC(2026, 0, 1), durationS: 3600 }),
+    defaultLayout,
+    (c) => (out += c),
+    true,
+  );
   return out;
 }
 
@@ -20,10 +25,26 @@ describe("determinism", () => {
 });
 
 describe("CLI offline", () => {
-  const cli = (args: string[]) => execFileSync(process.execPath, ["--import", "tsx", "simulator/cli.ts", ...args], { cwd: process.cwd(), encoding: "utf8", maxBuffer: 64 << 20 });
+  const cli = (args: string[]) =>
+    execFileSync(process.execPath, ["--import", "tsx", "simulator/cli.ts", ...args], {
+      cwd: process.cwd(),
+      encoding: "utf8",
+      maxBuffer: 64 << 20,
+    });
 
   it("same seed → byte-for-byte identical stdout (with events)", () => {
-    const args = ["--scenario", "power-blip", "--offline", "--duration", "20m", "--seed", "7", "--events", "--start", "2026-06-01T10:00:00Z"];
+    const args = [
+      "--scenario",
+      "power-blip",
+      "--offline",
+      "--duration",
+      "20m",
+      "--seed",
+      "7",
+      "--events",
+      "--start",
+      "2026-06-01T10:00:00Z",
+    ];
     const a = cli(args);
     expect(a.startsWith("ts,point,value,unit\n")).toBe(true);
     expect(a).toMatch(/^# event,2026-06-01T10:10:00.000Z,scenario,-,Utility power sag\/blip/m);

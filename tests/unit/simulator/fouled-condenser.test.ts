@@ -23,7 +23,10 @@ describe("fouled-condenser (condenser tube fouling raises the approach over week
   it("CH-1 draws more power than clean CH-2 at the same load by the third week", () => {
     const kw1 = run.num("CH-1", "compressor_power");
     const kw2 = run.num("CH-2", "compressor_power");
-    const idx = kw1.t.map((t, i) => [t, i]).filter(([t]) => t > 20 * 86400 + 12 * 3600 && t < 20 * 86400 + 16 * 3600).map(([, i]) => i);
+    const idx = kw1.t
+      .map((t, i) => [t, i])
+      .filter(([t]) => t > 20 * 86400 + 12 * 3600 && t < 20 * 86400 + 16 * 3600)
+      .map(([, i]) => i);
     expect(mean(idx.map((i) => kw1.v[i])) / mean(idx.map((i) => kw2.v[i]))).toBeGreaterThan(1.05);
   });
 });

@@ -25,7 +25,11 @@ describe("simulated gateway over MQTT", () => {
   it("publishes readings with seq/sentAt/point/value/ts/quality, retained status, and applies a drill command", async () => {
     const url = `mqtt://127.0.0.1:${port}`;
     const sub = await mqtt.connectAsync(url, { clientId: "test-sub" });
-    const messages: Array<{ seq: number; sentAt: string; readings: Array<{ point: string; value: unknown; ts: string; quality: string }> }> = [];
+    const messages: Array<{
+      seq: number;
+      sentAt: string;
+      readings: Array<{ point: string; value: unknown; ts: string; quality: string }>;
+    }> = [];
     const status: string[] = [];
     sub.on("message", (topic, payload) => {
       if (topic.endsWith("/readings")) messages.push(JSON.parse(payload.toString()));
@@ -47,10 +51,22 @@ describe("simulated gateway over MQTT", () => {
     });
     const deadline = Date.now() + 15_000;
     while (messages.length < 3 && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
-    await sub.publishAsync("liftline/gw-test/commands", JSON.stringify({ id: "c1", action: { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "stop-to-start", seconds: 5 } }), { qos: 1 });
-    await sub.publishAsync("liftline/gw-test/commands", JSON.stringify({ type: "set-fan-drive-mode", equipment: "CT-1", mode: "hand", handHz: 60 }), { qos: 1 });
+    await sub.publishAsync(
+      "liftline/gw-test/commands",
+      JSON.stringify({
+        id: "c1",
+        action: { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "stop-to-start", seconds: 5 },
+      }),
+      { qos: 1 },
+    );
+    await sub.publishAsync(
+      "liftline/gw-test/commands",
+      JSON.stringify({ type: "set-fan-drive-mode", equipment: "CT-1", mode: "hand", handHz: 60 }),
+      { qos: 1 },
+    );
     await sub.publishAsync("liftline/gw-test/commands", "{not json", { qos: 1 });
-    while (events.filter((e) => /action/.test(e) || /Command refused/.test(e)).length < 3 && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
+    while (events.filter((e) => /action/.test(e) || /Command refused/.test(e)).length < 3 && Date.now() < deadline)
+      await new Promise((r) => setTimeout(r, 50));
     const st = gw.status();
     await gw.stop();
     await sub.endAsync();

@@ -15,7 +15,9 @@ export interface RunRecord {
   num(equipment: string, quantity: string): { t: number[]; v: number[] };
 }
 
-export function record(opts: Omit<RunScenarioOptions, "startMs"> & { startMs?: number; keepStates?: boolean }): RunRecord {
+export function record(
+  opts: Omit<RunScenarioOptions, "startMs"> & { startMs?: number; keepStates?: boolean },
+): RunRecord {
   const startMs = opts.startMs ?? Date.UTC(2026, 5, 1, 0, 0, 0);
   const series = new Map<string, Series>();
   const events: SimEvent[] = [];

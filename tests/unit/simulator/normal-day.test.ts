@@ -5,7 +5,9 @@ const run = record({ scenario: "normal-day", seed: 11, durationS: 24 * 3600, ste
 
 describe("normal-day (full day, load follows occupancy)", () => {
   it("no faults, alarms or refused actions all day", () => {
-    expect(run.events.filter((e) => e.kind === "fault" || e.kind === "alarm" || e.kind === "action-refused")).toEqual([]);
+    expect(run.events.filter((e) => e.kind === "fault" || e.kind === "alarm" || e.kind === "action-refused")).toEqual(
+      [],
+    );
   });
   it("leaving chilled water within ±1 °F of setpoint through the occupied afternoon while the chillers run (steady load)", () => {
     for (const ch of ["CH-1", "CH-2"]) {
@@ -34,7 +36,14 @@ describe("normal-day on every demo site, coarse 10 s steps", () => {
   for (const site of ["medical-office", "data-hall", "school"] as const) {
     it(`${site}: no faults or alarms all day`, async () => {
       const { siteLayouts } = await import("@/simulator");
-      const r = record({ scenario: "normal-day", seed: 2, durationS: 24 * 3600, stepS: 10, sampleEveryS: 600, layout: siteLayouts[site] });
+      const r = record({
+        scenario: "normal-day",
+        seed: 2,
+        durationS: 24 * 3600,
+        stepS: 10,
+        sampleEveryS: 600,
+        layout: siteLayouts[site],
+      });
       expect(r.events.filter((e) => e.kind === "fault" || e.kind === "alarm")).toEqual([]);
     });
   }

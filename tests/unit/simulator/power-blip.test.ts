@@ -6,7 +6,9 @@ import { cToF, firstTime, record, window } from "./helpers";
 // normal running 100–110 °F; condenser water > 100 °F entering and leaving with the tower fan off;
 // loops cross within roughly 20–40 min of the trip.
 const noAction = record({ scenario: "power-blip", seed: 7, durationS: 3 * 3600, sampleEveryS: 10 });
-const tripEvent = noAction.events.find((e) => e.kind === "alarm" && e.equipment === "CH-1" && /High condenser pressure/.test(e.message));
+const tripEvent = noAction.events.find(
+  (e) => e.kind === "alarm" && e.equipment === "CH-1" && /High condenser pressure/.test(e.message),
+);
 const startMs = Date.UTC(2026, 5, 1, 0, 0, 0);
 const tripS = tripEvent ? (tripEvent.tsMs - startMs) / 1000 : NaN;
 
@@ -19,7 +21,11 @@ function crossoverS(r: typeof noAction, afterS: number): number | undefined {
 
 describe("power-blip, nobody acts", () => {
   it("the blip faults the tower fan drive, which comes back in off with its fault no longer shown", () => {
-    expect(noAction.events.some((e) => e.kind === "fault" && e.equipment === "CT-1" && /DC bus undervoltage/.test(e.message))).toBe(true);
+    expect(
+      noAction.events.some(
+        (e) => e.kind === "fault" && e.equipment === "CT-1" && /DC bus undervoltage/.test(e.message),
+      ),
+    ).toBe(true);
     const mode = noAction.get("CT-1", "fan_drive_mode");
     const after = mode.v.filter((_, i) => mode.t[i] > 11 * 60);
     expect(after.every((m) => m === "off")).toBe(true);
@@ -51,7 +57,9 @@ describe("power-blip, nobody acts", () => {
   });
   it("a restart after crossover trips on drive over-temperature near 150 °F", () => {
     const x = crossoverS(noAction, tripS) as number;
-    const restart = noAction.events.find((e) => e.equipment === "CH-1" && e.message === "Compressor started" && (e.tsMs - startMs) / 1000 > x);
+    const restart = noAction.events.find(
+      (e) => e.equipment === "CH-1" && e.message === "Compressor started" && (e.tsMs - startMs) / 1000 > x,
+    );
     expect(restart).toBeDefined();
     const driveTrip = noAction.events.find((e) => e.kind === "alarm" && /Drive over-temperature/.test(e.message));
     expect(driveTrip).toBeDefined();
@@ -72,7 +80,9 @@ describe("power-blip with the right actions before crossover", () => {
     expect(logged.every((e) => / — /.test(e.message))).toBe(true);
   });
   it("the compressor restarts before the loops cross and there is no drive trip", () => {
-    const restart = fixed.events.find((e) => e.equipment === "CH-1" && e.message === "Compressor started" && (e.tsMs - startMs) / 1000 > tripS);
+    const restart = fixed.events.find(
+      (e) => e.equipment === "CH-1" && e.message === "Compressor started" && (e.tsMs - startMs) / 1000 > tripS,
+    );
     expect(restart).toBeDefined();
     expect(crossoverS(fixed, tripS)).toBeUndefined();
     expect(fixed.events.some((e) => /Drive over-temperature/.test(e.message))).toBe(false);
@@ -80,7 +90,8 @@ describe("power-blip with the right actions before crossover", () => {
   it("the plant recovers: chiller running, leaving water back near setpoint, drive settling at 100–110 °F", () => {
     const end = 3 * 3600;
     expect(fixed.get("CH-1", "run_status").v.at(-1)).toBe(true);
-    for (const v of window(fixed.num("CH-1", "chilled_water_leaving_temp"), end - 1800, end).map(cToF)) expect(Math.abs(v - 44)).toBeLessThan(1.5);
+    for (const v of window(fixed.num("CH-1", "chilled_water_leaving_temp"), end - 1800, end).map(cToF))
+      expect(Math.abs(v - 44)).toBeLessThan(1.5);
     for (const v of window(fixed.num("CH-1", "drive_temp"), end - 3600, end).map(cToF)) {
       expect(v).toBeGreaterThanOrEqual(100);
       expect(v).toBeLessThanOrEqual(110);

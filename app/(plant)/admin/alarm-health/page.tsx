@@ -10,7 +10,11 @@ import { requirePageViewer } from "../../../(auth)/auth";
 export const metadata: Metadata = { title: "Alarm-system health" };
 export const dynamic = "force-dynamic";
 
-const assessmentText = { acceptable: "acceptable (< 1 per 10 min)", manageable: "manageable (1–2 per 10 min)", overloaded: "overloaded (> 2 per 10 min)" } as const;
+const assessmentText = {
+  acceptable: "acceptable (< 1 per 10 min)",
+  manageable: "manageable (1–2 per 10 min)",
+  overloaded: "overloaded (> 2 per 10 min)",
+} as const;
 
 function report() {
   return alarmHealthReport(getDb(), Date.now());
@@ -27,7 +31,9 @@ export default async function AlarmHealthPage() {
       <div>
         <h1 className="text-2xl font-semibold">Alarm-system health</h1>
         <p className="mt-1 max-w-prose text-muted">
-          Last 7 days, all sites, measured against ISA-18.2 and EEMUA 191 guidance: under one alarm per 10 minutes per on-call person, no floods (more than 10 in 10 minutes), no chattering, few stale alarms, and a priority split near 80 / 15 / 5 % with under 1 % critical.
+          Last 7 days, all sites, measured against ISA-18.2 and EEMUA 191 guidance: under one alarm per 10 minutes per
+          on-call person, no floods (more than 10 in 10 minutes), no chattering, few stale alarms, and a priority split
+          near 80 / 15 / 5 % with under 1 % critical.
         </p>
       </div>
       <div className="grid gap-3 sm:grid-cols-3">
@@ -40,7 +46,9 @@ export default async function AlarmHealthPage() {
         <div className={card}>
           <p className="text-sm text-muted">Average per 10 min per on-call person</p>
           <p className="text-2xl font-semibold">{h.rate.averagePer10MinPerPerson.toFixed(2)}</p>
-          <p className={`text-sm ${h.rate.assessment === "acceptable" ? "text-muted" : "text-alarm"}`}>{assessmentText[h.rate.assessment]}</p>
+          <p className={`text-sm ${h.rate.assessment === "acceptable" ? "text-muted" : "text-alarm"}`}>
+            {assessmentText[h.rate.assessment]}
+          </p>
         </div>
         <div className={card}>
           <p className="text-sm text-muted">Peak 10 min · time in flood</p>

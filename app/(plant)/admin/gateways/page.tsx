@@ -19,7 +19,10 @@ export default async function GatewaysIndexPage() {
       <ul className="flex flex-col gap-2">
         {sites.map((s) => (
           <li key={s.id}>
-            <Link href={`/sites/${s.id}/gateways`} className="block rounded-lg border border-line bg-panel px-4 py-3 hover:border-ink">
+            <Link
+              href={`/sites/${s.id}/gateways`}
+              className="block rounded-lg border border-line bg-panel px-4 py-3 hover:border-ink"
+            >
               {s.name} <span className="text-muted">· {s.customer.name}</span>
             </Link>
           </li>

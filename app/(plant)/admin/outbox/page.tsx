@@ -17,7 +17,9 @@ export default async function OutboxPage() {
   return (
     <section>
       <h1 className="text-2xl font-semibold">Outbox</h1>
-      <p className="mb-4 mt-1 max-w-prose text-muted">Mail caught by the local SMTP sink (no SMTP_URL configured). Set SMTP_URL to send real mail.</p>
+      <p className="mb-4 mt-1 max-w-prose text-muted">
+        Mail caught by the local SMTP sink (no SMTP_URL configured). Set SMTP_URL to send real mail.
+      </p>
       {messages.length === 0 ? <p className="text-muted">No mail yet.</p> : null}
       <ul className="flex flex-col gap-3">
         {messages.map((m) => (

@@ -37,7 +37,9 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
   const equipment = site.equipment.find((e) => e.tag === alarm.equipment);
   const charts = (evidence[alarm.ruleId] ?? []).flatMap((q) => {
     const point = equipment?.points.find((p) => p.quantity === q);
-    return point && isQuantityKey(point.quantity) ? [{ id: point.id, label: quantities[point.quantity].label, measure: quantities[point.quantity].measure }] : [];
+    return point && isQuantityKey(point.quantity)
+      ? [{ id: point.id, label: quantities[point.quantity].label, measure: quantities[point.quantity].measure }]
+      : [];
   });
   return (
     <article className="flex flex-col gap-6">
@@ -60,7 +62,14 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
               <h3 className="mb-1 text-sm font-semibold">
                 {alarm.equipment} {c.label}
               </h3>
-              <TrendChart siteId={site.id} pointId={c.id} measure={c.measure} unitSystem={viewer.unitSystem} label={c.label} timeZone={site.timeZone} />
+              <TrendChart
+                siteId={site.id}
+                pointId={c.id}
+                measure={c.measure}
+                unitSystem={viewer.unitSystem}
+                label={c.label}
+                timeZone={site.timeZone}
+              />
             </div>
           ))}
         </section>

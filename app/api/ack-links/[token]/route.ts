@@ -9,7 +9,6 @@ import { requireAlarmService } from "@/lib/server/runtime";
 
 const tokenSchema = z.string().regex(ACK_TOKEN_PATTERN);
 
-
 // The e-mailed link is the credential: it names one alarm and one person, works once, and
 // expires. GET never acts (mail scanners prefetch links); the page POSTs here.
 export const POST = route<{ params: Promise<{ token: string }> }>(async (_request, { params }) => {
@@ -21,10 +20,16 @@ export const POST = route<{ params: Promise<{ token: string }> }>(async (_reques
   const viewer = getViewerById(db, link.userId);
   if (!viewer) throw new AppError("not_found", refusal.unknown);
   try {
-    return Response.json(requireAlarmService().command(viewer, link.alarmId, { type: "acknowledge", note: "Acknowledged from the e-mailed link" }));
+    return Response.json(
+      requireAlarmService().command(viewer, link.alarmId, {
+        type: "acknowledge",
+        note: "Acknowledged from the e-mailed link",
+      }),
+    );
   } catch (err) {
     // Someone acknowledged it in the app already: the link did its job.
-    if (isAppError(err) && err.code === "conflict") return Response.json({ alarmId: link.alarmId, state: "already acknowledged" });
+    if (isAppError(err) && err.code === "conflict")
+      return Response.json({ alarmId: link.alarmId, state: "already acknowledged" });
     throw err;
   }
 });

@@ -12,7 +12,8 @@ const startRunSchema = startRunSchemaFor(scenarioNames);
 
 function simulationFor(siteId: string) {
   const simulation = getRuntime()?.simulation;
-  if (!simulation) throw new AppError("unavailable", "The simulator is not running (demo mode off or LIFTLINE_SIMULATOR=0).");
+  if (!simulation)
+    throw new AppError("unavailable", "The simulator is not running (demo mode off or LIFTLINE_SIMULATOR=0).");
   if (!simulation.list().some((s) => s.siteId === siteId)) throw notFound("No such simulated site.");
   return simulation;
 }

@@ -23,7 +23,8 @@ export default async function SiteGatewaysPage({ params }: { params: Promise<{ s
       </p>
       <h1 className="mb-1 text-2xl font-semibold">Gateways</h1>
       <p className="mb-4 max-w-prose text-muted">
-        Each gateway connects to Liftline&apos;s MQTT broker with its own credentials and may publish only on its own topics. The wire contract is in <code>gateway/PROTOCOL.md</code>.
+        Each gateway connects to Liftline&apos;s MQTT broker with its own credentials and may publish only on its own
+        topics. The wire contract is in <code>gateway/PROTOCOL.md</code>.
       </p>
       <GatewayManager siteId={site.id} timeZone={site.timeZone} />
     </section>

@@ -23,8 +23,9 @@ export default async function RuleSettingsPage({ params }: { params: Promise<{ s
       </p>
       <h1 className="text-2xl font-semibold">Rule settings</h1>
       <p className="max-w-prose text-muted">
-        Units are canonical: temperatures °C, temperature differences K, pressures kPa absolute, times in seconds. Each rule, its settings and where the defaults come from are described in{" "}
-        <code>lib/rules/README.md</code>. Example: <code>{'{ "crossoverRisk": { "warnTimeToCrossoverS": 2400 } }'}</code>
+        Units are canonical: temperatures °C, temperature differences K, pressures kPa absolute, times in seconds. Each
+        rule, its settings and where the defaults come from are described in <code>lib/rules/README.md</code>. Example:{" "}
+        <code>{'{ "crossoverRisk": { "warnTimeToCrossoverS": 2400 } }'}</code>
       </p>
       <RuleSettingsEditor siteId={site.id} canEdit={isAdmin(viewer)} />
     </section>

@@ -6,6 +6,9 @@ import { ackSchema } from "@/lib/schemas/alarms";
 export const POST = route<{ params: Promise<{ alarmId: string }> }>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
   const { note } = await readJson(request, ackSchema);
-  const result = requireAlarmService().command(viewer, (await params).alarmId, { type: "acknowledge", note: note || undefined });
+  const result = requireAlarmService().command(viewer, (await params).alarmId, {
+    type: "acknowledge",
+    note: note || undefined,
+  });
   return Response.json(result);
 });

@@ -6,5 +6,7 @@ import { shelveSchema } from "@/lib/schemas/alarms";
 export const POST = route<{ params: Promise<{ alarmId: string }> }>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
   const { minutes, reason } = await readJson(request, shelveSchema);
-  return Response.json(requireAlarmService().command(viewer, (await params).alarmId, { type: "shelve", minutes, reason }));
+  return Response.json(
+    requireAlarmService().command(viewer, (await params).alarmId, { type: "shelve", minutes, reason }),
+  );
 });

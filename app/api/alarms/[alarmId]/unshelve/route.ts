@@ -8,5 +8,7 @@ export const POST = route<{ params: Promise<{ alarmId: string }> }>(async (reque
   // The body is optional here: an empty POST is a plain unshelve.
   const text = await request.text();
   const { note } = unshelveSchema.parse(text ? JSON.parse(text) : {});
-  return Response.json(requireAlarmService().command(viewer, (await params).alarmId, { type: "unshelve", note: note || undefined }));
+  return Response.json(
+    requireAlarmService().command(viewer, (await params).alarmId, { type: "unshelve", note: note || undefined }),
+  );
 });

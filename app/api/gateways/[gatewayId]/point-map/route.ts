@@ -28,7 +28,10 @@ export const PUT = route<Ctx>(async (request, { params }) => {
   if (length > MAX_POINT_MAP_BYTES) throw new AppError("payload_too_large", "The point map is larger than 2 MB.");
   const result = replaceGatewayPointMap(getDb(), viewer, gatewayId, await request.text());
   if (result.errors.length > 0) {
-    const err = new AppError("bad_request", `${result.errors.length} row(s) of the point map are not valid; nothing was changed.`);
+    const err = new AppError(
+      "bad_request",
+      `${result.errors.length} row(s) of the point map are not valid; nothing was changed.`,
+    );
     return Response.json({ accepted: 0, errors: result.errors, ...err.toBody() }, { status: err.status });
   }
   return Response.json({ accepted: result.accepted, errors: [] });

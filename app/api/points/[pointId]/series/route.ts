@@ -9,7 +9,10 @@ import { route } from "@/lib/server/http";
 export const dynamic = "force-dynamic";
 
 const MAX_SPAN_MS = 2 * 366 * 86_400_000;
-const time = z.union([z.iso.datetime({ offset: true }).transform((s) => Date.parse(s)), z.coerce.number().int().min(0)]);
+const time = z.union([
+  z.iso.datetime({ offset: true }).transform((s) => Date.parse(s)),
+  z.coerce.number().int().min(0),
+]);
 const querySchema = z.object({
   from: time.optional(),
   to: time.optional(),
@@ -28,5 +31,13 @@ export const GET = route<{ params: Promise<{ pointId: string }> }>(async (reques
   if (fromMs >= toMs) throw new AppError("bad_request", "`from` must be before `to`.");
   if (toMs - fromMs > MAX_SPAN_MS) throw new AppError("bad_request", "The range can be at most two years.");
   const rawRetentionMs = loadConfig().RAW_RETENTION_DAYS * 86_400_000;
-  return Response.json({ series: getSeries(getDb(), viewer, pointId, { fromMs, toMs, maxPoints: q.maxPoints }, { nowMs: now, rawRetentionMs }) });
+  return Response.json({
+    series: getSeries(
+      getDb(),
+      viewer,
+      pointId,
+      { fromMs, toMs, maxPoints: q.maxPoints },
+      { nowMs: now, rawRetentionMs },
+    ),
+  });
 });

@@ -30,7 +30,14 @@ export default async function PointTrendPage({ params }: { params: Promise<{ sit
       <h1 className="text-2xl font-semibold">
         {found.e.tag} {q.label}
       </h1>
-      <TrendChart siteId={site.id} pointId={id} measure={q.measure} unitSystem={viewer.unitSystem} label={q.label} timeZone={site.timeZone} />
+      <TrendChart
+        siteId={site.id}
+        pointId={id}
+        measure={q.measure}
+        unitSystem={viewer.unitSystem}
+        label={q.label}
+        timeZone={site.timeZone}
+      />
     </article>
   );
 }
