@@ -7,6 +7,7 @@
 // Exported as a function so the server process can run simulated gateways in-process.
 import mqtt, { type MqttClient } from "mqtt";
 import { jsonTopics } from "@/gateway/contract";
+import type { SimulatedRunDto } from "@/lib/dto/simulator";
 import { actionOfCommand, drillCommandSchema, type DrillAction } from "./actions-schema";
 import { defaultLayout, equipmentOf, getLayout, type SiteLayout } from "./layout";
 import { pointName, wireValue } from "./points";
@@ -46,20 +47,10 @@ export interface SimulatedGatewayOptions {
   now?: () => number;
 }
 
-export interface SimulatedGatewayStatus {
-  gatewayId: string;
-  protocol: "json" | "sparkplug";
-  scenario: string;
-  connected: boolean;
-  pass: number;
-  simulatedMs: number;
-  simulatedS: number;
-  durationS: number;
-  fractionDone: number;
-  published: number;
-  running: boolean;
+/** A simulated gateway's run as the admin's simulator page shows it (without the manager's additions). */
+export type SimulatedGatewayStatus = Omit<SimulatedRunDto, "speed" | "startedAt" | "recentEvents"> & {
   recentEvents: SimEvent[];
-}
+};
 
 export interface SimulatedGateway {
   stop(): Promise<void>;
