@@ -1,11 +1,19 @@
 import type { Db } from "@/db/client";
 import { verifyGatewayCredentials } from "@/db/queries/gateways";
 import type { BrokerAuth, ClientIdentity } from "./broker";
-import { parseTopic, SPARKPLUG_NAMESPACE, TOPIC_ROOT } from "./contract";
+import {
+  jsonTopics,
+  MAX_KEEPALIVE_S,
+  MAX_RETAINED_BYTES,
+  parseTopic,
+  SPARKPLUG_NAMESPACE,
+  TOPIC_ROOT,
+} from "./contract";
 import { stateTopic } from "./sparkplug";
 
 // Who may connect to the embedded broker, and where each client may publish and subscribe.
-// A gateway publishes only under its own topics and subscribes only to its own commands.
+// A gateway connects with its gateway id as client id, publishes only under its own topics,
+// retains only its status, and subscribes only to its own commands.
 
 export interface InternalCredential {
   username: string;
@@ -14,10 +22,21 @@ export interface InternalCredential {
 
 export function createGatewayAuth(deps: { db: Db; internal: InternalCredential }): BrokerAuth {
   return {
-    async authenticate(username, password) {
+    acceptsKeepalive(username, keepaliveS) {
+      if (username === deps.internal.username) return true;
+      // MQTT 3.1.1 §3.1.2.10: 0 turns keep alive off, and a dead gateway's connection would stay open.
+      return keepaliveS >= 1 && keepaliveS <= MAX_KEEPALIVE_S;
+    },
+
+    async authenticate({ clientId, username, password }) {
       if (username === deps.internal.username) {
         return password === deps.internal.password ? { kind: "internal" } : "bad_credentials";
       }
+      if (username === undefined) return "bad_credentials";
+      // The client id names the session (MQTT 3.1.1 §3.1.3.1); bound to the gateway id, no
+      // connection can take over another gateway's session (§3.1.4). Checked before the
+      // password, so such a CONNECT costs no hash.
+      if (clientId !== username) return "identifier_rejected";
       const result = await verifyGatewayCredentials(deps.db, username, password);
       // MQTT 3.1.1 §3.2.2.3: 4 = bad user name or password, 5 = not authorized (revoked).
       if (result === "bad_credentials") return "bad_credentials";
@@ -28,6 +47,15 @@ export function createGatewayAuth(deps: { db: Db; internal: InternalCredential }
     canPublish(identity, topic) {
       if (identity.kind === "internal") return true;
       return ownsPublishTopic(identity, topic);
+    },
+
+    refuseRetained(identity, topic, payloadBytes) {
+      if (identity.kind === "internal") return null;
+      if (payloadBytes > MAX_RETAINED_BYTES) return "too_large";
+      // Only a JSON gateway's status is retained; a Sparkplug edge node retains nothing (Sparkplug
+      // B 3.0 §6: births, data and deaths are published with retain = false).
+      if (identity.protocol === "json" && topic === jsonTopics.status(identity.gatewayId)) return null;
+      return "invalid_message";
     },
 
     canSubscribe(identity, topic) {

@@ -10,6 +10,14 @@ export const TOPIC_ROOT = "liftline";
 export const SPARKPLUG_NAMESPACE = "spBv1.0";
 
 export const MAX_PAYLOAD_BYTES = 256 * 1024;
+/** The largest MQTT packet (remaining length) the broker reads; a larger one closes the connection. */
+export const MAX_PACKET_BYTES = 4 * MAX_PAYLOAD_BYTES;
+/** The largest CONNECT (remaining length): ids, credentials and a will fit in far less. */
+export const MAX_CONNECT_BYTES = 4096;
+/** The largest retained payload a gateway may leave on the broker (its status is 6 or 7 bytes). */
+export const MAX_RETAINED_BYTES = 256;
+/** A gateway's keep alive must be 1..MAX_KEEPALIVE_S seconds, so a dead connection is noticed. */
+export const MAX_KEEPALIVE_S = 300;
 export const MAX_READINGS_PER_MESSAGE = 5000;
 export const MAX_FUTURE_MS = 5 * 60_000;
 export { MAX_POINT_NAME };

@@ -131,23 +131,22 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
               packet.topic,
               Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload),
             ),
-      onRefusedPublish: (identity, topic) => {
-        if (identity.kind === "gateway") {
-          log(`[mqtt] ${identity.gatewayId} may not publish on ${topic}; disconnecting`);
-          ingest.refused(identity.gatewayId, "foreign_topic");
-        }
+      onRefused: (identity, reason) => {
+        if (identity.kind === "gateway") ingest.refused(identity.gatewayId, reason);
       },
       onClientChange: (identity, change) => {
         if (identity.kind !== "gateway") return;
-        // Offline only when its last connection goes (a gateway may briefly hold two while
-        // reconnecting). Its status topic or NBIRTH/NDEATH refine this.
+        // A gateway has one connection (its client id is its gateway id; a new one replaces the
+        // old, MQTT 3.1.1 §3.1.4), counted anyway so presence follows the last one to go. Its
+        // status topic or NBIRTH/NDEATH refine this.
         const n = (connections.get(identity.gatewayId) ?? 0) + (change === "connected" ? 1 : -1);
         if (n > 0) connections.set(identity.gatewayId, n);
         else connections.delete(identity.gatewayId);
         if (change === "connected" && n === 1) presence(identity, "online", clock.now());
         if (change === "disconnected" && n <= 0) {
-          presence(identity, "offline", clock.now());
+          // Before the presence write, which may fail (the broker logs it).
           if (identity.protocol === "sparkplug") sparkplug.forget(identity.gatewayId);
+          presence(identity, "offline", clock.now());
         }
       },
       log,

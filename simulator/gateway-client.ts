@@ -96,7 +96,9 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
   const client: MqttClient = mqtt.connect(opts.mqttUrl, {
     username: opts.username,
     password: opts.password,
-    clientId: `liftline-sim-${gatewayId}-${Math.floor(Math.random() * 1e9).toString(36)}`,
+    // gateway/PROTOCOL.md: the client id is the MQTT user name (the gateway id), keep alive 1–300 s.
+    clientId: opts.username,
+    keepalive: 60,
     // Sparkplug B 3.0 §2 [tck-id-principles-persistence-clean-session-311]: clean session; §5.4: the NDEATH is the will.
     clean: true,
     reconnectPeriod: 2000,

@@ -289,8 +289,7 @@ function makePublisher(g: BenchGateway, client: BenchGatewayConnection) {
 }
 
 function connectGateway(url: string, id: string): Promise<BenchGatewayConnection> {
-  if (env.BENCH_CLIENT === "packet")
-    return connectBenchGateway(url, { clientId: id, username: id, password: PASSWORD });
+  if (env.BENCH_CLIENT === "packet") return connectBenchGateway(url, { username: id, password: PASSWORD });
   return new Promise((resolve, reject) => {
     const c = mqtt.connect(url, {
       username: id,

@@ -15,11 +15,16 @@ export interface BenchGatewayConnection {
   end(): void;
 }
 
+/** Keep alive of the bench's CONNECT; a PINGREQ goes out at half of it (MQTT 3.1.1 §3.1.2.10). */
+const KEEPALIVE_S = 60;
+
+/** The client id is the user name (the gateway id), as the broker requires (gateway/PROTOCOL.md). */
 export function connectBenchGateway(
   url: string,
-  opts: { clientId: string; username: string; password: string; timeoutMs?: number },
+  opts: { username: string; password: string; timeoutMs?: number },
 ): Promise<BenchGatewayConnection> {
   const { hostname, port } = new URL(url);
+  const clientId = opts.username;
   return new Promise((resolve, reject) => {
     const socket = net.connect({ host: hostname, port: Number(port), noDelay: true });
     const incoming = parser({ protocolVersion: 4 });
@@ -27,7 +32,7 @@ export function connectBenchGateway(
     const waiting: Array<(() => void) | undefined> = new Array(65_536);
     let nextId = 1;
     let connected = false;
-    const timer = setTimeout(() => fail(new Error(`${opts.clientId}: no CONNACK in time`)), opts.timeoutMs ?? 120_000);
+    const timer = setTimeout(() => fail(new Error(`${clientId}: no CONNACK in time`)), opts.timeoutMs ?? 120_000);
     const fail = (err: Error) => {
       clearTimeout(timer);
       socket.destroy();
@@ -41,8 +46,11 @@ export function connectBenchGateway(
         done?.();
       } else if (p.cmd === "connack") {
         clearTimeout(timer);
-        if (p.returnCode !== 0) return fail(new Error(`${opts.clientId}: CONNACK return code ${p.returnCode}`));
+        if (p.returnCode !== 0) return fail(new Error(`${clientId}: CONNACK return code ${p.returnCode}`));
         connected = true;
+        const ping = setInterval(() => socket.write(generate({ cmd: "pingreq" })), (KEEPALIVE_S * 1000) / 2);
+        ping.unref();
+        socket.once("close", () => clearInterval(ping));
         resolve({
           publish(topic, payload, onAck) {
             let id = nextId;
@@ -61,20 +69,19 @@ export function connectBenchGateway(
     incoming.on("error", (err) => (connected ? socket.destroy(err) : fail(err)));
     socket.on("data", (chunk) => incoming.parse(chunk));
     // After CONNACK a lost connection shows in the bench as acknowledgements that stop; say why.
-    socket.on("error", (err) => (connected ? console.error(`${opts.clientId}: ${err.message}`) : fail(err)));
+    socket.on("error", (err) => (connected ? console.error(`${clientId}: ${err.message}`) : fail(err)));
     socket.on("close", () =>
-      connected ? undefined : fail(new Error(`${opts.clientId}: connection closed before CONNACK`)),
+      connected ? undefined : fail(new Error(`${clientId}: connection closed before CONNACK`)),
     );
     socket.once("connect", () =>
-      // keepalive 0: no PINGREQ (MQTT 3.1.1 §3.1.2.10); the bench's connections are always busy.
       socket.write(
         generate({
           cmd: "connect",
           protocolId: "MQTT",
           protocolVersion: 4,
-          clientId: opts.clientId,
+          clientId,
           clean: true,
-          keepalive: 0,
+          keepalive: KEEPALIVE_S,
           username: opts.username,
           password: Buffer.from(opts.password),
         }),

@@ -1,8 +1,11 @@
+import net from "node:net";
 import mqtt, { type IClientOptions, type MqttClient } from "mqtt";
+import { generate, parser, type Packet } from "mqtt-packet";
 import { signIn, type TestServer } from "./server";
 
 // Gateway-side helpers for integration tests: provision a gateway through the real API,
-// upload its point map, and connect real mqtt.js clients as that gateway.
+// upload its point map, and connect real mqtt.js clients as that gateway (or a raw socket
+// that writes packets with mqtt-packet, for what mqtt.js would not send).
 
 export const ADMIN = "admin@tallgrass.example";
 
@@ -60,7 +63,10 @@ export async function putPointMap(server: TestServer, cookie: string, gatewayId:
   });
 }
 
-/** Connects and resolves on CONNACK 0; rejects with the refusal (err.code = CONNACK return code). */
+/**
+ * Connects and resolves on CONNACK 0; rejects with the refusal (err.code = CONNACK return code).
+ * The client id is the gateway id (the user name), as the broker requires.
+ */
 export function connectGateway(
   server: TestServer,
   creds: { username: string; password: string },
@@ -69,6 +75,7 @@ export function connectGateway(
   return new Promise((resolve, reject) => {
     const client = mqtt.connect(server.mqttUrl, {
       protocolVersion: 4,
+      clientId: creds.username,
       username: creds.username,
       password: creds.password,
       reconnectPeriod: 0,
@@ -114,4 +121,61 @@ export function readingsMessage(
   sentAt = new Date().toISOString(),
 ) {
   return JSON.stringify({ seq, sentAt, readings });
+}
+
+/** A bare TCP connection to the broker: packets written as given, packets read as they come. */
+export interface RawMqtt {
+  socket: net.Socket;
+  packets: Packet[];
+  /** Resolves when the server has closed the connection. */
+  closed: Promise<void>;
+  send(packet: Packet): void;
+  /** The CONNACK's return code, or "closed" when the connection ends without one. */
+  connack(): Promise<number | "closed">;
+}
+
+export async function rawMqtt(server: TestServer): Promise<RawMqtt> {
+  const socket = net.connect({ host: "127.0.0.1", port: server.mqttPort });
+  await new Promise<void>((resolve, reject) => {
+    socket.once("connect", () => resolve());
+    socket.once("error", reject);
+  });
+  // The server may cut a write short; that is what these tests look for.
+  socket.on("error", () => {});
+  const incoming = parser({ protocolVersion: 4 });
+  const packets: Packet[] = [];
+  incoming.on("packet", (p: Packet) => packets.push(p));
+  socket.on("data", (chunk) => incoming.parse(chunk));
+  const closed = new Promise<void>((resolve) => socket.once("close", () => resolve()));
+  return {
+    socket,
+    packets,
+    closed,
+    send: (packet) => void socket.write(generate(packet)),
+    connack: () =>
+      new Promise((resolve) => {
+        const seen = () => packets.find((p) => p.cmd === "connack");
+        const check = () => {
+          const p = seen();
+          if (p && p.cmd === "connack") resolve(p.returnCode ?? 0);
+        };
+        incoming.on("packet", check);
+        check();
+        void closed.then(() => {
+          const p = seen();
+          resolve(p && p.cmd === "connack" ? (p.returnCode ?? 0) : "closed");
+        });
+      }),
+  };
+}
+
+/** True when the client's connection is closed within `ms`. */
+export function closesWithin(client: MqttClient, ms: number): Promise<boolean> {
+  return new Promise((resolve) => {
+    const timer = setTimeout(() => resolve(false), ms);
+    client.once("close", () => {
+      clearTimeout(timer);
+      resolve(true);
+    });
+  });
 }

@@ -47,7 +47,7 @@ describe("durability across kill -9", () => {
       .find((e: { tag: string }) => e.tag === "CH-1")
       .points.find((p: { key: string }) => p.key === "compressor_power").id;
 
-    const client = await connectGateway(server, gw, { clientId: "crash-test" });
+    const client = await connectGateway(server, gw);
     const base = Date.now() - 60_000;
     const acked = new Set<number>();
     const sent: number[] = [];
@@ -127,7 +127,7 @@ describe("durability across kill -9", () => {
     expect(c.accepted).toBe(c.rowCount);
 
     // The publisher resends every message it sent (acknowledged or not): nothing is stored twice.
-    const again = await connectGateway(server, gw, { clientId: "crash-test" });
+    const again = await connectGateway(server, gw);
     for (let i = 0; i < sent.length; i += 500) {
       const ts = sent.slice(i, i + 500);
       await again.publishAsync(

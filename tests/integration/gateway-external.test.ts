@@ -1,66 +1,136 @@
-import { spawn, type ChildProcess } from "node:child_process";
+import { execFileSync, spawn, type ChildProcess } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import mqtt, { type MqttClient } from "mqtt";
+import mqtt, { type IClientOptions, type MqttClient } from "mqtt";
 import { afterAll, describe, expect, it } from "vitest";
-import { freePort, startServer, type TestServer } from "../helpers/server";
-import { adminCookie, api, provisionGateway, putPointMap, readingsMessage, waitFor } from "../helpers/mqtt";
+import { freePort, ROOT, startServer, type TestServer } from "../helpers/server";
+import {
+  adminCookie,
+  api,
+  provisionGateway,
+  putPointMap,
+  readingsMessage,
+  waitFor,
+  type ProvisionedGateway,
+} from "../helpers/mqtt";
 
 // External broker mode against a real Mosquitto (Debian's /usr/sbin/mosquitto, installed by
-// .ci/run): Liftline keeps a persistent QoS 1 session, so readings published while it is
-// stopped arrive once it starts again.
+// .ci/run) running the configuration and ACL shipped in gateway/mosquitto/: Liftline keeps a
+// persistent QoS 1 session, so readings published while it is stopped arrive once it starts
+// again; a gateway can neither take over another's session nor publish on its topics.
 
 const MOSQUITTO = "/usr/sbin/mosquitto";
-const hasMosquitto = fs.existsSync(MOSQUITTO);
+const MOSQUITTO_PASSWD = "/usr/bin/mosquitto_passwd";
+const SHIPPED = path.join(ROOT, "gateway", "mosquitto");
+const hasMosquitto = fs.existsSync(MOSQUITTO) && fs.existsSync(MOSQUITTO_PASSWD);
 if (!hasMosquitto)
   console.warn(`\n*** SKIPPING external broker tests: ${MOSQUITTO} not found (apt-get install mosquitto) ***\n`);
 
 const SITE = "millbrook-high";
+const INGEST = { username: "liftline-ingest", password: "test-ingest-password" };
 let broker: ChildProcess | undefined;
+let brokerOut = "";
 let server: TestServer | undefined;
 let publisher: MqttClient | undefined;
+let admin = "";
+let url = "";
+let passwordFile = "";
+const clients: MqttClient[] = [];
 
 afterAll(async () => {
   publisher?.end(true);
+  for (const c of clients) c.end(true);
   await server?.stop();
   broker?.kill("SIGTERM");
 });
+
+/** gateway/mosquitto/liftline.conf with this test's listener, password file and directories. */
+function writeConfig(dir: string, port: number): string {
+  let conf = fs.readFileSync(path.join(SHIPPED, "liftline.conf"), "utf8");
+  const swaps: Array<[RegExp | string, string]> = [
+    [/^listener 1883$/m, `listener ${port} 127.0.0.1`],
+    ["/etc/mosquitto/liftline.passwd", passwordFile],
+    ["/etc/mosquitto/liftline.acl", path.join(SHIPPED, "liftline.acl")],
+    ["/var/lib/mosquitto/", `${dir}/`],
+  ];
+  for (const [from, to] of swaps) {
+    const next = conf.replace(from, to);
+    if (next === conf) throw new Error(`gateway/mosquitto/liftline.conf has no ${String(from)}`);
+    conf = next;
+  }
+  const file = path.join(dir, "mosquitto.conf");
+  fs.writeFileSync(file, conf);
+  return file;
+}
+
+/** Connects as the given user; undefined when refused or closed. */
+function tryConnect(creds: { username: string; password: string }, extra: IClientOptions = {}) {
+  return new Promise<MqttClient | undefined>((resolve) => {
+    const c = mqtt.connect(url, {
+      protocolVersion: 4,
+      reconnectPeriod: 0,
+      clientId: creds.username,
+      username: creds.username,
+      password: creds.password,
+      ...extra,
+    });
+    c.once("connect", () => resolve(c));
+    c.once("error", () => resolve(undefined));
+    c.once("close", () => resolve(undefined));
+  });
+}
+
+/** As provisioning would: the gateways' credentials into the password file, then a reload (SIGHUP). */
+async function allow(...gws: ProvisionedGateway[]) {
+  for (const gw of gws) execFileSync(MOSQUITTO_PASSWD, ["-b", passwordFile, gw.username, gw.password]);
+  fs.chmodSync(passwordFile, 0o644);
+  broker!.kill("SIGHUP");
+  const last = gws[gws.length - 1];
+  (await waitFor(() => tryConnect(last), 10_000, 200)).end(true);
+}
+
+async function connectAs(gw: ProvisionedGateway, extra: IClientOptions = {}): Promise<MqttClient> {
+  const c = await tryConnect(gw, extra);
+  if (!c) throw new Error(`${gw.username} could not connect`);
+  clients.push(c);
+  return c;
+}
+
+async function messagesOf(gw: ProvisionedGateway): Promise<number> {
+  return (await api(server!, admin, `/api/gateways/${gw.gateway.id}`)).body.gateway.counters.messages;
+}
 
 describe.skipIf(!hasMosquitto)("external broker mode (Mosquitto)", () => {
   it("stores readings through Mosquitto, including those published while Liftline was down", async () => {
     const port = await freePort();
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), "liftline-mosquitto-"));
-    fs.writeFileSync(
-      path.join(dir, "mosquitto.conf"),
-      [`listener ${port} 127.0.0.1`, "allow_anonymous true", "persistence false", "max_queued_messages 10000", ""].join(
-        "\n",
-      ),
-    );
-    broker = spawn(MOSQUITTO, ["-c", path.join(dir, "mosquitto.conf")], { stdio: ["ignore", "pipe", "pipe"] });
-    let brokerOut = "";
+    // Started as root, Mosquitto runs as its own user (its `user` option), which must read the
+    // password file and write its persistence here.
+    fs.chmodSync(dir, 0o777);
+    passwordFile = path.join(dir, "liftline.passwd");
+    execFileSync(MOSQUITTO_PASSWD, ["-c", "-b", passwordFile, INGEST.username, INGEST.password]);
+    fs.chmodSync(passwordFile, 0o644);
+    broker = spawn(MOSQUITTO, ["-c", writeConfig(dir, port)], { stdio: ["ignore", "pipe", "pipe"] });
     broker.stderr!.on("data", (d) => (brokerOut += d));
-    const url = `mqtt://127.0.0.1:${port}`;
-    publisher = await waitFor(
-      () =>
-        new Promise<MqttClient | undefined>((resolve) => {
-          const c = mqtt.connect(url, { protocolVersion: 4, reconnectPeriod: 0, clientId: "site-gateway" });
-          c.once("connect", () => resolve(c));
-          c.once("error", () => resolve(undefined));
-        }),
-      10_000,
-      200,
-    ).catch((err) => {
-      throw new Error(`mosquitto did not start: ${err}\n${brokerOut}`);
-    });
+    url = `mqtt://127.0.0.1:${port}`;
+    // Up once the ingest user can connect (before Liftline does, so this probe takes no session of its).
+    (
+      await waitFor(() => tryConnect(INGEST), 10_000, 200).catch((err) => {
+        throw new Error(`mosquitto did not start: ${err}\n${brokerOut}`);
+      })
+    ).end(true);
+    const env = { MQTT_URL: url, MQTT_USERNAME: INGEST.username, MQTT_PASSWORD: INGEST.password };
 
-    server = await startServer({ env: { MQTT_URL: url } });
+    server = await startServer({ env });
     expect(server.output()).toMatch(/MQTT broker mqtt:\/\/127\.0\.0\.1/);
     const health = await (await fetch(`${server.url}/api/health`)).json();
     expect(health.broker).toEqual({ mode: "external", up: true });
 
-    const admin = await adminCookie(server);
+    admin = await adminCookie(server);
     const gw = await provisionGateway(server, admin, { siteId: SITE, name: "Via Mosquitto" });
+    await allow(gw);
+    publisher = await connectAs(gw);
     expect(
       (
         await putPointMap(
@@ -115,7 +185,7 @@ describe.skipIf(!hasMosquitto)("external broker mode (Mosquitto)", () => {
       { qos: 1 },
     );
 
-    server = await startServer({ dataDir, env: { MQTT_URL: url } });
+    server = await startServer({ dataDir, env });
     const s = await waitFor(async () => {
       const r = await series();
       return r.time.includes(t3) && r;
@@ -124,4 +194,38 @@ describe.skipIf(!hasMosquitto)("external broker mode (Mosquitto)", () => {
     expect(s.avg).toEqual([111, 222, 333]);
     expect(server.output()).toMatch(/session resumed/);
   }, 300_000);
+
+  it("keeps each gateway to its own session and topics (gateway/mosquitto/liftline.acl)", async () => {
+    const a = await provisionGateway(server!, admin, { siteId: SITE, name: "Gateway A" });
+    const b = await provisionGateway(server!, admin, { siteId: "harborview-mob", name: "Gateway B" });
+    await allow(a, b);
+    const clientA = await connectAs(a);
+    let aClosed = false;
+    clientA.on("close", () => (aClosed = true));
+
+    // B claims A's client id; use_username_as_clientid names B's session after B's user name.
+    const clientB = await connectAs(b, { clientId: a.username });
+    await new Promise((r) => setTimeout(r, 500));
+    expect(aClosed).toBe(false);
+
+    const beforeA = await messagesOf(a);
+    const beforeB = await messagesOf(b);
+    // Denied by the ACL: not delivered to Liftline (a 3.1.1 publisher still gets its PUBACK).
+    await clientB.publishAsync(`liftline/${a.gateway.id}/readings`, readingsMessage([{ point: "KW", value: 9 }]), {
+      qos: 1,
+    });
+    // B's own topic, sent after it on the same connection, arrives: the denied one would have come first.
+    await clientB.publishAsync(`liftline/${b.gateway.id}/readings`, readingsMessage([{ point: "KW", value: 1 }]), {
+      qos: 1,
+    });
+    await waitFor(async () => (await messagesOf(b)) > beforeB, 30_000);
+    expect(await messagesOf(a)).toBe(beforeA);
+
+    // A's session is still A's.
+    await clientA.publishAsync(`liftline/${a.gateway.id}/readings`, readingsMessage([{ point: "KW", value: 2 }]), {
+      qos: 1,
+    });
+    await waitFor(async () => (await messagesOf(a)) > beforeA, 30_000);
+    expect(aClosed).toBe(false);
+  }, 120_000);
 });

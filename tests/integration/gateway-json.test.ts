@@ -200,11 +200,13 @@ describe("broker access control", () => {
   it("refuses a publish on another gateway's topic: connection closed, nothing stored, counted", async () => {
     const beforeA = await gatewayStatus(gwA);
     const beforeB = await gatewayStatus(gwB);
-    const c = await connectGateway(server, gwA, { clientId: "gw-a-intruder" });
+    // A's one connection (its client id is its gateway id) tries it, and connects again after.
+    const c = clientA;
     const gone = closed(c);
     c.publish(topicOf(gwB), readingsMessage([{ point: "CH1-KW", value: 1, ts: iso(Date.now() - 1000) }]), { qos: 1 });
     await gone; // MQTT 3.1.1 §3.3.5: no negative PUBACK exists, the server closes the connection
     c.end(true);
+    clientA = await connectGateway(server, gwA);
     const afterA = await waitFor(async () => {
       const s = await gatewayStatus(gwA);
       return (s.counters.rejected.foreign_topic ?? 0) > (beforeA.counters.rejected.foreign_topic ?? 0) && s;
@@ -232,7 +234,7 @@ describe("broker access control", () => {
   });
 
   it("keeps $SYS/ unwritable for gateways", async () => {
-    const c = await connectGateway(server, gwB, { clientId: "gw-b-sys" });
+    const c = await connectGateway(server, gwB);
     const gone = closed(c);
     c.publish("$SYS/broker/fake", "x", { qos: 1 });
     await gone;

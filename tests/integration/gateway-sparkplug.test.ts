@@ -1,4 +1,4 @@
-import mqtt from "mqtt";
+import type { MqttClient } from "mqtt";
 import sparkplugPayload from "sparkplug-payload";
 import { newClient } from "sparkplug-client";
 
@@ -71,7 +71,8 @@ describe("Sparkplug B edge node", () => {
       password: gw.password,
       groupId: "millbrook",
       edgeNode: "plant-edge-1",
-      clientId: "plant-edge-1",
+      // gateway/PROTOCOL.md: the client id is the gateway id (the user name).
+      clientId: gw.username,
       version: "spBv1.0",
     });
     await new Promise<void>((resolve) => node.on("birth", () => resolve()));
@@ -114,19 +115,10 @@ describe("Sparkplug B edge node", () => {
   });
 
   it("answers a seq gap with an NCMD Node Control/Rebirth", async () => {
-    // A second client of the same node listens for its commands (the broker lets the node's credentials subscribe there).
-    const listener = mqtt.connect(server.mqttUrl, {
-      username: gw.username,
-      password: gw.password,
-      clientId: "plant-edge-1-cmd",
-      protocolVersion: 4,
-    });
-    await new Promise<void>((resolve) => listener.once("connect", () => resolve()));
-    await listener.subscribeAsync("spBv1.0/millbrook/NCMD/plant-edge-1", { qos: 0 });
+    // The node's own session hears its commands (sparkplug-client subscribes to NCMD); a gateway
+    // has one connection, its client id being its gateway id.
     const command = new Promise<{ name: string; value: unknown }[]>((resolve) =>
-      listener.on("message", (_topic, payload) =>
-        resolve(codec.decodePayload(new Uint8Array(payload)).metrics as { name: string; value: unknown }[]),
-      ),
+      node.once("ncmd", (payload) => resolve(payload.metrics as { name: string; value: unknown }[])),
     );
     // Skip two sequence numbers (§6.4.5: seq must increase by one per message).
     // sparkplug-client keeps its counter private; reach it the way a faulty node would skip.
@@ -139,17 +131,16 @@ describe("Sparkplug B edge node", () => {
     });
     const metrics = await command;
     expect(metrics).toEqual([expect.objectContaining({ name: "Node Control/Rebirth", value: true })]);
-    listener.end(true);
   });
 
   it("marks the node offline on an NDEATH whose bdSeq matches the birth (§6.4.7), while it is still connected", async () => {
-    const stale = mqtt.connect(server.mqttUrl, {
-      username: gw.username,
-      password: gw.password,
-      clientId: "plant-edge-1-death",
-      protocolVersion: 4,
-    });
-    await new Promise<void>((resolve) => stale.once("connect", () => resolve()));
+    // The NDEATHs go out on the node's own connection, which stays up (sparkplug-client's own
+    // mqtt.js has no publishAsync).
+    const own = (node as unknown as { client: MqttClient }).client;
+    const publishOwn = (topic: string, payload: Buffer) =>
+      new Promise<void>((resolve, reject) =>
+        own.publish(topic, payload, { qos: 1 }, (e) => (e ? reject(e) : resolve())),
+      );
     const death = (bdSeq: number) =>
       Buffer.from(
         codec.encodePayload({ timestamp: Date.now(), metrics: [{ name: "bdSeq", type: "UInt64", value: bdSeq }] }),
@@ -158,14 +149,13 @@ describe("Sparkplug B edge node", () => {
     await waitFor(async () => (await statusOf()).online);
 
     // An NDEATH of an older session (bdSeq 7; the birth carried sparkplug-client's 0) is ignored.
-    await stale.publishAsync("spBv1.0/millbrook/NDEATH/plant-edge-1", death(7), { qos: 1 });
+    await publishOwn("spBv1.0/millbrook/NDEATH/plant-edge-1", death(7));
     expect((await statusOf()).online).toBe(true);
 
-    await stale.publishAsync("spBv1.0/millbrook/NDEATH/plant-edge-1", death(0), { qos: 1 });
+    await publishOwn("spBv1.0/millbrook/NDEATH/plant-edge-1", death(0));
     const s = await statusOf();
     expect(s.state).toBe("offline");
     expect(s.online).toBe(false);
     expect((node as unknown as { connected: boolean }).connected).toBe(true);
-    stale.end(true);
   });
 });
