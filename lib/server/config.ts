@@ -10,6 +10,18 @@ const flag = (fallback: boolean) =>
 
 const port = (fallback: number) => z.coerce.number().int().min(0).max(65535).default(fallback);
 
+/** A comma-separated list of http(s) URLs, kept as their origins (scheme, host and port). */
+const originList = z
+  .string()
+  .default("")
+  .transform((v) =>
+    v
+      .split(",")
+      .map((s) => s.trim())
+      .filter(Boolean),
+  )
+  .pipe(z.array(z.url({ protocol: /^https?$/ }).transform((u) => new URL(u).origin)));
+
 export const configSchema = z.object({
   NODE_ENV: z.enum(["development", "production", "test"]).default("production"),
   HOST: z.string().min(1).default("0.0.0.0"),
@@ -44,6 +56,8 @@ export const configSchema = z.object({
   MQTT_CLIENT_ID: z.string().min(1).max(23).default("liftline-ingest"),
   MQTT_USERNAME: z.string().min(1).optional(),
   MQTT_PASSWORD: z.string().min(1).optional(),
+  /** Origins besides NEXTAUTH_URL's that browsers may send state-changing requests from. */
+  ALLOWED_ORIGINS: originList,
 });
 
 export type Config = z.infer<typeof configSchema>;

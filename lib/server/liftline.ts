@@ -13,7 +13,7 @@ import { buildIfNeeded } from "./build";
 import type { Config } from "./config";
 import { createLivePublisher } from "./realtime/live";
 import { createRealtimeServer } from "./realtime/server";
-import { setDb, setRuntime } from "./runtime";
+import { allowedOrigins, setDb, setRuntime } from "./runtime";
 import { resolveAuthSecret } from "./secret";
 import { createSimulationManager, type SimulationManager } from "./simulation/manager";
 
@@ -71,7 +71,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     if (req.url?.startsWith("/socket.io/")) return; // socket.io's own listener takes these
     void handleUpgrade(req, socket, head);
   });
-  const io = createRealtimeServer(httpServer, { db, secret: authSecret });
+  const io = createRealtimeServer(httpServer, { db, secret: authSecret, allowedOrigins: allowedOrigins() });
 
   const boardAlarms = createBoardAlarmSummary(db, systemViewer(SERVICE_ORG.id));
   const live = createLivePublisher({

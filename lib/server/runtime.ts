@@ -5,6 +5,7 @@ import { AppError } from "@/lib/errors";
 import type { AlarmService } from "./alarms/service";
 import type { Escalator } from "./alarms/escalation";
 import { loadConfig } from "./config";
+import { allowedOriginsOf } from "./origin";
 import type { LatestInMemory } from "@/db/queries/readings";
 import type { SimulationManager } from "./simulation/manager";
 
@@ -37,6 +38,7 @@ interface Registry {
   db?: Db;
   runtime?: Runtime;
   signInLimiter?: SignInLimiter;
+  allowedOrigins?: ReadonlySet<string>;
 }
 
 const registry: Registry = ((globalThis as { __liftline?: Registry }).__liftline ??= {});
@@ -77,4 +79,9 @@ export function signInLimiter(): SignInLimiter {
     });
   }
   return registry.signInLimiter;
+}
+
+/** The origins browsers may send state-changing requests from (NEXTAUTH_URL's and ALLOWED_ORIGINS). */
+export function allowedOrigins(): ReadonlySet<string> {
+  return (registry.allowedOrigins ??= allowedOriginsOf(loadConfig()));
 }
