@@ -15,6 +15,7 @@ import { createLivePublisher } from "./realtime/live";
 import { createRealtimeServer } from "./realtime/server";
 import { allowedOrigins, setDb, setRuntime } from "./runtime";
 import { resolveAuthSecret } from "./secret";
+import { applySecurityHeaders, securityHeaders, type SecurityHeaderOptions } from "./security-headers";
 import { createSimulationManager, type SimulationManager } from "./simulation/manager";
 
 // Liftline's one process: the web app (Next), live updates (socket.io), the MQTT gateway side,
@@ -63,15 +64,21 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   const handle = app.getRequestHandler();
   const handleUpgrade = app.getUpgradeHandler();
 
+  const origins = allowedOrigins();
+  const headerOptions: SecurityHeaderOptions = { dev, https: publicUrl.startsWith("https:"), origins: [...origins] };
   const httpServer = createServer((req, res) => {
     stampClientAddress(req);
+    applySecurityHeaders(req, res, headerOptions);
     void handle(req, res);
   });
   httpServer.on("upgrade", (req, socket, head) => {
     if (req.url?.startsWith("/socket.io/")) return; // socket.io's own listener takes these
     void handleUpgrade(req, socket, head);
   });
-  const io = createRealtimeServer(httpServer, { db, secret: authSecret, allowedOrigins: allowedOrigins() });
+  const io = createRealtimeServer(httpServer, { db, secret: authSecret, allowedOrigins: origins });
+  // socket.io answers its polling requests itself, before the handler above; they carry no page.
+  const { "content-security-policy": _csp, ...pollingHeaders } = securityHeaders("", headerOptions);
+  io.engine.on("headers", (headers: Record<string, string>) => Object.assign(headers, pollingHeaders));
 
   const boardAlarms = createBoardAlarmSummary(db, systemViewer(SERVICE_ORG.id));
   const live = createLivePublisher({
