@@ -1,16 +1,24 @@
 import { ZodError, type z } from "zod";
 import { AppError, isAppError } from "@/lib/errors";
 import { crossSiteRefusal } from "./origin";
-import { allowedOrigins } from "./runtime";
+import { rateLimitRefusal, type RateLimitKind } from "./rate-limit";
+import { allowedOrigins, apiRateLimiter } from "./runtime";
 
 // Every route handler goes through `route()`: one place turns thrown errors into
 // the shared error body, so no handler can leak a stack trace or forget a status.
 type Handler<C> = (request: Request, context: C) => Promise<Response>;
 
-export function route<C>(handler: Handler<C>): Handler<C> {
+export interface RouteOptions {
+  /** Counts a read against a per-caller limit; writes (POST/PUT/PATCH/DELETE) are always counted. */
+  rateLimit?: RateLimitKind;
+}
+
+export function route<C>(handler: Handler<C>, opts: RouteOptions = {}): Handler<C> {
   return async (request, context) => {
     try {
-      const refusal = crossSiteRefusal(request, allowedOrigins());
+      const refusal =
+        crossSiteRefusal(request, allowedOrigins()) ??
+        (await rateLimitRefusal(request, opts.rateLimit, apiRateLimiter()));
       if (refusal) return refusal;
       return await handler(request, context);
     } catch (err) {

@@ -1,4 +1,4 @@
-import { createServer, type IncomingMessage } from "node:http";
+import { createServer, type IncomingMessage, type ServerOptions } from "node:http";
 import path from "node:path";
 import next from "next";
 import { migrateDb, openDb, type Db } from "@/db/client";
@@ -66,7 +66,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
 
   const origins = allowedOrigins();
   const headerOptions: SecurityHeaderOptions = { dev, https: publicUrl.startsWith("https:"), origins: [...origins] };
-  const httpServer = createServer((req, res) => {
+  const httpServer = createServer(httpServerOptions(config), (req, res) => {
     stampClientAddress(req);
     applySecurityHeaders(req, res, headerOptions);
     void handle(req, res);
@@ -188,6 +188,21 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   }
 
   return { url: publicUrl, httpPort, mqttPort: gatewaySide.mqttPort, db, close: () => (closing ??= close()) };
+}
+
+/**
+ * A connection that sends nothing, or sends its request slowly, is closed after the configured
+ * time instead of holding a socket (CWE-400). The timeouts cover receiving a request only: a long
+ * trend answer or a socket.io upgrade (taken off the HTTP parser) is not cut short.
+ */
+function httpServerOptions(config: Config): ServerOptions {
+  return {
+    headersTimeout: config.HTTP_HEADERS_TIMEOUT_MS,
+    requestTimeout: config.HTTP_REQUEST_TIMEOUT_MS,
+    keepAliveTimeout: config.HTTP_KEEP_ALIVE_TIMEOUT_MS,
+    // Node checks the first two only this often (30 s by default), which would stretch them.
+    connectionsCheckingInterval: Math.min(1000, config.HTTP_HEADERS_TIMEOUT_MS),
+  };
 }
 
 function stampClientAddress(req: IncomingMessage) {
