@@ -1,4 +1,5 @@
 import type { Metadata, Viewport } from "next";
+import { connection } from "next/server";
 import "@fontsource/inter/400.css";
 import "@fontsource/inter/600.css";
 import "./globals.css";
@@ -10,7 +11,9 @@ export const metadata: Metadata = {
 
 export const viewport: Viewport = { width: "device-width", initialScale: 1 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  // Rendered per request, so the scripts carry that response's CSP nonce (lib/server/security-headers.ts).
+  await connection();
   return (
     <html lang="en">
       <body className="min-h-screen bg-surface text-ink antialiased">{children}</body>

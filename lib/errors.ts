@@ -7,6 +7,7 @@ export const errorStatus = {
   not_found: 404,
   conflict: 409,
   payload_too_large: 413,
+  unsupported_media_type: 415,
   rate_limited: 429,
   internal: 500,
   unavailable: 503,

@@ -10,6 +10,20 @@ const flag = (fallback: boolean) =>
 
 const port = (fallback: number) => z.coerce.number().int().min(0).max(65535).default(fallback);
 
+const ms = (fallback: number) => z.coerce.number().int().min(100).max(3_600_000).default(fallback);
+
+/** A comma-separated list of http(s) URLs, kept as their origins (scheme, host and port). */
+const originList = z
+  .string()
+  .default("")
+  .transform((v) =>
+    v
+      .split(",")
+      .map((s) => s.trim())
+      .filter(Boolean),
+  )
+  .pipe(z.array(z.url({ protocol: /^https?$/ }).transform((u) => new URL(u).origin)));
+
 export const configSchema = z.object({
   NODE_ENV: z.enum(["development", "production", "test"]).default("production"),
   HOST: z.string().min(1).default("0.0.0.0"),
@@ -44,12 +58,27 @@ export const configSchema = z.object({
   MQTT_CLIENT_ID: z.string().min(1).max(23).default("liftline-ingest"),
   MQTT_USERNAME: z.string().min(1).optional(),
   MQTT_PASSWORD: z.string().min(1).optional(),
+  /** Origins besides NEXTAUTH_URL's that browsers may send state-changing requests from. */
+  ALLOWED_ORIGINS: originList,
+  /** Writes (POST/PUT/PATCH/DELETE) and trend requests per minute, per API token or signed-in user. */
+  API_WRITES_PER_MIN: z.coerce.number().int().min(1).default(120),
+  API_TRENDS_PER_MIN: z.coerce.number().int().min(1).default(600),
+  /** How long the HTTP server waits for a request's headers, for all of it, and on an idle kept-alive connection. */
+  HTTP_HEADERS_TIMEOUT_MS: ms(10_000),
+  HTTP_REQUEST_TIMEOUT_MS: ms(30_000),
+  HTTP_KEEP_ALIVE_TIMEOUT_MS: ms(5_000),
+});
+
+// Node's http server refuses a headers timeout longer than the request timeout; say so by name.
+const checkedConfigSchema = configSchema.refine((c) => c.HTTP_HEADERS_TIMEOUT_MS <= c.HTTP_REQUEST_TIMEOUT_MS, {
+  message: "HTTP_HEADERS_TIMEOUT_MS must not exceed HTTP_REQUEST_TIMEOUT_MS",
+  path: ["HTTP_HEADERS_TIMEOUT_MS"],
 });
 
 export type Config = z.infer<typeof configSchema>;
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
-  const parsed = configSchema.safeParse(env);
+  const parsed = checkedConfigSchema.safeParse(env);
   if (!parsed.success) {
     const lines = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`);
     throw new Error(`Invalid configuration:\n${lines.join("\n")}`);

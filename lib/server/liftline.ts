@@ -1,4 +1,4 @@
-import { createServer, type IncomingMessage } from "node:http";
+import { createServer, type IncomingMessage, type ServerOptions } from "node:http";
 import path from "node:path";
 import next from "next";
 import { migrateDb, openDb, type Db } from "@/db/client";
@@ -13,8 +13,9 @@ import { buildIfNeeded } from "./build";
 import type { Config } from "./config";
 import { createLivePublisher } from "./realtime/live";
 import { createRealtimeServer } from "./realtime/server";
-import { setDb, setRuntime } from "./runtime";
+import { allowedOrigins, setDb, setRuntime } from "./runtime";
 import { resolveAuthSecret } from "./secret";
+import { applySecurityHeaders, securityHeaders, type SecurityHeaderOptions } from "./security-headers";
 import { createSimulationManager, type SimulationManager } from "./simulation/manager";
 
 // Liftline's one process: the web app (Next), live updates (socket.io), the MQTT gateway side,
@@ -63,15 +64,21 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   const handle = app.getRequestHandler();
   const handleUpgrade = app.getUpgradeHandler();
 
-  const httpServer = createServer((req, res) => {
+  const origins = allowedOrigins();
+  const headerOptions: SecurityHeaderOptions = { dev, https: publicUrl.startsWith("https:"), origins: [...origins] };
+  const httpServer = createServer(httpServerOptions(config), (req, res) => {
     stampClientAddress(req);
+    applySecurityHeaders(req, res, headerOptions);
     void handle(req, res);
   });
   httpServer.on("upgrade", (req, socket, head) => {
     if (req.url?.startsWith("/socket.io/")) return; // socket.io's own listener takes these
     void handleUpgrade(req, socket, head);
   });
-  const io = createRealtimeServer(httpServer, { db, secret: authSecret });
+  const io = createRealtimeServer(httpServer, { db, secret: authSecret, allowedOrigins: origins });
+  // socket.io answers its polling requests itself, before the handler above; they carry no page.
+  const { "content-security-policy": _csp, ...pollingHeaders } = securityHeaders("", headerOptions);
+  io.engine.on("headers", (headers: Record<string, string>) => Object.assign(headers, pollingHeaders));
 
   const boardAlarms = createBoardAlarmSummary(db, systemViewer(SERVICE_ORG.id));
   const live = createLivePublisher({
@@ -181,6 +188,21 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   }
 
   return { url: publicUrl, httpPort, mqttPort: gatewaySide.mqttPort, db, close: () => (closing ??= close()) };
+}
+
+/**
+ * A connection that sends nothing, or sends its request slowly, is closed after the configured
+ * time instead of holding a socket (CWE-400). The timeouts cover receiving a request only: a long
+ * trend answer or a socket.io upgrade (taken off the HTTP parser) is not cut short.
+ */
+function httpServerOptions(config: Config): ServerOptions {
+  return {
+    headersTimeout: config.HTTP_HEADERS_TIMEOUT_MS,
+    requestTimeout: config.HTTP_REQUEST_TIMEOUT_MS,
+    keepAliveTimeout: config.HTTP_KEEP_ALIVE_TIMEOUT_MS,
+    // Node checks the first two only this often (30 s by default), which would stretch them.
+    connectionsCheckingInterval: Math.min(1000, config.HTTP_HEADERS_TIMEOUT_MS),
+  };
 }
 
 function stampClientAddress(req: IncomingMessage) {

@@ -5,6 +5,8 @@ import { AppError } from "@/lib/errors";
 import type { AlarmService } from "./alarms/service";
 import type { Escalator } from "./alarms/escalation";
 import { loadConfig } from "./config";
+import { allowedOriginsOf } from "./origin";
+import { createApiRateLimiter, type ApiRateLimiter } from "./rate-limit";
 import type { LatestInMemory } from "@/db/queries/readings";
 import type { SimulationManager } from "./simulation/manager";
 
@@ -37,6 +39,8 @@ interface Registry {
   db?: Db;
   runtime?: Runtime;
   signInLimiter?: SignInLimiter;
+  apiRateLimiter?: ApiRateLimiter;
+  allowedOrigins?: ReadonlySet<string>;
 }
 
 const registry: Registry = ((globalThis as { __liftline?: Registry }).__liftline ??= {});
@@ -77,4 +81,21 @@ export function signInLimiter(): SignInLimiter {
     });
   }
   return registry.signInLimiter;
+}
+
+/** Writes and trend reads per API token and per signed-in user, counted across the process. */
+export function apiRateLimiter(): ApiRateLimiter {
+  if (!registry.apiRateLimiter) {
+    const config = loadConfig();
+    registry.apiRateLimiter = createApiRateLimiter({
+      writesPerMin: config.API_WRITES_PER_MIN,
+      trendsPerMin: config.API_TRENDS_PER_MIN,
+    });
+  }
+  return registry.apiRateLimiter;
+}
+
+/** The origins browsers may send state-changing requests from (NEXTAUTH_URL's and ALLOWED_ORIGINS). */
+export function allowedOrigins(): ReadonlySet<string> {
+  return (registry.allowedOrigins ??= allowedOriginsOf(loadConfig()));
 }

@@ -350,7 +350,10 @@ async function main() {
   try {
     const { cookie } = await signIn(server.url, "admin@tallgrass.example");
     // The measuring browser: site pages of a sample of plants, each in its own room.
-    const socket = ioClient(server.url, { extraHeaders: { cookie: cookie! }, transports: ["websocket"] });
+    const socket = ioClient(server.url, {
+      extraHeaders: { cookie: cookie!, origin: server.url },
+      transports: ["websocket"],
+    });
     await new Promise<void>((resolve, reject) => {
       socket.once("connect", () => resolve());
       socket.once("connect_error", reject);

@@ -31,7 +31,7 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     const admin = await signIn(env.server.url, "admin@tallgrass.example");
     const start = await fetch(`${env.server.url}/api/simulator/${SITE}`, {
       method: "POST",
-      headers: { cookie: admin.cookie!, "content-type": "application/json" },
+      headers: { cookie: admin.cookie!, origin: env.server.url, "content-type": "application/json" },
       body: JSON.stringify({ scenario: "power-blip", speed: 120 }),
     });
     expect(start.status).toBe(200);

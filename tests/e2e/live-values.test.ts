@@ -50,7 +50,10 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
 
   it("a customer's socket cannot join another customer's site room", async () => {
     const { cookie } = await signIn(env.server.url, "facilities@harborview.example");
-    const socket = io(env.server.url, { extraHeaders: { cookie: cookie! }, transports: ["websocket"] });
+    const socket = io(env.server.url, {
+      extraHeaders: { cookie: cookie!, origin: env.server.url },
+      transports: ["websocket"],
+    });
     await new Promise<void>((resolve, reject) => {
       socket.once("connect", () => resolve());
       socket.once("connect_error", reject);
@@ -80,7 +83,10 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
       ).status,
     ).toBe(200);
     const connect = async () => {
-      const socket = io(env.server.url, { extraHeaders: { cookie }, transports: ["websocket"] });
+      const socket = io(env.server.url, {
+        extraHeaders: { cookie, origin: env.server.url },
+        transports: ["websocket"],
+      });
       await new Promise<void>((resolve, reject) => {
         socket.once("connect", () => resolve());
         socket.once("connect_error", reject);

@@ -30,7 +30,11 @@ export async function api(
   path: string,
   init: RequestInit = {},
 ): Promise<{ status: number; body: JsonBody }> {
-  const res = await fetch(`${server.url}${path}`, { ...init, headers: { cookie, ...(init.headers ?? {}) } });
+  // A cookie-authenticated request names its page's origin, as a browser's does (lib/server/origin.ts).
+  const res = await fetch(`${server.url}${path}`, {
+    ...init,
+    headers: { cookie, origin: server.url, ...(init.headers ?? {}) },
+  });
   const text = await res.text();
   let body: unknown = text;
   try {
@@ -178,4 +182,48 @@ export function closesWithin(client: MqttClient, ms: number): Promise<boolean> {
       resolve(true);
     });
   });
+}
+
+/**
+ * Publishes a latched chiller alarm for `tag` through a fresh gateway and returns the id of the
+ * alarm the rules raise (`cookie` must be an admin's: it provisions the gateway).
+ */
+export async function raiseChillerTrip(
+  server: TestServer,
+  cookie: string,
+  siteId: string,
+  tag: string,
+  fault: string,
+): Promise<string> {
+  const gw = await provisionGateway(server, cookie, { siteId });
+  const p = tag.replace("-", "");
+  const csv = `gateway_point,equipment,quantity,unit\n${p}-ALM,${tag},chiller_alarm,bool\n${p}-FAULT,${tag},fault_text,text\n${p}-RUN,${tag},run_status,bool\n`;
+  const map = await putPointMap(server, cookie, gw.gateway.id, csv);
+  if (map.status !== 200) throw new Error(`point map refused: ${map.status} ${JSON.stringify(map.body)}`);
+  const client = await connectGateway(server, gw);
+  // Two samples 10 s apart: the rules evaluate every 5 s of event time.
+  const t0 = Date.now() - 20_000;
+  for (const [i, ts] of [t0, t0 + 10_000].entries()) {
+    const at = new Date(ts).toISOString();
+    const readings = [
+      { point: `${p}-ALM`, value: true, ts: at },
+      { point: `${p}-FAULT`, value: fault, ts: at },
+      { point: `${p}-RUN`, value: false, ts: at },
+    ];
+    await client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ seq: i, sentAt: at, readings }), {
+      qos: 1,
+    });
+  }
+  await client.endAsync();
+  return waitFor(
+    async () => {
+      const { body } = await api(server, cookie, `/api/alarms?site=${siteId}`);
+      const found = (body.alarms as Array<{ id: string; ruleId: string; equipment: string }> | undefined)?.find(
+        (a) => a.ruleId === "chiller_tripped" && a.equipment === tag,
+      );
+      return found?.id;
+    },
+    10_000,
+    200,
+  );
 }

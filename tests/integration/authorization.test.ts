@@ -20,7 +20,10 @@ const OTHER_SITE = "quarry-ridge-dh2"; // another customer's
 async function call(who: Who | { bearer: string }, path: string, init: RequestInit = {}): Promise<Response> {
   const headers = new Headers(init.headers);
   if (typeof who === "object") headers.set("authorization", `Bearer ${who.bearer}`);
-  else if (who !== "anonymous") headers.set("cookie", cookies[who]);
+  else if (who !== "anonymous") {
+    headers.set("cookie", cookies[who]);
+    headers.set("origin", server.url); // as a browser's page would (lib/server/origin.ts)
+  }
   const res = await fetch(server.url + path, { ...init, headers, redirect: "manual" });
   const text = await res.clone().text();
   bodies.push(text);

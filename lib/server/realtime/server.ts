@@ -5,6 +5,7 @@ import type { Db } from "@/db/client";
 import { canSeeSite, visibleSiteIds } from "@/db/queries/sites";
 import { getViewerById } from "@/db/queries/users";
 import { SESSION_COOKIES } from "@/lib/auth/session";
+import { isCrossSite, provenanceOf } from "../origin";
 import type { Viewer } from "@/lib/auth/viewer";
 import {
   boardRoom,
@@ -44,7 +45,10 @@ export async function viewerFromCookie(
   return null;
 }
 
-export function createRealtimeServer(httpServer: HttpServer, deps: { db: Db; secret: string }): RealtimeServer {
+export function createRealtimeServer(
+  httpServer: HttpServer,
+  deps: { db: Db; secret: string; allowedOrigins: ReadonlySet<string> },
+): RealtimeServer {
   const io: RealtimeServer = new Server(httpServer, {
     // Other upgrade requests (Next's dev reload socket) are passed on, not cut off.
     destroyUpgrade: false,
@@ -52,6 +56,8 @@ export function createRealtimeServer(httpServer: HttpServer, deps: { db: Db; sec
   });
 
   io.use(async (socket, next) => {
+    // The handshake carries the session cookie: only Liftline's own pages may open it (OWASP ASVS 5.0 §4.4.2).
+    if (isCrossSite(provenanceOf(socket.handshake.headers), deps.allowedOrigins)) return next(new Error("forbidden"));
     const viewer = await viewerFromCookie(deps.db, socket.handshake.headers.cookie, deps.secret);
     if (!viewer) return next(new Error("unauthorized"));
     socket.data.viewer = viewer;
