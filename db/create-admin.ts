@@ -7,14 +7,15 @@ import { createInterface } from "node:readline/promises";
 import { parseArgs } from "node:util";
 import { eq } from "drizzle-orm";
 import { z } from "zod";
+import { safeText } from "@/lib/schemas/text";
 import { migrateDb, openDb } from "./client";
 import { createUser } from "./queries/users";
 import { organizations } from "./schema";
 
 const argsSchema = z.object({
   email: z.email("--email must be an e-mail address"),
-  name: z.string().min(1, "--name is required"),
-  organization: z.string().min(1, "--organization is required"),
+  name: safeText(z.string().trim().min(1, "--name is required").max(100)),
+  organization: safeText(z.string().trim().min(1, "--organization is required").max(100)),
   password: z.string().min(12, "the password must be at least 12 characters"),
 });
 

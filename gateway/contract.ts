@@ -35,6 +35,7 @@ export const rejectionReasons = [
   "sparkplug_no_birth", // message: DATA before any BIRTH (a rebirth is requested)
   "invalid_reading", // reading: wrong shape or type
   "wrong_type", // reading: a value the mapped point cannot hold (text for a temperature)
+  "out_of_range", // reading: a number outside its measure's plausible range (lib/quantities.ts)
   "future_timestamp", // reading: more than 5 minutes ahead of the server clock
   "too_old", // reading: older than raw retention
   "unmapped_point", // reading: the point map has no such name (also listed by name)

@@ -1,5 +1,6 @@
 import type { IngestGateway, IngestPoint } from "@/db/queries/gateways";
 import type { Clock } from "@/lib/clock";
+import { isPlausible } from "@/lib/quantities";
 import { toCanonical } from "@/lib/units";
 import {
   fastReading,
@@ -63,12 +64,18 @@ const numericMeasures = new Set([
 ]);
 
 /** A value checked against the point it maps to, in canonical units; or why not. */
-export function toRow(point: IngestPoint, value: unknown, ts: number, quality: 0 | 1 | 2): RowIn | "wrong_type" {
+export function toRow(
+  point: IngestPoint,
+  value: unknown,
+  ts: number,
+  quality: 0 | 1 | 2,
+): RowIn | "wrong_type" | "out_of_range" {
   // One object literal per row (no spread of a shared base): this runs for every reading.
   if (numericMeasures.has(point.measure)) {
     if (typeof value !== "number" || !Number.isFinite(value)) return "wrong_type";
     const v = toCanonical(value, point.unit);
     if (!Number.isFinite(v)) return "wrong_type";
+    if (!isPlausible(point.measure, v)) return "out_of_range";
     return { pointId: point.pointId, siteId: point.siteId, ts, quality, value: v, text: null, live: v };
   }
   if (point.measure === "boolean") {
@@ -134,7 +141,7 @@ export function createIngest(deps: IngestDeps): Ingest {
     if (ts > now + MAX_FUTURE_MS) return bump(batch, "future_timestamp");
     if (ts < now - deps.rawRetentionMs) return bump(batch, "too_old");
     const row = toRow(point, value, ts, quality);
-    if (row === "wrong_type") bump(batch, "wrong_type");
+    if (typeof row === "string") bump(batch, row);
     else batch.rows.push(row);
   }
 

@@ -1,6 +1,7 @@
 import Papa from "papaparse";
 import { z } from "zod";
 import { isQuantityKey, quantities, type QuantityKey } from "@/lib/quantities";
+import { safeText } from "@/lib/schemas/text";
 import { isWireUnit, unitFits, wireUnitCodes, type WireUnitCode } from "@/lib/units";
 
 // Point-map CSV: `gateway_point,equipment,quantity,unit`, one row per gateway point.
@@ -32,12 +33,14 @@ export interface LineError {
 
 const rowSchema = z
   .object({
-    gateway_point: z
-      .string()
-      .trim()
-      .min(1, "gateway_point is empty")
-      .max(MAX_POINT_NAME, `gateway_point is longer than ${MAX_POINT_NAME} characters`),
-    equipment: z.string().trim().min(1, "equipment is empty").max(64),
+    gateway_point: safeText(
+      z
+        .string()
+        .trim()
+        .min(1, "gateway_point is empty")
+        .max(MAX_POINT_NAME, `gateway_point is longer than ${MAX_POINT_NAME} characters`),
+    ),
+    equipment: safeText(z.string().trim().min(1, "equipment is empty").max(64)),
     quantity: z
       .string()
       .trim()

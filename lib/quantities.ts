@@ -33,6 +33,37 @@ export const canonicalUnits: Record<Measure, string> = {
   text: "text",
 };
 
+/**
+ * Bounds, in canonical units, outside which a number is no measurement of a chilled-water plant
+ * but a broken sensor, a sentinel or garbage (±1e308 for a percentage). Ingestion refuses such
+ * readings (counted as `out_of_range`, gateway/PROTOCOL.md) rather than storing them.
+ * Wide on purpose: a reading inside can still be wrong, but nothing plausible falls outside.
+ */
+export const plausibleRanges = {
+  // Below the lowest air temperature on record (−89.2 °C, WMO Weather and Climate Extremes
+  // Archive); above anything a water-cooled plant's water, refrigerant or drive reaches (common practice).
+  temperature: { min: -90, max: 200 },
+  // Absolute pressure cannot be negative; 20 MPa is above the highest working pressure of any
+  // chiller refrigerant, CO2 included (common practice).
+  pressure: { min: 0, max: 20_000 },
+  differential_pressure: { min: -1000, max: 1000 },
+  // Flow and power may read slightly negative around zero (meter offset, regeneration).
+  flow: { min: -10_000, max: 10_000 },
+  power: { min: -100_000, max: 100_000 },
+  // Positions, speeds and humidity are 0–100 %; calibration can take them a little past either end.
+  percent: { min: -10, max: 150 },
+  frequency: { min: 0, max: 1000 },
+  // Timers and time left: a week is far beyond any anti-recycle setting.
+  duration: { min: 0, max: 7 * 24 * 3600 },
+} as const satisfies Partial<Record<Measure, { min: number; max: number }>>;
+
+/** True for a finite number within the measure's plausible range (measures without one: any finite number). */
+export function isPlausible(measure: Measure, value: number): boolean {
+  if (!Number.isFinite(value)) return false;
+  const range = (plausibleRanges as Partial<Record<Measure, { min: number; max: number }>>)[measure];
+  return range === undefined || (value >= range.min && value <= range.max);
+}
+
 export type EquipmentKind = "chiller" | "cooling_tower" | "pump" | "air_handler" | "weather_station";
 
 export interface QuantityDef {

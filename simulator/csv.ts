@@ -2,17 +2,15 @@
 import { equipmentOf, type SiteLayout } from "./layout";
 import { formatWireValue, pointName, wireUnitOf } from "./points";
 import type { RunSample, SimEvent } from "./run";
+import { csvCell } from "@/lib/csv";
 import type { EquipmentKind } from "@/lib/quantities";
 
 export const csvHeader = "ts,point,value,unit";
 
-function csvField(s: string): string {
-  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
-/** Events are CSV comment lines: `# event,<ISO ts>,<kind>,<equipment or ->,<message>`. */
+/** Events are CSV comment lines: `# event,<ISO ts>,<kind>,<equipment or ->,<message>` (the `-` is ours, not data). */
 export function eventLine(e: SimEvent): string {
-  return `# event,${new Date(e.tsMs).toISOString()},${e.kind},${e.equipment ?? "-"},${csvField(e.message)}`;
+  const equipment = e.equipment ? csvCell(e.equipment) : "-";
+  return `# event,${new Date(e.tsMs).toISOString()},${csvCell(e.kind)},${equipment},${csvCell(e.message)}`;
 }
 
 export function csvLinesOfSample(sample: RunSample, kindOf: Map<string, EquipmentKind>, withEvents: boolean): string[] {
@@ -23,7 +21,7 @@ export function csvLinesOfSample(sample: RunSample, kindOf: Map<string, Equipmen
     const kind = kindOf.get(r.equipment);
     if (!kind) continue;
     lines.push(
-      `${ts},${pointName(r.equipment, kind, r.quantity)},${csvField(formatWireValue(r.quantity, r.value))},${wireUnitOf(r.quantity)}`,
+      `${ts},${csvCell(pointName(r.equipment, kind, r.quantity))},${csvCell(formatWireValue(r.quantity, r.value))},${csvCell(wireUnitOf(r.quantity))}`,
     );
   }
   return lines;

@@ -1,15 +1,16 @@
-import { getServerSession, type NextAuthOptions } from "next-auth";
+import type { NextAuthOptions } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
 import { cookies } from "next/headers";
 import { redirect } from "next/navigation";
-import { getDb, signInLimiter } from "@/lib/server/runtime";
-import { verifyCredentials, getViewerById, normalizeEmail } from "@/db/queries/users";
+import { getDb, signInAddressDelayMs, signInLimiter } from "@/lib/server/runtime";
+import { verifyCredentials, normalizeEmail } from "@/db/queries/users";
 import { viewerForToken } from "@/db/queries/tokens";
-import { CLIENT_ADDRESS_HEADER, SESSION_COOKIES } from "@/lib/auth/session";
-import { userIdFromSessionToken } from "@/lib/auth/session-token";
+import { CLIENT_ADDRESS_HEADER, SESSION_MAX_AGE_S, sessionTokenFrom } from "@/lib/auth/session";
 import type { Viewer } from "@/lib/auth/viewer";
 import { AppError } from "@/lib/errors";
-import { signInSchema } from "@/lib/schemas/sign-in";
+import { signInSchema, slowedError } from "@/lib/schemas/sign-in";
+import { endSession, startSession, viewerFromSessionToken } from "@/lib/server/sessions";
+import { notifySignInSlowed } from "@/lib/server/sign-in-notice";
 
 function headerValue(headers: unknown, name: string): string | undefined {
   if (!headers) return undefined;
@@ -20,7 +21,7 @@ function headerValue(headers: unknown, name: string): string | undefined {
 
 export const authOptions: NextAuthOptions = {
   secret: process.env.NEXTAUTH_SECRET,
-  session: { strategy: "jwt", maxAge: 12 * 60 * 60 },
+  session: { strategy: "jwt", maxAge: SESSION_MAX_AGE_S },
   pages: { signIn: "/sign-in", error: "/sign-in" },
   providers: [
     CredentialsProvider({
@@ -31,13 +32,22 @@ export const authOptions: NextAuthOptions = {
         if (!parsed.success) return null;
         const account = normalizeEmail(parsed.data.email);
         const address = headerValue(req?.headers, CLIENT_ADDRESS_HEADER) ?? "unknown";
-        if ((await signInLimiter().retryAfterS(account, address)) > 0) throw new Error("RateLimited");
+        const limiter = signInLimiter();
+        const { accountRetryAfterS, addressRetryAfterS } = limiter.check(account, address);
+        if (accountRetryAfterS > 0) {
+          limiter.recordRefusal(address);
+          throw new Error(slowedError("RateLimited", accountRetryAfterS));
+        }
+        // A slowed address waits, but its correct passwords still sign in (see lib/auth/sign-in-limiter.ts).
+        if (addressRetryAfterS > 0) await new Promise((r) => setTimeout(r, signInAddressDelayMs()));
         const viewer = await verifyCredentials(getDb(), account, parsed.data.password);
         if (!viewer) {
-          await signInLimiter().recordFailure(account, address);
+          const outcome = limiter.recordFailure(account, address);
+          if (outcome.throttleStarted) notifySignInSlowed(getDb(), account, address, outcome.retryAfterS);
+          if (addressRetryAfterS > 0) throw new Error(slowedError("AddressLimited", addressRetryAfterS));
           return null;
         }
-        await signInLimiter().recordSuccess(account);
+        limiter.recordSuccess(account);
         return {
           id: viewer.userId,
           name: viewer.name,
@@ -53,6 +63,7 @@ export const authOptions: NextAuthOptions = {
       if (user) {
         token.role = user.role;
         token.organizationId = user.organizationId;
+        token.sid = startSession(getDb(), user.id);
       }
       return token;
     },
@@ -67,25 +78,20 @@ export const authOptions: NextAuthOptions = {
       return session;
     },
   },
+  events: {
+    signOut({ token }) {
+      if (typeof token?.sid === "string") endSession(getDb(), token.sid);
+    },
+  },
 };
 
-async function sessionUserId(): Promise<string | null> {
-  const secret = authOptions.secret;
-  const jar = await cookies();
-  const name = SESSION_COOKIES.find((n) => jar.has(n));
-  // No secret, or a token split over several cookies: next-auth's own reading.
-  if (!secret || (!name && SESSION_COOKIES.some((n) => jar.has(`${n}.0`)))) {
-    const session = await getServerSession(authOptions);
-    return session?.user?.id ?? null;
-  }
-  return name ? userIdFromSessionToken(jar.get(name)!.value, secret) : null;
-}
-
-/** The signed-in viewer, re-read from the database so a disabled account stops at once. */
+/** The signed-in viewer: a live session of an enabled account, re-read so signing out or disabling stops it at once. */
 export async function getViewer(): Promise<Viewer | null> {
-  const userId = await sessionUserId();
-  if (!userId) return null;
-  return getViewerById(getDb(), userId);
+  const secret = authOptions.secret;
+  if (!secret) return null;
+  const jar = await cookies();
+  const token = sessionTokenFrom((name) => jar.get(name)?.value);
+  return token ? viewerFromSessionToken(getDb(), token, secret) : null;
 }
 
 /** For pages: the viewer, or a redirect to sign-in. */

@@ -5,7 +5,7 @@ import { signIn } from "next-auth/react";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
-import { signInErrors, signInSchema, type SignInInput } from "@/lib/schemas/sign-in";
+import { signInErrorMessage, signInSchema, type SignInInput } from "@/lib/schemas/sign-in";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 
@@ -22,8 +22,7 @@ export function SignInForm() {
     setFormError(null);
     const result = await signIn("credentials", { ...values, redirect: false });
     if (!result || result.error) {
-      const code = (result?.error ?? "CredentialsSignin") as keyof typeof signInErrors;
-      setFormError(signInErrors[code] ?? signInErrors.CredentialsSignin);
+      setFormError(signInErrorMessage(result?.error ?? "CredentialsSignin"));
       return;
     }
     router.replace("/");

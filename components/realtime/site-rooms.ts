@@ -72,13 +72,20 @@ export function createSiteRooms(): SiteRooms {
       const onValues = (values: SiteValues) => {
         for (const sub of [...subscribers]) if (sub.siteId === values.siteId) sub.handlers.current.onValues?.(values);
       };
+      // The server closes a socket whose viewer changed (new role or organization) or ended: one
+      // new connection picks up the new scope, and a refused handshake (signed out) leaves it closed.
+      const onDisconnect = (reason: string) => {
+        if (reason === "io server disconnect" && counts.size > 0) s.connect();
+      };
       s.on("connect", onConnect);
+      s.on("disconnect", onDisconnect);
       s.on("site:status", onStatus);
       s.on("site:values", onValues);
       if (s.connected) onConnect();
       else connectIfWanted();
       return () => {
         s.off("connect", onConnect);
+        s.off("disconnect", onDisconnect);
         s.off("site:status", onStatus);
         s.off("site:values", onValues);
         if (socket === s) socket = null;

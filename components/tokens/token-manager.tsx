@@ -4,13 +4,14 @@ import { zodResolver } from "@hookform/resolvers/zod";
 import { useState } from "react";
 import { useForm } from "react-hook-form";
 import useSWR from "swr";
-import { createTokenSchema, type CreateTokenInput } from "@/lib/schemas/tokens";
+import { createTokenSchema, tokenLifetimesDays, type CreateTokenInput } from "@/lib/schemas/tokens";
 import type { ApiTokenDto } from "@/lib/dto/tokens";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { fetchJson } from "@/lib/client/fetcher";
 
 const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString() : "never");
+const expired = (iso: string | null) => iso !== null && Date.parse(iso) <= Date.now();
 
 export function TokenManager() {
   const { data, mutate, error } = useSWR<{ tokens: ApiTokenDto[] }>("/api/tokens", fetchJson);
@@ -61,6 +62,24 @@ export function TokenManager() {
             {...register("name")}
           />
         </div>
+        <div className="flex flex-col gap-1">
+          <label htmlFor="token-expiry" className="text-sm font-semibold">
+            Expires
+          </label>
+          <select
+            id="token-expiry"
+            className="min-h-11 rounded border border-line bg-panel px-3 text-base"
+            {...register("expiresInDays", { setValueAs: (v: string) => (v === "" ? undefined : Number(v)) })}
+          >
+            <option value="">Never</option>
+            {tokenLifetimesDays.map((d) => (
+              <option key={d} value={d}>
+                in {d} days
+              </option>
+            ))}
+          </select>
+          {errors.expiresInDays ? <p className="text-sm text-alarm">{errors.expiresInDays.message}</p> : null}
+        </div>
         <Button type="submit" disabled={isSubmitting}>
           Create token
         </Button>
@@ -83,10 +102,13 @@ export function TokenManager() {
             <span className="font-semibold">{t.name}</span>
             <code className="text-sm text-muted">{t.prefix}…</code>
             <span className="text-sm text-muted">
-              created {when(t.createdAt)} · last used {when(t.lastUsedAt)}
+              created {when(t.createdAt)} · last used {when(t.lastUsedAt)} ·{" "}
+              {t.expiresAt ? `${expired(t.expiresAt) ? "expired" : "expires"} ${when(t.expiresAt)}` : "does not expire"}
             </span>
             {t.revokedAt ? (
               <span className="ml-auto text-sm text-muted">revoked {when(t.revokedAt)}</span>
+            ) : expired(t.expiresAt) ? (
+              <span className="ml-auto text-sm text-muted">expired</span>
             ) : (
               <Button variant="danger" className="ml-auto" onClick={() => onRevoke(t.id)}>
                 Revoke

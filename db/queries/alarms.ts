@@ -35,14 +35,15 @@ type DtoRow = Omit<AlarmDto, "state" | "shelvedUntilMs" | "shelveReason" | "deta
   detailJson: string;
 };
 
-function toDto(row: DtoRow): AlarmDto {
+/** `staff`: the viewer is the service company's; a shelving reason is a technician's words, like event notes. */
+function toDto(row: DtoRow, staff: boolean): AlarmDto {
   const { machineJson, detailJson, ...rest } = row;
   const machine = JSON.parse(machineJson) as Alarm;
   return {
     ...rest,
     state: rest.state as AlarmState,
     shelvedUntilMs: machine.shelf?.untilMs ?? null,
-    shelveReason: machine.shelf?.reason ?? null,
+    shelveReason: staff ? (machine.shelf?.reason ?? null) : null,
     detail: JSON.parse(detailJson) as AlarmDetail,
   };
 }
@@ -68,7 +69,7 @@ export function listAlarms(db: Db, viewer: Viewer, filter: AlarmFilter = {}): Al
     .where(and(...where))
     .orderBy(asc(alarms.priority), desc(alarms.lastTransitionMs))
     .all()
-    .map(toDto);
+    .map((row) => toDto(row, seesAllSites(viewer)));
 }
 
 export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHistoryDto | null {
@@ -110,7 +111,7 @@ export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHist
     .where(and(eq(alarmNotes.alarmId, alarmId), staff ? undefined : eq(alarmNotes.visibility, "customer")))
     .orderBy(asc(alarmNotes.id))
     .all();
-  return { ...toDto(row), events, notes };
+  return { ...toDto(row, staff), events, notes };
 }
 
 /** The alarm's site and key, when the viewer may see it (for commands). */

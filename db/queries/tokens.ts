@@ -1,6 +1,6 @@
 import "server-only";
 import { createHash, randomBytes, randomUUID } from "node:crypto";
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, gt, isNull, or } from "drizzle-orm";
 import type { Db } from "../client";
 import { apiTokens, users } from "../schema";
 import type { Viewer } from "@/lib/auth/viewer";
@@ -20,6 +20,7 @@ const dtoColumns = {
   createdAt: apiTokens.createdAt,
   lastUsedAt: apiTokens.lastUsedAt,
   revokedAt: apiTokens.revokedAt,
+  expiresAt: apiTokens.expiresAt,
 };
 
 type DtoRow = {
@@ -29,6 +30,7 @@ type DtoRow = {
   createdAt: Date;
   lastUsedAt: Date | null;
   revokedAt: Date | null;
+  expiresAt: Date | null;
 };
 
 function toDto(row: DtoRow): ApiTokenDto {
@@ -39,6 +41,7 @@ function toDto(row: DtoRow): ApiTokenDto {
     createdAt: row.createdAt.toISOString(),
     lastUsedAt: row.lastUsedAt?.toISOString() ?? null,
     revokedAt: row.revokedAt?.toISOString() ?? null,
+    expiresAt: row.expiresAt?.toISOString() ?? null,
   };
 }
 
@@ -52,12 +55,17 @@ export function listTokens(db: Db, viewer: Viewer): ApiTokenDto[] {
     .map(toDto);
 }
 
-/** Returns the secret exactly once; only its hash is stored. */
-export function createToken(db: Db, viewer: Viewer, name: string): { token: string; apiToken: ApiTokenDto } {
+/** Returns the secret exactly once; only its hash is stored. A token without `expiresAt` does not expire. */
+export function createToken(
+  db: Db,
+  viewer: Viewer,
+  name: string,
+  expiresAt: Date | null = null,
+): { token: string; apiToken: ApiTokenDto } {
   const token = TOKEN_PREFIX + randomBytes(32).toString("base64url");
   const id = randomUUID();
   db.insert(apiTokens)
-    .values({ id, userId: viewer.userId, name, tokenHash: hashToken(token), prefix: token.slice(0, 10) })
+    .values({ id, userId: viewer.userId, name, tokenHash: hashToken(token), prefix: token.slice(0, 10), expiresAt })
     .run();
   const row = db.select(dtoColumns).from(apiTokens).where(eq(apiTokens.id, id)).get()!;
   return { token, apiToken: toDto(row) };
@@ -73,7 +81,7 @@ export function revokeToken(db: Db, viewer: Viewer, id: string): boolean {
   return result.changes > 0;
 }
 
-/** The viewer a bearer token acts as, with the same scope as its owner; records its use. */
+/** The viewer a bearer token acts as, with the same scope as its owner; records its use. Revoked or expired: null. */
 export function viewerForToken(db: Db, token: string): Viewer | null {
   if (!token.startsWith(TOKEN_PREFIX)) return null;
   const row = db
@@ -89,7 +97,13 @@ export function viewerForToken(db: Db, token: string): Viewer | null {
     })
     .from(apiTokens)
     .innerJoin(users, eq(users.id, apiTokens.userId))
-    .where(and(eq(apiTokens.tokenHash, hashToken(token)), isNull(apiTokens.revokedAt)))
+    .where(
+      and(
+        eq(apiTokens.tokenHash, hashToken(token)),
+        isNull(apiTokens.revokedAt),
+        or(isNull(apiTokens.expiresAt), gt(apiTokens.expiresAt, new Date())),
+      ),
+    )
     .get();
   if (!row || row.disabled) return null;
   db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.tokenId)).run();

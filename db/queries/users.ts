@@ -3,15 +3,12 @@ import { randomUUID } from "node:crypto";
 import bcrypt from "bcryptjs";
 import { and, eq } from "drizzle-orm";
 import type { Db } from "../client";
+import { hashPassword, hashPasswordSync, needsRehash } from "../password";
 import { users, type NewUser } from "../schema";
 import type { Role, Viewer } from "@/lib/auth/viewer";
 
-/** Cost 12 keeps a hash around 200 ms here: slow for guessing, fine for sign-in. */
-const BCRYPT_COST = 12;
-
-// A fixed hash to compare against when the account does not exist, so a missing account
-// costs the same time as a wrong password (no account enumeration by timing).
-const DUMMY_HASH = bcrypt.hashSync("not-a-real-password", BCRYPT_COST);
+// A fixed hash to compare against when the account does not exist, at the cost of every stored one.
+const DUMMY_HASH = hashPasswordSync("not-a-real-password");
 
 const viewerColumns = {
   userId: users.id,
@@ -34,8 +31,24 @@ export async function verifyCredentials(db: Db, email: string, password: string)
     .get();
   const ok = await bcrypt.compare(password, row?.passwordHash ?? DUMMY_HASH);
   if (!row || !ok || row.disabled) return null;
-  const { passwordHash: _hash, disabled: _disabled, ...viewer } = row;
+  const { passwordHash, disabled: _disabled, ...viewer } = row;
+  // A hash made at a lower cost (an older seed) is brought up to the common one while the password is at hand.
+  if (needsRehash(passwordHash)) {
+    const upgraded = await hashPassword(password);
+    db.update(users).set({ passwordHash: upgraded }).where(eq(users.id, row.userId)).run();
+  }
   return viewer;
+}
+
+/** Name and address of an enabled account, to write to its owner; null when there is none. */
+export function findAccountContact(db: Db, email: string): { name: string; email: string } | null {
+  return (
+    db
+      .select({ name: users.name, email: users.email })
+      .from(users)
+      .where(and(eq(users.email, normalizeEmail(email)), eq(users.disabled, false)))
+      .get() ?? null
+  );
 }
 
 /** An account that may act now: a disabled one is no viewer (its sessions, links and pages stop). */
@@ -60,7 +73,7 @@ export interface CreateUserInput {
 
 export async function createUser(db: Db, input: CreateUserInput): Promise<Viewer> {
   const id = randomUUID();
-  const passwordHash = await bcrypt.hash(input.password, BCRYPT_COST);
+  const passwordHash = await hashPassword(input.password);
   db.insert(users)
     .values({
       id,
@@ -73,6 +86,16 @@ export async function createUser(db: Db, input: CreateUserInput): Promise<Viewer
     })
     .run();
   return getViewerById(db, id)!;
+}
+
+/** Disables or re-enables an account; false when there is no such user. */
+export function setUserDisabled(db: Db, userId: string, disabled: boolean): boolean {
+  return db.update(users).set({ disabled }).where(eq(users.id, userId)).run().changes > 0;
+}
+
+/** Changes what an account may see and do; false when there is no such user. */
+export function setUserAccess(db: Db, userId: string, access: { role: Role; organizationId: string }): boolean {
+  return db.update(users).set(access).where(eq(users.id, userId)).run().changes > 0;
 }
 
 export function setUnitSystem(db: Db, viewer: Viewer, unitSystem: "ip" | "si"): void {

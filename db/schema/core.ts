@@ -123,7 +123,27 @@ export const apiTokens = sqliteTable(
     createdAt: createdAt(),
     lastUsedAt: integer("last_used_at", { mode: "timestamp_ms" }),
     revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
+    /** Refused from this moment on; null for a token that does not expire. */
+    expiresAt: integer("expires_at", { mode: "timestamp_ms" }),
   },
   (t) => [uniqueIndex("api_tokens_hash_unique").on(t.tokenHash), index("api_tokens_user_idx").on(t.userId)],
 );
 export type ApiToken = typeof apiTokens.$inferSelect;
+
+/**
+ * One row per browser sign-in; the session cookie (a sealed JWT) carries the id. Signing out sets
+ * `revoked_at`, so a copied cookie stops working before the token itself expires (OWASP ASVS 5.0 §7.4.1).
+ */
+export const sessions = sqliteTable(
+  "sessions",
+  {
+    id: text("id").primaryKey(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    createdAt: createdAt(),
+    lastSeenAt: integer("last_seen_at", { mode: "timestamp_ms" }).notNull(),
+    revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
+  },
+  (t) => [index("sessions_user_idx").on(t.userId)],
+);

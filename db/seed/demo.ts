@@ -1,5 +1,7 @@
 import bcrypt from "bcryptjs";
+import { eq, inArray } from "drizzle-orm";
 import type { Db } from "../client";
+import { hashPasswordSync, needsRehash } from "../password";
 import { equipment, onCallShifts, organizations, points, sites, users, type NewEquipment } from "../schema";
 import { canonicalUnitOf, pointsByKind, quantities, type EquipmentKind } from "@/lib/quantities";
 import { siteLayouts, type SiteLayout } from "@/simulator/layout";
@@ -148,8 +150,9 @@ export function demoAccounts(): DemoAccount[] {
 
 /** Seeds the demo scenario; safe to run on every start (existing rows are left alone). */
 export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
-  // One hash for every demo account: they share the documented demo password.
-  const passwordHash = bcrypt.hashSync(demoPassword, 10);
+  // One hash for every demo account: they share the documented demo password, hashed at the cost
+  // of every other account so sign-in time tells a demo account from no account at all.
+  const passwordHash = hashPasswordSync(demoPassword);
   let inserted = 0;
   const count = (r: { changes: number }) => (inserted += r.changes);
 
@@ -256,5 +259,16 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
     },
     { behavior: "immediate" },
   );
+  upgradeDemoHashes(db, demoPassword, passwordHash);
   return { inserted };
+}
+
+/** Demo accounts seeded at a lower bcrypt cost by an older version get the common cost. */
+function upgradeDemoHashes(db: Db, demoPassword: string, passwordHash: string): void {
+  const ids = [...DEMO_STAFF.map((s) => s.id), ...DEMO_SITES.map((s) => `user-${s.customer.id}`)];
+  const rows = db.select({ id: users.id, hash: users.passwordHash }).from(users).where(inArray(users.id, ids)).all();
+  for (const row of rows) {
+    if (!needsRehash(row.hash) || !bcrypt.compareSync(demoPassword, row.hash)) continue;
+    db.update(users).set({ passwordHash }).where(eq(users.id, row.id)).run();
+  }
 }

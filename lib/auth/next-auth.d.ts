@@ -14,5 +14,7 @@ declare module "next-auth/jwt" {
   interface JWT {
     role: Role;
     organizationId: string;
+    /** The sessions row this token belongs to (db/queries/sessions.ts). */
+    sid?: string;
   }
 }

@@ -22,6 +22,7 @@ export interface AlarmDto {
   lastTransitionMs: number | null;
   activations: number;
   shelvedUntilMs: number | null;
+  /** The technician's reason for shelving; customers do not see it (null). */
   shelveReason: string | null;
   detail: AlarmDetail;
 }

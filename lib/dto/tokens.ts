@@ -5,4 +5,6 @@ export interface ApiTokenDto {
   createdAt: string;
   lastUsedAt: string | null;
   revokedAt: string | null;
+  /** Refused from this moment on; null when the token does not expire. */
+  expiresAt: string | null;
 }

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { alarmStates } from "@/lib/alarms/states";
+import { safeText } from "./text";
 
 export const alarmQuerySchema = z.object({
   site: z.string().min(1).max(100).optional(),
@@ -12,11 +13,11 @@ export const alarmQuerySchema = z.object({
   all: z.enum(["0", "1"]).optional(),
 });
 
-export const ackSchema = z.object({ note: z.string().trim().max(2000).optional() });
+export const ackSchema = z.object({ note: safeText(z.string().trim().max(2000)).optional() });
 export type AckInput = z.infer<typeof ackSchema>;
 
 export const noteSchema = z.object({
-  text: z.string().trim().min(1, "Write something").max(4000, "At most 4000 characters"),
+  text: safeText(z.string().trim().min(1, "Write something").max(4000, "At most 4000 characters")),
   visibility: z.enum(["internal", "customer"]),
 });
 export type NoteInput = z.infer<typeof noteSchema>;
@@ -27,8 +28,8 @@ export const shelveSchema = z.object({
     .int()
     .min(1, "At least a minute")
     .max(24 * 60, "At most 24 hours"),
-  reason: z.string().trim().min(3, "Give a reason").max(500),
+  reason: safeText(z.string().trim().min(3, "Give a reason").max(500)),
 });
 export type ShelveInput = z.infer<typeof shelveSchema>;
 
-export const unshelveSchema = z.object({ note: z.string().trim().max(2000).optional() });
+export const unshelveSchema = z.object({ note: safeText(z.string().trim().max(2000)).optional() });

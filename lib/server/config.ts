@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { parseTrustedProxy } from "@/lib/auth/client-address";
 
 // Every setting the server reads, validated once at start-up so a typo fails loudly
 // instead of surfacing as a strange runtime error later.
@@ -45,9 +46,30 @@ export const configSchema = z.object({
   SMTP_PORT: port(0),
   ESCALATION_DELAY_MIN: z.coerce.number().min(0.05).max(240).default(10),
   MAIL_FROM: z.string().default("Liftline <alerts@liftline.invalid>"),
+  /** Failed sign-ins are forgotten this long after the last one; also the longest an account is slowed. */
   SIGNIN_WINDOW_S: z.coerce.number().int().min(1).default(900),
+  /** Failures an account may make before each further attempt waits. */
   SIGNIN_MAX_PER_ACCOUNT: z.coerce.number().int().min(1).default(5),
-  SIGNIN_MAX_PER_ADDRESS: z.coerce.number().int().min(1).default(20),
+  /** The first wait of a slowed account; it doubles with every further failure. */
+  SIGNIN_BASE_DELAY_S: z.coerce.number().int().min(1).max(3600).default(30),
+  /** Failed or refused sign-ins from one address in a window before that address is slowed (never locked). */
+  SIGNIN_MAX_PER_ADDRESS: z.coerce.number().int().min(1).default(100),
+  /** The pause before each sign-in from a slowed address is checked. */
+  SIGNIN_ADDRESS_DELAY_MS: z.coerce.number().int().min(0).max(10_000).default(1000),
+  /** Reverse proxies whose X-Forwarded-For is believed: empty, a hop count, or addresses and CIDR ranges. */
+  TRUSTED_PROXY: z
+    .string()
+    .optional()
+    .transform((v, ctx) => {
+      try {
+        return parseTrustedProxy(v);
+      } catch (err) {
+        ctx.addIssue({ code: "custom", message: `TRUSTED_PROXY: ${(err as Error).message}` });
+        return z.NEVER;
+      }
+    }),
+  /** How often each open socket's session and account are read again. */
+  SOCKET_RECHECK_MS: z.coerce.number().int().min(100).max(60_000).default(5000),
   RAW_RETENTION_DAYS: z.coerce.number().int().min(1).max(3650).default(14),
   ROLLUP_RETENTION_DAYS: z.coerce.number().int().min(1).max(36_500).default(730),
   INGEST_FLUSH_MS: z.coerce.number().int().min(0).max(250).default(50),

@@ -4,6 +4,7 @@ import next from "next";
 import { migrateDb, openDb, type Db } from "@/db/client";
 import { demoAccounts, seedDemo, SERVICE_ORG } from "@/db/seed/demo";
 import { startGatewaySide } from "@/gateway/index";
+import { clientAddress, type TrustedProxies } from "@/lib/auth/client-address";
 import { CLIENT_ADDRESS_HEADER } from "@/lib/auth/session";
 import { systemViewer } from "@/lib/auth/viewer";
 import { createRuleFeed } from "./alarms/feed";
@@ -12,7 +13,7 @@ import { createBoardAlarmSummary } from "./board/site-status";
 import { buildIfNeeded } from "./build";
 import type { Config } from "./config";
 import { createLivePublisher } from "./realtime/live";
-import { createRealtimeServer } from "./realtime/server";
+import { createRealtimeServer, disconnectSessionSockets, disconnectUserSockets } from "./realtime/server";
 import { allowedOrigins, setDb, setRuntime } from "./runtime";
 import { resolveAuthSecret } from "./secret";
 import { applySecurityHeaders, securityHeaders, type SecurityHeaderOptions } from "./security-headers";
@@ -67,7 +68,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   const origins = allowedOrigins();
   const headerOptions: SecurityHeaderOptions = { dev, https: publicUrl.startsWith("https:"), origins: [...origins] };
   const httpServer = createServer(httpServerOptions(config), (req, res) => {
-    stampClientAddress(req);
+    stampClientAddress(req, config.TRUSTED_PROXY);
     applySecurityHeaders(req, res, headerOptions);
     void handle(req, res);
   });
@@ -75,7 +76,12 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     if (req.url?.startsWith("/socket.io/")) return; // socket.io's own listener takes these
     void handleUpgrade(req, socket, head);
   });
-  const io = createRealtimeServer(httpServer, { db, secret: authSecret, allowedOrigins: origins });
+  const io = createRealtimeServer(httpServer, {
+    db,
+    secret: authSecret,
+    allowedOrigins: origins,
+    recheckMs: config.SOCKET_RECHECK_MS,
+  });
   // socket.io answers its polling requests itself, before the handler above; they carry no page.
   const { "content-security-policy": _csp, ...pollingHeaders } = securityHeaders("", headerOptions);
   io.engine.on("headers", (headers: Record<string, string>) => Object.assign(headers, pollingHeaders));
@@ -146,6 +152,9 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     simulation,
     sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
     gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),
+    disconnectUserSockets: (userId) => disconnectUserSockets(io, userId),
+    disconnectSessionSockets: (sessionId) => disconnectSessionSockets(io, sessionId),
+    sendMail: (message) => alarmSystem.mailer.send(message),
   });
 
   await new Promise<void>((resolve, reject) => {
@@ -205,7 +214,8 @@ function httpServerOptions(config: Config): ServerOptions {
   };
 }
 
-function stampClientAddress(req: IncomingMessage) {
-  // Sign-in rate limits key on this; a value sent by the client is never trusted.
-  req.headers[CLIENT_ADDRESS_HEADER] = req.socket.remoteAddress ?? "unknown";
+function stampClientAddress(req: IncomingMessage, trust: TrustedProxies) {
+  // Sign-in limits key on this; a value sent by the client is overwritten, and X-Forwarded-For
+  // counts only as far as it was written by proxies TRUSTED_PROXY names.
+  req.headers[CLIENT_ADDRESS_HEADER] = clientAddress(req.socket.remoteAddress, req.headers["x-forwarded-for"], trust);
 }

@@ -1,7 +1,7 @@
 import { createHash } from "node:crypto";
 import { RateLimiterMemory, RateLimiterRes } from "rate-limiter-flexible";
 import { SESSION_COOKIES } from "@/lib/auth/session";
-import { userIdFromSessionToken } from "@/lib/auth/session-token";
+import { claimsFromSessionToken } from "@/lib/auth/session-token";
 import { AppError } from "@/lib/errors";
 
 // Writes and trend reads per API token and per signed-in user, so one script or one stuck tab
@@ -54,7 +54,7 @@ export async function requesterKey(request: Request, secret: string | undefined)
   const cookie = request.headers.get("cookie");
   for (const name of SESSION_COOKIES) {
     const token = cookieValue(cookie, name);
-    const userId = token ? await userIdFromSessionToken(token, secret) : null;
+    const userId = token ? (await claimsFromSessionToken(token, secret))?.userId : null;
     if (userId) return `user:${userId}`;
   }
   return null;

@@ -33,6 +33,12 @@ export interface Runtime {
   sendGatewayCommand(gatewayId: string, payload: unknown): Promise<void>;
   /** Tells the gateway side that a gateway's record changed. */
   gatewayChanged(gatewayId: string, change: GatewayChange): void;
+  /** Closes every live socket of a user (disabled, or their role or organization changed); returns how many. */
+  disconnectUserSockets(userId: string): number;
+  /** Closes the live sockets opened with one session (signed out); returns how many. */
+  disconnectSessionSockets(sessionId: string): number;
+  /** Sends an e-mail through the server's mail path (SMTP_URL or the local sink). */
+  sendMail(message: { to: string; subject: string; text: string }): Promise<void>;
 }
 
 interface Registry {
@@ -41,6 +47,7 @@ interface Registry {
   signInLimiter?: SignInLimiter;
   apiRateLimiter?: ApiRateLimiter;
   allowedOrigins?: ReadonlySet<string>;
+  signInAddressDelayMs?: number;
 }
 
 const registry: Registry = ((globalThis as { __liftline?: Registry }).__liftline ??= {});
@@ -78,6 +85,7 @@ export function signInLimiter(): SignInLimiter {
       windowS: config.SIGNIN_WINDOW_S,
       maxPerAccount: config.SIGNIN_MAX_PER_ACCOUNT,
       maxPerAddress: config.SIGNIN_MAX_PER_ADDRESS,
+      baseDelayS: config.SIGNIN_BASE_DELAY_S,
     });
   }
   return registry.signInLimiter;
@@ -98,4 +106,9 @@ export function apiRateLimiter(): ApiRateLimiter {
 /** The origins browsers may send state-changing requests from (NEXTAUTH_URL's and ALLOWED_ORIGINS). */
 export function allowedOrigins(): ReadonlySet<string> {
   return (registry.allowedOrigins ??= allowedOriginsOf(loadConfig()));
+}
+
+/** The pause before a sign-in from a slowed address is checked. */
+export function signInAddressDelayMs(): number {
+  return (registry.signInAddressDelayMs ??= loadConfig().SIGNIN_ADDRESS_DELAY_MS);
 }

@@ -1,5 +1,6 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import fs from "node:fs";
+import http from "node:http";
 import net from "node:net";
 import os from "node:os";
 import path from "node:path";
@@ -149,31 +150,88 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
   };
 }
 
+export interface SignInOptions {
+  /** Extra request headers (X-Forwarded-For). */
+  headers?: Record<string, string>;
+  /** The local address the request leaves from (127.0.0.2 to play a proxy on another loopback address). */
+  localAddress?: string;
+}
+
+interface RawResponse {
+  status: number;
+  setCookies: string[];
+  location: string | null;
+  contentType: string;
+  body: string;
+}
+
+/** A plain node:http request, for what fetch cannot set (the local address). */
+function rawRequest(
+  url: string,
+  init: { method: string; headers: Record<string, string>; body: string; localAddress?: string },
+): Promise<RawResponse> {
+  return new Promise((resolve, reject) => {
+    const req = http.request(
+      url,
+      { method: init.method, headers: init.headers, localAddress: init.localAddress },
+      (res) => {
+        let body = "";
+        res.setEncoding("utf8");
+        res.on("data", (d) => (body += d));
+        res.on("end", () =>
+          resolve({
+            status: res.statusCode ?? 0,
+            setCookies: res.headers["set-cookie"] ?? [],
+            location: res.headers.location ?? null,
+            contentType: res.headers["content-type"] ?? "",
+            body,
+          }),
+        );
+      },
+    );
+    req.on("error", reject);
+    req.end(init.body);
+  });
+}
+
 /** Signs in through next-auth's credentials endpoint; returns the session cookie header. */
 export async function signIn(
   baseUrl: string,
   email: string,
   password = DEMO_PASSWORD,
+  opts: SignInOptions = {},
 ): Promise<{ status: number; cookie: string | null; error: string | null }> {
   const csrfRes = await fetch(`${baseUrl}/api/auth/csrf`);
   const jar = cookieJar(csrfRes.headers.getSetCookie());
   const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
-  const res = await fetch(`${baseUrl}/api/auth/callback/credentials`, {
+  const res = await rawRequest(`${baseUrl}/api/auth/callback/credentials`, {
     method: "POST",
-    redirect: "manual",
-    headers: { "content-type": "application/x-www-form-urlencoded", cookie: jar },
-    body: new URLSearchParams({ csrfToken, email, password, json: "true" }),
+    headers: { "content-type": "application/x-www-form-urlencoded", cookie: jar, ...opts.headers },
+    body: new URLSearchParams({ csrfToken, email, password, json: "true" }).toString(),
+    localAddress: opts.localAddress,
   });
-  const set = res.headers.getSetCookie();
-  const session = set.find((c) => c.startsWith("next-auth.session-token="));
+  const session = res.setCookies.find((c) => c.startsWith("next-auth.session-token="));
   let error: string | null = null;
-  const location = res.headers.get("location");
-  if (location) error = new URL(location, baseUrl).searchParams.get("error");
-  else if (res.headers.get("content-type")?.includes("json")) {
-    const body = (await res.json()) as { url?: string };
+  if (res.location) error = new URL(res.location, baseUrl).searchParams.get("error");
+  else if (res.contentType.includes("json")) {
+    const body = JSON.parse(res.body) as { url?: string };
     if (body.url) error = new URL(body.url, baseUrl).searchParams.get("error");
   }
   return { status: res.status, cookie: session ? session.split(";")[0] : null, error };
+}
+
+/** Signs out through next-auth's endpoint with its CSRF token, as the sign-out button does. */
+export async function signOut(baseUrl: string, sessionCookie: string): Promise<number> {
+  const csrfRes = await fetch(`${baseUrl}/api/auth/csrf`, { headers: { cookie: sessionCookie } });
+  const jar = [sessionCookie, cookieJar(csrfRes.headers.getSetCookie())].filter(Boolean).join("; ");
+  const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
+  const res = await fetch(`${baseUrl}/api/auth/signout`, {
+    method: "POST",
+    redirect: "manual",
+    headers: { "content-type": "application/x-www-form-urlencoded", cookie: jar },
+    body: new URLSearchParams({ csrfToken, json: "true" }),
+  });
+  return res.status;
 }
 
 function cookieJar(setCookies: string[]): string {

@@ -167,6 +167,86 @@ describe("alarm API", () => {
     expect(alarm.shelvedUntilMs - alarm.lastTransitionMs).toBe(30 * 60_000);
     expect((await post("tech", `/api/alarms/${alarmId}/unshelve`, {})).body.state).not.toBe("shelved");
   });
+
+  // The alarm page compiles on first request in development mode.
+  it(
+    "keeps the technician's shelving reason from the owner, in the alarm and in the list",
+    { timeout: 120_000 },
+    async () => {
+      // Like internal notes and event notes: the reason is the service company's words.
+      await post("tech", `/api/alarms/${alarmId}/shelve`, { minutes: 30, reason: "Waiting on the contractor's quote" });
+      try {
+        const staff = (await api(server, cookies.tech, `/api/alarms/${alarmId}`)).body.alarm;
+        expect(staff.shelveReason).toBe("Waiting on the contractor's quote");
+        const owner = await api(server, cookies.owner, `/api/alarms/${alarmId}`);
+        expect(owner.status).toBe(200);
+        expect(owner.body.alarm.state).toBe("shelved");
+        expect(owner.body.alarm.shelveReason).toBeNull();
+        expect(owner.body.alarm.events.every((e: { note: string | null }) => e.note === null)).toBe(true);
+        const list = await api(server, cookies.owner, "/api/alarms?site=harborview-mob&state=shelved");
+        expect(list.body.alarms.find((a: { id: string }) => a.id === alarmId).shelveReason).toBeNull();
+        expect(JSON.stringify(owner.body) + JSON.stringify(list.body)).not.toContain("contractor's quote");
+        // The alarm page's data, which the browser receives in full, holds no reason either.
+        const page = await fetch(`${server.url}/alarms/${alarmId}`, { headers: { cookie: cookies.owner } });
+        expect(page.status).toBe(200);
+        expect(await page.text()).not.toContain("contractor");
+      } finally {
+        await post("tech", `/api/alarms/${alarmId}/unshelve`, {});
+      }
+    },
+  );
+
+  it("answers a malformed body or wrong types with 400 on every action, never 500", async () => {
+    const raw = (path: string, body: string) =>
+      api(server, cookies.tech, `/api/alarms/${alarmId}/${path}`, {
+        method: "POST",
+        headers: { "content-type": "application/json" },
+        body,
+      });
+    for (const action of ["ack", "notes", "shelve", "unshelve"]) {
+      for (const body of ["{not json", '{"note":', "[1,2", "null", '"text"', "[]"]) {
+        const res = await raw(action, body);
+        expect(res.status, `${action} with ${body}`).toBe(400);
+        expect(res.body.error.code).toBe("bad_request");
+      }
+    }
+    expect((await post("tech", `/api/alarms/${alarmId}/ack`, { note: 42 })).status).toBe(400);
+    expect((await post("tech", `/api/alarms/${alarmId}/notes`, { text: ["x"], visibility: "internal" })).status).toBe(
+      400,
+    );
+    expect((await post("tech", `/api/alarms/${alarmId}/shelve`, { minutes: "30", reason: "test run" })).status).toBe(
+      400,
+    );
+    expect((await post("tech", `/api/alarms/${alarmId}/shelve`, { minutes: 30, reason: 7 })).status).toBe(400);
+    expect((await post("tech", `/api/alarms/${alarmId}/unshelve`, { note: false })).status).toBe(400);
+    // An empty body is still a plain unshelve (409 here: the alarm is not shelved).
+    expect((await raw("unshelve", "")).status).toBe(409);
+  });
+
+  it("refuses direction-changing characters and lone surrogates in notes and reasons", async () => {
+    // Unicode TR #36 §2.1 (bidirectional overrides), RFC 8259 §8.2 (unpaired surrogates).
+    const raw = (path: string, body: string) =>
+      api(server, cookies.tech, `/api/alarms/${alarmId}/${path}`, {
+        method: "POST",
+        headers: { "content-type": "application/json" },
+        body,
+      });
+    const bidi = "Checked \u202eevird eht\u202c ok";
+    const res = await post("tech", `/api/alarms/${alarmId}/notes`, { text: bidi, visibility: "internal" });
+    expect(res.status).toBe(400);
+    expect(res.body.error.details[0].path).toBe("text");
+    expect(
+      (await post("tech", `/api/alarms/${alarmId}/notes`, { text: "a\u2066b", visibility: "customer" })).status,
+    ).toBe(400);
+    // Sent as JSON escapes: a lone surrogate in a string body would become U+FFFD on the way.
+    expect((await raw("shelve", '{"minutes":10,"reason":"broken \\ud800 text"}')).status).toBe(400);
+    expect((await raw("ack", '{"note":"x\\udc00"}')).status).toBe(400);
+    expect((await raw("unshelve", '{"note":"\\u202d"}')).status).toBe(400);
+    // Ordinary text, accents and emoji (a surrogate pair) included, is fine.
+    expect(
+      (await post("tech", `/api/alarms/${alarmId}/notes`, { text: "Réglé 👍", visibility: "internal" })).status,
+    ).toBe(201);
+  });
 });
 
 describe("e-mailed acknowledge link", () => {

@@ -164,6 +164,43 @@ describe("API tokens", () => {
     expect((await call("technician", "/api/sites")).status).toBe(200);
   });
 
+  it("can be given an expiry: listed with it, working until then, refused with 401 after", async () => {
+    const create = (body: unknown) =>
+      call("customer", "/api/tokens", {
+        method: "POST",
+        body: JSON.stringify(body),
+        headers: { "content-type": "application/json" },
+      });
+    const before = Date.now();
+    const created = await create({ name: "month-long script", expiresInDays: 30 });
+    expect(created.status).toBe(201);
+    const { token, apiToken } = await created.json();
+    const expiresMs = Date.parse(apiToken.expiresAt);
+    expect(expiresMs - before).toBeGreaterThanOrEqual(30 * 86_400_000);
+    expect(expiresMs - before).toBeLessThan(30 * 86_400_000 + 60_000);
+    expect((await call({ bearer: token }, `/api/sites/${OWN_SITE}`)).status).toBe(200);
+    const listed = (await (await call("customer", "/api/tokens")).json()).tokens.find(
+      (t: { id: string }) => t.id === apiToken.id,
+    );
+    expect(listed.expiresAt).toBe(apiToken.expiresAt);
+
+    // Time passes: the stored expiry is moved into the past.
+    const db = new Database(server.databasePath);
+    try {
+      db.prepare("update api_tokens set expires_at = ? where id = ?").run(Date.now() - 1000, apiToken.id);
+    } finally {
+      db.close();
+    }
+    const expired = await call({ bearer: token }, "/api/sites");
+    expect(expired.status).toBe(401);
+    expect((await expired.json()).error.code).toBe("unauthorized");
+
+    const forever = await (await create({ name: "no expiry" })).json();
+    expect(forever.apiToken.expiresAt).toBeNull();
+    for (const expiresInDays of [0, 366, 1.5, "30", null])
+      expect((await create({ name: "x", expiresInDays })).status).toBe(400);
+  });
+
   it("refuse a made-up token and a malformed header", async () => {
     expect((await call({ bearer: "llt_not-a-real-token" }, "/api/sites")).status).toBe(401);
     expect((await fetch(server.url + "/api/sites", { headers: { authorization: "Basic abc" } })).status).toBe(401);

@@ -384,6 +384,9 @@ describe("bad-input corpus", () => {
       { name: "unknown drive mode", payload: msg([good("CT1-MODE", "turbo")]), reasons: { wrong_type: 1 } },
       { name: "number for a fault text", payload: msg([good("CH1-FAULT", 17)]), reasons: { wrong_type: 1 } },
       { name: "overflows when converted", payload: msg([good("CH1-EVAP", 1.7e308)]), reasons: { wrong_type: 1 } },
+      // Finite but absurd (lib/quantities.ts plausibleRanges): counted, not stored.
+      { name: "1e308 kW", payload: msg([good("CH1-KW", 1e308)]), reasons: { out_of_range: 1 } },
+      { name: "-1e308 °F", payload: msg([good("CH1-LCHWT", -1e308)]), reasons: { out_of_range: 1 } },
       {
         name: "10 minutes in the future",
         payload: msg([{ point: "CH1-KW", value: 1, ts: iso(now + 10 * 60_000) }]),

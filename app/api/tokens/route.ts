@@ -11,7 +11,8 @@ export const GET = route(async (request) => {
 
 export const POST = route(async (request) => {
   const viewer = await requireApiViewer(request);
-  const { name } = await readJson(request, createTokenSchema);
-  const { token, apiToken } = createToken(getDb(), viewer, name);
+  const { name, expiresInDays } = await readJson(request, createTokenSchema);
+  const expiresAt = expiresInDays === undefined ? null : new Date(Date.now() + expiresInDays * 86_400_000);
+  const { token, apiToken } = createToken(getDb(), viewer, name, expiresAt);
   return Response.json({ token, apiToken }, { status: 201 });
 });

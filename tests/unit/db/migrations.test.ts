@@ -3,6 +3,9 @@ import os from "node:os";
 import path from "node:path";
 import { afterEach, describe, expect, it } from "vitest";
 import { migrateDb, openDb, type Db } from "@/db/client";
+import bcrypt from "bcryptjs";
+import { BCRYPT_COST } from "@/db/password";
+import { verifyCredentials } from "@/db/queries/users";
 import { DEMO_SITES, DEMO_STAFF, seedDemo } from "@/db/seed/demo";
 import { pointsByKind } from "@/lib/quantities";
 
@@ -79,5 +82,29 @@ describe("demo seed", () => {
     expect(first.inserted).toBeGreaterThan(0);
     expect(second.inserted).toBe(0);
     expect(after).toEqual(before);
+  });
+
+  it("hashes demo passwords at the cost of every other account, and brings an older, cheaper seed up to it", async () => {
+    // One cost for all (OWASP Authentication Cheat Sheet, "Authentication Responses"): a cheaper
+    // demo hash answered a wrong password in a third of the time an unknown e-mail took.
+    const d = freshDb();
+    migrateDb(d);
+    seedDemo(d, "a-demo-password");
+    const rounds = () =>
+      (d.$client.prepare("select password_hash as h from users").all() as { h: string }[]).map((r) =>
+        bcrypt.getRounds(r.h),
+      );
+    expect(new Set(rounds())).toEqual(new Set([BCRYPT_COST]));
+    const old = bcrypt.hashSync("a-demo-password", 10);
+    d.$client.prepare("update users set password_hash = ?").run(old);
+    seedDemo(d, "a-demo-password");
+    expect(new Set(rounds())).toEqual(new Set([BCRYPT_COST]));
+    // A cheaper hash of any other account is upgraded at its next sign-in.
+    d.$client.prepare("update users set password_hash = ? where id = 'user-tech-1'").run(old);
+    expect(await verifyCredentials(d, "luis@tallgrass.example", "a-demo-password")).not.toBeNull();
+    const luis = d.$client.prepare("select password_hash as h from users where id = 'user-tech-1'").get() as {
+      h: string;
+    };
+    expect(bcrypt.getRounds(luis.h)).toBe(BCRYPT_COST);
   });
 });

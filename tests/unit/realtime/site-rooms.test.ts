@@ -173,3 +173,19 @@ describe("one socket per tab, rooms counted per panel", () => {
     expect(io.sent).toEqual([]);
   });
 });
+
+describe("a socket the server closed", () => {
+  it("connects once more while panels want rooms, so a changed scope is picked up; a dropped line is left to socket.io", () => {
+    const rooms = createSiteRooms();
+    const io = fakeSocket();
+    rooms.attach(io.socket);
+    rooms.subscribe({ siteId: "a" }, panel().handlers);
+    io.connect();
+    const before = io.connectCalls();
+    io.drop();
+    io.fire("disconnect", "transport close");
+    expect(io.connectCalls()).toBe(before);
+    io.fire("disconnect", "io server disconnect");
+    expect(io.connectCalls()).toBe(before + 1);
+  });
+});
