@@ -40,6 +40,8 @@ export const configSchema = z.object({
   INGEST_MAX_BATCH_ROWS: z.coerce.number().int().min(100).max(50_000).default(5000),
   GATEWAY_MAX_MSGS_PER_S: z.coerce.number().int().min(1).default(500),
   LIVE_PUSH_MS: z.coerce.number().int().min(50).max(5000).default(200),
+  /** After a full disk, writes count as working again once one succeeds this long after the last failure. */
+  STORAGE_RECOVERY_S: z.coerce.number().min(0).max(3600).default(30),
   /** External broker mode: Liftline's own session there. */
   MQTT_CLIENT_ID: z.string().min(1).max(23).default("liftline-ingest"),
   MQTT_USERNAME: z.string().min(1).optional(),

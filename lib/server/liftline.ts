@@ -13,9 +13,11 @@ import { buildIfNeeded } from "./build";
 import type { Config } from "./config";
 import { createLivePublisher } from "./realtime/live";
 import { createRealtimeServer } from "./realtime/server";
-import { setDb, setRuntime } from "./runtime";
+import { setDb, setRuntime, setStorageHealth } from "./runtime";
 import { resolveAuthSecret } from "./secret";
 import { createSimulationManager, type SimulationManager } from "./simulation/manager";
+import { startStorageAlarm } from "./storage-alarm";
+import { createStorageHealth } from "./storage-health";
 
 // Liftline's one process: the web app (Next), live updates (socket.io), the MQTT gateway side,
 // rule checks with alarms and paging, and in demo mode the simulated plants. server.ts calls
@@ -57,6 +59,8 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   setDb(db);
   if (config.LIFTLINE_DEMO) seedDemo(db, config.LIFTLINE_DEMO_PASSWORD);
   if (!dev && config.LIFTLINE_BUILD_IF_NEEDED) buildIfNeeded(dir, log);
+  const storage = createStorageHealth({ recoveryMs: config.STORAGE_RECOVERY_S * 1000, log });
+  setStorageHealth(storage);
 
   const app = next({ dev, dir, hostname: "localhost", port: config.PORT });
   await app.prepare();
@@ -94,7 +98,9 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
       live.touch(siteId);
     },
     log,
+    storage,
   });
+  const stopStorageAlarm = startStorageAlarm({ db, health: storage, mailer: alarmSystem.mailer, publicUrl, log });
   const feedRules = createRuleFeed({ db, service: alarmSystem.service });
 
   const gatewaySide = await startGatewaySide({
@@ -103,6 +109,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     onCommitted: [live.onCommitted, feedRules],
     onPresence: live.presenceChanged,
     onMappingChanged: live.mappingChanged,
+    storage: { failed: (err, where) => void storage.report(err, where), committed: () => storage.ok() },
     log,
   }).catch((err: unknown) => {
     const where = config.MQTT_URL
@@ -139,6 +146,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     simulation,
     sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
     gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),
+    heldMail: () => alarmSystem.mailer.held(),
   });
 
   await new Promise<void>((resolve, reject) => {
@@ -168,6 +176,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     try {
       await simulation?.close();
       await gatewaySide.close();
+      stopStorageAlarm();
       await alarmSystem.close();
       live.stop();
       io.close();

@@ -7,6 +7,8 @@ import type { Escalator } from "./alarms/escalation";
 import { loadConfig } from "./config";
 import type { LatestInMemory } from "@/db/queries/readings";
 import type { SimulationManager } from "./simulation/manager";
+import { createStorageHealth, type StorageHealth } from "./storage-health";
+import type { MailDto } from "@/lib/dto/oncall";
 
 // The process's one registry of what is running. Next bundles route handlers apart from
 // server.ts, so module state is not shared between them: the registry lives on globalThis,
@@ -31,12 +33,15 @@ export interface Runtime {
   sendGatewayCommand(gatewayId: string, payload: unknown): Promise<void>;
   /** Tells the gateway side that a gateway's record changed. */
   gatewayChanged(gatewayId: string, change: GatewayChange): void;
+  /** Mail the local SMTP sink took but could not store yet (the database could not be written). */
+  heldMail(): MailDto[];
 }
 
 interface Registry {
   db?: Db;
   runtime?: Runtime;
   signInLimiter?: SignInLimiter;
+  storage?: StorageHealth;
 }
 
 const registry: Registry = ((globalThis as { __liftline?: Registry }).__liftline ??= {});
@@ -77,4 +82,14 @@ export function signInLimiter(): SignInLimiter {
     });
   }
   return registry.signInLimiter;
+}
+
+/** Whether the database can be written, reported by every part that writes (lib/server/storage-health.ts). */
+export function storageHealth(): StorageHealth {
+  return (registry.storage ??= createStorageHealth());
+}
+
+/** startLiftline makes its monitor, with the configured recovery time, the process-wide one. */
+export function setStorageHealth(health: StorageHealth): void {
+  registry.storage = health;
 }
