@@ -20,7 +20,7 @@ export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Data
  */
 export function openDb(file: string): Db {
   const onDisk = file !== ":memory:";
-  if (onDisk) fs.mkdirSync(path.dirname(path.resolve(file)), { recursive: true });
+  if (onDisk) createOwnerOnly(file);
   const sqlite = new Database(file);
   // 16 KB pages for a new database (ignored for an existing one: WAL fixes the page size once the
   // file has a header). Ingestion adds a reading to every point's b-tree leaf at every flush, and
@@ -40,10 +40,34 @@ export function openDb(file: string): Db {
   sqlite.pragma("wal_autocheckpoint = 10000");
   sqlite.pragma("journal_size_limit = 67108864");
   if (onDisk) {
+    for (const f of [file, `${file}-wal`, `${file}-shm`]) keepOwnerOnly(f);
     const fullDiskControl = testFullDiskControl();
     if (fullDiskControl) simulateFullDisk(sqlite, fullDiskControl);
   }
   return drizzle(sqlite, { schema }) as Db;
+}
+
+/**
+ * The database holds password hashes and every site's data: its folder is created 0700 and the
+ * file 0600 before SQLite opens it, which then gives its WAL and SHM files the same mode.
+ */
+function createOwnerOnly(file: string) {
+  fs.mkdirSync(path.dirname(path.resolve(file)), { recursive: true, mode: 0o700 });
+  try {
+    fs.writeFileSync(file, "", { flag: "wx", mode: 0o600 });
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code !== "EEXIST") throw err;
+  }
+}
+
+/** Takes group and other access away from a file made before the modes above were set. */
+function keepOwnerOnly(file: string) {
+  try {
+    const { mode } = fs.statSync(file);
+    if (mode & 0o077) fs.chmodSync(file, mode & 0o700);
+  } catch {
+    // not there (no WAL yet), or not ours to change
+  }
 }
 
 /**
