@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { DEFAULT_DEMO_PASSWORD } from "@/lib/auth/password-policy";
 
 // Every setting the server reads, validated once at start-up so a typo fails loudly
 // instead of surfacing as a strange runtime error later.
@@ -23,7 +24,7 @@ export const configSchema = z.object({
   LIFTLINE_DEMO_PASSWORD: z
     .string()
     .min(8, "LIFTLINE_DEMO_PASSWORD must be at least 8 characters")
-    .default("liftline-demo"),
+    .default(DEFAULT_DEMO_PASSWORD),
   LIFTLINE_SIMULATOR: flag(true),
   LIFTLINE_BUILD_IF_NEEDED: flag(true),
   SMTP_URL: z.url({ protocol: /^smtps?$/ }).optional(),
