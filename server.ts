@@ -3,8 +3,9 @@
 import { loadConfig } from "./lib/server/config";
 import { startLiftline } from "./lib/server/liftline";
 
+// startLiftline has stopped whatever it started before a failure; only the reason is left to say.
 const liftline = await (async () => startLiftline({ config: loadConfig() }))().catch((err: unknown) => {
-  console.error(err instanceof Error ? err.message : err);
+  console.error(`Liftline could not start: ${err instanceof Error ? err.message : err}`);
   process.exit(1);
 });
 // A parent that started this process with an IPC channel (the test helper) learns the ports here.

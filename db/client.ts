@@ -3,6 +3,7 @@ import path from "node:path";
 import Database from "better-sqlite3";
 import { drizzle, type BetterSQLite3Database } from "drizzle-orm/better-sqlite3";
 import { migrate } from "drizzle-orm/better-sqlite3/migrator";
+import { z } from "zod";
 import * as schema from "./schema";
 
 export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database };
@@ -18,7 +19,8 @@ export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Data
  * the last few commits, see gateway/PROTOCOL.md).
  */
 export function openDb(file: string): Db {
-  if (file !== ":memory:") fs.mkdirSync(path.dirname(path.resolve(file)), { recursive: true });
+  const onDisk = file !== ":memory:";
+  if (onDisk) createOwnerOnly(file);
   const sqlite = new Database(file);
   // 16 KB pages for a new database (ignored for an existing one: WAL fixes the page size once the
   // file has a header). Ingestion adds a reading to every point's b-tree leaf at every flush, and
@@ -37,7 +39,66 @@ export function openDb(file: string): Db {
   // 10,000 pages. A WAL left larger than 64 MB is truncated back after a checkpoint.
   sqlite.pragma("wal_autocheckpoint = 10000");
   sqlite.pragma("journal_size_limit = 67108864");
+  if (onDisk) {
+    for (const f of [file, `${file}-wal`, `${file}-shm`]) keepOwnerOnly(f);
+    const fullDiskControl = testFullDiskControl();
+    if (fullDiskControl) simulateFullDisk(sqlite, fullDiskControl);
+  }
   return drizzle(sqlite, { schema }) as Db;
+}
+
+/**
+ * The database holds password hashes and every site's data: its folder is created 0700 and the
+ * file 0600 before SQLite opens it, which then gives its WAL and SHM files the same mode.
+ */
+function createOwnerOnly(file: string) {
+  fs.mkdirSync(path.dirname(path.resolve(file)), { recursive: true, mode: 0o700 });
+  try {
+    fs.writeFileSync(file, "", { flag: "wx", mode: 0o600 });
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code !== "EEXIST") throw err;
+  }
+}
+
+/** Takes group and other access away from a file made before the modes above were set. */
+function keepOwnerOnly(file: string) {
+  try {
+    const { mode } = fs.statSync(file);
+    if (mode & 0o077) fs.chmodSync(file, mode & 0o700);
+  } catch {
+    // not there (no WAL yet), or not ours to change
+  }
+}
+
+/**
+ * Tests only: LIFTLINE_TEST_FULL_DISK_FILE names a file whose content "full" makes this
+ * connection unable to add a page, so SQLite fails with SQLITE_FULL ("database or disk is full")
+ * as on a full disk; any other content lifts that. Both connections (the event loop's and the
+ * store worker's) watch it, so a test fills and frees the "disk" of a running server.
+ */
+function testFullDiskControl(): string | undefined {
+  return z.string().min(1).optional().parse(process.env.LIFTLINE_TEST_FULL_DISK_FILE);
+}
+
+function simulateFullDisk(sqlite: Database.Database, control: string) {
+  const unlimited = sqlite.pragma("max_page_count", { simple: true }) as number;
+  let applied: boolean | undefined;
+  const apply = () => {
+    if (!sqlite.open) return clearInterval(timer);
+    let full = false;
+    try {
+      full = fs.readFileSync(control, "utf8").trim() === "full";
+    } catch {
+      // no file: not full
+    }
+    if (full === applied) return;
+    applied = full;
+    // SQLite raises a limit below the current size to the current size: no page can be added.
+    sqlite.pragma(`max_page_count = ${full ? 1 : unlimited}`);
+  };
+  const timer = setInterval(apply, 50);
+  timer.unref();
+  apply();
 }
 
 export const migrationsFolder = path.join(process.cwd(), "db", "migrations");

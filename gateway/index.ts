@@ -11,7 +11,7 @@ import { createGatewayRegistry } from "./registry";
 import { createSparkplugHost, encodeStatePayload, stateTopic } from "./sparkplug";
 import { systemClock, type Clock } from "@/lib/clock";
 import type { CommittedRows } from "./row-columns";
-import { createBatchWriter, type BatchWriter } from "./writer";
+import { createBatchWriter, type BatchWriter, type StorageReporter } from "./writer";
 
 // The gateway side of the server, assembled from its parts: broker (embedded, or a client of
 // MQTT_URL), ingest, and the batched writer with retention pruning. Whoever starts it says who
@@ -41,6 +41,8 @@ export interface GatewaySideOptions {
   onPresence?: (siteId: string) => void;
   /** A gateway was provisioned or revoked, or its point map replaced. */
   onMappingChanged?: () => void;
+  /** Hears of failed and committed writes (a full disk). */
+  storage?: StorageReporter;
   clock?: Clock;
   log: (line: string) => void;
 }
@@ -80,6 +82,7 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
       for (const listener of listeners) listener(rows);
     },
     retention: { rawMs: rawRetentionMs, rollupMs: config.ROLLUP_RETENTION_DAYS * DAY_MS },
+    storage: opts.storage,
     log,
   });
   const registry = createGatewayRegistry({ db, clock });
@@ -87,7 +90,14 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
   const sparkplug = createSparkplugHost({ publishCommand: (t, p) => sendCommand(t, p), log });
 
   function presence(gw: Pick<IngestGateway, "gatewayId" | "siteId">, state: Presence, atMs: number) {
-    setGatewayState(db, gw.gatewayId, state, new Date(atMs));
+    try {
+      setGatewayState(db, gw.gatewayId, state, new Date(atMs));
+    } catch (err) {
+      // Runs inside the broker's CONNECT and disconnect handling: a throw would leave the
+      // gateway without a CONNACK. Presence is a convenience; the connection is not.
+      log(`[mqtt] could not record ${gw.gatewayId} as ${state}: ${String(err)}`);
+      opts.storage?.failed(err, "gateway presence");
+    }
     opts.onPresence?.(gw.siteId);
   }
 

@@ -77,7 +77,7 @@ export function workerStore(file: string, options: StoreSettings & { nowMs: () =
         flushes.get(m.id)?.resolve({ id: m.id, accepted: m.accepted, inserted: m.inserted });
         flushes.delete(m.id);
       } else if (m.type === "flushFailed") {
-        flushes.get(m.id)?.reject(new Error(m.error));
+        flushes.get(m.id)?.reject(Object.assign(new Error(m.error), m.code ? { code: m.code } : {}));
         flushes.delete(m.id);
       } else if (m.type === "closed") closing?.();
     });

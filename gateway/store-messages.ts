@@ -24,7 +24,8 @@ export type FromStore =
       inserted: Uint8Array;
       stats: { openRollups: number; unwrittenLatest: number };
     }
-  | { type: "flushFailed"; id: number; error: string }
+  /** `code` is SQLite's or the OS's error code (SQLITE_FULL, ENOSPC, …) when the error had one. */
+  | { type: "flushFailed"; id: number; error: string; code?: string }
   | { type: "closed" };
 
 export interface StoreWorkerData {

@@ -44,7 +44,13 @@ port.on("message", (m: ToStore) => {
           done.inserted.buffer as ArrayBuffer,
         ]);
       } catch (err) {
-        send({ type: "flushFailed", id: m.flush.id, error: String(err) });
+        const code = (err as { code?: unknown }).code;
+        send({
+          type: "flushFailed",
+          id: m.flush.id,
+          error: String(err),
+          code: typeof code === "string" ? code : undefined,
+        });
       }
       return;
     case "maintain":

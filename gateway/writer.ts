@@ -31,6 +31,12 @@ export interface SubmitResult {
   duplicates: number;
 }
 
+/** Told of every flush's outcome, so a full disk shows in the server's health. */
+export interface StorageReporter {
+  failed(err: unknown, where: string): void;
+  committed(): void;
+}
+
 export interface WriterOptions {
   db: Db;
   clock?: Clock;
@@ -55,6 +61,7 @@ export interface WriterOptions {
   thread?: "worker" | "inline";
   /** Retention pruning (gateway/pruner.ts), run beside the writes on the same thread. */
   retention?: Retention;
+  storage?: StorageReporter;
 }
 
 export interface BatchWriter {
@@ -177,6 +184,7 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
     for (let i = 0, j = 0; i < flushed.length; i++) if (done.inserted[i]) rows[j++] = i;
     const inserted = flushed.view(rows);
     items.forEach((p, b) => p.resolve({ accepted: done.accepted[b], duplicates: p.meta.count - done.accepted[b] }));
+    opts.storage?.committed();
     const took = performance.now() - started;
     stats.flushes++;
     stats.rows += inserted.length;
@@ -206,6 +214,7 @@ export function createBatchWriter(opts: WriterOptions): BatchWriter {
       (err) => {
         // Nothing of this flush is stored; no PUBACK goes out, so the publishers resend.
         log(`[ingest] flush of ${items.length} message(s) failed: ${String(err)}`);
+        opts.storage?.failed(err, "ingest");
         for (const p of items) p.reject(err);
       },
     );

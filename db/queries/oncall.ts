@@ -163,8 +163,17 @@ export function listMail(db: Db, limit = 100): MailDto[] {
 }
 
 /** Stores a message the local SMTP sink received (the Outbox page reads them). */
-export function storeSinkMessage(db: Db, message: { from: string; to: string; subject: string; text: string }): void {
+export function storeSinkMessage(
+  db: Db,
+  message: { from: string; to: string; subject: string; text: string; receivedAt?: number },
+): void {
   db.insert(mailMessages)
-    .values({ fromAddress: message.from, toAddress: message.to, subject: message.subject, text: message.text })
+    .values({
+      fromAddress: message.from,
+      toAddress: message.to,
+      subject: message.subject,
+      text: message.text,
+      ...(message.receivedAt === undefined ? {} : { receivedAt: message.receivedAt }),
+    })
     .run();
 }

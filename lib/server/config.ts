@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { parseTrustedProxy } from "@/lib/auth/client-address";
+import { DEFAULT_DEMO_PASSWORD } from "@/lib/auth/password-policy";
 
 // Every setting the server reads, validated once at start-up so a typo fails loudly
 // instead of surfacing as a strange runtime error later.
@@ -38,7 +39,7 @@ export const configSchema = z.object({
   LIFTLINE_DEMO_PASSWORD: z
     .string()
     .min(8, "LIFTLINE_DEMO_PASSWORD must be at least 8 characters")
-    .default("liftline-demo"),
+    .default(DEFAULT_DEMO_PASSWORD),
   LIFTLINE_SIMULATOR: flag(true),
   LIFTLINE_BUILD_IF_NEEDED: flag(true),
   SMTP_URL: z.url({ protocol: /^smtps?$/ }).optional(),
@@ -76,6 +77,8 @@ export const configSchema = z.object({
   INGEST_MAX_BATCH_ROWS: z.coerce.number().int().min(100).max(50_000).default(5000),
   GATEWAY_MAX_MSGS_PER_S: z.coerce.number().int().min(1).default(500),
   LIVE_PUSH_MS: z.coerce.number().int().min(50).max(5000).default(200),
+  /** After a full disk, writes count as working again once one succeeds this long after the last failure. */
+  STORAGE_RECOVERY_S: z.coerce.number().min(0).max(3600).default(30),
   /** External broker mode: Liftline's own session there. */
   MQTT_CLIENT_ID: z.string().min(1).max(23).default("liftline-ingest"),
   MQTT_USERNAME: z.string().min(1).optional(),

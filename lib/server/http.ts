@@ -3,6 +3,8 @@ import { AppError, isAppError } from "@/lib/errors";
 import { crossSiteRefusal } from "./origin";
 import { rateLimitRefusal, type RateLimitKind } from "./rate-limit";
 import { allowedOrigins, apiRateLimiter } from "./runtime";
+import { storageHealth } from "./runtime";
+import { storageFailure, storageUnavailable } from "./storage-health";
 
 // Every route handler goes through `route()`: one place turns thrown errors into
 // the shared error body, so no handler can leak a stack trace or forget a status.
@@ -30,6 +32,11 @@ export function route<C>(handler: Handler<C>, opts: RouteOptions = {}): Handler<
           err.issues.map((i) => ({ path: i.path.join("."), message: i.message })),
         );
         return Response.json(e.toBody(), { status: 400 });
+      }
+      const storage = storageFailure(err);
+      if (storage) {
+        storageHealth().report(err, `api ${request.method} ${new URL(request.url).pathname}`);
+        return Response.json(storageUnavailable(storage.kind).toBody(), { status: 503 });
       }
       console.error(`[api] ${request.method} ${new URL(request.url).pathname}:`, err);
       return Response.json(new AppError("internal", "Something went wrong on our side.").toBody(), { status: 500 });

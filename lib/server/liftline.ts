@@ -1,4 +1,4 @@
-import { createServer, type IncomingMessage, type ServerOptions } from "node:http";
+import { createServer, type IncomingMessage, type Server, type ServerOptions } from "node:http";
 import path from "node:path";
 import next from "next";
 import { migrateDb, openDb, type Db } from "@/db/client";
@@ -14,10 +14,12 @@ import { buildIfNeeded } from "./build";
 import type { Config } from "./config";
 import { createLivePublisher } from "./realtime/live";
 import { createRealtimeServer, disconnectSessionSockets, disconnectUserSockets } from "./realtime/server";
-import { allowedOrigins, setDb, setRuntime } from "./runtime";
+import { allowedOrigins, setDb, setRuntime, setStorageHealth } from "./runtime";
 import { resolveAuthSecret } from "./secret";
 import { applySecurityHeaders, securityHeaders, type SecurityHeaderOptions } from "./security-headers";
 import { createSimulationManager, type SimulationManager } from "./simulation/manager";
+import { startStorageAlarm } from "./storage-alarm";
+import { createStorageHealth } from "./storage-health";
 
 // Liftline's one process: the web app (Next), live updates (socket.io), the MQTT gateway side,
 // rule checks with alarms and paging, and in demo mode the simulated plants. server.ts calls
@@ -42,6 +44,47 @@ export interface Liftline {
 export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   const { config } = opts;
   const log = opts.log ?? ((line: string) => console.log(line));
+  // What is running, in start order; stopped in reverse by close() or by a failed start, so a
+  // start that fails half-way leaves no port open and no connection behind.
+  const running: Array<{ name: string; stop: () => unknown }> = [];
+  try {
+    return await start(
+      opts,
+      config,
+      log,
+      (name, stop) => void running.push({ name, stop }),
+      () => stopAll(running, log),
+    );
+  } catch (err) {
+    log(
+      `Start-up failed; stopping: ${[...running]
+        .reverse()
+        .map((part) => part.name)
+        .join(", ")}`,
+    );
+    await stopAll(running, log);
+    throw err;
+  }
+}
+
+async function stopAll(running: Array<{ name: string; stop: () => unknown }>, log: (line: string) => void) {
+  while (running.length) {
+    const part = running.pop()!;
+    try {
+      await part.stop();
+    } catch (err) {
+      log(`Stopping ${part.name} failed: ${err instanceof Error ? err.message : err}`);
+    }
+  }
+}
+
+async function start(
+  opts: LiftlineOptions,
+  config: Config,
+  log: (line: string) => void,
+  started: (name: string, stop: () => unknown) => void,
+  stopEverything: () => Promise<void>,
+): Promise<Liftline> {
   const dir = opts.dir ?? process.cwd();
   const dev = config.NODE_ENV === "development";
   const databasePath = path.resolve(config.DATABASE_PATH);
@@ -55,12 +98,20 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
   process.env.NEXTAUTH_URL = publicUrl;
 
   const db = openDb(databasePath);
+  started("the database", () => {
+    setRuntime(undefined);
+    setDb(undefined);
+    db.$client.close();
+  });
   migrateDb(db);
   setDb(db);
   if (config.LIFTLINE_DEMO) seedDemo(db, config.LIFTLINE_DEMO_PASSWORD);
   if (!dev && config.LIFTLINE_BUILD_IF_NEEDED) buildIfNeeded(dir, log);
+  const storage = createStorageHealth({ recoveryMs: config.STORAGE_RECOVERY_S * 1000, log });
+  setStorageHealth(storage);
 
   const app = next({ dev, dir, hostname: "localhost", port: config.PORT });
+  started("Next", () => app.close?.());
   await app.prepare();
   const handle = app.getRequestHandler();
   const handleUpgrade = app.getUpgradeHandler();
@@ -76,12 +127,14 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     if (req.url?.startsWith("/socket.io/")) return; // socket.io's own listener takes these
     void handleUpgrade(req, socket, head);
   });
+  started("the HTTP server", () => closeHttp(httpServer));
   const io = createRealtimeServer(httpServer, {
     db,
     secret: authSecret,
     allowedOrigins: origins,
     recheckMs: config.SOCKET_RECHECK_MS,
   });
+  started("socket.io", () => io.close());
   // socket.io answers its polling requests itself, before the handler above; they carry no page.
   const { "content-security-policy": _csp, ...pollingHeaders } = securityHeaders("", headerOptions);
   io.engine.on("headers", (headers: Record<string, string>) => Object.assign(headers, pollingHeaders));
@@ -94,6 +147,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     watched: (room) => (io.sockets.adapter.rooms.get(room)?.size ?? 0) > 0,
     alarmSummary: (siteId) => boardAlarms.side(siteId),
   });
+  started("the live publisher", () => live.stop());
 
   const alarmSystem = await startAlarmSystem({
     db,
@@ -107,7 +161,11 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
       live.touch(siteId);
     },
     log,
+    storage,
   });
+  started("the alarm system", () => alarmSystem.close());
+  const stopStorageAlarm = startStorageAlarm({ db, health: storage, mailer: alarmSystem.mailer, publicUrl, log });
+  started("the storage alarm", stopStorageAlarm);
   const feedRules = createRuleFeed({ db, service: alarmSystem.service });
 
   const gatewaySide = await startGatewaySide({
@@ -116,6 +174,7 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     onCommitted: [live.onCommitted, feedRules],
     onPresence: live.presenceChanged,
     onMappingChanged: live.mappingChanged,
+    storage: { failed: (err, where) => void storage.report(err, where), committed: () => storage.ok() },
     log,
   }).catch((err: unknown) => {
     const where = config.MQTT_URL
@@ -123,13 +182,14 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
       : `start the MQTT broker on port ${config.MQTT_PORT}`;
     throw new Error(`Could not ${where}: ${err instanceof Error ? err.message : err}`, { cause: err });
   });
+  started("the gateway side", () => gatewaySide.close());
 
   // Demo mode's simulated plants publish through their own gateways, like real ones.
   let simulation: SimulationManager | undefined;
   if (config.LIFTLINE_DEMO && config.LIFTLINE_SIMULATOR) {
     if (gatewaySide.mqttPort === null)
       log("Simulated gateways run only with the embedded broker; skipped with MQTT_URL set.");
-    else
+    else {
       simulation = await createSimulationManager({
         db,
         mqttUrl: `mqtt://127.0.0.1:${gatewaySide.mqttPort}`,
@@ -141,6 +201,9 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
           alarmSystem.service.reload(siteId);
         },
       });
+      const sim = simulation;
+      started("the simulation", () => sim.close());
+    }
   }
 
   setRuntime({
@@ -155,10 +218,15 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     disconnectUserSockets: (userId) => disconnectUserSockets(io, userId),
     disconnectSessionSockets: (sessionId) => disconnectSessionSockets(io, sessionId),
     sendMail: (message) => alarmSystem.mailer.send(message),
+    heldMail: () => alarmSystem.mailer.held(),
   });
 
   await new Promise<void>((resolve, reject) => {
-    httpServer.once("error", reject);
+    httpServer.once("error", (err) =>
+      reject(
+        new Error(`Could not listen for HTTP on ${config.HOST} port ${config.PORT}: ${err.message}`, { cause: err }),
+      ),
+    );
     httpServer.listen(config.PORT, config.HOST, () => resolve());
   });
   const address = httpServer.address();
@@ -178,25 +246,17 @@ export async function startLiftline(opts: LiftlineOptions): Promise<Liftline> {
     for (const a of demoAccounts()) log(`  ${a.role.padEnd(10)} ${a.email.padEnd(32)} ${a.organization}`);
   }
 
+  // Stops the simulated gateways, stops taking messages, commits what was accepted, then stops pushing.
   let closing: Promise<void> | undefined;
-  async function close() {
-    // Stop the simulated gateways, stop taking messages, commit what was accepted, then stop pushing.
-    try {
-      await simulation?.close();
-      await gatewaySide.close();
-      await alarmSystem.close();
-      live.stop();
-      io.close();
-      await new Promise<void>((resolve) => httpServer.close(() => resolve()));
-      await app.close?.();
-    } finally {
-      setRuntime(undefined);
-      setDb(undefined);
-      db.$client.close();
-    }
-  }
+  return { url: publicUrl, httpPort, mqttPort: gatewaySide.mqttPort, db, close: () => (closing ??= stopEverything()) };
+}
 
-  return { url: publicUrl, httpPort, mqttPort: gatewaySide.mqttPort, db, close: () => (closing ??= close()) };
+/** Closes the HTTP server, whether or not it got to listen. */
+function closeHttp(server: Server): Promise<void> {
+  return new Promise<void>((resolve) => {
+    if (!server.listening) return resolve();
+    server.close(() => resolve());
+  });
 }
 
 /**

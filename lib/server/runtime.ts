@@ -9,6 +9,8 @@ import { allowedOriginsOf } from "./origin";
 import { createApiRateLimiter, type ApiRateLimiter } from "./rate-limit";
 import type { LatestInMemory } from "@/db/queries/readings";
 import type { SimulationManager } from "./simulation/manager";
+import { createStorageHealth, type StorageHealth } from "./storage-health";
+import type { MailDto } from "@/lib/dto/oncall";
 
 // The process's one registry of what is running. Next bundles route handlers apart from
 // server.ts, so module state is not shared between them: the registry lives on globalThis,
@@ -39,6 +41,8 @@ export interface Runtime {
   disconnectSessionSockets(sessionId: string): number;
   /** Sends an e-mail through the server's mail path (SMTP_URL or the local sink). */
   sendMail(message: { to: string; subject: string; text: string }): Promise<void>;
+  /** Mail the local SMTP sink took but could not store yet (the database could not be written). */
+  heldMail(): MailDto[];
 }
 
 interface Registry {
@@ -48,6 +52,7 @@ interface Registry {
   apiRateLimiter?: ApiRateLimiter;
   allowedOrigins?: ReadonlySet<string>;
   signInAddressDelayMs?: number;
+  storage?: StorageHealth;
 }
 
 const registry: Registry = ((globalThis as { __liftline?: Registry }).__liftline ??= {});
@@ -111,4 +116,14 @@ export function allowedOrigins(): ReadonlySet<string> {
 /** The pause before a sign-in from a slowed address is checked. */
 export function signInAddressDelayMs(): number {
   return (registry.signInAddressDelayMs ??= loadConfig().SIGNIN_ADDRESS_DELAY_MS);
+}
+
+/** Whether the database can be written, reported by every part that writes (lib/server/storage-health.ts). */
+export function storageHealth(): StorageHealth {
+  return (registry.storage ??= createStorageHealth());
+}
+
+/** startLiftline makes its monitor, with the configured recovery time, the process-wide one. */
+export function setStorageHealth(health: StorageHealth): void {
+  registry.storage = health;
 }

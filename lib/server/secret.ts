@@ -11,12 +11,17 @@ export function resolveAuthSecret(configured: string | undefined, dataDir: strin
   const file = path.join(dataDir, "auth-secret");
   try {
     const existing = fs.readFileSync(file, "utf8").trim();
-    if (existing.length >= 32) return existing;
+    if (existing.length >= 32) {
+      if (fs.statSync(file).mode & 0o077) fs.chmodSync(file, 0o600);
+      return existing;
+    }
   } catch {
     // not there yet
   }
-  fs.mkdirSync(dataDir, { recursive: true });
+  // Owner-only, like the database beside it: whoever reads the secret can forge sessions.
+  fs.mkdirSync(dataDir, { recursive: true, mode: 0o700 });
   const secret = randomBytes(32).toString("base64url");
   fs.writeFileSync(file, secret + "\n", { mode: 0o600 });
+  fs.chmodSync(file, 0o600);
   return secret;
 }

@@ -98,7 +98,7 @@ describe("API authorization matrix", () => {
 
   it("health reports database and broker without tenant data", async () => {
     const body = await (await call("anonymous", "/api/health")).json();
-    expect(body).toEqual({ ok: true, db: true, broker: { mode: "embedded", up: true } });
+    expect(body).toEqual({ ok: true, status: "ok", db: true, broker: { mode: "embedded", up: true } });
   });
 });
 

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Button } from "@/components/ui/button";
+import { UnitSystemForm } from "@/components/settings/unit-system-form";
 import { requirePageViewer } from "../../(auth)/auth";
 import { saveUnitSystem } from "./actions";
 
@@ -12,22 +12,7 @@ export default async function SettingsPage() {
   return (
     <section className="flex max-w-xl flex-col gap-6">
       <h1 className="text-2xl font-semibold">Settings</h1>
-      <form action={saveUnitSystem} className="flex flex-col gap-3 rounded-lg border border-line bg-panel p-4">
-        <fieldset className="flex flex-col gap-2">
-          <legend className="font-semibold">Units</legend>
-          <label className="flex min-h-11 items-center gap-2">
-            <input type="radio" name="unitSystem" value="ip" defaultChecked={viewer.unitSystem === "ip"} /> Inch-pound
-            (°F, psig, gpm)
-          </label>
-          <label className="flex min-h-11 items-center gap-2">
-            <input type="radio" name="unitSystem" value="si" defaultChecked={viewer.unitSystem === "si"} /> SI (°C, kPa
-            absolute, L/s)
-          </label>
-        </fieldset>
-        <Button type="submit" className="self-start">
-          Save
-        </Button>
-      </form>
+      <UnitSystemForm unitSystem={viewer.unitSystem} save={saveUnitSystem} />
       <p>
         <Link href="/settings/tokens" className="underline">
           API tokens

@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { getDb } from "@/lib/server/runtime";
+import { getDb, getRuntime } from "@/lib/server/runtime";
 import { listMail } from "@/db/queries/oncall";
 import { route } from "@/lib/server/http";
 import { requireAdmin } from "@/lib/server/guards";
@@ -7,5 +7,6 @@ import { requireAdmin } from "@/lib/server/guards";
 export const GET = route(async (request) => {
   const viewer = await requireApiViewer(request);
   requireAdmin(viewer);
-  return Response.json({ messages: listMail(getDb()) });
+  // Messages held in memory (the database could not be written) first: they are the newest.
+  return Response.json({ messages: [...(getRuntime()?.heldMail() ?? []), ...listMail(getDb())] });
 });

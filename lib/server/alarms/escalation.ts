@@ -35,6 +35,8 @@ export function createEscalator(deps: {
 }): Escalator {
   const { db } = deps;
   let running: Promise<number> | null = null;
+  /** E-mails sent whose record could not be saved (a full disk): not sent again on the next pass. */
+  const sentUnrecorded = new Set<string>();
 
   type Recipient = { id: string; name: string; email: string; why: string };
   function recipients(step: EscalationStep, nowMs: number): Recipient[] {
@@ -65,6 +67,8 @@ export function createEscalator(deps: {
       });
       for (const step of steps) {
         for (const person of recipients(step, nowMs)) {
+          const sentKey = `${a.id}:${a.activations}:${step}:${person.id}`;
+          if (sentUnrecorded.has(sentKey)) continue;
           const viewer = getViewerById(db, person.id);
           const alarm = viewer ? getAlarm(db, viewer, a.id) : null;
           if (!alarm) continue;
@@ -94,6 +98,12 @@ export function createEscalator(deps: {
               ),
               text,
             });
+          } catch (err) {
+            deps.log(`[escalation] could not e-mail ${person.email}: ${err instanceof Error ? err.message : err}`);
+            continue;
+          }
+          sent++;
+          try {
             recordNotification(db, {
               alarmId: a.id,
               activation: a.activations,
@@ -102,9 +112,9 @@ export function createEscalator(deps: {
               email: person.email,
               sentAt: nowMs,
             });
-            sent++;
           } catch (err) {
-            deps.log(`[escalation] could not e-mail ${person.email}: ${err instanceof Error ? err.message : err}`);
+            sentUnrecorded.add(sentKey);
+            throw err;
           }
         }
       }

@@ -15,6 +15,7 @@ import {
   type RuleContext,
   type SiteMonitor,
 } from "@/lib/rules";
+import type { StorageHealth } from "../storage-health";
 
 // Runs the rule checks of every site on the readings ingestion commits, on event time,
 // and keeps the alarms' ISA-18.2 state in the database. People's commands (acknowledge,
@@ -66,7 +67,12 @@ interface SiteState {
   latestWallMs: number;
   snapshot: SiteSnapshot | null;
   details: Map<string, AlarmDetail>;
+  /** Changes the rule checks made that could not be saved yet (a full disk); saved with the next ones. */
+  unsaved: { alarms: Map<string, Alarm>; transitions: TransitionRecord[] };
 }
+
+/** Transitions kept for a later save at most, per site, while the database cannot be written. */
+const MAX_UNSAVED_TRANSITIONS = 10_000;
 
 export function loadRuleSettings(db: Db, siteId: string) {
   return parseRuleSettings(getRuleOverrides(db, siteId));
@@ -79,6 +85,7 @@ export function createAlarmService(deps: {
   onEvaluated?: (summary: SiteEvaluationSummary) => void;
   onAlarmsChanged?: (siteId: string, transitions: TransitionRecord[]) => void;
   log?: (line: string) => void;
+  storage?: Pick<StorageHealth, "report" | "ok">;
 }): AlarmService {
   const { db } = deps;
   const sites = new Map<string, SiteState>();
@@ -101,25 +108,48 @@ export function createAlarmService(deps: {
         latestWallMs: deps.clock(),
         snapshot: null,
         details: new Map(),
+        unsaved: { alarms: new Map(), transitions: [] },
       };
       sites.set(siteId, s);
     }
     return s;
   }
 
-  function persist(siteId: string, s: SiteState, before: AlarmBook, transitions: TransitionRecord[]) {
+  /**
+   * Saves what changed between `before` and now, with anything an earlier save could not write.
+   * A person's command that cannot be saved throws (the caller undoes it and they are told); the
+   * rule checks' changes stay in memory and are saved with the next ones.
+   */
+  function persist(
+    siteId: string,
+    s: SiteState,
+    before: AlarmBook,
+    transitions: TransitionRecord[],
+    by: "rules" | "person",
+  ) {
     const after = s.monitor.alarms();
-    const changed: Alarm[] = [];
+    const changed = new Map(s.unsaved.alarms);
     for (const [key, a] of after) {
       // Rows exist for alarms that ever left normal; keep their words fresh while active.
       if (
         before.get(key) !== a &&
         (transitions.some((t) => t.alarmKey === key) || a.conditionActive || a.state !== "normal")
       )
-        changed.push(a);
+        changed.set(key, a);
     }
-    if (changed.length || transitions.length) saveAlarmChanges(db, siteId, changed, transitions, s.details);
-    if (transitions.length) deps.onAlarmsChanged?.(siteId, transitions);
+    const all = s.unsaved.transitions.length ? [...s.unsaved.transitions, ...transitions] : transitions;
+    if (!changed.size && !all.length) return;
+    try {
+      saveAlarmChanges(db, siteId, [...changed.values()], all, s.details);
+    } catch (err) {
+      if (!deps.storage?.report(err, "alarms") || by === "person") throw err;
+      deps.log?.(`[alarms] ${siteId}: changes kept in memory until the database can be written: ${String(err)}`);
+      s.unsaved = { alarms: changed, transitions: all.slice(-MAX_UNSAVED_TRANSITIONS) };
+      return;
+    }
+    s.unsaved = { alarms: new Map(), transitions: [] };
+    deps.storage?.ok();
+    if (all.length) deps.onAlarmsChanged?.(siteId, all);
   }
 
   function evaluateAt(siteId: string, s: SiteState, atMs: number): SiteEvaluationSummary {
@@ -139,7 +169,7 @@ export function createAlarmService(deps: {
         atMs,
       });
     }
-    persist(siteId, s, before, result.transitions);
+    persist(siteId, s, before, result.transitions, "rules");
     const summary = { siteId, atMs, snapshot: result.snapshot, transitions: result.transitions };
     deps.onEvaluated?.(summary);
     return summary;
@@ -187,7 +217,12 @@ export function createAlarmService(deps: {
       const result = commandAlarm(before, ref.key, event);
       if (result.rejected) throw new AppError("conflict", `Not done: ${result.rejected}.`);
       s.monitor.setAlarms(result.book);
-      persist(ref.siteId, s, before, result.transitions);
+      try {
+        persist(ref.siteId, s, before, result.transitions, "person");
+      } catch (err) {
+        s.monitor.setAlarms(before);
+        throw err;
+      }
       return { alarmId, state: result.alarm.state };
     },
     snapshot: (siteId) => sites.get(siteId)?.snapshot ?? null,

@@ -3,6 +3,7 @@ import { defaultEscalationPolicy } from "@/lib/oncall/escalation";
 import type { CommStatus } from "@/lib/rules";
 import type { Config } from "../config";
 import { createMailer, type Mailer } from "../mail";
+import type { StorageHealth } from "../storage-health";
 import { createEscalator, type Escalator } from "./escalation";
 import { createAlarmService, type AlarmService, type SiteEvaluationSummary } from "./service";
 
@@ -27,6 +28,8 @@ export async function startAlarmSystem(deps: {
   onSiteChanged?: (siteId: string, summary: SiteEvaluationSummary | null) => void;
   log: (line: string) => void;
   clock?: () => number;
+  /** Hears of failed and successful saves (a full disk). */
+  storage?: Pick<StorageHealth, "report" | "ok">;
 }): Promise<AlarmSystem> {
   const clock = deps.clock ?? Date.now;
   const mailer = await createMailer({
@@ -35,6 +38,7 @@ export async function startAlarmSystem(deps: {
     sinkPort: deps.config.SMTP_PORT,
     from: deps.config.MAIL_FROM,
     log: deps.log,
+    storage: deps.storage,
   });
   const escalator = createEscalator({
     db: deps.db,
@@ -51,13 +55,25 @@ export async function startAlarmSystem(deps: {
     onEvaluated: (summary) => deps.onSiteChanged?.(summary.siteId, summary),
     onAlarmsChanged: (siteId, transitions) => {
       deps.onSiteChanged?.(siteId, null);
-      if (transitions.some((t) => t.to === "unacknowledged")) void escalator.run();
+      if (transitions.some((t) => t.to === "unacknowledged")) escalate();
     },
     log: deps.log,
+    storage: deps.storage,
   });
+  // Both run off timers and commits: a failure (a full disk) is logged and tried again next tick.
+  const escalate = () =>
+    void escalator.run().catch((err: unknown) => {
+      deps.storage?.report(err, "escalation");
+      deps.log(`[escalation] pass failed (retried in ${TICK_MS / 1000} s): ${String(err)}`);
+    });
   const timer = setInterval(() => {
-    service.tick();
-    void escalator.run();
+    try {
+      service.tick();
+    } catch (err) {
+      deps.storage?.report(err, "alarms");
+      deps.log(`[alarms] housekeeping failed (retried in ${TICK_MS / 1000} s): ${String(err)}`);
+    }
+    escalate();
   }, TICK_MS);
   timer.unref();
   if (mailer.sinkPort)

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
-import { getDb } from "@/lib/server/runtime";
+import { getDb, getRuntime } from "@/lib/server/runtime";
 import { listMail } from "@/db/queries/oncall";
 import { isAdmin } from "@/lib/auth/viewer";
 import { formatDateTime } from "@/lib/client/format";
@@ -13,7 +13,7 @@ export const dynamic = "force-dynamic";
 export default async function OutboxPage() {
   const viewer = await requirePageViewer();
   if (!isAdmin(viewer)) notFound();
-  const messages = listMail(getDb());
+  const messages = [...(getRuntime()?.heldMail() ?? []), ...listMail(getDb())];
   return (
     <section>
       <h1 className="text-2xl font-semibold">Outbox</h1>
