@@ -30,7 +30,11 @@ const sites = (cookie: string) => fetch(`${server.url}/api/sites`, { headers: { 
 
 /** Opens a socket with the cookie: resolves connected, or with the handshake's refusal. */
 function connect(cookie: string): Promise<{ socket: Socket; refused: string | null }> {
-  const socket = ioClient(server.url, { extraHeaders: { cookie }, transports: ["websocket"], reconnection: false });
+  const socket = ioClient(server.url, {
+    extraHeaders: { cookie, origin: server.url },
+    transports: ["websocket"],
+    reconnection: false,
+  });
   sockets.push(socket);
   return new Promise((resolve) => {
     socket.once("connect", () => resolve({ socket, refused: null }));

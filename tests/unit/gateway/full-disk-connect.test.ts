@@ -57,8 +57,11 @@ describe("gateway presence on a full disk", () => {
 
     const client = mqtt.connect(`mqtt://127.0.0.1:${side.mqttPort}`, {
       protocolVersion: 4,
+      // The broker requires the client id to be the gateway id (gateway/PROTOCOL.md).
+      clientId: gw.username,
       username: gw.username,
       password: gw.password,
+      keepalive: 60,
       reconnectPeriod: 0,
       connectTimeout: 5_000,
     });
