@@ -1,6 +1,7 @@
 import type { Db } from "@/db/client";
 import { verifyGatewayCredentials } from "@/db/queries/gateways";
 import type { BrokerAuth, ClientIdentity } from "./broker";
+import type { ConnectLimiter } from "./connect-limiter";
 import { parseTopic, SPARKPLUG_NAMESPACE, TOPIC_ROOT } from "./contract";
 import { stateTopic } from "./sparkplug";
 
@@ -12,16 +13,22 @@ export interface InternalCredential {
   password: string;
 }
 
-export function createGatewayAuth(deps: { db: Db; internal: InternalCredential }): BrokerAuth {
+export function createGatewayAuth(deps: {
+  db: Db;
+  internal: InternalCredential;
+  limiter?: ConnectLimiter;
+}): BrokerAuth {
   return {
-    async authenticate(username, password) {
+    async authenticate(username, password, meta) {
       if (username === deps.internal.username) {
         return password === deps.internal.password ? { kind: "internal" } : "bad_credentials";
       }
-      const result = await verifyGatewayCredentials(deps.db, username, password);
-      // MQTT 3.1.1 §3.2.2.3: 4 = bad user name or password, 5 = not authorized (revoked).
+      const gate = deps.limiter?.gate(username ?? "", meta?.address);
+      const result = await verifyGatewayCredentials(deps.db, username, password, gate);
+      // MQTT 3.1.1 §3.2.2.3: 4 = bad user name or password, 5 = not authorized (revoked, or too
+      // many failed attempts).
       if (result === "bad_credentials") return "bad_credentials";
-      if (result === "revoked") return "not_authorized";
+      if (result === "revoked" || result === "limited") return "not_authorized";
       return { kind: "gateway", ...result };
     },
 

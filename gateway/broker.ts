@@ -20,6 +20,7 @@ export interface BrokerAuth {
   authenticate(
     username: string | undefined,
     password: string | undefined,
+    meta?: { address?: string },
   ): Promise<ClientIdentity | "bad_credentials" | "not_authorized">;
   canPublish(identity: ClientIdentity, topic: string): boolean;
   canSubscribe(identity: ClientIdentity, topic: string): boolean;
@@ -71,7 +72,9 @@ export async function startEmbeddedBroker(opts: EmbeddedBrokerOptions): Promise<
     connectTimeout: 15_000,
     authenticate(client, username, password, done) {
       opts.auth
-        .authenticate(username, password?.toString("utf8"))
+        .authenticate(username, password?.toString("utf8"), {
+          address: (client.conn as Partial<net.Socket> | undefined)?.remoteAddress,
+        })
         .then((result) => {
           if (result === "bad_credentials") return done(authError(4, "bad user name or password"), false);
           if (result === "not_authorized") return done(authError(5, "not authorized"), false);

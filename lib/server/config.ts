@@ -39,6 +39,14 @@ export const configSchema = z.object({
   INGEST_FLUSH_MS: z.coerce.number().int().min(0).max(250).default(50),
   INGEST_MAX_BATCH_ROWS: z.coerce.number().int().min(100).max(50_000).default(5000),
   GATEWAY_MAX_MSGS_PER_S: z.coerce.number().int().min(1).default(500),
+  /**
+   * Failed MQTT CONNECTs allowed per window, per gateway user name and per remote address;
+   * over either, CONNACK 5 without a password check. Generous per address: a site's gateways
+   * may share one NAT address, and each adds at most its own limit (gateway/connect-limiter.ts).
+   */
+  GATEWAY_CONNECT_WINDOW_S: z.coerce.number().int().min(1).default(300),
+  GATEWAY_CONNECT_MAX_PER_GATEWAY: z.coerce.number().int().min(1).default(10),
+  GATEWAY_CONNECT_MAX_PER_ADDRESS: z.coerce.number().int().min(1).default(100),
   LIVE_PUSH_MS: z.coerce.number().int().min(50).max(5000).default(200),
   /** External broker mode: Liftline's own session there. */
   MQTT_CLIENT_ID: z.string().min(1).max(23).default("liftline-ingest"),
