@@ -15,13 +15,33 @@ export interface BenchGatewayConnection {
   end(): void;
 }
 
-export function connectBenchGateway(
+export interface BenchGatewayOptions {
+  clientId: string;
+  username: string;
+  password: string;
+  timeoutMs?: number;
+  /** The local address to connect from (e.g. 127.0.0.2), so tests can appear as another host. */
+  localAddress?: string;
+}
+
+/** Connects and resolves on CONNACK 0; rejects with the return code otherwise. */
+export async function connectBenchGateway(url: string, opts: BenchGatewayOptions): Promise<BenchGatewayConnection> {
+  const { returnCode, connection } = await openBenchGateway(url, opts);
+  if (!connection) throw new Error(`${opts.clientId}: CONNACK return code ${returnCode}`);
+  return connection;
+}
+
+/**
+ * Sends CONNECT and resolves with the CONNACK's return code (MQTT 3.1.1 §3.2.2.3), with the
+ * connection when it is 0; a refused one is closed. Rejects when no CONNACK comes.
+ */
+export function openBenchGateway(
   url: string,
-  opts: { clientId: string; username: string; password: string; timeoutMs?: number },
-): Promise<BenchGatewayConnection> {
+  opts: BenchGatewayOptions,
+): Promise<{ returnCode: number; connection: BenchGatewayConnection | null }> {
   const { hostname, port } = new URL(url);
   return new Promise((resolve, reject) => {
-    const socket = net.connect({ host: hostname, port: Number(port), noDelay: true });
+    const socket = net.connect({ host: hostname, port: Number(port), noDelay: true, localAddress: opts.localAddress });
     const incoming = parser({ protocolVersion: 4 });
     // MQTT 3.1.1 §2.3.1: a packet id is in use until its PUBACK; ids are 1..65535.
     const waiting: Array<(() => void) | undefined> = new Array(65_536);
@@ -41,20 +61,26 @@ export function connectBenchGateway(
         done?.();
       } else if (p.cmd === "connack") {
         clearTimeout(timer);
-        if (p.returnCode !== 0) return fail(new Error(`${opts.clientId}: CONNACK return code ${p.returnCode}`));
+        if (p.returnCode !== 0) {
+          socket.destroy();
+          return resolve({ returnCode: p.returnCode!, connection: null });
+        }
         connected = true;
         resolve({
-          publish(topic, payload, onAck) {
-            let id = nextId;
-            // Skip ids still waiting (only after 65,535 publishes without their PUBACK).
-            while (waiting[id]) id = (id % 65_535) + 1;
-            nextId = (id % 65_535) + 1;
-            waiting[id] = onAck;
-            socket.write(
-              generate({ cmd: "publish", topic, payload, qos: 1, messageId: id, retain: false, dup: false }),
-            );
+          returnCode: 0,
+          connection: {
+            publish(topic, payload, onAck) {
+              let id = nextId;
+              // Skip ids still waiting (only after 65,535 publishes without their PUBACK).
+              while (waiting[id]) id = (id % 65_535) + 1;
+              nextId = (id % 65_535) + 1;
+              waiting[id] = onAck;
+              socket.write(
+                generate({ cmd: "publish", topic, payload, qos: 1, messageId: id, retain: false, dup: false }),
+              );
+            },
+            end: () => socket.destroy(),
           },
-          end: () => socket.destroy(),
         });
       }
     });
