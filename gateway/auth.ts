@@ -1,6 +1,7 @@
 import type { Db } from "@/db/client";
 import { verifyGatewayCredentials } from "@/db/queries/gateways";
 import type { BrokerAuth, ClientIdentity } from "./broker";
+import type { ConnectLimiter } from "./connect-limiter";
 import {
   jsonTopics,
   MAX_KEEPALIVE_S,
@@ -20,7 +21,11 @@ export interface InternalCredential {
   password: string;
 }
 
-export function createGatewayAuth(deps: { db: Db; internal: InternalCredential }): BrokerAuth {
+export function createGatewayAuth(deps: {
+  db: Db;
+  internal: InternalCredential;
+  limiter?: ConnectLimiter;
+}): BrokerAuth {
   return {
     acceptsKeepalive(username, keepaliveS) {
       if (username === deps.internal.username) return true;
@@ -28,7 +33,7 @@ export function createGatewayAuth(deps: { db: Db; internal: InternalCredential }
       return keepaliveS >= 1 && keepaliveS <= MAX_KEEPALIVE_S;
     },
 
-    async authenticate({ clientId, username, password }) {
+    async authenticate({ clientId, username, password, address }) {
       if (username === deps.internal.username) {
         return password === deps.internal.password ? { kind: "internal" } : "bad_credentials";
       }
@@ -37,10 +42,12 @@ export function createGatewayAuth(deps: { db: Db; internal: InternalCredential }
       // connection can take over another gateway's session (§3.1.4). Checked before the
       // password, so such a CONNECT costs no hash.
       if (clientId !== username) return "identifier_rejected";
-      const result = await verifyGatewayCredentials(deps.db, username, password);
-      // MQTT 3.1.1 §3.2.2.3: 4 = bad user name or password, 5 = not authorized (revoked).
+      const gate = deps.limiter?.gate(username, address);
+      const result = await verifyGatewayCredentials(deps.db, username, password, gate);
+      // MQTT 3.1.1 §3.2.2.3: 4 = bad user name or password, 5 = not authorized (revoked, or too
+      // many failed attempts).
       if (result === "bad_credentials") return "bad_credentials";
-      if (result === "revoked") return "not_authorized";
+      if (result === "revoked" || result === "limited") return "not_authorized";
       return { kind: "gateway", ...result };
     },
 

@@ -24,6 +24,8 @@ export interface ConnectAttempt {
   clientId: string;
   username: string | undefined;
   password: string | undefined;
+  /** The client's remote address, for counting failed attempts per address. */
+  address?: string;
 }
 
 /** What the broker refuses from a connected client; the caller counts it. */
@@ -189,7 +191,12 @@ export async function startEmbeddedBroker(opts: EmbeddedBrokerOptions): Promise<
       };
       try {
         opts.auth
-          .authenticate({ clientId: client.id, username, password: password?.toString("utf8") })
+          .authenticate({
+            clientId: client.id,
+            username,
+            password: password?.toString("utf8"),
+            address: (client.conn as Partial<net.Socket> | undefined)?.remoteAddress,
+          })
           .then(answer, unavailable)
           .catch(unavailable);
       } catch (err) {

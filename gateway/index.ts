@@ -5,6 +5,7 @@ import type { Config } from "@/lib/server/config";
 import { createGatewayAuth } from "./auth";
 import { jsonTopics } from "./contract";
 import { startEmbeddedBroker, type EmbeddedBroker } from "./broker";
+import { createConnectLimiter } from "./connect-limiter";
 import { connectExternalBroker, type ExternalBroker } from "./external";
 import { createIngest, type Ingest, type Presence } from "./ingest";
 import { createGatewayRegistry } from "./registry";
@@ -28,6 +29,9 @@ export type GatewaySettings = Pick<
   | "INGEST_FLUSH_MS"
   | "INGEST_MAX_BATCH_ROWS"
   | "GATEWAY_MAX_MSGS_PER_S"
+  | "GATEWAY_CONNECT_WINDOW_S"
+  | "GATEWAY_CONNECT_MAX_PER_GATEWAY"
+  | "GATEWAY_CONNECT_MAX_PER_ADDRESS"
   | "RAW_RETENTION_DAYS"
   | "ROLLUP_RETENTION_DAYS"
 >;
@@ -132,7 +136,15 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
     embedded = await startEmbeddedBroker({
       host: config.HOST,
       port: config.MQTT_PORT,
-      auth: createGatewayAuth({ db, internal }),
+      auth: createGatewayAuth({
+        db,
+        internal,
+        limiter: createConnectLimiter({
+          windowS: config.GATEWAY_CONNECT_WINDOW_S,
+          maxPerGateway: config.GATEWAY_CONNECT_MAX_PER_GATEWAY,
+          maxPerAddress: config.GATEWAY_CONNECT_MAX_PER_ADDRESS,
+        }),
+      }),
       onPublish: (identity, packet) =>
         identity.kind !== "gateway"
           ? Promise.resolve()

@@ -1,6 +1,5 @@
 import "server-only";
 import { randomBytes } from "node:crypto";
-import bcrypt from "bcryptjs";
 import { and, asc, desc, eq, inArray, isNull, max, sql } from "drizzle-orm";
 import type { Db } from "../client";
 import {
@@ -15,6 +14,7 @@ import {
   type GatewayState,
 } from "../schema";
 import { canSeeSite, siteScope } from "./sites";
+import { checkGatewayPassword, hashGatewayPassword, type HashGate } from "@/gateway/credential-hash";
 import { canAct, isAdmin, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
 import { quantities, type Measure, type QuantityKey } from "@/lib/quantities";
@@ -25,11 +25,7 @@ import type { GatewayCredentials, GatewayDto, PointMapEntryDto } from "@/lib/dto
 
 // Gateways as the API sees them (viewer-scoped, DTOs only) and as the ingest side needs them
 // (system functions at the bottom, no viewer: the broker has no user). The password hash
-// never leaves this module: credentials are checked here.
-
-/** bcrypt cost 10: paid once per MQTT CONNECT, not per message. */
-const GATEWAY_BCRYPT_COST = 10;
-const DUMMY_HASH = bcrypt.hashSync("not-a-gateway-password", GATEWAY_BCRYPT_COST);
+// never leaves this module: credentials are checked here, hashed by gateway/credential-hash.ts.
 
 export interface CreateGatewayInput {
   siteId: string;
@@ -180,7 +176,7 @@ export async function createGateway(db: Db, viewer: Viewer, input: CreateGateway
   requireAdmin(viewer);
   const id = newGatewayId();
   const password = newPassword();
-  const passwordHash = await bcrypt.hash(password, GATEWAY_BCRYPT_COST);
+  const passwordHash = await hashGatewayPassword(password);
   const sparkplug = input.protocol === "sparkplug";
   const groupId = sparkplug ? (input.groupId ?? input.siteId) : null;
   const edgeNodeId = sparkplug ? (input.edgeNodeId ?? id) : null;
@@ -214,7 +210,7 @@ export async function rotateGatewayPassword(db: Db, viewer: Viewer, id: string):
   requireAdmin(viewer);
   if (row.revokedAt) throw new AppError("conflict", "This gateway is revoked; provision a new one.");
   const password = newPassword();
-  const passwordHash = await bcrypt.hash(password, GATEWAY_BCRYPT_COST);
+  const passwordHash = await hashGatewayPassword(password);
   db.update(gateways).set({ passwordHash, passwordRotatedAt: new Date() }).where(eq(gateways.id, id)).run();
   const updated = db.select().from(gateways).where(eq(gateways.id, id)).get()!;
   return { gateway: toDtos(db, [updated])[0], username: updated.username, password };
@@ -315,6 +311,40 @@ export function replacePointMap(
 
 // ---- System functions for the broker and ingest (no viewer) ----
 
+// A reconnect storm runs these once per CONNECT on the event loop: prepared once per database,
+// not built again by the query builder each time.
+const prepared = new WeakMap<Db, ReturnType<typeof prepareSystemStatements>>();
+
+function prepareSystemStatements(db: Db) {
+  return {
+    credentials: db
+      .select({
+        id: gateways.id,
+        siteId: gateways.siteId,
+        protocol: gateways.protocol,
+        groupId: gateways.groupId,
+        edgeNodeId: gateways.edgeNodeId,
+        passwordHash: gateways.passwordHash,
+        revokedAt: gateways.revokedAt,
+      })
+      .from(gateways)
+      .where(eq(gateways.username, sql.placeholder("username")))
+      .prepare(),
+    state: db
+      .update(gateways)
+      // Raw placeholders: the values are bound as given (the time as epoch ms, as the column stores it).
+      .set({ state: sql`${sql.placeholder("state")}`, stateChangedAt: sql`${sql.placeholder("at")}` })
+      .where(eq(gateways.id, sql.placeholder("gatewayId")))
+      .prepare(),
+  };
+}
+
+function systemStatements(db: Db) {
+  let statements = prepared.get(db);
+  if (!statements) prepared.set(db, (statements = prepareSystemStatements(db)));
+  return statements;
+}
+
 export interface GatewayIdentityRecord {
   gatewayId: string;
   siteId: string;
@@ -323,16 +353,43 @@ export interface GatewayIdentityRecord {
   edgeNodeId: string | null;
 }
 
-/** MQTT CONNECT: user name and password → the gateway, or why not. */
+/**
+ * MQTT CONNECT: user name and password → the gateway, or why not. With a gate (the connect
+ * limiter), "limited" when it refused the attempt before any hash.
+ */
+export function verifyGatewayCredentials(
+  db: Db,
+  username: string | undefined,
+  password: string | undefined,
+): Promise<GatewayIdentityRecord | "bad_credentials" | "revoked">;
+export function verifyGatewayCredentials(
+  db: Db,
+  username: string | undefined,
+  password: string | undefined,
+  gate: HashGate | undefined,
+): Promise<GatewayIdentityRecord | "bad_credentials" | "revoked" | "limited">;
 export async function verifyGatewayCredentials(
   db: Db,
   username: string | undefined,
   password: string | undefined,
-): Promise<GatewayIdentityRecord | "bad_credentials" | "revoked"> {
-  const row = username ? db.select().from(gateways).where(eq(gateways.username, username)).get() : undefined;
-  // Compare even without a row so an unknown user name costs the same time as a wrong password.
-  const ok = await bcrypt.compare(password ?? "", row?.passwordHash ?? DUMMY_HASH);
-  if (!row || !ok || password === undefined) return "bad_credentials";
+  gate?: HashGate,
+): Promise<GatewayIdentityRecord | "bad_credentials" | "revoked" | "limited"> {
+  const row = username ? systemStatements(db).credentials.get({ username }) : undefined;
+  // Checked even without a row, so an unknown user name costs the same time as a wrong password.
+  const check = await checkGatewayPassword(password ?? "", row ? { key: row.id, hash: row.passwordHash } : null, gate);
+  if (check === "limited") return check;
+  if (!row || !check.ok || password === undefined) {
+    gate?.settled(false);
+    return "bad_credentials";
+  }
+  if (check.rehashed) {
+    // Only over the hash just checked: a rotation meanwhile wins.
+    db.update(gateways)
+      .set({ passwordHash: check.rehashed })
+      .where(and(eq(gateways.id, row.id), eq(gateways.passwordHash, row.passwordHash)))
+      .run();
+  }
+  gate?.settled(!row.revokedAt);
   if (row.revokedAt) return "revoked";
   return {
     gatewayId: row.id,
@@ -415,7 +472,7 @@ export function findSparkplugGatewayId(db: Db, groupId: string, edgeNodeId: stri
 }
 
 export function setGatewayState(db: Db, gatewayId: string, state: GatewayState, at: Date): void {
-  db.update(gateways).set({ state, stateChangedAt: at }).where(eq(gateways.id, gatewayId)).run();
+  systemStatements(db).state.run({ gatewayId, state, at: at.getTime() });
 }
 
 /** At start with the embedded broker nobody is connected yet, whatever the rows say. */

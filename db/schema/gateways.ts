@@ -28,7 +28,10 @@ export const gateways = sqliteTable(
     groupId: text("group_id"),
     edgeNodeId: text("edge_node_id"),
     username: text("username").notNull(),
-    /** bcrypt hash; the password itself is shown once at provisioning or rotation. */
+    /**
+     * scrypt hash (older rows: bcrypt, until their first CONNECT); the password itself is shown
+     * once at provisioning or rotation.
+     */
     passwordHash: text("password_hash").notNull(),
     createdAt: createdAt(),
     passwordRotatedAt: integer("password_rotated_at", { mode: "timestamp_ms" }),

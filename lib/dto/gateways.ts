@@ -37,7 +37,7 @@ export interface GatewayDto {
 export interface GatewayCredentials {
   gateway: GatewayDto;
   username: string;
-  /** Shown once; only its bcrypt hash is stored. */
+  /** Shown once; only its hash is stored. */
   password: string;
 }
 

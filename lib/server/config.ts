@@ -76,6 +76,14 @@ export const configSchema = z.object({
   INGEST_FLUSH_MS: z.coerce.number().int().min(0).max(250).default(50),
   INGEST_MAX_BATCH_ROWS: z.coerce.number().int().min(100).max(50_000).default(5000),
   GATEWAY_MAX_MSGS_PER_S: z.coerce.number().int().min(1).default(500),
+  /**
+   * Failed MQTT CONNECTs allowed per window, per gateway user name and per remote address;
+   * over either, CONNACK 5 without a password check. Generous per address: a site's gateways
+   * may share one NAT address, and each adds at most its own limit (gateway/connect-limiter.ts).
+   */
+  GATEWAY_CONNECT_WINDOW_S: z.coerce.number().int().min(1).default(300),
+  GATEWAY_CONNECT_MAX_PER_GATEWAY: z.coerce.number().int().min(1).default(10),
+  GATEWAY_CONNECT_MAX_PER_ADDRESS: z.coerce.number().int().min(1).default(100),
   LIVE_PUSH_MS: z.coerce.number().int().min(50).max(5000).default(200),
   /** After a full disk, writes count as working again once one succeeds this long after the last failure. */
   STORAGE_RECOVERY_S: z.coerce.number().min(0).max(3600).default(30),

@@ -18,15 +18,35 @@ export interface BenchGatewayConnection {
 /** Keep alive of the bench's CONNECT; a PINGREQ goes out at half of it (MQTT 3.1.1 §3.1.2.10). */
 const KEEPALIVE_S = 60;
 
-/** The client id is the user name (the gateway id), as the broker requires (gateway/PROTOCOL.md). */
-export function connectBenchGateway(
+export interface BenchGatewayOptions {
+  /** Defaults to the user name (the gateway id), as the broker requires (gateway/PROTOCOL.md). */
+  clientId?: string;
+  username: string;
+  password: string;
+  timeoutMs?: number;
+  /** The local address to connect from (e.g. 127.0.0.2), so tests can appear as another host. */
+  localAddress?: string;
+}
+
+/** Connects and resolves on CONNACK 0; rejects with the return code otherwise. */
+export async function connectBenchGateway(url: string, opts: BenchGatewayOptions): Promise<BenchGatewayConnection> {
+  const { returnCode, connection } = await openBenchGateway(url, opts);
+  if (!connection) throw new Error(`${opts.clientId ?? opts.username}: CONNACK return code ${returnCode}`);
+  return connection;
+}
+
+/**
+ * Sends CONNECT and resolves with the CONNACK's return code (MQTT 3.1.1 §3.2.2.3), with the
+ * connection when it is 0; a refused one is closed. Rejects when no CONNACK comes.
+ */
+export function openBenchGateway(
   url: string,
-  opts: { username: string; password: string; timeoutMs?: number },
-): Promise<BenchGatewayConnection> {
+  opts: BenchGatewayOptions,
+): Promise<{ returnCode: number; connection: BenchGatewayConnection | null }> {
   const { hostname, port } = new URL(url);
-  const clientId = opts.username;
+  const clientId = opts.clientId ?? opts.username;
   return new Promise((resolve, reject) => {
-    const socket = net.connect({ host: hostname, port: Number(port), noDelay: true });
+    const socket = net.connect({ host: hostname, port: Number(port), noDelay: true, localAddress: opts.localAddress });
     const incoming = parser({ protocolVersion: 4 });
     // MQTT 3.1.1 §2.3.1: a packet id is in use until its PUBACK; ids are 1..65535.
     const waiting: Array<(() => void) | undefined> = new Array(65_536);
@@ -46,23 +66,29 @@ export function connectBenchGateway(
         done?.();
       } else if (p.cmd === "connack") {
         clearTimeout(timer);
-        if (p.returnCode !== 0) return fail(new Error(`${clientId}: CONNACK return code ${p.returnCode}`));
+        if (p.returnCode !== 0) {
+          socket.destroy();
+          return resolve({ returnCode: p.returnCode!, connection: null });
+        }
         connected = true;
         const ping = setInterval(() => socket.write(generate({ cmd: "pingreq" })), (KEEPALIVE_S * 1000) / 2);
         ping.unref();
         socket.once("close", () => clearInterval(ping));
         resolve({
-          publish(topic, payload, onAck) {
-            let id = nextId;
-            // Skip ids still waiting (only after 65,535 publishes without their PUBACK).
-            while (waiting[id]) id = (id % 65_535) + 1;
-            nextId = (id % 65_535) + 1;
-            waiting[id] = onAck;
-            socket.write(
-              generate({ cmd: "publish", topic, payload, qos: 1, messageId: id, retain: false, dup: false }),
-            );
+          returnCode: 0,
+          connection: {
+            publish(topic, payload, onAck) {
+              let id = nextId;
+              // Skip ids still waiting (only after 65,535 publishes without their PUBACK).
+              while (waiting[id]) id = (id % 65_535) + 1;
+              nextId = (id % 65_535) + 1;
+              waiting[id] = onAck;
+              socket.write(
+                generate({ cmd: "publish", topic, payload, qos: 1, messageId: id, retain: false, dup: false }),
+              );
+            },
+            end: () => socket.destroy(),
           },
-          end: () => socket.destroy(),
         });
       }
     });

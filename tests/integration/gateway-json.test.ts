@@ -265,6 +265,7 @@ describe("broker access control", () => {
     const list = await api(server, admin, `/api/gateways?site=${SITE}`);
     expect(list.status).toBe(200);
     expect(JSON.stringify(list.body)).not.toMatch(/\$2[aby]\$/);
+    expect(JSON.stringify(list.body)).not.toMatch(/\$scrypt\$/);
     expect(JSON.stringify(list.body)).not.toMatch(/passwordHash|password_hash/);
   });
 });
