@@ -84,6 +84,7 @@ export interface EmbeddedBroker {
 }
 
 const identities = new WeakMap<Client, ClientIdentity>();
+const remoteAddresses = new WeakMap<Client, string | undefined>();
 
 function refusal(code: 2 | 3 | 4 | 5, message: string): AuthenticateError {
   // MQTT 3.1.1 §3.2.2.3: 2 = identifier rejected, 3 = server unavailable, 4 = bad user name or
@@ -195,7 +196,7 @@ export async function startEmbeddedBroker(opts: EmbeddedBrokerOptions): Promise<
             clientId: client.id,
             username,
             password: password?.toString("utf8"),
-            address: (client.conn as Partial<net.Socket> | undefined)?.remoteAddress,
+            address: remoteAddresses.get(client),
           })
           .then(answer, unavailable)
           .catch(unavailable);
@@ -264,6 +265,8 @@ export async function startEmbeddedBroker(opts: EmbeddedBrokerOptions): Promise<
       },
     );
     const client = aedes.handle(connection);
+    // aedes sees the size-checking wrapper, not the socket: failed CONNECTs are counted per address.
+    remoteAddresses.set(client, socket.remoteAddress);
   });
   server.on("error", (err) => log(`[mqtt] ${String(err)}`));
   await new Promise<void>((resolve, reject) => {

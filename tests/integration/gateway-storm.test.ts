@@ -175,7 +175,7 @@ describe("gateway reconnect storms", () => {
       Promise.all(
         provisioned.slice(0, WRONG_PASSWORD_STORM).map(async (gw, i) => {
           const r = await openBenchGateway(server.mqttUrl, {
-            clientId: `wrong-${i}`,
+            clientId: gw.username,
             username: gw.username,
             password: `${gw.password}x`,
             localAddress: `127.0.0.${2 + (i % 6)}`,
@@ -201,7 +201,7 @@ describe("gateway reconnect storms", () => {
     const limits = loadConfig(process.env);
     const [gw, neighbour, working] = provisioned.slice(STORM);
     const attempt = (creds: { username: string; password: string }, from: string) =>
-      openBenchGateway(server.mqttUrl, { clientId: `limit-${creds.username}`, ...creds, localAddress: from }).then(
+      openBenchGateway(server.mqttUrl, { clientId: creds.username, ...creds, localAddress: from }).then(
         (r) => {
           r.connection?.end();
           return r.returnCode;

@@ -39,7 +39,7 @@ describe("requesterKey", () => {
     expect(await requesterKey(bearer("llt_two"), SECRET)).not.toBe(a);
 
     const session = await encode({
-      token: { sub: "user-1", role: "technician", organizationId: "org-1" },
+      token: { sub: "user-1", sid: "session-1", role: "technician", organizationId: "org-1" },
       secret: SECRET,
     });
     const cookie = new Request("http://localhost/", { headers: { cookie: `x=1; next-auth.session-token=${session}` } });
