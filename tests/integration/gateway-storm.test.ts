@@ -201,12 +201,10 @@ describe("gateway reconnect storms", () => {
     const limits = loadConfig(process.env);
     const [gw, neighbour, working] = provisioned.slice(STORM);
     const attempt = (creds: { username: string; password: string }, from: string) =>
-      openBenchGateway(server.mqttUrl, { clientId: creds.username, ...creds, localAddress: from }).then(
-        (r) => {
-          r.connection?.end();
-          return r.returnCode;
-        },
-      );
+      openBenchGateway(server.mqttUrl, { clientId: creds.username, ...creds, localAddress: from }).then((r) => {
+        r.connection?.end();
+        return r.returnCode;
+      });
 
     // One gateway's failures shut out its user name from anywhere, even with the right password.
     for (let i = 0; i < limits.GATEWAY_CONNECT_MAX_PER_GATEWAY; i++)
