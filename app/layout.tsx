@@ -3,7 +3,6 @@ import { connection } from "next/server";
 import "@fontsource/inter/400.css";
 import "@fontsource/inter/600.css";
 import "./globals.css";
-import { ZodWithoutEval } from "@/components/layout/zod-without-eval";
 
 export const metadata: Metadata = {
   title: { default: "Liftline", template: "%s · Liftline" },
@@ -17,10 +16,7 @@ export default async function RootLayout({ children }: { children: React.ReactNo
   await connection();
   return (
     <html lang="en">
-      <body className="min-h-screen bg-surface text-ink antialiased">
-        <ZodWithoutEval />
-        {children}
-      </body>
+      <body className="min-h-screen bg-surface text-ink antialiased">{children}</body>
     </html>
   );
 }

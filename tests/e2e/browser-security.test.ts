@@ -53,7 +53,7 @@ describe.skipIf(!hasChromium)("security headers and the Content-Security-Policy"
     expect(scripts.length).toBeGreaterThan(0);
     for (const tag of scripts) expect(tag).toContain(`nonce="${nonce}"`);
     expect(responses.api.headers.get("content-security-policy")).not.toContain(nonce);
-  });
+  }, 120_000); // a development server compiles the page on first use
 
   it("lets a technician sign in and use the board, a site page and a trend page with no console error or violation", async () => {
     // One reading, so the trend page draws its chart.
@@ -87,6 +87,12 @@ describe.skipIf(!hasChromium)("security headers and the Content-Security-Policy"
     await expect.poll(() => page.getByTestId("site-card").count()).toBe(3);
     await expect.poll(() => socketFrames.some((f) => f.startsWith("40")), { timeout: 10_000 }).toBe(true);
     expect(await violations()).toEqual([]);
+    // Zod's eval probe would be a violation under the production policy (no 'unsafe-eval'); it runs jitless.
+    expect(
+      await page.evaluate(
+        () => (globalThis as { __zod_globalConfig?: { jitless?: boolean } }).__zod_globalConfig?.jitless,
+      ),
+    ).toBe(true);
 
     await page
       .getByRole("link", { name: /Harborview/ })
