@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { api, connectGateway, provisionGateway, putPointMap } from "../helpers/mqtt";
+import { api, raiseChillerTrip } from "../helpers/mqtt";
 import { signIn, startServer, type TestServer } from "../helpers/server";
 
 // The alarm API against the real server: a controller fault published by a gateway raises an
@@ -7,38 +7,6 @@ import { signIn, startServer, type TestServer } from "../helpers/server";
 let server: TestServer;
 const cookies: Record<string, string> = {};
 let alarmId: string;
-
-/** Publishes a latched chiller alarm for `tag` through a fresh gateway; returns the raised alarm's id. */
-async function raiseChillerTrip(siteId: string, tag: string, fault: string): Promise<string> {
-  const gw = await provisionGateway(server, cookies.admin, { siteId });
-  const p = tag.replace("-", "");
-  const csv = `gateway_point,equipment,quantity,unit\n${p}-ALM,${tag},chiller_alarm,bool\n${p}-FAULT,${tag},fault_text,text\n${p}-RUN,${tag},run_status,bool\n`;
-  expect((await putPointMap(server, cookies.admin, gw.gateway.id, csv)).status).toBe(200);
-  const client = await connectGateway(server, gw);
-  // Two samples 10 s apart: the rules evaluate every 5 s of event time.
-  const t0 = Date.now() - 20_000;
-  for (const [i, ts] of [t0, t0 + 10_000].entries()) {
-    const at = new Date(ts).toISOString();
-    const readings = [
-      { point: `${p}-ALM`, value: true, ts: at },
-      { point: `${p}-FAULT`, value: fault, ts: at },
-      { point: `${p}-RUN`, value: false, ts: at },
-    ];
-    await client.publishAsync(`liftline/${gw.gateway.id}/readings`, JSON.stringify({ seq: i, sentAt: at, readings }), {
-      qos: 1,
-    });
-  }
-  await client.endAsync();
-  for (let i = 0; i < 50; i++) {
-    const { body } = await api(server, cookies.tech, `/api/alarms?site=${siteId}`);
-    const found = body.alarms?.find(
-      (a: { ruleId: string; equipment: string }) => a.ruleId === "chiller_tripped" && a.equipment === tag,
-    );
-    if (found) return found.id;
-    await new Promise((r) => setTimeout(r, 200));
-  }
-  throw new Error(`no chiller_tripped alarm for ${siteId} ${tag}`);
-}
 
 beforeAll(async () => {
   server = await startServer();
@@ -50,7 +18,7 @@ beforeAll(async () => {
   })) {
     cookies[who] = (await signIn(server.url, email)).cookie!;
   }
-  alarmId = await raiseChillerTrip("harborview-mob", "CH-1", "High condenser pressure");
+  alarmId = await raiseChillerTrip(server, cookies.admin, "harborview-mob", "CH-1", "High condenser pressure");
   expect(alarmId, "the rules raised a chiller-tripped alarm").toBeTruthy();
 });
 afterAll(() => server?.stop());
@@ -251,7 +219,7 @@ describe("alarm API", () => {
 
 describe("e-mailed acknowledge link", () => {
   it("reaches the technician on call, acknowledges from a phone without signing in, and works only once", async () => {
-    const id = await raiseChillerTrip("millbrook-high", "CH-2", "Drive over-temperature");
+    const id = await raiseChillerTrip(server, cookies.admin, "millbrook-high", "CH-2", "Drive over-temperature");
     // The demo rota puts Luis on call; the local SMTP sink keeps the message for the outbox.
     let mail: { to: string; text: string } | undefined;
     for (let i = 0; i < 50 && !mail; i++) {
