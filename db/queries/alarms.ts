@@ -8,6 +8,15 @@ import { siteScope } from "./sites";
 import type { Alarm, AlarmState, TransitionRecord } from "@/lib/alarms";
 import type { AlarmDetail, AlarmDto, AlarmNoteDto, AlarmWithHistoryDto } from "@/lib/dto/alarms";
 
+/** An alarm note as screens get it: the author's name, never their id. */
+const noteColumns = {
+  id: alarmNotes.id,
+  author: users.name,
+  text: alarmNotes.text,
+  visibility: alarmNotes.visibility,
+  createdAt: alarmNotes.createdAt,
+};
+
 // Alarms as stored: one row per rule × equipment × site with its current ISA-18.2 state,
 // an append-only event history, and notes. Customers read their own sites' alarms and the
 // notes shared with them; nothing here lets them change anything.
@@ -99,13 +108,7 @@ export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHist
     .all()
     .map((e) => (staff ? e : { ...e, note: null }));
   const notes = db
-    .select({
-      id: alarmNotes.id,
-      author: users.name,
-      text: alarmNotes.text,
-      visibility: alarmNotes.visibility,
-      createdAt: alarmNotes.createdAt,
-    })
+    .select(noteColumns)
     .from(alarmNotes)
     .innerJoin(users, eq(users.id, alarmNotes.userId))
     .where(and(eq(alarmNotes.alarmId, alarmId), staff ? undefined : eq(alarmNotes.visibility, "customer")))
@@ -140,13 +143,7 @@ export function addNote(
   const id = db.insert(alarmNotes).values({ alarmId, userId: viewer.userId, text, visibility }).run()
     .lastInsertRowid as number;
   return db
-    .select({
-      id: alarmNotes.id,
-      author: users.name,
-      text: alarmNotes.text,
-      visibility: alarmNotes.visibility,
-      createdAt: alarmNotes.createdAt,
-    })
+    .select(noteColumns)
     .from(alarmNotes)
     .innerJoin(users, eq(users.id, alarmNotes.userId))
     .where(eq(alarmNotes.id, id))

@@ -4,6 +4,7 @@ import { and, eq, isNull, lt } from "drizzle-orm";
 import type { Db } from "../client";
 import { sessions, users } from "../schema";
 import type { Viewer } from "@/lib/auth/viewer";
+import { viewerColumns } from "./users";
 
 // Browser sessions: the cookie stays a sealed JWT, and this row is what signing out ends.
 
@@ -27,12 +28,7 @@ export function getSessionViewer(db: Db, userId: string, sessionId: string): Ses
     .select({
       sessionId: sessions.id,
       lastSeenAt: sessions.lastSeenAt,
-      userId: users.id,
-      role: users.role,
-      organizationId: users.organizationId,
-      name: users.name,
-      email: users.email,
-      unitSystem: users.unitSystem,
+      ...viewerColumns,
     })
     .from(sessions)
     .innerJoin(users, eq(users.id, sessions.userId))

@@ -5,6 +5,7 @@ import type { Db } from "../client";
 import { apiTokens, users } from "../schema";
 import type { Viewer } from "@/lib/auth/viewer";
 import type { ApiTokenDto } from "@/lib/dto/tokens";
+import { viewerColumns } from "./users";
 
 export const TOKEN_PREFIX = "llt_";
 
@@ -87,12 +88,7 @@ export function viewerForToken(db: Db, token: string): Viewer | null {
   const row = db
     .select({
       tokenId: apiTokens.id,
-      userId: users.id,
-      role: users.role,
-      organizationId: users.organizationId,
-      name: users.name,
-      email: users.email,
-      unitSystem: users.unitSystem,
+      ...viewerColumns,
       disabled: users.disabled,
     })
     .from(apiTokens)

@@ -10,7 +10,8 @@ import type { Role, Viewer } from "@/lib/auth/viewer";
 // A fixed hash to compare against when the account does not exist, at the cost of every stored one.
 const DUMMY_HASH = hashPasswordSync("not-a-real-password");
 
-const viewerColumns = {
+/** The columns a Viewer is made of, for every query that reads one (sessions, API tokens). */
+export const viewerColumns = {
   userId: users.id,
   role: users.role,
   organizationId: users.organizationId,
