@@ -103,10 +103,16 @@ async function main() {
   });
   const db = openDb(path.resolve(env.DATABASE_PATH));
   migrateDb(db);
-  let org = db.select().from(organizations).where(eq(organizations.kind, "service")).get();
+  let org = db
+    .select({ id: organizations.id, name: organizations.name })
+    .from(organizations)
+    .where(eq(organizations.kind, "service"))
+    .get();
   if (!org) {
-    org = { id: randomUUID(), name: parsed.data.organization, kind: "service", createdAt: new Date() };
-    db.insert(organizations).values(org).run();
+    org = { id: randomUUID(), name: parsed.data.organization };
+    db.insert(organizations)
+      .values({ ...org, kind: "service" })
+      .run();
   }
   try {
     const admin = await createUser(db, { ...parsed.data, password, role: "admin", organizationId: org.id });

@@ -84,6 +84,7 @@ export async function createUser(db: Db, input: CreateUserInput): Promise<Viewer
       role: input.role,
       organizationId: input.organizationId,
       unitSystem: input.unitSystem ?? "ip",
+      passwordSetAt: new Date(),
     })
     .run();
   return getViewerById(db, id)!;

@@ -8,12 +8,27 @@ const createdAt = () =>
     .notNull()
     .default(sql`(unixepoch('subsec') * 1000)`);
 
+/** Soft delete: a retired row keeps its history and is hidden, with who retired it and when. */
+const retired = () => ({
+  retiredAt: integer("retired_at", { mode: "timestamp_ms" }),
+  retiredBy: text("retired_by"),
+});
+
+/** One person to call about a site. */
+export interface SiteContact {
+  name: string;
+  role: string;
+  phone: string;
+  email: string;
+}
+
 export const organizations = sqliteTable("organizations", {
   id: text("id").primaryKey(),
   name: text("name").notNull(),
   /** `service` is the contractor running Liftline; `customer` owns buildings. */
   kind: text("kind", { enum: ["service", "customer"] }).notNull(),
   createdAt: createdAt(),
+  ...retired(),
 });
 export type Organization = typeof organizations.$inferSelect;
 export type NewOrganization = typeof organizations.$inferInsert;
@@ -33,6 +48,9 @@ export const users = sqliteTable(
       .notNull()
       .default("ip"),
     disabled: integer("disabled", { mode: "boolean" }).notNull().default(false),
+    phone: text("phone"),
+    /** Set when the person first chose a password (an invited account has none until then). */
+    passwordSetAt: integer("password_set_at", { mode: "timestamp_ms" }),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex("users_email_unique").on(t.email)],
@@ -52,7 +70,11 @@ export const sites = sqliteTable(
     kind: text("kind").notNull(),
     address: text("address").notNull(),
     timeZone: text("time_zone").notNull(),
+    contacts: text("contacts", { mode: "json" }).$type<SiteContact[]>().notNull().default([]),
+    /** What a technician needs after hours: where the gate code is, plant-room access, who to call. */
+    accessNotes: text("access_notes").notNull().default(""),
     createdAt: createdAt(),
+    ...retired(),
   },
   (t) => [index("sites_organization_idx").on(t.organizationId)],
 );
@@ -78,7 +100,10 @@ export const equipment = sqliteTable(
     refrigerant: text("refrigerant"),
     /** The tag of the equipment this one serves (a pump serving CH-1). */
     serves: text("serves"),
+    /** The rest of the kind's record (lib/schemas/equipment.ts): design data and nameplate facts. */
+    record: text("record", { mode: "json" }).$type<Record<string, unknown>>().notNull().default({}),
     createdAt: createdAt(),
+    ...retired(),
   },
   (t) => [uniqueIndex("equipment_site_tag_unique").on(t.siteId, t.tag)],
 );
@@ -125,6 +150,10 @@ export const apiTokens = sqliteTable(
     revokedAt: integer("revoked_at", { mode: "timestamp_ms" }),
     /** Refused from this moment on; null for a token that does not expire. */
     expiresAt: integer("expires_at", { mode: "timestamp_ms" }),
+    /** `read` < `act` < `admin`; a token never does more than its owner's role allows either. */
+    scope: text("scope", { enum: ["read", "act", "admin"] })
+      .notNull()
+      .default("act"),
   },
   (t) => [uniqueIndex("api_tokens_hash_unique").on(t.tokenHash), index("api_tokens_user_idx").on(t.userId)],
 );

@@ -1,3 +1,4 @@
 export * from "./core";
 export * from "./gateways";
 export * from "./alarms";
+export * from "./records";

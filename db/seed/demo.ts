@@ -163,7 +163,7 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
         count(
           tx
             .insert(users)
-            .values({ ...staff, organizationId: SERVICE_ORG.id, passwordHash })
+            .values({ ...staff, organizationId: SERVICE_ORG.id, passwordHash, passwordSetAt: new Date() })
             .onConflictDoNothing()
             .run(),
         );
@@ -187,6 +187,7 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
               role: "customer",
               organizationId: customer.id,
               passwordHash,
+              passwordSetAt: new Date(),
             })
             .onConflictDoNothing()
             .run(),
