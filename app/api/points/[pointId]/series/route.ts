@@ -1,24 +1,14 @@
-import { z } from "zod";
 import { requireApiViewer } from "@/app/(auth)/auth";
 import { getDb } from "@/lib/server/runtime";
 import { getSeries } from "@/db/queries/readings";
 import { AppError } from "@/lib/errors";
 import { loadConfig } from "@/lib/server/config";
 import { route } from "@/lib/server/http";
+import { pointParamsSchema as paramsSchema, seriesQuerySchema as querySchema } from "@/lib/schemas/readings";
 
 export const dynamic = "force-dynamic";
 
 const MAX_SPAN_MS = 2 * 366 * 86_400_000;
-const time = z.union([
-  z.iso.datetime({ offset: true }).transform((s) => Date.parse(s)),
-  z.coerce.number().int().min(0),
-]);
-const querySchema = z.object({
-  from: time.optional(),
-  to: time.optional(),
-  maxPoints: z.coerce.number().int().min(2).max(5000).default(1000),
-});
-const paramsSchema = z.object({ pointId: z.coerce.number().int().positive() });
 
 /** `?from&to` as ISO 8601 or ms since epoch (default: the last hour); at most maxPoints buckets. */
 export const GET = route<{ params: Promise<{ pointId: string }> }>(

@@ -1,0 +1,19 @@
+import { buildOpenApiDocument, plantOperations, simulatorOperations, type OpenApiDocument } from "@/lib/openapi";
+import { startRunSchemaFor } from "@/lib/schemas/simulator";
+import { drillActionSchema } from "@/simulator/actions-schema";
+import { scenarioNames } from "@/simulator/scenarios";
+import pkg from "@/package.json" with { type: "json" };
+
+let cached: OpenApiDocument | undefined;
+
+/** The whole API's OpenAPI 3.1 document, built once from the same zod schemas the routes parse with. */
+export function openApiDocument(): OpenApiDocument {
+  cached ??= buildOpenApiDocument(
+    [
+      ...plantOperations,
+      ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
+    ],
+    pkg.version,
+  );
+  return cached;
+}
