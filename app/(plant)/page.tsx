@@ -2,7 +2,8 @@ import { getDb } from "@/lib/server/runtime";
 import { listSites } from "@/db/queries/sites";
 import { SiteBoard } from "@/components/sites/site-board";
 import { boardStatuses } from "@/lib/server/board/site-status";
-import { canAct } from "@/lib/auth/viewer";
+import { canAct, isAdmin } from "@/lib/auth/viewer";
+import { redirect } from "next/navigation";
 import { requirePageViewer } from "../(auth)/auth";
 
 export const dynamic = "force-dynamic";
@@ -11,6 +12,8 @@ export default async function BoardPage() {
   const viewer = await requirePageViewer();
   const db = getDb();
   const sites = listSites(db, viewer);
+  // A new deployment: the administrator's board would be empty, so the checklist comes first.
+  if (sites.length === 0 && isAdmin(viewer)) redirect("/admin/setup");
   const statuses = boardStatuses(
     db,
     viewer,

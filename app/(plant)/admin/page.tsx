@@ -8,6 +8,11 @@ export const metadata: Metadata = { title: "Admin" };
 
 const sections = [
   {
+    href: "/admin/setup",
+    title: "Set up",
+    text: "The checklist for putting a customer's plant on Liftline, and what is done.",
+  },
+  {
     href: "/admin/gateways",
     title: "Gateways",
     text: "Provision site gateways, rotate or revoke their credentials, upload point maps, see their counters.",
@@ -24,6 +29,7 @@ const sections = [
   },
   { href: "/admin/outbox", title: "Outbox", text: "E-mail caught by the local SMTP sink." },
   { href: "/on-call", title: "On-call rota", text: "Who is primary and backup, by day or week." },
+  { href: "/api-docs", title: "API", text: "The REST API, described in OpenAPI 3.1." },
 ];
 
 export default async function AdminPage() {
