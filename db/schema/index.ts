@@ -2,3 +2,4 @@ export * from "./core";
 export * from "./gateways";
 export * from "./alarms";
 export * from "./records";
+export * from "./service";
