@@ -3,3 +3,4 @@ export * from "./gateways";
 export * from "./alarms";
 export * from "./records";
 export * from "./service";
+export * from "./notify";
