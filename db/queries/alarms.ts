@@ -6,6 +6,7 @@ import { alarmEvents, alarmNotes, alarms, siteRuleSettings, sites, users } from 
 import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
 import { siteScope } from "./sites";
 import type { Alarm, AlarmState, TransitionRecord } from "@/lib/alarms";
+import { withoutMovedLimits } from "@/lib/rules/settings";
 import type { AlarmDetail, AlarmDto, AlarmNoteDto, AlarmWithHistoryDto } from "@/lib/dto/alarms";
 
 /** An alarm note as screens get it: the author's name, never their id. */
@@ -322,7 +323,8 @@ export function getRuleOverrides(db: Db, siteId: string): unknown {
     .from(siteRuleSettings)
     .where(eq(siteRuleSettings.siteId, siteId))
     .get();
-  return row ? JSON.parse(row.json) : {};
+  // Limits stored here before they moved to the equipment records are dropped, not refused.
+  return row ? withoutMovedLimits(JSON.parse(row.json)) : {};
 }
 
 export function saveRuleOverrides(db: Db, viewer: Viewer, siteId: string, overrides: unknown): void {

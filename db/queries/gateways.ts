@@ -13,7 +13,7 @@ import {
   type GatewayProtocol,
   type GatewayState,
 } from "../schema";
-import { canSeeSite, siteScope } from "./sites";
+import { canSeeSite, isSiteRetired, siteScope } from "./sites";
 import { checkGatewayPassword, hashGatewayPassword, type HashGate } from "@/gateway/credential-hash";
 import { canAct, isAdmin, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
@@ -174,6 +174,7 @@ export function getGateway(db: Db, viewer: Viewer, id: string): GatewayDto | nul
 export async function createGateway(db: Db, viewer: Viewer, input: CreateGatewayInput): Promise<GatewayCredentials> {
   if (!canSeeSite(db, viewer, input.siteId)) throw notFound("No such site.");
   requireAdmin(viewer);
+  if (isSiteRetired(db, input.siteId)) throw new AppError("conflict", "This site is retired; restore it first.");
   const id = newGatewayId();
   const password = newPassword();
   const passwordHash = await hashGatewayPassword(password);
@@ -326,8 +327,10 @@ function prepareSystemStatements(db: Db) {
         edgeNodeId: gateways.edgeNodeId,
         passwordHash: gateways.passwordHash,
         revokedAt: gateways.revokedAt,
+        siteRetiredAt: sites.retiredAt,
       })
       .from(gateways)
+      .innerJoin(sites, eq(sites.id, gateways.siteId))
       .where(eq(gateways.username, sql.placeholder("username")))
       .prepare(),
     state: db
@@ -389,8 +392,10 @@ export async function verifyGatewayCredentials(
       .where(and(eq(gateways.id, row.id), eq(gateways.passwordHash, row.passwordHash)))
       .run();
   }
-  gate?.settled(!row.revokedAt);
-  if (row.revokedAt) return "revoked";
+  // A retired site's gateways are refused like revoked ones: its record stays, its data stops.
+  const refused = row.revokedAt !== null || row.siteRetiredAt !== null;
+  gate?.settled(!refused);
+  if (refused) return "revoked";
   return {
     gatewayId: row.id,
     siteId: row.siteId,
@@ -417,8 +422,14 @@ export interface IngestGateway extends GatewayIdentityRecord {
 }
 
 export function loadIngestGateway(db: Db, gatewayId: string): IngestGateway | null {
-  const g = db.select().from(gateways).where(eq(gateways.id, gatewayId)).get();
-  if (!g) return null;
+  const found = db
+    .select({ g: gateways, siteRetiredAt: sites.retiredAt })
+    .from(gateways)
+    .innerJoin(sites, eq(sites.id, gateways.siteId))
+    .where(eq(gateways.id, gatewayId))
+    .get();
+  if (!found) return null;
+  const { g } = found;
   const rows = db
     .select({
       name: gatewayPointMaps.gatewayPoint,
@@ -452,7 +463,7 @@ export function loadIngestGateway(db: Db, gatewayId: string): IngestGateway | nu
     protocol: g.protocol,
     groupId: g.groupId,
     edgeNodeId: g.edgeNodeId,
-    revoked: g.revokedAt !== null,
+    revoked: g.revokedAt !== null || found.siteRetiredAt !== null,
     map,
     silenceMs: silenceMs(slowest),
   };

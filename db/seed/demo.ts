@@ -1,25 +1,24 @@
 import bcrypt from "bcryptjs";
-import { eq, inArray } from "drizzle-orm";
+import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "../client";
 import { hashPasswordSync, needsRehash } from "../password";
-import { equipment, onCallShifts, organizations, points, sites, users, type NewEquipment } from "../schema";
+import { equipment, onCallShifts, organizations, points, sites, users } from "../schema";
+import { systemViewer } from "@/lib/auth/viewer";
+import { chillerLimitDefaults } from "@/lib/plant/equipment-limits";
+import { fToC, WATER_HEAT_CAPACITY_KJ_PER_LK } from "@/lib/plant/units";
 import { canonicalUnitOf, pointsByKind, quantities, type EquipmentKind } from "@/lib/quantities";
+import type { EquipmentInput } from "@/lib/schemas/equipment";
+import { createCustomer, createEquipment, createSite, setEquipmentLimits } from "@/lib/server/plant-records";
 import { siteLayouts, type SiteLayout } from "@/simulator/layout";
+import { chillerParamsOf } from "@/simulator/params";
 
 // An invented service company and three invented customers. Ids are fixed so the seed is
 // idempotent (re-running inserts nothing) and demo URLs stay stable.
 
 export const SERVICE_ORG = { id: "org-tallgrass", name: "Tallgrass Mechanical Service", kind: "service" as const };
 
-interface DemoEquipment {
-  tag: string;
-  name: string;
-  kind: EquipmentKind;
-  capacityTons?: number;
-  designFlowLps?: number;
-  refrigerant?: string;
-  serves?: string;
-}
+/** A demo record as an administrator would enter it, plus the simulator's own cut-out for chillers. */
+type DemoEquipment = EquipmentInput & { kind: EquipmentKind; highCondTripKPa?: number };
 
 interface DemoSite {
   id: string;
@@ -29,6 +28,8 @@ interface DemoSite {
   kind: string;
   address: string;
   timeZone: string;
+  contacts: { name: string; role: string; phone: string; email: string }[];
+  accessNotes: string;
   customer: { id: string; name: string; userEmail: string; userName: string };
   equipment: DemoEquipment[];
 }
@@ -37,41 +38,71 @@ interface DemoSite {
 const GPM_TO_LPS = 0.0630902;
 const chwFlow = (tons: number) => Math.round(tons * 2.4 * GPM_TO_LPS * 10) / 10;
 const cwFlow = (tons: number) => Math.round(tons * 3 * GPM_TO_LPS * 10) / 10;
+const round1 = (x: number) => Math.round(x * 10) / 10;
+/** Pump heads at design flow: ≈ 50 ft chilled water, ≈ 35 ft condenser water (common practice, recalled). */
+const CHW_PUMP_HEAD_KPA = 150;
+const CW_PUMP_HEAD_KPA = 105;
 
 function plant(layout: SiteLayout): DemoEquipment[] {
-  const chillers = layout.chillers.map((c) => ({ tons: c.capacityTons, refrigerant: c.refrigerant }));
+  // The simulator's own model of each chiller: design flows, condenser range and its cut-out.
+  const params = chillerParamsOf(layout);
+  const d = layout.design;
   // Towers are sized for heat rejection ≈ 1.25 × the load (REFERENCES.md §5).
-  const towerTons = Math.round(chillers.reduce((n, c) => n + c.tons, 0) * 1.25);
+  const towerTons = Math.round(layout.chillers.reduce((n, c) => n + c.capacityTons, 0) * 1.25);
   const list: DemoEquipment[] = [];
-  chillers.forEach((c, i) => {
+  layout.chillers.forEach((c, i) => {
     const n = i + 1;
+    const p = params[i];
+    const cwRangeK = (p.ratedEvapKW + p.ratedInputKW) / (p.cwDesignLps * WATER_HEAT_CAPACITY_KJ_PER_LK);
     list.push({
+      kind: "chiller",
       tag: `CH-${n}`,
       name: `Chiller ${n}`,
-      kind: "chiller",
-      capacityTons: c.tons,
+      capacityTons: c.capacityTons,
       refrigerant: c.refrigerant,
-      designFlowLps: chwFlow(c.tons),
+      // The simulated chillers are variable-speed centrifugals whose motor and drive are cooled by refrigerant.
+      compressorType: "centrifugal_vsd_oil_free",
+      chwDesignFlowLps: chwFlow(c.capacityTons),
+      cwDesignFlowLps: cwFlow(c.capacityTons),
+      chwEnteringDesignC: round1(fToC(d.chwReturnF)),
+      chwLeavingDesignC: round1(fToC(d.chwSupplyF)),
+      cwEnteringDesignC: round1(fToC(d.cwEnteringF)),
+      cwLeavingDesignC: round1(fToC(d.cwEnteringF) + cwRangeK),
+      highCondTripKPa: p.highCondTripKPa,
     });
     list.push({
+      kind: "pump",
       tag: `CHWP-${n}`,
       name: `Chilled water pump ${n}`,
-      kind: "pump",
-      designFlowLps: chwFlow(c.tons),
+      designFlowLps: chwFlow(c.capacityTons),
+      designHeadKPa: CHW_PUMP_HEAD_KPA,
+      loop: "chilled_water",
       serves: `CH-${n}`,
     });
     list.push({
+      kind: "pump",
       tag: `CWP-${n}`,
       name: `Condenser water pump ${n}`,
-      kind: "pump",
-      designFlowLps: cwFlow(c.tons),
+      designFlowLps: cwFlow(c.capacityTons),
+      designHeadKPa: CW_PUMP_HEAD_KPA,
+      loop: "condenser_water",
       serves: `CH-${n}`,
     });
   });
-  list.push({ tag: "CT-1", name: "Cooling tower 1", kind: "cooling_tower", capacityTons: towerTons });
+  list.push({
+    kind: "cooling_tower",
+    tag: "CT-1",
+    name: "Cooling tower 1",
+    capacityTons: towerTons,
+    fanDrive: "variable_speed",
+    // The simulator's tower holds condenser water at the design entering temperature, fan no lower than 20 %.
+    condenserWaterSetpointC: round1(fToC(d.cwEnteringF)),
+    fanMinSpeedPct: 20,
+    serves: null,
+  });
   for (let i = 1; i <= layout.airHandlers; i++)
-    list.push({ tag: `AHU-${i}`, name: `Air handler ${i}`, kind: "air_handler" });
-  list.push({ tag: "WS-1", name: "Weather station", kind: "weather_station" });
+    list.push({ kind: "air_handler", tag: `AHU-${i}`, name: `Air handler ${i}`, serves: "chw-loop" });
+  list.push({ kind: "weather_station", tag: "WS-1", name: "Weather station" });
   return list;
 }
 
@@ -82,6 +113,10 @@ export const DEMO_SITES: DemoSite[] = [
     kind: "Medical office",
     address: "1450 Larkspur Avenue, Riverton",
     timeZone: "America/Chicago",
+    contacts: [
+      { name: "Morgan Ellis", role: "Facilities manager", phone: "555-0142", email: "facilities@harborview.example" },
+    ],
+    accessNotes: "After hours: security desk at the north entrance lets you in; plant room key is in the lock box.",
     customer: {
       id: "org-harborview",
       name: "Harborview Medical Partners",
@@ -97,6 +132,8 @@ export const DEMO_SITES: DemoSite[] = [
     kind: "Data hall",
     address: "88 Flint Quarry Road, Ashbury",
     timeZone: "America/Chicago",
+    contacts: [{ name: "Sam Achebe", role: "Operations lead", phone: "555-0177", email: "ops@quarryridge.example" }],
+    accessNotes: "24/7 staffed: sign in at the guard house with photo ID; escort required in the data hall.",
     customer: {
       id: "org-quarry-ridge",
       name: "Quarry Ridge Data Centers",
@@ -112,6 +149,15 @@ export const DEMO_SITES: DemoSite[] = [
     kind: "School",
     address: "300 Schoolhouse Lane, Millbrook",
     timeZone: "America/New_York",
+    contacts: [
+      {
+        name: "Jordan Whitfield",
+        role: "Facilities director",
+        phone: "555-0190",
+        email: "facilities@millbrook.example",
+      },
+    ],
+    accessNotes: "Gate code is with the district's night custodian; plant room is behind the gym, door B4.",
     customer: {
       id: "org-millbrook",
       name: "Millbrook Unified School District",
@@ -148,6 +194,57 @@ export function demoAccounts(): DemoAccount[] {
   ];
 }
 
+/**
+ * Customers, sites and equipment through the same functions the API calls, as the system
+ * viewer; what exists already (fixed ids, tags) is left alone.
+ */
+function seedRecords(db: Db): number {
+  const viewer = systemViewer(SERVICE_ORG.id);
+  let created = 0;
+  for (const site of DEMO_SITES) {
+    const { customer } = site;
+    if (!db.select({ id: organizations.id }).from(organizations).where(eq(organizations.id, customer.id)).get()) {
+      createCustomer(db, viewer, { name: customer.name }, { id: customer.id });
+      created++;
+    }
+    if (!db.select({ id: sites.id }).from(sites).where(eq(sites.id, site.id)).get()) {
+      createSite(
+        db,
+        viewer,
+        {
+          customerId: customer.id,
+          name: site.name,
+          kind: site.kind,
+          address: site.address,
+          timeZone: site.timeZone,
+          contacts: site.contacts,
+          accessNotes: site.accessNotes,
+        },
+        { id: site.id },
+      );
+      created++;
+    }
+    for (const { highCondTripKPa, ...e } of site.equipment) {
+      const exists = db
+        .select({ id: equipment.id })
+        .from(equipment)
+        .where(and(eq(equipment.siteId, site.id), eq(equipment.tag, e.tag)))
+        .get();
+      if (exists) continue;
+      const made = createEquipment(db, viewer, site.id, e);
+      created++;
+      if (e.kind !== "chiller" || highCondTripKPa === undefined) continue;
+      // The rule should trip where the simulated plant trips: enter its cut-out when the default differs.
+      const byDefault = chillerLimitDefaults(e.refrigerant, e.compressorType).highCondPressureCutoutKPa.value;
+      if (Math.abs(byDefault - highCondTripKPa) > 0.5)
+        setEquipmentLimits(db, viewer, made.id, {
+          values: { highCondPressureCutoutKPa: Math.round(highCondTripKPa * 10) / 10 },
+        });
+    }
+  }
+  return created;
+}
+
 /** Seeds the demo scenario; safe to run on every start (existing rows are left alone). */
 export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
   // One hash for every demo account: they share the documented demo password, hashed at the cost
@@ -156,9 +253,12 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
   let inserted = 0;
   const count = (r: { changes: number }) => (inserted += r.changes);
 
+  // The service company is the deployment itself, not a record an administrator adds.
+  count(db.insert(organizations).values(SERVICE_ORG).onConflictDoNothing().run());
+  inserted += seedRecords(db);
+
   db.transaction(
     (tx) => {
-      count(tx.insert(organizations).values(SERVICE_ORG).onConflictDoNothing().run());
       for (const staff of DEMO_STAFF) {
         count(
           tx
@@ -170,13 +270,6 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
       }
       for (const site of DEMO_SITES) {
         const { customer } = site;
-        count(
-          tx
-            .insert(organizations)
-            .values({ id: customer.id, name: customer.name, kind: "customer" })
-            .onConflictDoNothing()
-            .run(),
-        );
         count(
           tx
             .insert(users)
@@ -192,24 +285,8 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
             .onConflictDoNothing()
             .run(),
         );
-        count(
-          tx
-            .insert(sites)
-            .values({
-              id: site.id,
-              name: site.name,
-              kind: site.kind,
-              address: site.address,
-              timeZone: site.timeZone,
-              organizationId: customer.id,
-            })
-            .onConflictDoNothing()
-            .run(),
-        );
         for (const e of site.equipment) {
           const equipmentId = `${site.id}:${e.tag}`;
-          const row: NewEquipment = { id: equipmentId, siteId: site.id, ...e };
-          count(tx.insert(equipment).values(row).onConflictDoNothing().run());
           for (const key of pointsByKind[e.kind]) {
             count(
               tx

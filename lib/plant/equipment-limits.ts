@@ -165,3 +165,24 @@ export function chillerLimitProblems(v: ChillerLimitValues): { key: ChillerLimit
 }
 
 const round1 = (x: number) => Math.round(x * 10) / 10;
+
+const defaultValuesCache = new Map<string, ChillerLimitValues>();
+
+/**
+ * The limits the rules use for a chiller: its record's (entered over defaults), or — for a
+ * chiller described without them (tests, the simulator's own model) — its refrigerant's defaults.
+ */
+export function limitsOf(chiller: {
+  refrigerant?: string | null;
+  compressorType?: CompressorType | null;
+  limits?: ChillerLimitValues;
+}): ChillerLimitValues {
+  if (chiller.limits) return chiller.limits;
+  const cacheKey = `${chiller.refrigerant ?? ""}|${chiller.compressorType ?? ""}`;
+  let values = defaultValuesCache.get(cacheKey);
+  if (!values) {
+    values = limitValues(effectiveChillerLimits(chiller.refrigerant, chiller.compressorType, []));
+    defaultValuesCache.set(cacheKey, values);
+  }
+  return values;
+}

@@ -1,4 +1,5 @@
 import type { EquipmentKind, QuantityKey } from "@/lib/quantities";
+import type { ChillerLimitValues, CompressorType } from "./equipment-limits";
 
 /** One piece of plant equipment as a site describes it. */
 export interface Equipment {
@@ -11,6 +12,13 @@ export interface Equipment {
   refrigerant?: string;
   /** Tag of the equipment this one serves (a pump or tower serving a chiller). */
   serves?: string;
+  /** Chillers: the kind of compressor (sets some limits' defaults). */
+  compressorType?: CompressorType;
+  /**
+   * Chillers: the controller's limits and settings from the equipment record (entered values over
+   * the refrigerant's and compressor's defaults). Absent: the defaults for its refrigerant.
+   */
+  limits?: ChillerLimitValues;
 }
 
 export type Site = readonly Equipment[];

@@ -87,9 +87,8 @@ export interface SnapshotOptions {
   history?: Record<string, ChillerHistoryInputs>;
   timeToCrossover?: Partial<TimeToCrossoverOptions>;
   slowTimeToCrossover?: Partial<TimeToCrossoverOptions>;
-  /** Timer settings to assume when the controller does not report them. */
-  fallbackStartToStartS?: number;
-  fallbackStopToStartS?: number;
+  /** Anti-recycle timer settings to assume for a chiller whose controller does not report them (its record's). */
+  fallbackTimers?: (chiller: Equipment) => { startToStartS: number; stopToStartS: number } | null;
 }
 
 /** Reads points and remembers the event times of those it used. */
@@ -171,13 +170,14 @@ export function chillerSnapshot(
 
   const h = options.history?.[chiller.tag];
   const inhibit = latest[chiller.tag]?.restart_inhibit_time_left;
+  const fallback = options.fallbackTimers?.(chiller) ?? null;
   const lockout = restartLockoutLeft({
     nowMs,
     inhibitLeftS: inhibit && typeof inhibit.value === "number" ? { value: inhibit.value, tsMs: inhibit.tsMs } : null,
     lastStartMs: h?.lastStartMs ?? null,
     lastStopMs: h?.lastStopMs ?? null,
-    startToStartS: r.num("start_to_start_timer_setting") ?? options.fallbackStartToStartS ?? null,
-    stopToStartS: r.num("stop_to_start_timer_setting") ?? options.fallbackStopToStartS ?? null,
+    startToStartS: r.num("start_to_start_timer_setting") ?? fallback?.startToStartS ?? null,
+    stopToStartS: r.num("stop_to_start_timer_setting") ?? fallback?.stopToStartS ?? null,
   });
 
   return {

@@ -1,6 +1,7 @@
 // Rule 6: compressor drive temperature rising toward its over-temperature trip, with the
 // least-squares projected time to trip.
 
+import { limitsOf } from "@/lib/plant/equipment-limits";
 import { fitTrend, projectToValue } from "@/lib/plant/trend";
 import { QUALIFIED_CAUTION, type Condition } from "./condition";
 import { chillersOf, num, type RuleContext } from "./context";
@@ -14,7 +15,7 @@ export function driveTempTowardTrip(ctx: RuleContext): Condition[] {
   return chillersOf(ctx.site).flatMap((chiller) => {
     const tempC = num(ctx, chiller.tag, "drive_temp");
     if (tempC === null) return [];
-    const tripC = s.tripCByTag[chiller.tag] ?? s.tripC;
+    const tripC = limitsOf(chiller).driveTempTripC;
     const fit = fitTrend(ctx.history.numbers(chiller.tag, "drive_temp", ctx.nowMs - s.fitWindowS * 1000, ctx.nowMs));
     const riseKPerMin = fit ? fit.slopePerS * 60 : null;
     const toTrip = fit && tempC < tripC ? projectToValue(fit, tripC) : null;

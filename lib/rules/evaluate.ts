@@ -1,5 +1,6 @@
 // Evaluates every rule for one site at one event time. Pure given the history view.
 
+import { limitsOf } from "@/lib/plant/equipment-limits";
 import { computeSiteSnapshot, type ChillerHistoryInputs, type SiteSnapshot } from "@/lib/plant/snapshot";
 import type { Site } from "@/lib/plant/site";
 import { chillerTripped } from "./chiller-trip";
@@ -76,8 +77,8 @@ export function snapshotFromHistory(
       minSpanS: c.slowMinSpanS,
       minClosingRateKPerS: c.slowMinClosingRateKPerMin / 60,
     },
-    fallbackStartToStartS: settings.timers.fallbackStartToStartS,
-    fallbackStopToStartS: settings.timers.fallbackStopToStartS,
+    // The chiller record's timer settings (entered, else the common-practice defaults).
+    fallbackTimers: limitsOf,
   });
 }
 

@@ -1,5 +1,7 @@
-// Rule 5: condensing pressure within a margin of the high-pressure trip and rising.
+// Rule 5: condensing pressure within a margin of the high-pressure trip and rising. The trip is
+// the chiller's own high condenser pressure cut-out from its equipment record.
 
+import { limitsOf } from "@/lib/plant/equipment-limits";
 import { fitTrend, projectToValue } from "@/lib/plant/trend";
 import type { Condition } from "./condition";
 import { bool, chillersOf, num, type RuleContext } from "./context";
@@ -13,7 +15,7 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
   return chillersOf(ctx.site).flatMap((chiller) => {
     const pKPa = num(ctx, chiller.tag, "condenser_refrigerant_pressure");
     if (pKPa === null) return [];
-    const tripKPa = s.tripKPaByTag[chiller.tag] ?? s.tripKPa;
+    const tripKPa = limitsOf(chiller).highCondPressureCutoutKPa;
     const running = bool(ctx, chiller.tag, "run_status") === true;
     const fit = fitTrend(
       ctx.history.numbers(chiller.tag, "condenser_refrigerant_pressure", ctx.nowMs - s.riseWindowS * 1000, ctx.nowMs),

@@ -59,6 +59,8 @@ export function createSiteMonitor(args: {
   retentionS?: number;
   alarms?: AlarmBook;
   timeZone?: string;
+  /** The readings of a monitor this one replaces (new limits or settings), so no history is lost. */
+  history?: ReadingHistory;
 }): SiteMonitor {
   const settings = args.settings ?? defaultRuleSettings;
   // The longest look back any rule (or the site page's 1 h margin trend) takes, plus slack: a
@@ -73,7 +75,7 @@ export function createSiteMonitor(args: {
     settings.powerEvent.windowS + settings.powerEvent.holdS,
     settings.efficiencyDrift.averagingWindowS,
   );
-  const history = new ReadingHistory(args.retentionS ?? lookBackS + 600);
+  const history = args.history ?? new ReadingHistory(args.retentionS ?? lookBackS + 600);
   let previous: Condition[] = [];
   // By rule, then equipment: no key string to build per condition and evaluation.
   const delays = new Map<Condition["ruleId"], Map<string, DelayState>>();

@@ -78,9 +78,7 @@ export const ruleSettingsSchema = z.strictObject({
   headPressure: z
     .strictObject({
       ...common(2, 15, 60),
-      /** High condenser pressure trip (kPa abs). Default 160 psig (1204.5 kPa abs) for R-134a, recalled, not verified: set it from the chiller's controller. */
-      tripKPa: positive.default(1204.5),
-      tripKPaByTag: z.record(z.string(), positive).default({}),
+      // The trip itself is the chiller's high condenser pressure cut-out, from its equipment record.
       warnWithinKPa: positive.default(150),
       deadBandKPa: seconds.default(25),
       riseWindowS: positive.default(3 * 60),
@@ -90,9 +88,7 @@ export const ruleSettingsSchema = z.strictObject({
   driveTemperature: z
     .strictObject({
       ...common(2, 15, 60),
-      /** Drive over-temperature trip (°C). Default 150 °F (65.6 °C), common practice, recalled, not verified: set it from the drive's manual. */
-      tripC: positive.default(65.6),
-      tripCByTag: z.record(z.string(), positive).default({}),
+      // The trip itself is the chiller's drive temperature trip, from its equipment record.
       warnWithinK: positive.default(10),
       warnTimeToTripS: positive.default(15 * 60),
       /** Projections count only above this (°C): a drive warming to its cooled temperature after a start (≈ 105 °F, common practice) is not heading for a trip. */
@@ -149,13 +145,6 @@ export const ruleSettingsSchema = z.strictObject({
       startupGraceS: seconds.default(5 * 60),
     })
     .prefault({}),
-  timers: z
-    .strictObject({
-      /** Anti-recycle timers assumed when the controller reports neither countdown nor settings (common practice). */
-      fallbackStartToStartS: seconds.default(20 * 60),
-      fallbackStopToStartS: seconds.default(5 * 60),
-    })
-    .prefault({}),
 });
 
 export type RuleSettings = z.infer<typeof ruleSettingsSchema>;
@@ -166,4 +155,34 @@ export const defaultRuleSettings: RuleSettings = ruleSettingsSchema.parse({});
 /** Validates stored or admin-edited settings, filling defaults. Throws a ZodError when invalid. */
 export function parseRuleSettings(input: unknown): RuleSettings {
   return ruleSettingsSchema.parse(input ?? {});
+}
+
+/**
+ * Limits that moved from rule settings to the chillers' equipment records. Overrides stored before
+ * the move may still hold them; they are dropped on reading, so those sites keep loading (the
+ * values themselves are now entered per chiller as limits).
+ */
+export const movedToEquipmentRecord = {
+  headPressure: ["tripKPa", "tripKPaByTag"],
+  driveTemperature: ["tripC", "tripCByTag"],
+  timers: null,
+} as const;
+
+/** Stored overrides without the keys that moved to the equipment records. */
+export function withoutMovedLimits(overrides: unknown): unknown {
+  if (!overrides || typeof overrides !== "object" || Array.isArray(overrides)) return overrides;
+  const out: Record<string, unknown> = { ...(overrides as Record<string, unknown>) };
+  for (const [group, keys] of Object.entries(movedToEquipmentRecord)) {
+    if (!(group in out)) continue;
+    if (keys === null) {
+      delete out[group];
+      continue;
+    }
+    const g = out[group];
+    if (!g || typeof g !== "object" || Array.isArray(g)) continue;
+    const rest = { ...(g as Record<string, unknown>) };
+    for (const k of keys) delete rest[k];
+    out[group] = rest;
+  }
+  return out;
 }

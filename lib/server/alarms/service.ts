@@ -1,7 +1,7 @@
 import type { Db } from "@/db/client";
 import { findAlarmRef, getRuleOverrides, loadAlarmMachines, saveAlarmChanges } from "@/db/queries/alarms";
 import type { AlarmDetail } from "@/lib/dto/alarms";
-import { siteEquipment, siteTimeZone } from "@/db/queries/sites";
+import { isSiteRetired, siteEquipment, siteTimeZone } from "@/db/queries/sites";
 import { commandAlarm, type Alarm, type AlarmBook, type AlarmEvent, type TransitionRecord } from "@/lib/alarms";
 import { canAct, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
@@ -53,7 +53,10 @@ export interface AlarmService {
     windowS: number,
     maxPoints?: number,
   ): Record<string, { tsMs: number[]; marginK: number[] }>;
-  /** Forgets a site's monitor so settings are re-read on the next reading. */
+  /**
+   * Re-reads a site's equipment records, limits and rule settings at once, keeping its reading
+   * history and alarms; a retired site's checks stop.
+   */
   reload(siteId: string): void;
   /** Wall-clock housekeeping: shelf expiry and silence, extrapolating event time. */
   tick(): void;
@@ -61,6 +64,8 @@ export interface AlarmService {
 
 interface SiteState {
   site: Site;
+  /** A retired site's readings are not checked (its gateways are refused too). */
+  retired: boolean;
   monitor: SiteMonitor;
   lastEvaluatedMs: number;
   latestEventMs: number;
@@ -97,6 +102,7 @@ export function createAlarmService(deps: {
       const site = siteEquipment(db, siteId);
       s = {
         site,
+        retired: isSiteRetired(db, siteId),
         monitor: createSiteMonitor({
           site,
           settings: loadRuleSettings(db, siteId),
@@ -178,6 +184,7 @@ export function createAlarmService(deps: {
   function record(siteId: string, readings: readonly Reading[]): boolean {
     if (!readings.length) return false;
     const s = state(siteId);
+    if (s.retired) return false;
     // Usually already in event-time order; copied and sorted only when not.
     let ordered = true;
     for (let i = 1; i < readings.length && ordered; i++) ordered = readings[i - 1].tsMs <= readings[i].tsMs;
@@ -193,7 +200,8 @@ export function createAlarmService(deps: {
 
   function evaluateDue(siteId: string) {
     const s = sites.get(siteId);
-    if (s && s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS) evaluateAt(siteId, s, s.latestEventMs);
+    if (s && !s.retired && s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS)
+      evaluateAt(siteId, s, s.latestEventMs);
   }
 
   return {
@@ -245,12 +253,33 @@ export function createAlarmService(deps: {
       return out;
     },
     reload(siteId) {
-      sites.delete(siteId);
+      const old = sites.get(siteId);
+      if (!old) return;
+      if (old.unsaved.transitions.length || old.unsaved.alarms.size) {
+        // Changes not yet saved would be lost with the old monitor: rebuilt on the next reading instead.
+        sites.delete(siteId);
+        return;
+      }
+      const site = siteEquipment(db, siteId);
+      sites.set(siteId, {
+        ...old,
+        site,
+        retired: isSiteRetired(db, siteId),
+        monitor: createSiteMonitor({
+          site,
+          settings: loadRuleSettings(db, siteId),
+          alarms: old.monitor.alarms(),
+          timeZone: siteTimeZone(db, siteId),
+          history: old.monitor.history,
+        }),
+        // Evaluate with the new limits at the next reading rather than wait out a step.
+        lastEvaluatedMs: -Infinity,
+      });
     },
     tick() {
       const now = deps.clock();
       for (const [siteId, s] of sites) {
-        if (!Number.isFinite(s.latestEventMs)) continue;
+        if (s.retired || !Number.isFinite(s.latestEventMs)) continue;
         // With no readings arriving, let event time run on with the wall clock so silence
         // is noticed and shelves expire.
         const extrapolated = s.latestEventMs + (now - s.latestWallMs);

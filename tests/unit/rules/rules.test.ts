@@ -1,7 +1,7 @@
 // Rule checks on synthetic event-time streams (tests/unit/rules/synthetic.ts). Thresholds are
 // the documented defaults of lib/rules/settings.ts unless a test says otherwise.
 import { describe, expect, it } from "vitest";
-import { runFrames, secondsOf, type Frame } from "./synthetic";
+import { runFrames, secondsOf, withChillerLimits, type Frame } from "./synthetic";
 
 /** Chiller tripped and off while the building still calls for cooling; margin closes 0.3 K/min from 11.8 K → crosses at ≈ 39.3 min. */
 const closingOff =
@@ -118,9 +118,10 @@ describe("restart race (rule 2)", () => {
     expect(r.firstActivation("restart_race:CH-1")).toBeNull();
   });
 
-  it("falls back to the timer settings and the last stop when no countdown is reported", () => {
-    // Stopped at t = 60 s after running; default stop-to-start 300 s, start-to-start 1200 s from… no start seen → stop-to-start only.
+  it("falls back to the chiller record's timer settings and the last stop when no countdown is reported", () => {
+    // Stopped at t = 60 s after running; the record's stop-to-start 300 s, start-to-start 1200 s from… no start seen → stop-to-start only.
     const r = runFrames({
+      site: withChillerLimits({ stopToStartS: 300, startToStartS: 1200 }),
       durationS: 600,
       frame: (tS) =>
         tS < 60
@@ -205,9 +206,33 @@ describe("head pressure nearing trip (rule 5)", () => {
       runFrames({ durationS: 900, frame: () => ({ condKPa: 1100 }) }).firstActivation("head_pressure_near_trip:CH-1"),
     ).toBeNull();
   });
+
+  it("takes the trip from the chiller's entered high-pressure cut-out", () => {
+    // A cut-out entered at 1100 kPa: warn at 950 kPa, reached at 0 s of this ramp; the default 1204.5 kPa would wait until 630 s.
+    const frame = (tS: number) => ({ condKPa: 950 + (10 / 60) * tS });
+    const lowered = runFrames({
+      durationS: 300,
+      frame,
+      site: withChillerLimits({ highCondPressureCutoutKPa: 1100 }),
+      keep: true,
+    });
+    const first = secondsOf(lowered.firstActivation("head_pressure_near_trip:CH-1"))!;
+    expect(first).toBeLessThanOrEqual(60);
+    const c = lowered.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "head_pressure_near_trip")!;
+    expect(c.numbers.tripKPa).toBe(1100);
+    expect(runFrames({ durationS: 300, frame }).firstActivation("head_pressure_near_trip:CH-1")).toBeNull();
+  });
 });
 
 describe("drive temperature toward trip (rule 6)", () => {
+  it("takes the trip from the chiller's entered drive temperature trip", () => {
+    // Steady at 58 °C: 7.6 K under the default 65.6 °C trip (quiet unless rising), at an entered 57 °C trip (active).
+    const frame = () => ({ driveC: 58 });
+    expect(runFrames({ durationS: 300, frame }).firstActivation("drive_temp_toward_trip:CH-1")).toBeNull();
+    const lowered = runFrames({ durationS: 300, frame, site: withChillerLimits({ driveTempTripC: 57 }) });
+    expect(lowered.firstActivation("drive_temp_toward_trip:CH-1")).not.toBeNull();
+  });
+
   it("warns when the projected time to the 65.6 °C trip falls under 15 min", () => {
     const r = runFrames({ durationS: 900, frame: (tS) => ({ driveC: 40 + (1 / 60) * tS }), keep: true });
     const first = secondsOf(r.firstActivation("drive_temp_toward_trip:CH-1"))!;

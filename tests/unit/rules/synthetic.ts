@@ -5,6 +5,7 @@ import type { QuantityKey } from "@/lib/quantities";
 import { createSiteMonitor, parseRuleSettings, type RuleSettingsInput, type SiteEvaluation } from "@/lib/rules";
 import type { CommStatus } from "@/lib/rules";
 import type { TransitionRecord } from "@/lib/alarms";
+import { effectiveChillerLimits, limitValues, type ChillerLimitValues } from "@/lib/plant/equipment-limits";
 
 export const T0 = Date.UTC(2025, 6, 1, 14, 0, 0);
 
@@ -16,6 +17,15 @@ export const site: Site = [
   { tag: "AHU-1", kind: "air_handler" },
   { tag: "WS-1", kind: "weather_station" },
 ];
+
+/** The synthetic plant with CH-1's limits as its equipment record would give them: defaults, some entered. */
+export function withChillerLimits(entered: Partial<ChillerLimitValues>): Site {
+  return site.map((e) =>
+    e.kind === "chiller"
+      ? { ...e, limits: { ...limitValues(effectiveChillerLimits(e.refrigerant, null, [])), ...entered } }
+      : e,
+  );
+}
 
 export interface Frame {
   chwInC: number;
@@ -127,10 +137,12 @@ export function runFrames(args: {
   keep?: boolean;
   /** The site's IANA time zone (clock times in messages). */
   timeZone?: string;
+  /** Another plant than the default one (e.g. a chiller with entered limits: `withChillerLimits`). */
+  site?: Site;
 }): RunResult {
   const stepS = args.stepS ?? 10;
   const monitor = createSiteMonitor({
-    site,
+    site: args.site ?? site,
     settings: parseRuleSettings(args.settings ?? {}),
     timeZone: args.timeZone,
   });
