@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { ackSchema, alarmQuerySchema, noteSchema, shelveSchema, unshelveSchema } from "@/lib/schemas/alarms";
+import { includeRetiredQuery } from "@/lib/schemas/customers";
 import { createGatewaySchema, listGatewaysQuery } from "@/lib/schemas/gateways";
 import { shiftSchema } from "@/lib/schemas/oncall";
 import { pointParamsSchema, seriesQuerySchema } from "@/lib/schemas/readings";
@@ -33,6 +34,7 @@ export const plantOperations: Operation[] = [
     tag: "Sites",
     summary: "Sites the caller may see",
     access: "signed-in",
+    query: includeRetiredQuery,
     responses: { 200: "The sites, with their customer and equipment count" },
   },
   {
@@ -41,6 +43,7 @@ export const plantOperations: Operation[] = [
     tag: "Sites",
     summary: "A site with its equipment and points",
     access: "signed-in",
+    query: includeRetiredQuery,
     responses: { 200: "The site" },
   },
   {
