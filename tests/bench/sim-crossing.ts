@@ -3,7 +3,8 @@
 // plus the closest approach: the figures behind simulator/README.md. Run: npx tsx tests/bench/sim-crossing.ts
 import { runPlant, siteLayouts } from "@/simulator";
 
-const scenarioNames = process.argv.slice(2).length > 0 ? process.argv.slice(2) : ["power-blip", "condenser-pump-loss", "slow-crossover"];
+const scenarioNames =
+  process.argv.slice(2).length > 0 ? process.argv.slice(2) : ["power-blip", "condenser-pump-loss", "slow-crossover"];
 const startMs = Date.UTC(2026, 5, 1);
 const durations: Record<string, number> = { "slow-crossover": 10 * 3600, "mild-day": 24 * 3600 };
 
@@ -17,7 +18,8 @@ for (const scenario of scenarioNames) {
     for (const s of runPlant({ scenario, seed: 7, startMs, durationS, stepS: 1, sampleEveryS: 10, layout })) {
       const tS = (s.tsMs - startMs) / 1000;
       for (const e of s.events) {
-        if (tripS === null && e.kind === "alarm" && e.equipment === layout.chillers[0].tag) tripS = (e.tsMs - startMs) / 1000;
+        if (tripS === null && e.kind === "alarm" && e.equipment === layout.chillers[0].tag)
+          tripS = (e.tsMs - startMs) / 1000;
         if (e.kind === "state" && /Compressor started/.test(e.message)) starts++;
       }
       const margin = s.state.basinC - s.state.chwReturnC;
