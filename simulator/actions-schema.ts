@@ -41,7 +41,7 @@ export function actionOfCommand(cmd: DrillCommand): { id?: string; action: Drill
   return "action" in cmd ? { id: cmd.id, action: cmd.action } : { action: cmd };
 }
 
-/** Controller limits for the anti-recycle timers, seconds (common practice, from a field service call). */
+/** Controller limits for the anti-recycle timers, seconds (common practice, recalled). */
 export const timerLimits = {
   "start-to-start": { min: 120, max: 3600, default: 900 },
   "stop-to-start": { min: 60, max: 1800, default: 180 },

@@ -5,7 +5,7 @@ import type { ChillerStopReason } from "@/lib/quantities";
 import type { ChillerParams, ChillerState, FaultEntry, ModelEvent } from "./state";
 import { fToC, KPA_PER_PSI, kpaAbsToPsig, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
 
-/** Drive over-temperature trip 150 °F, cooling target 105 °F (common practice, from a field service call). */
+/** Drive over-temperature trip 150 °F, cooling target 105 °F (common practice, recalled). */
 export const driveTripC = fToC(150);
 const driveCoolingSetpointC = fToC(105);
 /** Proportional band of the drive-cooling solenoid, K (assumed). */

@@ -4,7 +4,7 @@ import type { FaultEntry, ModelEvent, PlantParams, TowerState } from "./state";
 import { fToC, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
 import { towerTag } from "./layout";
 
-/** Airflow through a tower with its fan off, fraction of design (natural draft; 2.5 %, about 10–15 % of design heat rejection at equal driving temperature difference — recalled, not verified; condenser water still passes 100 °F with the fan off under load, as observed on the service call). */
+/** Airflow through a tower with its fan off, fraction of design (natural draft; 2.5 %, about 10–15 % of design heat rejection at equal driving temperature difference — recalled, not verified; condenser water still passes 100 °F with the fan off under load). */
 export const naturalDraftAirFraction = 0.025;
 /** Fan minimum speed in auto, fraction (common practice 15–25 %). */
 const fanMinSpeed = 0.2;

@@ -47,7 +47,7 @@ describe("drill actions", () => {
     expect(sts.v.at(-1)).toBe(120);
     expect(r.events.filter((e) => e.kind === "action")).toHaveLength(2);
   });
-  it("a fan drive set to hand at 60 Hz runs at full speed (common practice, from a field service call)", () => {
+  it("a fan drive set to hand at 60 Hz runs at full speed (common practice, recalled)", () => {
     const r = record({
       scenario: "slow-crossover",
       seed: 2,

@@ -79,7 +79,7 @@ describe("design point, steady load (AHRI 550/590 rating conditions, REFERENCES.
       expect(kwPerTon).toBeGreaterThan(0.4);
     }
   });
-  it("drive temperature in its normal 100–110 °F band (common practice, from a field service call)", () => {
+  it("drive temperature in its normal 100–110 °F band (common practice, recalled)", () => {
     for (const v of window(run.num("CH-1", "drive_temp"), from, to).map(cToF)) {
       expect(v).toBeGreaterThan(100);
       expect(v).toBeLessThan(110);

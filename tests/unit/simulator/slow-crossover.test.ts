@@ -11,9 +11,13 @@ describe("slow-crossover (cold day, low load, tower over-cooling)", () => {
     expect(margin[0]).toBeGreaterThan(10); // starts well apart
     expect(Math.min(...margin)).toBeLessThanOrEqual(0); // reaches crossover
   });
-  it("with no fault, alarm or trip along the way, and the chiller still running", () => {
-    expect(run.events.filter((e) => e.kind === "fault" || e.kind === "alarm")).toEqual([]);
-    expect(run.get("CH-1", "run_status").v.every((v) => v === true)).toBe(true);
+  it("with no fault or trip along the way: only the low-lift safety stops the chiller, and it restarts on its own", () => {
+    const problems = run.events.filter((e) => e.kind === "fault" || e.kind === "alarm");
+    expect(problems.length).toBeGreaterThan(0);
+    for (const e of problems) expect(e.message).toMatch(/^Low lift/);
+    const status = run.get("CH-1", "run_status").v;
+    expect(status.slice(0, 60).every((v) => v === true)).toBe(true); // a healthy first hour
+    expect(status.at(-1) === true || status.some((v, i) => i > 0 && v === true && status[i - 1] === false)).toBe(true);
   });
   it("the refrigerant pressure difference that feeds motor/drive cooling shrinks below 10 psid", () => {
     const cond = run.num("CH-1", "condenser_refrigerant_pressure").v;
