@@ -13,7 +13,8 @@ import {
   type PointListRow,
   type PointValues,
 } from "@/lib/point-list-csv";
-import { canonicalUnitOf, quantities, type QuantityKey } from "@/lib/quantities";
+import { canonicalUnitOf, isQuantityKey, quantities, type QuantityKey } from "@/lib/quantities";
+import type { SiteModel } from "@/lib/open-formats/model";
 import type { PointDetailDto } from "@/lib/dto/points";
 import type { PointDto } from "@/lib/dto/sites";
 
@@ -397,4 +398,43 @@ export function importPointList(
     },
     { behavior: "immediate" },
   );
+}
+
+/** The site with its equipment (retired left out) and their points, as the open-format exports take it. */
+export function siteModel(db: Db, viewer: Viewer, siteId: string): SiteModel {
+  const site = db
+    .select({ id: sites.id, name: sites.name, kind: sites.kind, address: sites.address, timeZone: sites.timeZone })
+    .from(sites)
+    .where(and(eq(sites.id, siteId), siteScope(viewer)))
+    .get();
+  if (!site) throw notFound("No such site.");
+  const equipmentRows = db
+    .select({
+      id: equipment.id,
+      tag: equipment.tag,
+      name: equipment.name,
+      kind: equipment.kind,
+      serves: equipment.serves,
+      refrigerant: equipment.refrigerant,
+      record: equipment.record,
+    })
+    .from(equipment)
+    .where(and(eq(equipment.siteId, siteId), sql`${equipment.retiredAt} is null`))
+    .orderBy(asc(equipment.tag))
+    .all();
+  const ids = equipmentRows.map((e) => e.id);
+  const pointRows = ids.length
+    ? db
+        .select({ ...pointColumns, equipmentId: points.equipmentId })
+        .from(points)
+        .where(inArray(points.equipmentId, ids))
+        .orderBy(asc(points.id))
+        .all()
+    : [];
+  return {
+    site,
+    equipment: equipmentRows.map((e) => ({ ...e, record: e.record ?? {} })),
+    // A quantity no longer in the vocabulary has no class or tags to export.
+    points: pointRows.filter((p) => isQuantityKey(p.quantity)) as SiteModel["points"],
+  };
 }
