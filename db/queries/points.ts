@@ -2,7 +2,7 @@ import "server-only";
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "../client";
 import { equipment, gatewayPointMaps, points, readings, sites } from "../schema";
-import { writeAudit } from "./audit";
+import { writeAudit, writeAudits, type AuditEntry } from "./audit";
 import { siteScope } from "./sites";
 import { isAdmin, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
@@ -12,8 +12,16 @@ import {
   type PointListPlan,
   type PointListRow,
   type PointValues,
+  type PlannedPoint,
 } from "@/lib/point-list-csv";
-import { canonicalUnitOf, isQuantityKey, quantities, type QuantityKey } from "@/lib/quantities";
+import {
+  canonicalUnitOf,
+  isQuantityKey,
+  pointsByKind,
+  quantities,
+  type EquipmentKind,
+  type QuantityKey,
+} from "@/lib/quantities";
 import type { SiteModel } from "@/lib/open-formats/model";
 import type { PointDetailDto } from "@/lib/dto/points";
 import type { PointDto } from "@/lib/dto/sites";
@@ -140,6 +148,10 @@ export function insertPoint(db: Db, viewer: Viewer, equipmentId: string, input: 
   if (!e) throw notFound("No such equipment.");
   requireAdmin(viewer);
   requireActive(e);
+  if (!(pointsByKind[e.kind as EquipmentKind] ?? []).includes(input.quantity))
+    throw new AppError("bad_request", "The request is not valid.", [
+      { path: "quantity", message: `a ${e.kind} has no ${input.quantity} point (lib/quantities.ts pointsByKind)` },
+    ]);
   const id = db.transaction(
     (tx) => {
       const clash = tx
@@ -353,26 +365,9 @@ export function importPointList(
       const { plan, errors } = planPointList(rows, siteEquipment, existing);
       if (errors.length > 0 || !opts.apply) return { applied: false, plan, errors, gatewayIds: [] };
       const intervalChanged: number[] = [];
-      for (const item of plan.items) {
-        if (item.action === "unchanged") continue;
-        let id = item.pointId;
-        if (item.action === "create") {
-          id = tx
-            .insert(points)
-            .values({
-              equipmentId: item.equipmentId,
-              key: item.quantity,
-              quantity: item.quantity,
-              brickClass: quantities[item.quantity].brickClass,
-              ...item.after,
-            })
-            .returning({ id: points.id })
-            .get().id;
-        } else {
-          tx.update(points).set(item.after).where(eq(points.id, id!)).run();
-          if (item.before!.expectedIntervalS !== item.after.expectedIntervalS) intervalChanged.push(id!);
-        }
-        writeAudit(tx, viewer, {
+      const audits: AuditEntry[] = [];
+      const audit = (item: PlannedPoint, id: number) =>
+        audits.push({
           action: item.action,
           entityType: "point",
           entityId: String(id),
@@ -381,7 +376,48 @@ export function importPointList(
           before: item.before,
           after: { equipmentTag: item.equipmentTag, quantity: item.quantity, ...item.after },
         });
+      // Prepared once: a point list can hold thousands of rows, and building each statement
+      // anew costs more than SQLite's write of it.
+      const p = (name: string) => sql.placeholder(name);
+      const insert = tx
+        .insert(points)
+        .values({
+          equipmentId: p("equipmentId"),
+          key: p("quantity"),
+          quantity: p("quantity"),
+          brickClass: p("brickClass"),
+          unit: p("unit"),
+          expectedIntervalS: p("expectedIntervalS"),
+          lowLimit: p("lowLimit"),
+          highLimit: p("highLimit"),
+        })
+        .prepare();
+      const update = tx
+        .update(points)
+        .set({
+          unit: sql`${p("unit")}`,
+          expectedIntervalS: sql`${p("expectedIntervalS")}`,
+          lowLimit: sql`${p("lowLimit")}`,
+          highLimit: sql`${p("highLimit")}`,
+        })
+        .where(eq(points.id, p("id")))
+        .prepare();
+      for (const item of plan.items) {
+        if (item.action === "create") {
+          const { lastInsertRowid } = insert.run({
+            equipmentId: item.equipmentId,
+            quantity: item.quantity,
+            brickClass: quantities[item.quantity].brickClass,
+            ...item.after,
+          });
+          audit(item, Number(lastInsertRowid));
+        } else if (item.action === "update") {
+          update.run({ id: item.pointId!, ...item.after });
+          if (item.before!.expectedIntervalS !== item.after.expectedIntervalS) intervalChanged.push(item.pointId!);
+          audit(item, item.pointId!);
+        }
       }
+      writeAudits(tx, viewer, audits);
       const gatewayIds = intervalChanged.length
         ? [
             ...new Set(
