@@ -383,4 +383,13 @@ describe("open formats", () => {
     expect((await call("customer", `/api/sites/${OTHER_SITE}/export/haystack`)).status).toBe(404);
     expect((await call("anonymous", `/api/sites/${OWN_SITE}/export/brick`)).status).toBe(401);
   });
+
+  it("serves the admin's point-list page with its export links; not to a technician", async () => {
+    const page = await call("admin", `/sites/${OWN_SITE}/points/import`);
+    expect(page.status).toBe(200);
+    expect(page.body).toContain("Point list");
+    expect(page.body).toContain(`/api/sites/${OWN_SITE}/export/brick`);
+    expect(page.body).toContain(`/api/sites/${OWN_SITE}/export/haystack`);
+    expect((await call("technician", `/sites/${OWN_SITE}/points/import`)).status).toBe(404);
+  }, 180_000); // a development server compiles the page on its first request
 });
