@@ -1,5 +1,5 @@
 import "server-only";
-import { and, desc, eq, gte, lt, type SQL } from "drizzle-orm";
+import { and, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
 import type { Db } from "../client";
 import { auditLog, type AuditEntityType } from "../schema";
 import type { Viewer } from "@/lib/auth/viewer";
@@ -33,6 +33,53 @@ export function writeAudit(db: Pick<Db, "insert">, actor: Viewer, entry: AuditEn
       after: entry.after ?? null,
     })
     .run();
+}
+
+/**
+ * Appends many changes by one actor (a 5,000-row point list): the same rows as that many
+ * writeAudit calls, through one prepared statement, since building each insert anew costs more
+ * than SQLite's write of it.
+ */
+export function writeAudits(
+  db: Pick<Db, "insert">,
+  actor: Viewer,
+  entries: readonly AuditEntry[],
+  atMs = Date.now(),
+): void {
+  if (entries.length === 0) return;
+  // Raw placeholders: bound as given (the time as epoch ms and before/after as JSON text, as the columns store them).
+  const p = (name: string) => sql`${sql.placeholder(name)}`;
+  const insert = db
+    .insert(auditLog)
+    .values({
+      at: p("at"),
+      actorId: p("actorId"),
+      actorName: p("actorName"),
+      action: p("action"),
+      entityType: p("entityType"),
+      entityId: p("entityId"),
+      siteId: p("siteId"),
+      summary: p("summary"),
+      before: p("before"),
+      after: p("after"),
+    })
+    .prepare();
+  const actorId = actor.userId === "system" ? null : actor.userId;
+  const json = (v: unknown) => (v === undefined || v === null ? null : JSON.stringify(v));
+  for (const entry of entries) {
+    insert.run({
+      at: atMs,
+      actorId,
+      actorName: actor.name,
+      action: entry.action,
+      entityType: entry.entityType,
+      entityId: entry.entityId,
+      siteId: entry.siteId ?? null,
+      summary: entry.summary,
+      before: json(entry.before),
+      after: json(entry.after),
+    });
+  }
 }
 
 export interface AuditFilter {
