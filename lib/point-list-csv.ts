@@ -3,6 +3,7 @@ import {
   canonicalUnitOf,
   isQuantityKey,
   pointsByKind,
+  quantityFitsKind,
   quantities,
   type EquipmentKind,
   type QuantityKey,
@@ -167,7 +168,7 @@ export function parsePointListCsv(text: string): { rows: PointListRow[]; errors:
 
     let quantity: QuantityKey | null = null;
     if (!isQuantityKey(quantityRaw)) fail("quantity", `unknown quantity "${quantityRaw}"`);
-    else if (kindOk && !pointsByKind[kindRaw as EquipmentKind].includes(quantityRaw))
+    else if (kindOk && !quantityFitsKind(kindRaw as EquipmentKind, quantityRaw))
       fail("quantity", `a ${kindRaw} has no ${quantityRaw} point (lib/quantities.ts pointsByKind)`);
     else quantity = quantityRaw;
 

@@ -265,3 +265,11 @@ export const pointsByKind: Record<EquipmentKind, readonly QuantityKey[]> = {
   air_handler: ["run_status", "chilled_water_valve_position"],
   weather_station: ["outdoor_air_temp", "outdoor_air_humidity", "outdoor_wet_bulb_temp"],
 };
+
+/** True when equipment of this kind can have a point of this quantity (its usual points or the optional ones). */
+export function quantityFitsKind(kind: EquipmentKind, quantity: string): boolean {
+  return (
+    (pointsByKind[kind] as readonly string[]).includes(quantity) ||
+    ((optionalPointsByKind[kind] ?? []) as readonly string[]).includes(quantity)
+  );
+}

@@ -17,7 +17,7 @@ import {
 import {
   canonicalUnitOf,
   isQuantityKey,
-  pointsByKind,
+  quantityFitsKind,
   quantities,
   type EquipmentKind,
   type QuantityKey,
@@ -148,7 +148,7 @@ export function insertPoint(db: Db, viewer: Viewer, equipmentId: string, input: 
   if (!e) throw notFound("No such equipment.");
   requireAdmin(viewer);
   requireActive(e);
-  if (!(pointsByKind[e.kind as EquipmentKind] ?? []).includes(input.quantity))
+  if (!quantityFitsKind(e.kind as EquipmentKind, input.quantity))
     throw new AppError("bad_request", "The request is not valid.", [
       { path: "quantity", message: `a ${e.kind} has no ${input.quantity} point (lib/quantities.ts pointsByKind)` },
     ]);

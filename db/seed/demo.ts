@@ -2,14 +2,17 @@ import bcrypt from "bcryptjs";
 import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "../client";
 import { hashPasswordSync, needsRehash } from "../password";
-import { equipment, onCallShifts, organizations, points, sites, users } from "../schema";
+import { equipment, onCallShifts, organizations, sites, users } from "../schema";
 import { systemViewer } from "@/lib/auth/viewer";
 import { chillerLimitDefaults } from "@/lib/plant/equipment-limits";
 import { fToC, WATER_HEAT_CAPACITY_KJ_PER_LK } from "@/lib/plant/units";
-import { canonicalUnitOf, pointsByKind, quantities, type EquipmentKind } from "@/lib/quantities";
+import { canonicalUnitOf, type EquipmentKind } from "@/lib/quantities";
 import type { EquipmentInput } from "@/lib/schemas/equipment";
 import { createCustomer, createEquipment, createSite, setEquipmentLimits } from "@/lib/server/plant-records";
 import { siteLayouts, type SiteLayout } from "@/simulator/layout";
+import { pointsOf } from "@/simulator/points";
+import { uploadPointList } from "@/lib/server/points";
+import { POINT_LIST_COLUMNS } from "@/lib/point-list-csv";
 import { chillerParamsOf } from "@/simulator/params";
 
 // An invented service company and three invented customers. Ids are fixed so the seed is
@@ -256,6 +259,7 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
   // The service company is the deployment itself, not a record an administrator adds.
   count(db.insert(organizations).values(SERVICE_ORG).onConflictDoNothing().run());
   inserted += seedRecords(db);
+  inserted += seedPoints(db);
 
   db.transaction(
     (tx) => {
@@ -285,25 +289,6 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
             .onConflictDoNothing()
             .run(),
         );
-        for (const e of site.equipment) {
-          const equipmentId = `${site.id}:${e.tag}`;
-          for (const key of pointsByKind[e.kind]) {
-            count(
-              tx
-                .insert(points)
-                .values({
-                  equipmentId,
-                  key,
-                  quantity: key,
-                  unit: canonicalUnitOf(key),
-                  brickClass: quantities[key].brickClass,
-                  expectedIntervalS: 5,
-                })
-                .onConflictDoNothing()
-                .run(),
-            );
-          }
-        }
       }
       // Two weeks of on-call from the first start: the technicians take turns, each backing the other.
       const weekMs = 7 * 24 * 3600_000;
@@ -339,6 +324,29 @@ export function seedDemo(db: Db, demoPassword: string): { inserted: number } {
   );
   upgradeDemoHashes(db, demoPassword, passwordHash);
   return { inserted };
+}
+
+/**
+ * Each site's points, as an administrator would add them: one point-list CSV per site, through the
+ * same upload the import page uses. Rows already there are planned as unchanged and left alone.
+ */
+function seedPoints(db: Db): number {
+  const viewer = systemViewer(SERVICE_ORG.id);
+  let created = 0;
+  for (const site of DEMO_SITES) {
+    const layout = siteLayouts[site.layout];
+    const rows = site.equipment.flatMap((e) =>
+      pointsOf(layout, e.kind).map((q) => `${e.tag},${e.kind},${q},${canonicalUnitOf(q)},5,,`),
+    );
+    const csv = [POINT_LIST_COLUMNS.join(","), ...rows].join("\n");
+    const result = uploadPointList(db, viewer, site.id, csv, { apply: true });
+    if (result.errors.length > 0)
+      throw new Error(
+        `demo point list for ${site.id}: ${result.errors.map((e) => `line ${e.line}: ${e.message}`).join("; ")}`,
+      );
+    if (result.applied) created += result.plan.counts.create;
+  }
+  return created;
 }
 
 /** Demo accounts seeded at a lower bcrypt cost by an older version get the common cost. */

@@ -3,3 +3,4 @@ export type { Access, Operation } from "./operation";
 export { plantOperations } from "./paths/plant";
 export { simulatorOperations } from "./paths/simulator";
 export { recordOperations } from "./paths/records";
+export { pointOperations } from "./paths/points";

@@ -1,6 +1,7 @@
 import {
   buildOpenApiDocument,
   plantOperations,
+  pointOperations,
   recordOperations,
   simulatorOperations,
   type OpenApiDocument,
@@ -18,6 +19,7 @@ export function openApiDocument(): OpenApiDocument {
     [
       ...plantOperations,
       ...recordOperations,
+      ...pointOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,
