@@ -36,9 +36,14 @@ export default async function SitePage({ params }: Props) {
               Rule settings
             </Link>
             {isAdmin(viewer) ? (
-              <Link href={`/sites/${site.id}/gateways`} className="underline">
-                Gateways and point maps
-              </Link>
+              <>
+                <Link href={`/sites/${site.id}/setup`} className="underline">
+                  Site setup and equipment
+                </Link>
+                <Link href={`/sites/${site.id}/gateways`} className="underline">
+                  Gateways and point maps
+                </Link>
+              </>
             ) : null}
           </p>
         ) : null}
