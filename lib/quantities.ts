@@ -78,6 +78,15 @@ export interface QuantityDef {
 export const fanDriveModes = ["auto", "off", "hand"] as const;
 export type FanDriveMode = (typeof fanDriveModes)[number];
 
+/**
+ * Why a chiller's compressor is not running, as its controller reports it: `low_load` and `schedule`
+ * restart on their own once the anti-recycle timers allow; `safety` (an auto-reset safety such as
+ * low lift or a drive undervoltage) restarts on its own when the condition clears; `trip` is latched
+ * until someone resets it; `manual` is disabled by a person.
+ */
+export const chillerStopReasons = ["running", "low_load", "schedule", "trip", "safety", "manual"] as const;
+export type ChillerStopReason = (typeof chillerStopReasons)[number];
+
 export const quantities = {
   // chilled-water side (chiller evaporator)
   chilled_water_entering_temp: {
@@ -154,6 +163,12 @@ export const quantities = {
   run_enable_command: { measure: "boolean", label: "Run enable", brickClass: "Run_Enable_Command" },
   chiller_alarm: { measure: "boolean", label: "Latched alarm", brickClass: "Alarm" },
   fault_text: { measure: "text", label: "Last fault", brickClass: "Fault_Status" },
+  chiller_stop_reason: {
+    measure: "state",
+    label: "Stop reason",
+    brickClass: "Status",
+    states: chillerStopReasons,
+  },
   restart_inhibit_time_left: { measure: "duration", label: "Restart inhibit left", brickClass: "Time_Parameter" },
   start_to_start_timer_setting: { measure: "duration", label: "Start-to-start timer", brickClass: "Time_Parameter" },
   stop_to_start_timer_setting: { measure: "duration", label: "Stop-to-start timer", brickClass: "Time_Parameter" },
@@ -163,9 +178,17 @@ export const quantities = {
   fan_status: { measure: "boolean", label: "Fan status", brickClass: "Fan_Status" },
   fan_drive_fault: { measure: "boolean", label: "Fan drive fault", brickClass: "Fault_Status" },
   fan_drive_frequency: { measure: "frequency", label: "Fan drive output", brickClass: "Output_Frequency_Sensor" },
+  // Only where the condenser loop has a tower bypass valve (a generic Brick valve class; REFERENCES.md §9 has none dedicated).
+  tower_bypass_valve_position: {
+    measure: "percent",
+    label: "Tower bypass valve",
+    brickClass: "Valve_Position_Sensor",
+  },
   // pumps
   pump_status: { measure: "boolean", label: "Pump status", brickClass: "Pump_Status" },
   pump_speed: { measure: "percent", label: "Pump speed", brickClass: "Speed_Status" },
+  pump_run_command: { measure: "boolean", label: "Pump command", brickClass: "Start_Stop_Command" },
+  pump_fault: { measure: "boolean", label: "Pump fault", brickClass: "Fault_Status" },
   // air handlers
   chilled_water_valve_position: {
     measure: "percent",
@@ -183,6 +206,11 @@ export const quantities = {
 } as const satisfies Record<string, QuantityDef>;
 
 export type QuantityKey = keyof typeof quantities;
+
+/** Points some equipment of a kind carries and some does not (a tower bypass valve only where one is fitted). */
+export const optionalPointsByKind: Partial<Record<EquipmentKind, readonly QuantityKey[]>> = {
+  cooling_tower: ["tower_bypass_valve_position"],
+};
 
 export function isQuantityKey(key: string): key is QuantityKey {
   return Object.prototype.hasOwnProperty.call(quantities, key);
@@ -217,6 +245,7 @@ export const pointsByKind: Record<EquipmentKind, readonly QuantityKey[]> = {
     "run_enable_command",
     "chiller_alarm",
     "fault_text",
+    "chiller_stop_reason",
     "restart_inhibit_time_left",
     "start_to_start_timer_setting",
     "stop_to_start_timer_setting",
@@ -232,7 +261,7 @@ export const pointsByKind: Record<EquipmentKind, readonly QuantityKey[]> = {
     "fan_drive_frequency",
     "fault_text",
   ],
-  pump: ["pump_status", "pump_speed"],
+  pump: ["pump_status", "pump_speed", "pump_run_command", "pump_fault"],
   air_handler: ["run_status", "chilled_water_valve_position"],
   weather_station: ["outdoor_air_temp", "outdoor_air_humidity", "outdoor_wet_bulb_temp"],
 };

@@ -20,6 +20,12 @@ export const drillActionSchema = z.discriminatedUnion("type", [
   }),
   z.object({ type: z.literal("set-air-handler"), equipment: z.string().min(1), run: z.boolean() }),
   z.object({ type: z.literal("set-chiller-enable"), equipment: z.string().min(1), enabled: z.boolean() }),
+  z.object({
+    type: z.literal("set-tower-bypass"),
+    equipment: z.string().min(1),
+    /** Share of the condenser water sent past the tower fill, % (0 = all over the fill). */
+    positionPct: z.number().min(0).max(100),
+  }),
 ]);
 
 export type DrillAction = z.infer<typeof drillActionSchema>;

@@ -22,6 +22,8 @@ function describe(a: DrillAction): string {
       return a.run ? "start air handler" : "stop air handler";
     case "set-chiller-enable":
       return a.enabled ? "enable chiller" : "disable chiller";
+    case "set-tower-bypass":
+      return `set tower bypass valve to ${a.positionPct} %`;
   }
 }
 
@@ -92,6 +94,16 @@ export function applyDrillAction(s: PlantState, a: DrillAction): ActionOutcome {
       if (chillerIndex < 0) return { accepted: false, reason: `unknown chiller ${a.equipment}` };
       s.chillers = s.chillers.map((x, i) => (i === chillerIndex ? { ...x, enabled: a.enabled } : x));
       return { accepted: true, reason: a.enabled ? "chiller enabled" : "chiller disabled" };
+    }
+    case "set-tower-bypass": {
+      if (a.equipment !== towerTag) return { accepted: false, reason: `${a.equipment} has no tower bypass valve` };
+      if (!s.params.towerBypass)
+        return { accepted: false, reason: "this site's condenser loop has no tower bypass valve" };
+      s.tower = { ...s.tower, bypassPct: a.positionPct };
+      return {
+        accepted: true,
+        reason: `tower bypass valve at ${a.positionPct} %: that share of the condenser water skips the fill`,
+      };
     }
   }
 }

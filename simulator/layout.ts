@@ -35,8 +35,10 @@ export interface SiteLayout {
   design: DesignConditions;
   /** System water volume per installed ton — about 6–10 gal/ton chilled water (common practice). */
   chwLoopGalPerTon: number;
-  /** Tower basin plus condenser piping per installed ton (common practice, a small sump). */
+  /** Tower basin plus condenser piping per installed ton: 7 gal/ton, inside the usual 5–10 gal/ton (recalled, not verified). */
   cwLoopGalPerTon: number;
+  /** A three-way tower bypass valve that sends condenser water back to the basin past the fill (cold-weather plants). */
+  towerBypass: boolean;
   /** High condenser pressure cut-out, psig for R-134a (≈ 116 °F condensing; recalled, not verified). Other refrigerants trip at the same condensing temperature. */
   highCondPressureTripPsig: number;
 }
@@ -65,6 +67,7 @@ function layout(
   airHandlers: number,
   loadProfile: LoadProfile,
   peak = 0.9,
+  towerBypass = false,
 ): SiteLayout {
   return {
     site,
@@ -74,7 +77,8 @@ function layout(
     loadProfile,
     design: { ...ahriDesign, peakLoadFraction: peak },
     chwLoopGalPerTon: 10,
-    cwLoopGalPerTon: 2.5,
+    cwLoopGalPerTon: 7,
+    towerBypass,
     highCondPressureTripPsig: 160,
   };
 }
@@ -103,6 +107,7 @@ export const siteLayouts: Record<string, SiteLayout> = {
     6,
     "constant",
     0.85,
+    true,
   ),
   school: layout(
     "school",

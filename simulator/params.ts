@@ -2,6 +2,7 @@
 import { plantTons, type SiteLayout } from "./layout";
 import type { ChillerParams, PlantParams } from "./state";
 import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
+import { chillerLimitDefaults } from "@/lib/plant/equipment-limits";
 import {
   deltaFToDeltaK,
   fToC,
@@ -66,6 +67,8 @@ export function chillerParamsOf(layout: SiteLayout): ChillerParams[] {
         saturationTempC("R-134a", psigToKpaAbs(layout.highCondPressureTripPsig)),
       ),
       condShellKJPerK: galToL(condShellGalPerTon * c.capacityTons) * cpW,
+      // The simulated compressors are variable-speed oil-free centrifugals with refrigerant-cooled motor and drive.
+      minLiftKPa: chillerLimitDefaults(c.refrigerant, "centrifugal_vsd_oil_free").minStartLiftKPa.value,
     };
   });
 }
@@ -109,5 +112,6 @@ export function plantParamsOf(layout: SiteLayout): PlantParams {
     towerDesignUA: ntu * cw,
     towerDesignAirCap: cw / cr,
     roomC: fToC(mechanicalRoomF),
+    towerBypass: layout.towerBypass,
   };
 }

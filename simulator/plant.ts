@@ -7,7 +7,16 @@ import { stepChiller, liftCapacityFraction } from "./chiller";
 import { chwPumpTag, cwPumpTag, type SiteLayout } from "./layout";
 import { plantParamsOf } from "./params";
 import { Rng, seedState } from "./prng";
-import type { ChillerState, FaultEntry, ModelEvent, PlantCommand, PlantState, StepInputs, StepResult } from "./state";
+import type {
+  ChillerState,
+  FaultEntry,
+  ModelEvent,
+  PlantCommand,
+  PlantState,
+  PumpState,
+  StepInputs,
+  StepResult,
+} from "./state";
 import { stepTower, condenserWaterSetpointC } from "./tower";
 import { fToC, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
 
@@ -75,6 +84,10 @@ export function initialState(
     cwFlowLowS: 0,
     chwFlowLowS: 0,
     lowEvapS: 0,
+    stopReason: "schedule",
+    lowLiftS: 0,
+    headLimitCeiling: 1,
+    cwInSensorC: cwSp,
   }));
   return {
     tS: 0,
@@ -102,9 +115,10 @@ export function initialState(
       outC: cwSp,
       flowLps: 0,
       rejectKW: 0,
+      bypassPct: 0,
     },
-    chwPumps: params.chillers.map(() => ({ running: false, tripped: false, speedPct: 0 })),
-    cwPumps: params.chillers.map(() => ({ running: false, tripped: false, speedPct: 0 })),
+    chwPumps: params.chillers.map(() => ({ commanded: false, running: false, tripped: false, speedPct: 0 })),
+    cwPumps: params.chillers.map(() => ({ commanded: false, running: false, tripped: false, speedPct: 0 })),
     ahus: params.ahuDesignKW.map(() => ({
       override: "auto" as const,
       running: false,
@@ -227,14 +241,16 @@ export function step(state: PlantState, inputs: StepInputs, dt: number): StepRes
   }
 
   stage(s, dt);
-  s.chwPumps = s.chwPumps.map((pm, i) => {
-    const run = s.chillers[i].called && !pm.tripped;
-    return run === pm.running ? pm : { ...pm, running: run, speedPct: run ? 100 : 0 };
-  });
-  s.cwPumps = s.cwPumps.map((pm, i) => {
-    const run = s.chillers[i].called && !pm.tripped;
-    return run === pm.running ? pm : { ...pm, running: run, speedPct: run ? 100 : 0 };
-  });
+  // The plant commands a chiller's pumps with the chiller; a tripped overload keeps a commanded pump stopped.
+  const drivePump = (pm: PumpState, i: number): PumpState => {
+    const commanded = s.chillers[i].called;
+    const run = commanded && !pm.tripped;
+    return run === pm.running && commanded === pm.commanded
+      ? pm
+      : { ...pm, commanded, running: run, speedPct: run ? 100 : 0 };
+  };
+  s.chwPumps = s.chwPumps.map(drivePump);
+  s.cwPumps = s.cwPumps.map(drivePump);
 
   // Chillers, fed by the chilled-water return header and the tower basin.
   const sink = { events, faults };

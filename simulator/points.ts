@@ -1,6 +1,6 @@
 // Controller-style point names, the point map, and conversion between canonical SI and wire units.
 import type { PointMapRow } from "@/lib/point-map-csv";
-import { pointsByKind, quantities, type QuantityKey } from "@/lib/quantities";
+import { optionalPointsByKind, pointsByKind, quantities, type EquipmentKind, type QuantityKey } from "@/lib/quantities";
 import { ipWireUnits, type WireUnitCode } from "@/lib/units";
 import { equipmentOf, type SiteLayout } from "./layout";
 import { cToF, fToC, gpmToLps, KPA_PER_PSI, kpaAbsToPsig, lpsToGpm, psigToKpaAbs } from "@/lib/plant/units";
@@ -29,6 +29,7 @@ const chillerSuffix: Partial<Record<QuantityKey, string>> = {
   run_enable_command: "ENABLE",
   chiller_alarm: "ALARM",
   fault_text: "FAULT",
+  chiller_stop_reason: "STOP-RSN",
   restart_inhibit_time_left: "INHIBIT-LEFT",
   start_to_start_timer_setting: "STS-TMR",
   stop_to_start_timer_setting: "SPS-TMR",
@@ -43,10 +44,13 @@ const towerSuffix: Partial<Record<QuantityKey, string>> = {
   fan_drive_fault: "FAN-FLT",
   fan_drive_frequency: "FAN-HZ",
   fault_text: "FAULT",
+  tower_bypass_valve_position: "BYP-POS",
 };
 const otherSuffix: Partial<Record<QuantityKey, string>> = {
   pump_status: "STS",
   pump_speed: "SPD",
+  pump_run_command: "CMD",
+  pump_fault: "FLT",
   run_status: "RUN",
   chilled_water_valve_position: "CHWV",
   outdoor_air_temp: "OAT",
@@ -67,11 +71,19 @@ export function wireUnitOf(quantity: QuantityKey): WireUnitCode {
   return ipWireUnits[quantities[quantity].measure];
 }
 
+/** The quantities one piece of equipment of this site carries: its kind's points plus the optional ones it has. */
+export function pointsOf(layout: SiteLayout, kind: EquipmentKind): QuantityKey[] {
+  const optional = (optionalPointsByKind[kind] ?? []).filter(
+    (q) => q !== "tower_bypass_valve_position" || layout.towerBypass,
+  );
+  return [...pointsByKind[kind], ...optional];
+}
+
 /** The point map of a site: every point the simulated gateway publishes, in a stable order. */
 export function pointMapRows(layout: SiteLayout): PointMapRow[] {
   const rows: PointMapRow[] = [];
   for (const eq of equipmentOf(layout)) {
-    for (const q of pointsByKind[eq.kind])
+    for (const q of pointsOf(layout, eq.kind))
       rows.push({ gateway_point: pointName(eq.tag, eq.kind, q), equipment: eq.tag, quantity: q, unit: wireUnitOf(q) });
   }
   return rows;

@@ -30,7 +30,8 @@ export function plantReadings(s: PlantState, tsMs: number, rng: Rng): CanonicalR
     add(tag, "chilled_water_leaving_temp_setpoint", c.setpointC);
     add(tag, "chilled_water_flow", frac(c.chwFlowLps, noise.flowFrac));
     add(tag, "evaporator_water_dp", frac(p.evapDpDesignKPa * (c.chwFlowLps / p.chwDesignLps) ** 2, noise.dpFrac));
-    add(tag, "condenser_water_entering_temp", temp(c.cwInC));
+    // On a stopped condenser loop the sensor sits in a dead leg and reads the pipe, not the basin.
+    add(tag, "condenser_water_entering_temp", temp(c.cwInSensorC));
     add(tag, "condenser_water_leaving_temp", temp(c.cwOutC));
     add(tag, "condenser_water_flow", frac(c.cwFlowLps, noise.flowFrac));
     add(tag, "condenser_water_dp", frac(p.condDpDesignKPa * (c.cwFlowLps / p.cwDesignLps) ** 2, noise.dpFrac));
@@ -47,6 +48,7 @@ export function plantReadings(s: PlantState, tsMs: number, rng: Rng): CanonicalR
     add(tag, "run_enable_command", c.enabled);
     add(tag, "chiller_alarm", c.alarmLatched);
     add(tag, "fault_text", c.alarmLatched ? c.alarmText : c.driveFaultText || "none");
+    add(tag, "chiller_stop_reason", c.running ? "running" : c.stopReason);
     add(tag, "restart_inhibit_time_left", Math.ceil(restartInhibitLeftS(c, s.tS)));
     add(tag, "start_to_start_timer_setting", c.startToStartS);
     add(tag, "stop_to_start_timer_setting", c.stopToStartS);
@@ -62,15 +64,16 @@ export function plantReadings(s: PlantState, tsMs: number, rng: Rng): CanonicalR
   add(towerTag, "fan_drive_fault", t.fault);
   add(towerTag, "fan_drive_frequency", 60 * t.speedFrac);
   add(towerTag, "fault_text", t.fault ? t.faultText : "none");
+  if (s.params.towerBypass) add(towerTag, "tower_bypass_valve_position", t.bypassPct);
 
-  s.chwPumps.forEach((pm, i) => {
-    add(chwPumpTag(i), "pump_status", pm.running);
-    add(chwPumpTag(i), "pump_speed", pm.speedPct);
-  });
-  s.cwPumps.forEach((pm, i) => {
-    add(cwPumpTag(i), "pump_status", pm.running);
-    add(cwPumpTag(i), "pump_speed", pm.speedPct);
-  });
+  const pump = (tag: string, pm: PlantState["chwPumps"][number]) => {
+    add(tag, "pump_status", pm.running);
+    add(tag, "pump_speed", pm.speedPct);
+    add(tag, "pump_run_command", pm.commanded);
+    add(tag, "pump_fault", pm.tripped);
+  };
+  s.chwPumps.forEach((pm, i) => pump(chwPumpTag(i), pm));
+  s.cwPumps.forEach((pm, i) => pump(cwPumpTag(i), pm));
   s.ahus.forEach((a, i) => {
     add(ahuTag(i), "run_status", a.running);
     add(ahuTag(i), "chilled_water_valve_position", a.valvePct);

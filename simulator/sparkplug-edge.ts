@@ -5,10 +5,10 @@
 // No MQTT here: the caller passes a publish function, so seq/bdSeq handling is testable without a broker.
 import sparkplugPayload from "sparkplug-payload";
 import { z } from "zod";
-import { pointsByKind, quantities, type EquipmentKind, type QuantityKey } from "@/lib/quantities";
+import { quantities, type EquipmentKind, type QuantityKey } from "@/lib/quantities";
 import { drillActionSchema, type DrillAction } from "./actions-schema";
 import { equipmentOf, type SiteLayout } from "./layout";
-import { pointMapRows, pointName, wireValue } from "./points";
+import { pointMapRows, pointName, pointsOf, wireValue } from "./points";
 import type { RunSample } from "./run";
 
 /** Sparkplug B 3.0 §4.1.1: the namespace element of every topic. */
@@ -60,7 +60,7 @@ export function sparkplugCatalog(layout: SiteLayout): SparkplugCatalog {
   const byAlias = new Map<number, SparkplugMetricDef>();
   let alias = 0;
   for (const eq of equipmentOf(layout)) {
-    const metrics = pointsByKind[eq.kind].map((q) => ({
+    const metrics = pointsOf(layout, eq.kind).map((q) => ({
       device: eq.tag,
       name: pointName(eq.tag, eq.kind, q),
       alias: ++alias,

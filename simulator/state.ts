@@ -1,5 +1,5 @@
 // The plant state: everything the model carries from one step to the next (SI units throughout).
-import type { FanDriveMode } from "@/lib/quantities";
+import type { ChillerStopReason, FanDriveMode } from "@/lib/quantities";
 import type { Refrigerant } from "@/lib/refrigerant";
 import type { DrillAction } from "./actions-schema";
 
@@ -36,6 +36,8 @@ export interface ChillerParams {
   highCondTripKPa: number;
   /** Water held in the condenser shell, for a stagnant-condenser heat-up when flow is lost. */
   condShellKJPerK: number;
+  /** Minimum condenser − evaporator pressure difference the low-lift safety holds, kPa. */
+  minLiftKPa: number;
 }
 
 export interface ChillerState {
@@ -76,6 +78,14 @@ export interface ChillerState {
   cwFlowLowS: number;
   chwFlowLowS: number;
   lowEvapS: number;
+  /** Why the compressor is not running, as the controller reports it ("running" while it runs). */
+  stopReason: ChillerStopReason;
+  /** Seconds the pressure difference has been below the minimum lift while running. */
+  lowLiftS: number;
+  /** Capacity ceiling the high-condenser-pressure limit holds or lowers, fraction of rated (1 = no limit). */
+  headLimitCeiling: number;
+  /** What the entering-condenser-water sensor reads: the basin with flow, a dead leg drifting to the room without. */
+  cwInSensorC: number;
 }
 
 export interface TowerState {
@@ -91,9 +101,13 @@ export interface TowerState {
   outC: number;
   flowLps: number;
   rejectKW: number;
+  /** Tower bypass valve, % of the condenser water sent past the fill to the basin (0 where none is fitted). */
+  bypassPct: number;
 }
 
 export interface PumpState {
+  /** The plant's start/stop command to the pump. */
+  commanded: boolean;
   running: boolean;
   tripped: boolean;
   speedPct: number;
@@ -120,6 +134,7 @@ export interface PlantParams {
   towerDesignUA: number;
   towerDesignAirCap: number;
   roomC: number;
+  towerBypass: boolean;
 }
 
 export interface PlantState {

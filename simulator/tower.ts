@@ -4,8 +4,8 @@ import type { FaultEntry, ModelEvent, PlantParams, TowerState } from "./state";
 import { fToC, WATER_HEAT_CAPACITY_KJ_PER_LK as cpW } from "@/lib/plant/units";
 import { towerTag } from "./layout";
 
-/** Airflow through a tower with its fan off, fraction of design (natural draft; assumed 4 %, calibrated so condenser water passes 100 °F with the fan off under load, as observed on the service call). */
-export const naturalDraftAirFraction = 0.04;
+/** Airflow through a tower with its fan off, fraction of design (natural draft; 2.5 %, about 10–15 % of design heat rejection at equal driving temperature difference — recalled, not verified; condenser water still passes 100 °F with the fan off under load, as observed on the service call). */
+export const naturalDraftAirFraction = 0.025;
 /** Fan minimum speed in auto, fraction (common practice 15–25 %). */
 const fanMinSpeed = 0.2;
 /** Condenser water setpoint reset: wet bulb + 7 °F, limited to 65…85 °F (common practice). */
@@ -89,6 +89,10 @@ export function stepTower(
   t.inC = env.inC;
   t.flowLps = env.flowLps;
   const airFrac = Math.max(naturalDraftAirFraction, t.speedFrac);
-  t.outC = towerLeavingC(p, env.inC, env.flowLps, airFrac, env.wetBulbC);
+  // Water the bypass valve sends past the fill falls straight to the basin, uncooled.
+  const bypass = p.towerBypass ? Math.min(1, Math.max(0, t.bypassPct / 100)) : 0;
+  const fillFlow = env.flowLps * (1 - bypass);
+  const fillOutC = towerLeavingC(p, env.inC, fillFlow, airFrac, env.wetBulbC);
+  t.outC = env.flowLps > 0 ? (fillFlow * fillOutC + (env.flowLps - fillFlow) * env.inC) / env.flowLps : env.inC;
   t.rejectKW = env.flowLps * cpW * (env.inC - t.outC);
 }

@@ -2,6 +2,7 @@
 import { condenserPumpLoss } from "./condenser-pump-loss";
 import { designSteady } from "./design-steady";
 import { fouledCondenser } from "./fouled-condenser";
+import { mildDay } from "./mild-day";
 import { normalDay } from "./normal-day";
 import { powerBlip } from "./power-blip";
 import { slowCrossover } from "./slow-crossover";
@@ -9,6 +10,7 @@ import type { Scenario } from "./types";
 
 export const scenarios: Record<string, Scenario> = {
   [normalDay.name]: normalDay,
+  [mildDay.name]: mildDay,
   [powerBlip.name]: powerBlip,
   [slowCrossover.name]: slowCrossover,
   [condenserPumpLoss.name]: condenserPumpLoss,

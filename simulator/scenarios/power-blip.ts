@@ -6,14 +6,14 @@ import { coilAirC, diurnalWeather, hourOf } from "./profiles";
 
 export const powerBlipAtS = 10 * 60;
 /** In the replayed call, the alarm was reset only after the loops had crossed (scripted late response). */
-export const lateResetAtS = 80 * 60;
+export const lateResetAtS = 170 * 60;
 
 export const powerBlip: Scenario = {
   name: "power-blip",
   title: "Power blip: tower fan drive comes back in OFF",
   description:
     "Mild day (wet bulb mid-50s °F). A utility blip faults the drives; the tower fan drive reboots in OFF with its fault gone. Condenser water climbs past 100 °F, the chiller trips on high condenser pressure, anti-recycle holds it off while the air handlers keep loading the loop, and the loops cross. The late reset restarts the chiller into crossed loops and it trips on drive over-temperature.",
-  defaultDurationS: 3 * 3600,
+  defaultDurationS: 4 * 3600,
   startHour: 10,
   initial: (layout) => ({ disabledChillers: layout.chillers.slice(1).map((c) => c.tag) }),
   conditions(tS, layout) {

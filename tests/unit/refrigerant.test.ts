@@ -61,3 +61,17 @@ describe("other refrigerants", () => {
       for (const t of [-10, 5, 30, 50]) expect(saturationTempC(r, saturationPressureKPa(r, t))).toBeCloseTo(t, 4);
   });
 });
+
+describe("saturation pressure check values, kPa absolute, ±1 %", () => {
+  const fToC = (f: number) => ((f - 32) * 5) / 9;
+  it.each([
+    // Thol & Lemmon (2016), Int. J. Thermophys. 37:28, R-1234ze(E) equation of state.
+    ["R-1234ze(E)", 40, 254.3],
+    ["R-1234ze(E)", 100, 721.2],
+    // R-513A as a mixture (56/44 % R-1234yf/R-134a by mass), published bubble-point values.
+    ["R-513A", 40, 376.2],
+    ["R-513A", 100, 1006.9],
+  ] as const)("%s at %f °F: %f kPa", (refrigerant, tempF, kPa) => {
+    expect(Math.abs(saturationPressureKPa(refrigerant, fToC(tempF)) / kPa - 1)).toBeLessThan(0.01);
+  });
+});

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { pointsByKind } from "@/lib/quantities";
+import { optionalPointsByKind, pointsByKind } from "@/lib/quantities";
 import {
   equipmentOf,
   fromWire,
@@ -12,7 +12,7 @@ import {
 } from "@/simulator";
 
 describe("point map and wire units", () => {
-  it("every equipment emits exactly the quantity keys of pointsByKind (lib/quantities.ts)", () => {
+  it("every equipment emits exactly the quantity keys of pointsByKind, plus the optional ones it has (lib/quantities.ts)", () => {
     for (const layout of Object.values(siteLayouts)) {
       let first: RunSample | undefined;
       for (const s of runScenario({ scenario: "normal-day", seed: 1, startMs: 0, durationS: 0, layout })) {
@@ -22,7 +22,8 @@ describe("point map and wire units", () => {
       if (!first) throw new Error("no sample");
       for (const eq of equipmentOf(layout)) {
         const got = first.readings.filter((r) => r.equipment === eq.tag).map((r) => r.quantity);
-        expect(got).toEqual([...pointsByKind[eq.kind]]);
+        const optional = (optionalPointsByKind[eq.kind] ?? []).filter(() => layout.towerBypass);
+        expect(got).toEqual([...pointsByKind[eq.kind], ...optional]);
       }
     }
   });
