@@ -26,6 +26,7 @@ async function screenshots(browser: Browser, page: Page, name: string): Promise<
   await screenshot(page, `from-empty-${name}-desktop`);
   const small = await browser.newContext({ viewport: phone, storageState: await page.context().storageState() });
   const p = await small.newPage();
+  p.setDefaultNavigationTimeout(120_000);
   await p.goto(url);
   await screenshot(p, `from-empty-${name}-phone`);
   // Nothing may hang off the right edge of a phone screen.
@@ -72,6 +73,9 @@ describe.skipIf(!hasChromium)("from an empty database to a customer watching the
     server = await startServer({ dataDir, env: { LIFTLINE_DEMO: "0" } });
     browser = await launchBrowser();
     page = await (await browser.newContext({ viewport: desktop })).newPage();
+    // Development mode compiles a page on its first visit, which can take longer than Playwright's 30 s default.
+    page.setDefaultNavigationTimeout(120_000);
+    page.setDefaultTimeout(60_000);
     problems = watchConsole(page);
   }, 180_000);
 
@@ -154,6 +158,8 @@ describe.skipIf(!hasChromium)("from an empty database to a customer watching the
       { Serves: "CH-1", Loop: "Condenser water" },
     );
     await add("Weather station", { Tag: "WS-1", Name: "Roof weather station" });
+    // The table is re-rendered by the server after each add; the last one may still be on its way.
+    await page.getByTestId("equipment-table").getByRole("link", { name: "WS-1" }).waitFor();
     const tags = await page.getByTestId("equipment-table").locator("tbody tr td:first-child").allTextContents();
     expect(tags.sort()).toEqual(["CH-1", "CHWP-1", "CT-1", "CWP-1", "WS-1"]);
     await screenshots(browser, page, "site-setup");
@@ -163,7 +169,7 @@ describe.skipIf(!hasChromium)("from an empty database to a customer watching the
     await page.getByTestId("equipment-table").getByRole("link", { name: "CH-1" }).click();
     await page.waitForURL(/\/setup\/riverside-medical-office%3ACH-1$|\/setup\/riverside-medical-office:CH-1$/);
     const cutout = page.locator("[data-limit=highCondPressureCutoutKPa]");
-    await expect.poll(() => cutout.getByText("default", { exact: true }).count()).toBe(1);
+    await cutout.getByText("default", { exact: true }).waitFor();
     await page.getByLabel("High condenser pressure cut-out (psig)").fill("105");
     await page.getByRole("button", { name: "Save limits" }).click();
     await page.getByText("Saved 1 limit(s).").waitFor();
