@@ -17,9 +17,19 @@ export const dynamic = "force-dynamic";
 
 type Props = { params: Promise<{ siteId: string; equipmentId: string }> };
 
+function safeDecode(segment: string): string {
+  try {
+    return decodeURIComponent(segment);
+  } catch {
+    return segment;
+  }
+}
+
 export default async function EquipmentPage({ params }: Props) {
   const viewer = await requirePageViewer();
-  const { siteId, equipmentId } = await params;
+  const { siteId, equipmentId: rawEquipmentId } = await params;
+  // Equipment ids hold a colon (site:tag), which arrives percent-encoded in the path segment.
+  const equipmentId = safeDecode(rawEquipmentId);
   const db = getDb();
   const site = getSiteRecord(db, viewer, siteId);
   const item = getEquipment(db, viewer, equipmentId);
