@@ -11,6 +11,9 @@ export interface SetupStep {
 }
 
 export function setupSteps(p: SetupProgress): SetupStep[] {
+  // Each step opens the record it continues once there is one: the customer for its site, the site for the rest.
+  const customerHref = p.firstCustomerId ? `/admin/customers/${encodeURIComponent(p.firstCustomerId)}` : null;
+  const siteHref = p.firstSiteId ? `/sites/${encodeURIComponent(p.firstSiteId)}` : null;
   return [
     {
       key: "customer",
@@ -23,21 +26,21 @@ export function setupSteps(p: SetupProgress): SetupStep[] {
       key: "site",
       title: "Add a site",
       text: "Address, time zone, who to call and how to get into the plant room after hours.",
-      href: "/admin/customers",
+      href: customerHref ?? "/admin/customers",
       done: p.sites > 0,
     },
     {
       key: "equipment",
       title: "Add its equipment and points",
       text: "Chillers with their refrigerant and controller limits, towers, pumps, air handlers; then the point list.",
-      href: "/admin/customers",
+      href: siteHref ? `${siteHref}/setup` : (customerHref ?? "/admin/customers"),
       done: p.equipment > 0,
     },
     {
       key: "gateway",
       title: "Provision a gateway and upload its point map",
       text: "The site's gateway publishes controller points over MQTT; the map names them.",
-      href: "/admin/gateways",
+      href: siteHref ? `${siteHref}/gateways` : "/admin/gateways",
       done: p.gateways > 0 && p.mappedPoints > 0,
     },
     {

@@ -1,5 +1,5 @@
 import "server-only";
-import { and, count, eq, isNull, ne } from "drizzle-orm";
+import { and, asc, count, eq, isNull, ne } from "drizzle-orm";
 import type { Db } from "../client";
 import { equipment, gatewayPointMaps, gateways, organizations, sites, users } from "../schema";
 import { isAdmin, type Viewer } from "@/lib/auth/viewer";
@@ -22,6 +22,18 @@ export function setupProgress(db: Db, viewer: Viewer): SetupProgress | null {
   const gatewayCount = n(db.select({ n: count() }).from(gateways).where(isNull(gateways.revokedAt)).get());
   const mappedPoints = n(db.select({ n: count() }).from(gatewayPointMaps).get());
   const otherPeople = n(db.select({ n: count() }).from(users).where(ne(users.id, viewer.userId)).get());
+  const firstCustomer = db
+    .select({ id: organizations.id })
+    .from(organizations)
+    .where(and(eq(organizations.kind, "customer"), isNull(organizations.retiredAt)))
+    .orderBy(asc(organizations.createdAt), asc(organizations.id))
+    .get();
+  const firstSite = db
+    .select({ id: sites.id })
+    .from(sites)
+    .where(isNull(sites.retiredAt))
+    .orderBy(asc(sites.createdAt), asc(sites.id))
+    .get();
   return {
     customers,
     sites: siteCount,
@@ -29,5 +41,7 @@ export function setupProgress(db: Db, viewer: Viewer): SetupProgress | null {
     gateways: gatewayCount,
     mappedPoints,
     otherPeople,
+    firstCustomerId: firstCustomer?.id ?? null,
+    firstSiteId: firstSite?.id ?? null,
   };
 }

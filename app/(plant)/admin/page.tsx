@@ -13,6 +13,11 @@ const sections = [
     text: "The checklist for putting a customer's plant on Liftline, and what is done.",
   },
   {
+    href: "/admin/customers",
+    title: "Customers and sites",
+    text: "Add, edit and retire customers and their sites; each site's equipment records and chiller limits.",
+  },
+  {
     href: "/admin/gateways",
     title: "Gateways",
     text: "Provision site gateways, rotate or revoke their credentials, upload point maps, see their counters.",

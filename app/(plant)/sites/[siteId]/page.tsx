@@ -37,11 +37,14 @@ export default async function SitePage({ params }: Props) {
             </Link>
             {isAdmin(viewer) ? (
               <>
-                <Link href={`/sites/${site.id}/gateways`} className="underline">
-                  Gateways and point maps
+                <Link href={`/sites/${site.id}/setup`} className="underline">
+                  Site setup and equipment
                 </Link>
                 <Link href={`/sites/${site.id}/points/import`} className="underline">
                   Point list and exports
+                </Link>
+                <Link href={`/sites/${site.id}/gateways`} className="underline">
+                  Gateways and point maps
                 </Link>
               </>
             ) : null}
