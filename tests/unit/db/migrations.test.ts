@@ -1,3 +1,5 @@
+import { pointsOf } from "@/simulator/points";
+import { siteLayouts } from "@/simulator/layout";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -7,7 +9,6 @@ import bcrypt from "bcryptjs";
 import { BCRYPT_COST } from "@/db/password";
 import { verifyCredentials } from "@/db/queries/users";
 import { DEMO_SITES, DEMO_STAFF, seedDemo } from "@/db/seed/demo";
-import { pointsByKind } from "@/lib/quantities";
 
 let db: Db | undefined;
 afterEach(() => db?.$client.close());
@@ -63,7 +64,11 @@ describe("demo seed", () => {
     expect(count(d, "users")).toBe(DEMO_STAFF.length + DEMO_SITES.length);
     const expectedEquipment = DEMO_SITES.reduce((n, s) => n + s.equipment.length, 0);
     expect(count(d, "equipment")).toBe(expectedEquipment);
-    const expectedPoints = DEMO_SITES.flatMap((s) => s.equipment).reduce((n, e) => n + pointsByKind[e.kind].length, 0);
+    // Every point the simulated plant publishes, optional ones (a tower bypass valve) included.
+    const expectedPoints = DEMO_SITES.reduce(
+      (n, s) => n + s.equipment.reduce((m, e) => m + pointsOf(siteLayouts[s.layout], e.kind).length, 0),
+      0,
+    );
     expect(count(d, "points")).toBe(expectedPoints);
     // every site has at least one water-cooled chiller, a tower, pumps, air handlers and a weather station
     for (const site of DEMO_SITES) {
