@@ -78,13 +78,7 @@ export function condenserEnteringSource(ctx: RuleContext, chiller: Equipment): {
 export function marginSeries(ctx: RuleContext, chiller: Equipment, windowS: number): TimedValue[] {
   const cw = condenserEnteringSource(ctx, chiller);
   if (!cw) return [];
-  return pairedSeries(
-    ctx,
-    cw,
-    { tag: chiller.tag, q: "chilled_water_entering_temp" },
-    windowS,
-    crossoverMarginK,
-  );
+  return pairedSeries(ctx, cw, { tag: chiller.tag, q: "chilled_water_entering_temp" }, windowS, crossoverMarginK);
 }
 
 /** The shells' saturated-temperature difference from their refrigerant pressures, over the window. */

@@ -2,14 +2,16 @@
 // (condenser water minus chilled water, both entering the chiller) and its least-squares
 // projection to zero (lib/plant/crossover.ts).
 
-import { limitsOf } from "@/lib/plant/equipment-limits";
+import { asRefrigerant, limitsOf } from "@/lib/plant/equipment-limits";
+import { refrigerantMarginK } from "@/lib/plant/crossover";
+import { saturationTempC } from "@/lib/refrigerant";
 import type { Equipment } from "@/lib/plant/site";
 import type { ChillerSnapshot } from "@/lib/plant/snapshot";
 import type { TimeToCrossoverResult } from "@/lib/plant/crossover";
 import type { Condition } from "./condition";
 import { crossoverAdvice, crossoverCaution, type ChillerState } from "./advice";
 import { lastEdgeMs } from "./history";
-import { bool, chillerCalledFor, chillersOf, str, type RuleContext } from "./context";
+import { bool, chillerCalledFor, chillersOf, num, str, type RuleContext } from "./context";
 import { formatDuration } from "@/lib/units";
 import { fmtDelta, fmtPressure, fmtRate } from "./format";
 import { makeCondition } from "./make-condition";
@@ -107,8 +109,7 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
     // Once raised, the risk stays up through the crossing itself; "loops crossed" then adds its alarm.
     const active =
       calledFor &&
-      (((closingSoon || smallAndClosing) && beforeRestart) ||
-        (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
+      (((closingSoon || smallAndClosing) && beforeRestart) || (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
     const n: Record<string, number | null> = { ...crossoverNumbers(v), restartInS: state.restartInS };
     const when = n.timeToCrossoverS !== null ? `in about ${formatDuration(n.timeToCrossoverS)}` : "soon";
     const band = t
@@ -196,7 +197,15 @@ export function loopsCrossed(ctx: RuleContext): Condition[] {
     // The shells' pressures are the direct reading (running: the lift; stopped: each shell's
     // saturation); entering water temperatures only stand in when the site has no pressures.
     const byPressure = v.crossoverPressureMarginKPa !== null;
-    const pressureCrossed = byPressure && v.crossoverPressureMarginKPa! <= (was ? 5 : 0);
+    const condKPa = num(ctx, chiller.tag, "condenser_refrigerant_pressure");
+    const evapKPa = num(ctx, chiller.tag, "evaporator_refrigerant_pressure");
+    const refrigerant = asRefrigerant(chiller.refrigerant) ?? "R-134a";
+    // Judged as saturated temperatures, so the dead band is the same kelvin as for water.
+    const shellMarginK =
+      condKPa !== null && evapKPa !== null
+        ? refrigerantMarginK((p) => saturationTempC(refrigerant, p), condKPa, evapKPa)
+        : null;
+    const pressureCrossed = byPressure && shellMarginK !== null && shellMarginK <= limitK;
     const tempCrossed = !byPressure && v.crossoverMarginK !== null && v.crossoverMarginK <= limitK;
     const active = chillerCalledFor(ctx, chiller) && (tempCrossed || pressureCrossed);
     const state = chillerState(ctx, chiller, v);
