@@ -88,3 +88,27 @@ export function timeToCrossover(
     atMs: nowMs,
   };
 }
+
+/**
+ * Saturated-temperature difference of the two shells from their refrigerant pressures (K): the
+ * refrigerant's own reading of the margin, comparable with the water margin and its noise floors.
+ */
+export function refrigerantMarginK(
+  satTempC: (pressureKPa: number) => number,
+  condenserPressureKPa: number,
+  evaporatorPressureKPa: number,
+): number {
+  return satTempC(condenserPressureKPa) - satTempC(evaporatorPressureKPa);
+}
+
+/**
+ * The smallest margin (K) at which the chiller can start: the saturated-temperature rise that gives
+ * the record's minimum condenser − evaporator pressure difference above the evaporator's pressure.
+ */
+export function minStartMarginK(
+  satTempC: (pressureKPa: number) => number,
+  evaporatorPressureKPa: number,
+  minStartLiftKPa: number,
+): number {
+  return satTempC(evaporatorPressureKPa + minStartLiftKPa) - satTempC(evaporatorPressureKPa);
+}

@@ -46,9 +46,13 @@ export interface ChillerSnapshot {
   evaporatorApproachK: number | null;
   /** Condenser water minus chilled water, both entering the chiller. */
   crossoverMarginK: number | null;
-  /** Condenser − evaporator refrigerant pressure, only while running. */
+  /** Condenser − evaporator refrigerant pressure: running, the lift; stopped, the shells' own reading of the crossover. */
   crossoverPressureMarginKPa: number | null;
-  /** Fit over the short window: follows fast changes such as a trip. */
+  /** What the projections fit: the shells' saturated-temperature difference when both pressures are read, else the water margin. */
+  marginBasis: "refrigerant" | "water" | null;
+  /** The projections' target (K): the margin the chiller needs to start, from its record's minimum pressure difference. */
+  startMarginK: number | null;
+  /** Fit over the short window (margin above `startMarginK`): follows fast changes such as a trip. */
   timeToCrossover: TimeToCrossoverResult | null;
   /** Fit over the long window: sees a slow drift the short window takes for noise. */
   slowTimeToCrossover: TimeToCrossoverResult | null;
@@ -81,6 +85,8 @@ export interface ChillerHistoryInputs {
   slowMarginSamples?: readonly TimedValue[];
   lastStartMs?: number | null;
   lastStopMs?: number | null;
+  marginBasis?: "refrigerant" | "water" | null;
+  startMarginK?: number | null;
 }
 
 export interface SnapshotOptions {
@@ -198,7 +204,9 @@ export function chillerSnapshot(
     condenserApproachK: running ? diff(condSat, cwOut, condenserApproachK) : null,
     evaporatorApproachK: running ? diff(chwOut, evapSat, evaporatorApproachK) : null,
     crossoverMarginK: diff(cwIn, chwIn, crossoverMarginK),
-    crossoverPressureMarginKPa: running ? diff(condP, evapP, crossoverPressureMarginKPa) : null,
+    crossoverPressureMarginKPa: diff(condP, evapP, crossoverPressureMarginKPa),
+    marginBasis: h?.marginBasis ?? null,
+    startMarginK: h?.startMarginK ?? null,
     timeToCrossover: h?.marginSamples ? timeToCrossover(h.marginSamples, nowMs, options.timeToCrossover) : null,
     slowTimeToCrossover: h?.slowMarginSamples
       ? timeToCrossover(h.slowMarginSamples, nowMs, options.slowTimeToCrossover)

@@ -5,7 +5,7 @@ import type { QuantityKey } from "@/lib/quantities";
 import type { Equipment, Site } from "@/lib/plant/site";
 import { towersServing } from "@/lib/plant/site";
 import type { TimedValue } from "@/lib/plant/trend";
-import { crossoverMarginK } from "@/lib/plant/crossover";
+import { crossoverMarginK, refrigerantMarginK } from "@/lib/plant/crossover";
 import type { SiteSnapshot } from "@/lib/plant/snapshot";
 import type { HistoryView } from "./history";
 import type { RuleId } from "./condition";
@@ -78,26 +78,53 @@ export function condenserEnteringSource(ctx: RuleContext, chiller: Equipment): {
 export function marginSeries(ctx: RuleContext, chiller: Equipment, windowS: number): TimedValue[] {
   const cw = condenserEnteringSource(ctx, chiller);
   if (!cw) return [];
+  return pairedSeries(ctx, cw, { tag: chiller.tag, q: "chilled_water_entering_temp" }, windowS, crossoverMarginK);
+}
+
+/** The shells' saturated-temperature difference from their refrigerant pressures, over the window. */
+export function refrigerantMarginSeries(
+  ctx: RuleContext,
+  chiller: Equipment,
+  windowS: number,
+  satTempC: (kPa: number) => number,
+): TimedValue[] {
+  return pairedSeries(
+    ctx,
+    { tag: chiller.tag, q: "condenser_refrigerant_pressure" },
+    { tag: chiller.tag, q: "evaporator_refrigerant_pressure" },
+    windowS,
+    (c, e) => refrigerantMarginK(satTempC, c, e),
+  );
+}
+
+/** `f(a, b)` at every time either series was read within the window, each paired with the other's latest value. */
+function pairedSeries(
+  ctx: RuleContext,
+  aSrc: { tag: string; q: QuantityKey },
+  bSrc: { tag: string; q: QuantityKey },
+  windowS: number,
+  f: (a: number, b: number) => number,
+): TimedValue[] {
   const fromMs = ctx.nowMs - windowS * 1000;
-  const chw = ctx.history.numbers(chiller.tag, "chilled_water_entering_temp", fromMs, ctx.nowMs);
-  const cws = ctx.history.numbers(cw.tag, cw.q, fromMs, ctx.nowMs);
+  const as = ctx.history.numbers(aSrc.tag, aSrc.q, fromMs, ctx.nowMs);
+  const bs = ctx.history.numbers(bSrc.tag, bSrc.q, fromMs, ctx.nowMs);
   // One walk over both series in time order, carrying each one's latest value (a reading
   // before the window counts until the window's first). Called for every chiller at every
   // evaluation over an hour of readings, so no per-time lookups.
-  const before = (tag: string, q: QuantityKey) => {
-    const v = ctx.history.latestAt(tag, q, fromMs - 1)?.value;
+  const before = (src: { tag: string; q: QuantityKey }) => {
+    const v = ctx.history.latestAt(src.tag, src.q, fromMs - 1)?.value;
     return typeof v === "number" ? v : undefined;
   };
-  let a = before(cw.tag, cw.q);
-  let b = before(chiller.tag, "chilled_water_entering_temp");
+  let a = before(aSrc);
+  let b = before(bSrc);
   const out: TimedValue[] = [];
   let i = 0;
   let j = 0;
-  while (i < cws.length || j < chw.length) {
-    const t = Math.min(i < cws.length ? cws[i].tsMs : Infinity, j < chw.length ? chw[j].tsMs : Infinity);
-    while (i < cws.length && cws[i].tsMs === t) a = cws[i++].value;
-    while (j < chw.length && chw[j].tsMs === t) b = chw[j++].value;
-    if (a !== undefined && b !== undefined) out.push({ tsMs: t, value: crossoverMarginK(a, b) });
+  while (i < as.length || j < bs.length) {
+    const t = Math.min(i < as.length ? as[i].tsMs : Infinity, j < bs.length ? bs[j].tsMs : Infinity);
+    while (i < as.length && as[i].tsMs === t) a = as[i++].value;
+    while (j < bs.length && bs[j].tsMs === t) b = bs[j++].value;
+    if (a !== undefined && b !== undefined) out.push({ tsMs: t, value: f(a, b) });
   }
   return out;
 }

@@ -2,13 +2,18 @@
 // (condenser water minus chilled water, both entering the chiller) and its least-squares
 // projection to zero (lib/plant/crossover.ts).
 
+import { asRefrigerant, limitsOf } from "@/lib/plant/equipment-limits";
+import { refrigerantMarginK } from "@/lib/plant/crossover";
+import { saturationTempC } from "@/lib/refrigerant";
 import type { Equipment } from "@/lib/plant/site";
 import type { ChillerSnapshot } from "@/lib/plant/snapshot";
 import type { TimeToCrossoverResult } from "@/lib/plant/crossover";
-import { QUALIFIED_CAUTION, type Condition } from "./condition";
-import { bool, chillerCalledFor, chillersOf, str, type RuleContext } from "./context";
+import type { Condition } from "./condition";
+import { crossoverAdvice, crossoverCaution, type ChillerState } from "./advice";
+import { lastEdgeMs } from "./history";
+import { bool, chillerCalledFor, chillersOf, num, str, type RuleContext } from "./context";
 import { formatDuration } from "@/lib/units";
-import { fmtDelta, fmtRate } from "./format";
+import { fmtDelta, fmtPressure, fmtRate } from "./format";
 import { makeCondition } from "./make-condition";
 
 function chillerView(ctx: RuleContext, chiller: Equipment): ChillerSnapshot | undefined {
@@ -50,18 +55,39 @@ function crossoverNumbers(s: ChillerSnapshot): Record<string, number | null> {
       closing?.closingRateKPerMin ?? (short?.status === "not_closing" ? short.closingRateKPerMin : null),
     fitResidualK: closing?.residualStdDevK ?? null,
     lockoutLeftS: s.lockout.lockoutLeftS,
+    startMarginK: s.startMarginK,
+    refrigerantBasis: s.marginBasis === null ? null : Number(s.marginBasis === "refrigerant"),
   };
 }
 
-const RECOVERY_STEPS = [
-  "Restore heat rejection: put the tower fan drive back in auto and confirm the fan runs.",
-  "Shed air-handler load to slow the chilled-water loop's warming.",
-  "Shorten the anti-recycle timers only as far as the manufacturer allows, and only under supervision.",
-  "Start the compressor before the loops cross; once crossed, follow the manufacturer's procedure before any restart.",
-];
+/** Where the chiller stands on the way back to running: what the advice and the race turn on. */
+export function chillerState(ctx: RuleContext, chiller: Equipment, v: ChillerSnapshot): ChillerState {
+  const s = ctx.settings.restartRace;
+  const running = v.running === true;
+  // A latched alarm or a drive fault holds the compressor off until a person resets it; a chiller
+  // stopped on low load or by its schedule restarts by itself once its timers allow.
+  const held = bool(ctx, chiller.tag, "chiller_alarm") === true || bool(ctx, chiller.tag, "drive_fault") === true;
+  const lockoutS = v.lockout.lockoutLeftS;
+  const startMs = lastEdgeMs(ctx.history.edges(chiller.tag, "run_status", ctx.nowMs).rises);
+  return {
+    running,
+    held,
+    restartInS: running ? 0 : held ? Math.max(lockoutS, s.resetAllowanceS) : lockoutS,
+    sinceStartS: running && startMs !== null ? (ctx.nowMs - startMs) / 1000 : null,
+  };
+}
+
+/** Seconds until a stopped chiller could be back on load (start, then soft-load). */
+export function backOnLoadS(ctx: RuleContext, state: ChillerState): number {
+  return (state.restartInS ?? 0) + ctx.settings.restartRace.compressorLoadS;
+}
+
+const basisText = (v: ChillerSnapshot) =>
+  v.marginBasis === "refrigerant" ? "refrigerant pressures" : "entering water temperatures";
 
 export function crossoverRisk(ctx: RuleContext): Condition[] {
   const s = ctx.settings.crossoverRisk;
+  const race = ctx.settings.restartRace;
   if (!s.enabled) return [];
   return chillersOf(ctx.site).flatMap((chiller) => {
     const v = chillerView(ctx, chiller);
@@ -72,16 +98,26 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
     const warnMarginK = s.warnMarginK + (was ? s.marginDeadBandK : 0);
     const smallMarginK = s.smallMarginK + (was ? s.marginDeadBandK : 0);
     const calledFor = chillerCalledFor(ctx, chiller);
+    const state = chillerState(ctx, chiller, v);
+    // A stopped chiller that will restart by itself is at risk only if the margin closes before it
+    // can be back on load (plus time for someone to act): the normal stop-to-start after a blip is not.
+    const selfRestartS = !state.running && !state.held ? backOnLoadS(ctx, state) + race.reactionAllowanceS : null;
+    const beforeRestart =
+      selfRestartS === null || (t !== null && t.timeToCrossoverS <= selfRestartS + (was ? s.timeDeadBandS : 0));
     const closingSoon = t !== null && t.timeToCrossoverS <= warnS && t.fittedMarginK <= warnMarginK;
     const smallAndClosing = t !== null && t.fittedMarginK <= smallMarginK;
     // Once raised, the risk stays up through the crossing itself; "loops crossed" then adds its alarm.
     const active =
-      calledFor && (closingSoon || smallAndClosing || (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
-    const n = crossoverNumbers(v);
+      calledFor &&
+      (((closingSoon || smallAndClosing) && beforeRestart) || (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
+    const n: Record<string, number | null> = { ...crossoverNumbers(v), restartInS: state.restartInS };
     const when = n.timeToCrossoverS !== null ? `in about ${formatDuration(n.timeToCrossoverS)}` : "soon";
     const band = t
       ? ` (fit band ${formatDuration(t.earliestS)}–${Number.isFinite(t.latestS) ? formatDuration(t.latestS) : "open"})`
       : "";
+    const what = state.running
+      ? `running with its condenser − evaporator pressure difference ${v.crossoverPressureMarginKPa === null ? "" : `(${fmtPressure(v.crossoverPressureMarginKPa, true)}) `}falling toward the ${fmtPressure(limitsOf(chiller).minStartLiftKPa, true)} it needs`
+      : `off, its margin (from ${basisText(v)}) only ${fmtDelta(n.marginK ?? 0)} above the ${fmtDelta(v.startMarginK ?? 0)} it needs to start`;
     return [
       makeCondition({
         ruleId: "crossover_risk",
@@ -90,13 +126,13 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag}: condenser water is only ${fmtDelta(n.marginK ?? 0)} above chilled water and closing at ${fmtRate(n.closingRateKPerMin ?? 0)}; the loops cross ${when}${band}.`
-          : `${chiller.tag}: crossover margin ${n.marginK === null ? "unknown" : fmtDelta(n.marginK)}, not closing toward a crossover.`,
+          ? `${chiller.tag}: ${what}, closing at ${fmtRate(n.closingRateKPerMin ?? 0)}; it reaches that ${when}${band}.`
+          : `${chiller.tag}: crossover margin ${n.marginK === null ? "unknown" : fmtDelta(n.marginK)} above its start margin, not closing toward it.`,
         ownerMessage: active
-          ? `The cooling plant is drifting toward a condition that can stop the chiller from restarting. Expected ${when}.`
+          ? `The cooling plant is drifting toward a condition that can stop the chiller from ${state.running ? "running" : "restarting"}. Expected ${when}.`
           : "The chilled-water and condenser-water loops are in a safe relationship.",
-        advice: active ? RECOVERY_STEPS : [],
-        caution: active ? QUALIFIED_CAUTION : null,
+        advice: active ? crossoverAdvice(state, race.restartNearS, race.watchDriveForS) : [],
+        caution: active ? crossoverCaution(state) : null,
         numbers: n,
       }),
     ];
@@ -112,23 +148,22 @@ export function restartRace(ctx: RuleContext): Condition[] {
     const { closing, crossed } = crossoverOutlook(v);
     const was = ctx.wasActive("restart_race", chiller.tag);
     const lockoutS = v.lockout.lockoutLeftS;
-    const neededS = lockoutS + s.compressorLoadS + s.reactionAllowanceS;
+    const state = chillerState(ctx, chiller, v);
+    const neededS = backOnLoadS(ctx, state);
     const off = v.running === false;
     const ttcS = closing ? closing.timeToCrossoverS : crossed ? 0 : null;
-    // A latched alarm holds the compressor off until a person resets it: no timer will end the wait.
-    const latched = bool(ctx, chiller.tag, "chiller_alarm") === true;
-    const latchedText = latched ? str(ctx, chiller.tag, "fault_text") : null;
-    // The race is lost when the loops cross before the compressor can be back on load.
-    const active =
-      off && chillerCalledFor(ctx, chiller) && ttcS !== null && (latched || ttcS < neededS + (was ? s.deadBandS : 0));
+    const latchedText = state.held ? str(ctx, chiller.tag, "fault_text") : null;
+    // The race is lost when the margin reaches what a start needs before the compressor can be back on load.
+    const active = off && chillerCalledFor(ctx, chiller) && ttcS !== null && ttcS < neededS + (was ? s.deadBandS : 0);
     const n = {
       ...crossoverNumbers(v),
       compressorLoadS: s.compressorLoadS,
-      restartNeedsS: latched ? null : neededS,
-      latchedAlarm: Number(latched),
+      restartNeedsS: neededS,
+      restartInS: state.restartInS,
+      latchedAlarm: Number(state.held),
     };
-    const held = latched
-      ? `is off on a latched alarm${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} and will not restart until someone resets it (anti-recycle ${formatDuration(lockoutS)} left)`
+    const held = state.held
+      ? `is held off${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} until someone resets it (anti-recycle ${formatDuration(lockoutS)} left; ${formatDuration(s.resetAllowanceS)} allowed to reach and reset it)`
       : `is off and locked out for ${formatDuration(lockoutS)} more`;
     return [
       makeCondition({
@@ -138,13 +173,13 @@ export function restartRace(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag} ${held}; the loops cross in about ${formatDuration(ttcS!)}, before a restart could be on load (${formatDuration(s.compressorLoadS)} to load after the start). The restart will come too late unless someone acts.`
+          ? `${chiller.tag} ${held}; its margin reaches the ${fmtDelta(v.startMarginK ?? 0)} a start needs in about ${formatDuration(ttcS!)}, before it could be back on load in ${formatDuration(neededS)}. The restart will come too late unless someone acts.`
           : `${chiller.tag}: no restart race (${off ? "off" : "running"}, lockout ${formatDuration(lockoutS)} left).`,
         ownerMessage: active
-          ? "The chiller is waiting out its restart delay, and the plant may reach a state where it cannot restart before that delay ends. The on-call technician needs to act."
+          ? "The chiller is waiting to restart, and the plant may reach a state where it cannot restart before then. The on-call technician needs to act."
           : "No restart problem expected.",
-        advice: active ? RECOVERY_STEPS : [],
-        caution: active ? QUALIFIED_CAUTION : null,
+        advice: active ? crossoverAdvice(state, s.restartNearS, s.watchDriveForS) : [],
+        caution: active ? crossoverCaution(state) : null,
         numbers: n,
       }),
     ];
@@ -156,13 +191,24 @@ export function loopsCrossed(ctx: RuleContext): Condition[] {
   if (!s.enabled) return [];
   return chillersOf(ctx.site).flatMap((chiller) => {
     const v = chillerView(ctx, chiller);
-    if (!v || v.crossoverMarginK === null) return [];
+    if (!v || (v.crossoverMarginK === null && v.crossoverPressureMarginKPa === null)) return [];
     const was = ctx.wasActive("loops_crossed", chiller.tag);
     const limitK = s.crossedAtMarginK + (was ? s.deadBandK : 0);
-    const tempCrossed = v.crossoverMarginK <= limitK;
-    // While running, condenser pressure at or below evaporator pressure is the same fault seen from the refrigerant.
-    const pressureCrossed = v.crossoverPressureMarginKPa !== null && v.crossoverPressureMarginKPa <= 0;
+    // The shells' pressures are the direct reading (running: the lift; stopped: each shell's
+    // saturation); entering water temperatures only stand in when the site has no pressures.
+    const byPressure = v.crossoverPressureMarginKPa !== null;
+    const condKPa = num(ctx, chiller.tag, "condenser_refrigerant_pressure");
+    const evapKPa = num(ctx, chiller.tag, "evaporator_refrigerant_pressure");
+    const refrigerant = asRefrigerant(chiller.refrigerant) ?? "R-134a";
+    // Judged as saturated temperatures, so the dead band is the same kelvin as for water.
+    const shellMarginK =
+      condKPa !== null && evapKPa !== null
+        ? refrigerantMarginK((p) => saturationTempC(refrigerant, p), condKPa, evapKPa)
+        : null;
+    const pressureCrossed = byPressure && shellMarginK !== null && shellMarginK <= limitK;
+    const tempCrossed = !byPressure && v.crossoverMarginK !== null && v.crossoverMarginK <= limitK;
     const active = chillerCalledFor(ctx, chiller) && (tempCrossed || pressureCrossed);
+    const state = chillerState(ctx, chiller, v);
     return [
       makeCondition({
         ruleId: "loops_crossed",
@@ -171,19 +217,18 @@ export function loopsCrossed(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag}: loops crossed — chilled water is ${fmtDelta(-v.crossoverMarginK)} warmer than condenser water${pressureCrossed ? ", condenser pressure at or below evaporator pressure" : ""}. Refrigerant sits in the condenser; a restart risks a drive over-temperature trip.`
-          : `${chiller.tag}: loops not crossed (margin ${fmtDelta(v.crossoverMarginK)}).`,
+          ? `${chiller.tag}: loops crossed — ${byPressure ? `condenser refrigerant pressure ${fmtPressure(-v.crossoverPressureMarginKPa!, true)} below evaporator pressure` : `chilled water ${fmtDelta(-v.crossoverMarginK!)} warmer than condenser water`}. Refrigerant sits in the condenser; a restart risks a drive over-temperature trip.`
+          : `${chiller.tag}: loops not crossed.`,
         ownerMessage: active
           ? "The chiller's water loops are in a state where it cannot restart normally. A technician must follow the manufacturer's recovery procedure."
           : "The chiller's water loops are in a normal relationship.",
         advice: active
           ? [
-              "Raise the condenser water temperature: reduce tower fan speed or bypass the tower as the plant allows.",
-              "Shed air-handler load.",
+              ...crossoverAdvice(state, ctx.settings.restartRace.restartNearS, ctx.settings.restartRace.watchDriveForS),
               "Follow the manufacturer's procedure for starting with crossed loops; do not repeatedly attempt restarts.",
             ]
           : [],
-        caution: active ? QUALIFIED_CAUTION : null,
+        caution: active ? crossoverCaution(state) : null,
         numbers: crossoverNumbers(v),
       }),
     ];

@@ -1,12 +1,14 @@
 // Evaluates every rule for one site at one event time. Pure given the history view.
 
-import { limitsOf } from "@/lib/plant/equipment-limits";
+import { asRefrigerant, limitsOf } from "@/lib/plant/equipment-limits";
+import { minStartMarginK } from "@/lib/plant/crossover";
+import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
 import { computeSiteSnapshot, type ChillerHistoryInputs, type SiteSnapshot } from "@/lib/plant/snapshot";
 import type { Site } from "@/lib/plant/site";
 import { chillerTripped } from "./chiller-trip";
 import { commLost } from "./comm-lost";
 import type { Condition, RuleId } from "./condition";
-import { marginSeries, type CommStatus, type Rule, type RuleContext } from "./context";
+import { marginSeries, num, refrigerantMarginSeries, type CommStatus, type Rule, type RuleContext } from "./context";
 import { crossoverRisk, loopsCrossed, restartRace } from "./crossover-rules";
 import { driveTempTowardTrip } from "./drive-temperature";
 import { efficiencyDrift } from "./efficiency-drift";
@@ -56,11 +58,28 @@ export function snapshotFromHistory(
     // A start or stop changes how the loops move; fit only the margin since then.
     const lastChangeMs = Math.max(lastStartMs ?? -Infinity, lastStopMs ?? -Infinity);
     const sinceChangeS = Math.max(0, (nowMs - lastChangeMs) / 1000);
+    // The shells' pressures read the crossover most directly (running: the lift; stopped: each
+    // shell's saturation); the water margin stands in when the site has no such points.
+    const refrigerant = asRefrigerant(chiller.refrigerant) ?? "R-134a";
+    const satTempC = (kPa: number) => saturationTempC(refrigerant, kPa);
+    const evapKPa = num(probe, chiller.tag, "evaporator_refrigerant_pressure");
+    const condKPa = num(probe, chiller.tag, "condenser_refrigerant_pressure");
+    const chwC = num(probe, chiller.tag, "chilled_water_entering_temp");
+    const basis = evapKPa !== null && condKPa !== null ? "refrigerant" : "water";
+    const baseKPa = evapKPa ?? (chwC !== null ? saturationPressureKPa(refrigerant, chwC) : null);
+    const startMarginK = baseKPa !== null ? minStartMarginK(satTempC, baseKPa, limitsOf(chiller).minStartLiftKPa) : 0;
+    const series = (windowS: number) =>
+      (basis === "refrigerant"
+        ? refrigerantMarginSeries(probe, chiller, windowS, satTempC)
+        : marginSeries(probe, chiller, windowS)
+      ).map((p) => ({ tsMs: p.tsMs, value: p.value - startMarginK }));
     perChiller[chiller.tag] = {
-      marginSamples: marginSeries(probe, chiller, Math.min(c.fitWindowS, sinceChangeS)),
-      slowMarginSamples: marginSeries(probe, chiller, Math.min(c.slowFitWindowS, sinceChangeS)),
+      marginSamples: series(Math.min(c.fitWindowS, sinceChangeS)),
+      slowMarginSamples: series(Math.min(c.slowFitWindowS, sinceChangeS)),
       lastStartMs,
       lastStopMs,
+      marginBasis: basis,
+      startMarginK,
     };
   }
   return computeSiteSnapshot(site, history.latestValuesAt(nowMs), nowMs, {

@@ -1,13 +1,19 @@
-// Rule 5: condensing pressure within a margin of the high-pressure trip and rising. The trip is
-// the chiller's own high condenser pressure cut-out from its equipment record.
+// Rule 5: condensing pressure heading for the high-pressure cut-out. The cut-out is the chiller's
+// own, from its equipment record (entered, else the refrigerant's default); the warning is on the
+// projected time to reach it from the trend, because a fixed band below the trip is only minutes
+// at the rates a lost tower fan gives.
 
 import { limitsOf } from "@/lib/plant/equipment-limits";
 import { fitTrend, projectToValue } from "@/lib/plant/trend";
 import type { Condition } from "./condition";
 import { bool, chillersOf, num, type RuleContext } from "./context";
+import { lastEdgeMs } from "./history";
 import { formatDuration } from "@/lib/units";
 import { fmtPressure } from "./format";
 import { makeCondition } from "./make-condition";
+
+export const HAND_RESET_CAUTION =
+  "A mechanical high-pressure cut-out is often reset by hand at the device: after a trip, recovery may need someone on site. Follow the manufacturer's procedures, local codes and licensed practice.";
 
 export function headPressureNearTrip(ctx: RuleContext): Condition[] {
   const s = ctx.settings.headPressure;
@@ -17,15 +23,21 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
     if (pKPa === null) return [];
     const tripKPa = limitsOf(chiller).highCondPressureCutoutKPa;
     const running = bool(ctx, chiller.tag, "run_status") === true;
+    const startMs = lastEdgeMs(ctx.history.edges(chiller.tag, "run_status", ctx.nowMs).rises);
+    const starting = running && startMs !== null && ctx.nowMs - startMs < s.startupGraceS * 1000;
     const fit = fitTrend(
       ctx.history.numbers(chiller.tag, "condenser_refrigerant_pressure", ctx.nowMs - s.riseWindowS * 1000, ctx.nowMs),
     );
     const riseKPaPerMin = fit ? fit.slopePerS * 60 : null;
     const was = ctx.wasActive("head_pressure_near_trip", chiller.tag);
-    const near = pKPa >= tripKPa - s.warnWithinKPa - (was ? s.deadBandKPa : 0);
-    const rising = was ? (riseKPaPerMin ?? 0) > -s.minRiseKPaPerMin : (riseKPaPerMin ?? 0) >= s.minRiseKPaPerMin;
-    const active = running && near && rising;
-    const toTrip = fit ? projectToValue(fit, tripKPa) : null;
+    const slackKPa = was ? s.deadBandKPa : 0;
+    const toTrip = fit && pKPa < tripKPa ? projectToValue(fit, tripKPa) : null;
+    const rising = (riseKPaPerMin ?? 0) >= (was ? 0 : s.minRiseKPaPerMin);
+    const watched = pKPa >= tripKPa - s.watchWithinKPa - slackKPa && !starting;
+    const soon = watched && rising && toTrip !== null && toTrip.timeS <= s.warnTimeToTripS + (was ? 120 : 0);
+    const atLimit = pKPa >= tripKPa - s.warnWithinKPa - slackKPa;
+    const active = running && (soon || atLimit);
+    const rate = riseKPaPerMin !== null ? `, rising ${riseKPaPerMin.toFixed(1)} kPa/min` : "";
     return [
       makeCondition({
         ruleId: "head_pressure_near_trip",
@@ -34,18 +46,25 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}, ${(tripKPa - pKPa).toFixed(0)} kPa below the ${fmtPressure(tripKPa)} trip and rising ${riseKPaPerMin!.toFixed(1)} kPa/min${toTrip ? `; trip in about ${formatDuration(toTrip.timeS)}` : ""}.`
+          ? `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}, ${Math.max(0, tripKPa - pKPa).toFixed(0)} kPa below its ${fmtPressure(tripKPa)} cut-out${rate}${toTrip ? `; cut-out in about ${formatDuration(toTrip.timeS)}` : ""}.`
           : `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}.`,
         ownerMessage: active
           ? "The chiller is close to shutting itself down on high pressure."
           : "Chiller pressures are normal.",
         advice: active
           ? [
-              "Check tower fans and condenser-water flow; restore heat rejection.",
-              "Reduce chiller load if heat rejection cannot be restored quickly.",
+              "Check the tower fans and condenser-water flow and restore heat rejection — the pressure follows the condenser water.",
+              "If heat rejection cannot be restored within minutes, reduce the chiller's load — a chiller that unloads keeps running, one that trips must wait out its timers.",
             ]
           : [],
-        numbers: { condenserPressureKPa: pKPa, tripKPa, riseKPaPerMin, timeToTripS: toTrip?.timeS ?? null },
+        caution: active ? HAND_RESET_CAUTION : null,
+        numbers: {
+          condenserPressureKPa: pKPa,
+          tripKPa,
+          riseKPaPerMin,
+          timeToTripS: toTrip?.timeS ?? null,
+          timeToTripEarliestS: toTrip?.earliestS ?? null,
+        },
       }),
     ];
   });

@@ -52,6 +52,12 @@ export const ruleSettingsSchema = z.strictObject({
       compressorLoadS: seconds.default(5 * 60),
       /** Time for someone to see the warning and act. */
       reactionAllowanceS: seconds.default(5 * 60),
+      /** A chiller held by a latched alarm restarts only once someone resets it; a hand reset may mean reaching site (common practice: half an hour). */
+      resetAllowanceS: seconds.default(30 * 60),
+      /** A restart this close changes the advice from "keep the condenser water up" to "restore the tower fan" (a few minutes to bring a fan up). */
+      restartNearS: seconds.default(5 * 60),
+      /** How long after a restart the advice is to watch the drive temperature (common practice: the first quarter hour on load). */
+      watchDriveForS: seconds.default(15 * 60),
       deadBandS: seconds.default(5 * 60),
     })
     .prefault({}),
@@ -79,10 +85,17 @@ export const ruleSettingsSchema = z.strictObject({
     .strictObject({
       ...common(2, 15, 60),
       // The trip itself is the chiller's high condenser pressure cut-out, from its equipment record.
-      warnWithinKPa: positive.default(150),
+      /** Warn when the fitted rise reaches the cut-out within this: time to restore heat rejection or unload remotely. */
+      warnTimeToTripS: positive.default(10 * 60),
+      /** Projections count only this close to the cut-out (kPa): a start's normal climb from standby pressure is not a trip. */
+      watchWithinKPa: positive.default(300),
+      /** This close to the cut-out warns whatever the rate (kPa, ≈ 5 psi): a controller holding just under it is at its limit. */
+      warnWithinKPa: positive.default(35),
       deadBandKPa: seconds.default(25),
       riseWindowS: positive.default(3 * 60),
       minRiseKPaPerMin: positive.default(2),
+      /** No projection this long after a start, while the condenser pressure builds from standby. */
+      startupGraceS: seconds.default(5 * 60),
     })
     .prefault({}),
   driveTemperature: z

@@ -2,6 +2,7 @@
 // (ISA-18.2 alarm attributes; starting values REFERENCES.md §7 [M]). Each case also runs with
 // dead band and delays set to zero to show the same signal would chatter without them.
 import { describe, expect, it } from "vitest";
+import { saturationPressureKPa } from "@/lib/refrigerant";
 import { runFrames, type Frame } from "./synthetic";
 
 /** Deterministic noise in [−1, 1], a new value every sample. */
@@ -17,6 +18,9 @@ describe("no chatter at a limit", () => {
     chwOutC: 20,
     cwInC: 20,
     cwOutC: 20,
+    // Each idle shell at its water's saturation pressure (R-134a): the shells read the same hover.
+    evapKPa: saturationPressureKPa("R-134a", 20 + 0.4 * noise(tS / 10)),
+    condKPa: saturationPressureKPa("R-134a", 20),
   });
 
   it("loops crossed: margin hovering at 0 ± 0.4 K for an hour", () => {

@@ -1,24 +1,38 @@
 // Rule checks on synthetic event-time streams (tests/unit/rules/synthetic.ts). Thresholds are
 // the documented defaults of lib/rules/settings.ts unless a test says otherwise.
 import { describe, expect, it } from "vitest";
+import { saturationPressureKPa } from "@/lib/refrigerant";
 import { runFrames, secondsOf, withChillerLimits, type Frame } from "./synthetic";
 
-/** Chiller tripped and off while the building still calls for cooling; margin closes 0.3 K/min from 11.8 K → crosses at ≈ 39.3 min. */
+/**
+ * Chiller off while the building still calls for cooling; margin closes 0.3 K/min from 11.8 K → crosses at ≈ 39.3 min.
+ * Each stopped shell's refrigerant sits at the saturation pressure of its water (R-134a), as in a real idle chiller.
+ */
 const closingOff =
   (inhibitLeftAt: (tS: number) => number | null = () => null) =>
-  (tS: number): Partial<Frame> => ({
-    running: false,
-    chwInC: 12.2 + (0.15 / 60) * tS,
-    chwOutC: 12.2 + (0.15 / 60) * tS,
-    cwInC: 24 - (0.15 / 60) * tS,
-    cwOutC: 24 - (0.15 / 60) * tS,
-    inhibitLeftS: inhibitLeftAt(tS),
-  });
+  (tS: number): Partial<Frame> => {
+    const chw = 12.2 + (0.15 / 60) * tS;
+    const cw = 24 - (0.15 / 60) * tS;
+    return {
+      running: false,
+      chwInC: chw,
+      chwOutC: chw,
+      cwInC: cw,
+      cwOutC: cw,
+      evapKPa: saturationPressureKPa("R-134a", chw),
+      condKPa: saturationPressureKPa("R-134a", cw),
+      inhibitLeftS: inhibitLeftAt(tS),
+    };
+  };
 const crossingS = 11.8 / (0.3 / 60);
+/** These checks measure to the loops' crossing itself: a chiller whose record asks no start margin. */
+const zeroLift = withChillerLimits({ minStartLiftKPa: 0 });
+/** Tripped on a latched alarm: held off until someone resets it. */
+const tripped = { chillerAlarm: true, faultText: "High discharge pressure trip at 160.1 psig" };
 
 describe("crossover risk (rule 1)", () => {
   it("warns when the projected crossover is under 30 min, well before the loops cross", () => {
-    const r = runFrames({ durationS: 3000, frame: closingOff() });
+    const r = runFrames({ site: zeroLift, durationS: 3000, frame: (tS) => ({ ...closingOff()(tS), ...tripped }) });
     const first = secondsOf(r.firstActivation("crossover_risk:CH-1"));
     expect(first).not.toBeNull();
     // ttc ≤ 1800 s from t ≈ 560 s; plus the 30 s on-delay.
@@ -29,7 +43,12 @@ describe("crossover risk (rule 1)", () => {
   });
 
   it("carries the derived numbers it rests on: margin, time to crossover with its band, closing rate", () => {
-    const r = runFrames({ durationS: 900, frame: closingOff(), keep: true });
+    const r = runFrames({
+      site: zeroLift,
+      durationS: 900,
+      frame: (tS) => ({ ...closingOff()(tS), ...tripped }),
+      keep: true,
+    });
     const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "crossover_risk")!;
     expect(c.active).toBe(true);
     expect(c.numbers.marginK).toBeCloseTo(11.8 - 0.3 * 15, 1);
@@ -40,18 +59,28 @@ describe("crossover risk (rule 1)", () => {
     expect(c.ownerMessage).not.toMatch(/K\/min/);
   });
 
+  /** Running, condenser water drifting down 1 K/h; each shell 2 K from its water, so the lift tracks the water margin. */
+  const slowDrift = (tS: number): Partial<Frame> => {
+    const cw = 12.2 + 4.5 - tS / 3600;
+    return {
+      cwInC: cw,
+      condKPa: saturationPressureKPa("R-134a", cw + 2),
+      evapKPa: saturationPressureKPa("R-134a", 12.2 + 2),
+    };
+  };
   it("sees a slow drift with the long fit: a small margin closing 1 K/h warns once under 3 K", () => {
     // Running chiller, condenser water drifting down on a cold day: margin 4.5 K → 0 over 4.5 h.
-    const r = runFrames({ durationS: 3 * 3600, stepS: 20, frame: (tS) => ({ cwInC: 12.2 + 4.5 - tS / 3600 }) });
+    const r = runFrames({ site: zeroLift, durationS: 3 * 3600, stepS: 20, frame: slowDrift });
     const first = secondsOf(r.firstActivation("crossover_risk:CH-1"));
     expect(first).not.toBeNull();
     // Under 3 K from 1.5 h; the short fit alone sees 0.017 K/min as noise.
     expect(first!).toBeGreaterThanOrEqual(1.5 * 3600);
     expect(first!).toBeLessThanOrEqual(1.5 * 3600 + 120);
     const short = runFrames({
+      site: zeroLift,
       durationS: 3 * 3600,
       stepS: 20,
-      frame: (tS) => ({ cwInC: 12.2 + 4.5 - tS / 3600 }),
+      frame: slowDrift,
       settings: { crossoverRisk: { slowFitWindowS: 600 } },
     });
     expect(short.firstActivation("crossover_risk:CH-1")).toBeNull();
@@ -59,14 +88,21 @@ describe("crossover risk (rule 1)", () => {
 
   it("stays quiet on an opening margin", () => {
     const r = runFrames({
+      site: zeroLift,
       durationS: 3000,
-      frame: (tS) => ({ ...closingOff()(tS), chwInC: 12.2 - (0.1 / 60) * tS, cwInC: 20 }),
+      frame: (tS) => ({
+        ...closingOff()(tS),
+        chwInC: 12.2 - (0.1 / 60) * tS,
+        cwInC: 20,
+        evapKPa: saturationPressureKPa("R-134a", 12.2 - (0.1 / 60) * tS),
+        condKPa: saturationPressureKPa("R-134a", 20),
+      }),
     });
     expect(r.firstActivation("crossover_risk:CH-1")).toBeNull();
   });
 
   it("stays quiet when the plant is switched off (no call for cooling)", () => {
-    const r = runFrames({ durationS: 3000, frame: (tS) => ({ ...closingOff()(tS), enabled: false }) });
+    const r = runFrames({ site: zeroLift, durationS: 3000, frame: (tS) => ({ ...closingOff()(tS), enabled: false }) });
     expect(r.firstActivation("crossover_risk:CH-1")).toBeNull();
     expect(r.firstActivation("loops_crossed:CH-1")).toBeNull();
   });
@@ -74,31 +110,40 @@ describe("crossover risk (rule 1)", () => {
 
 describe("restart race (rule 2)", () => {
   it("fires while the anti-recycle timer still runs when the loops will cross before a restart can be on load", () => {
-    // 30-min lockout counting down from t = 0: needs 1800 + 300 + 300 s; crossover in 2360 s.
-    const r = runFrames({ durationS: 1200, frame: closingOff((tS) => Math.max(0, 1800 - tS)), keep: true });
+    // 40-min lockout counting down from t = 0: back on load after 2400 + 300 s; crossover in 2360 s — lost from
+    // the start (a 30-min lockout would be back on load 260 s before the crossing: no race, see the trust tests).
+    const r = runFrames({
+      site: zeroLift,
+      durationS: 1200,
+      frame: closingOff((tS) => Math.max(0, 2400 - tS)),
+      keep: true,
+    });
     const first = secondsOf(r.firstActivation("restart_race:CH-1"));
     expect(first).not.toBeNull();
     const e = r.evaluations.find((x) => x.atMs === r.firstActivation("restart_race:CH-1"))!;
     const c = e.conditions.find((x) => x.ruleId === "restart_race")!;
+    // The short fit needs its first minute of samples.
+    expect(first!).toBeLessThanOrEqual(90);
     expect(c.numbers.lockoutLeftS).toBeGreaterThan(0);
-    expect(c.advice.join(" ")).toMatch(/heat rejection/);
-    expect(c.advice.join(" ")).toMatch(/air-handler load/);
-    expect(c.advice.join(" ")).toMatch(/only as far as the manufacturer allows.*supervision/);
-    expect(c.advice.join(" ")).toMatch(/before the loops cross/);
-    expect(c.caution).toMatch(/manufacturer's procedures and local codes/);
+    // The restart is far: keep the condenser water up and take load off first.
+    expect(c.advice[0]).toMatch(/Keep the condenser water up/);
+    expect(c.advice.join(" ")).toMatch(/air handlers/);
+    expect(c.advice.join(" ")).toMatch(/within the manufacturer's limits.*supervision.*put them back/);
+    expect(c.caution).toMatch(/manufacturer's procedures, local codes and licensed practice/);
   });
 
   it("does not fire when the lockout ends early enough, until the crossover itself gets close", () => {
-    // Lockout 60 s: the race is on only once ttc < 60 + 600 s.
-    const r = runFrames({ durationS: 3000, frame: closingOff((tS) => Math.max(0, 60 - tS)) });
+    // Lockout 60 s: the race is on only once ttc < 60 + 300 s.
+    const r = runFrames({ site: zeroLift, durationS: 3000, frame: closingOff((tS) => Math.max(0, 60 - tS)) });
     const first = secondsOf(r.firstActivation("restart_race:CH-1"));
     expect(first).not.toBeNull();
-    expect(first!).toBeGreaterThan(crossingS - 700);
+    expect(first!).toBeGreaterThan(crossingS - 400);
   });
 
-  it("a latched alarm holds the restart until someone resets it: the race is on as soon as the margin closes", () => {
+  it("a latched alarm holds the restart until someone resets it: the race counts the 30 min allowed to reach and reset it", () => {
     const r = runFrames({
-      durationS: 600,
+      site: zeroLift,
+      durationS: 900,
       frame: (tS) => ({
         ...closingOff(() => 0)(tS),
         chillerAlarm: true,
@@ -108,13 +153,20 @@ describe("restart race (rule 2)", () => {
     });
     const first = secondsOf(r.firstActivation("restart_race:CH-1"));
     expect(first).not.toBeNull();
-    expect(first!).toBeLessThanOrEqual(90);
+    // Back on load after max(0, 1800) + 300 s; crossover in 2360 s → race from t ≈ 260 s.
+    expect(first!).toBeGreaterThanOrEqual(250);
+    expect(first!).toBeLessThanOrEqual(280);
     const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "restart_race")!;
-    expect(c.technicianMessage).toMatch(/latched alarm.*until someone resets it/);
+    expect(c.technicianMessage).toMatch(/held off.*until someone resets it/);
+    expect(c.advice.join(" ")).toMatch(/hand reset at the device/);
   });
 
   it("does not fire while the chiller runs", () => {
-    const r = runFrames({ durationS: 1500, frame: (tS) => ({ ...closingOff(() => 1800)(tS), running: true }) });
+    const r = runFrames({
+      site: zeroLift,
+      durationS: 1500,
+      frame: (tS) => ({ ...closingOff(() => 1800)(tS), running: true }),
+    });
     expect(r.firstActivation("restart_race:CH-1")).toBeNull();
   });
 
@@ -138,14 +190,14 @@ describe("restart race (rule 2)", () => {
 
 describe("loops crossed (rule 3)", () => {
   it("alarms once the margin reaches zero, after its 30 s on-delay", () => {
-    const r = runFrames({ durationS: 3000, frame: closingOff() });
+    const r = runFrames({ site: zeroLift, durationS: 3000, frame: closingOff() });
     const first = secondsOf(r.firstActivation("loops_crossed:CH-1"))!;
     expect(first).toBeGreaterThanOrEqual(crossingS + 30);
     expect(first).toBeLessThanOrEqual(crossingS + 50);
   });
 
   it("alarms on condenser pressure at or below evaporator pressure while running", () => {
-    const r = runFrames({ durationS: 120, frame: () => ({ condKPa: 400, evapKPa: 410 }) });
+    const r = runFrames({ site: zeroLift, durationS: 120, frame: () => ({ condKPa: 400, evapKPa: 410 }) });
     expect(r.firstActivation("loops_crossed:CH-1")).not.toBeNull();
   });
 });
@@ -191,36 +243,41 @@ describe("tower fan not running when needed (rule 4)", () => {
 });
 
 describe("head pressure nearing trip (rule 5)", () => {
-  it("warns within 150 kPa of the 1204.5 kPa trip while rising, with a projected time to trip", () => {
-    const r = runFrames({ durationS: 900, frame: (tS) => ({ condKPa: 950 + (10 / 60) * tS }), keep: true });
+  it("warns on the projected time to the 1204.5 kPa cut-out: 10 min ahead at 10 kPa/min", () => {
+    const r = runFrames({ durationS: 1500, frame: (tS) => ({ condKPa: 950 + (10 / 60) * tS }), keep: true });
     const first = secondsOf(r.firstActivation("head_pressure_near_trip:CH-1"))!;
-    // 1055 kPa reached at 630 s; 15 s on-delay.
-    expect(first).toBeGreaterThanOrEqual(640);
-    expect(first).toBeLessThanOrEqual(660);
+    // 1104.5 kPa (10 min before the trip) reached at 927 s; 15 s on-delay.
+    expect(first).toBeGreaterThanOrEqual(930);
+    expect(first).toBeLessThanOrEqual(960);
     const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "head_pressure_near_trip")!;
-    expect(c.numbers.timeToTripS).toBeCloseTo((1204.5 - 1100) / (10 / 60), -1);
+    expect(c.numbers.timeToTripS).toBeCloseTo((1204.5 - (950 + 250)) / (10 / 60), -1);
+    expect(c.caution).toMatch(/reset by hand at the device/);
   });
 
-  it("quiet when high but steady", () => {
+  it("quiet when high but steady, warns when held just under the cut-out", () => {
     expect(
       runFrames({ durationS: 900, frame: () => ({ condKPa: 1100 }) }).firstActivation("head_pressure_near_trip:CH-1"),
     ).toBeNull();
+    expect(
+      runFrames({ durationS: 300, frame: () => ({ condKPa: 1180 }) }).firstActivation("head_pressure_near_trip:CH-1"),
+    ).not.toBeNull();
   });
 
   it("takes the trip from the chiller's entered high-pressure cut-out", () => {
-    // A cut-out entered at 1100 kPa: warn at 950 kPa, reached at 0 s of this ramp; the default 1204.5 kPa would wait until 630 s.
+    // A cut-out entered at 1100 kPa: 10 min ahead at 10 kPa/min is 1000 kPa, reached at 300 s; the default waits until 927 s.
     const frame = (tS: number) => ({ condKPa: 950 + (10 / 60) * tS });
     const lowered = runFrames({
-      durationS: 300,
+      durationS: 600,
       frame,
       site: withChillerLimits({ highCondPressureCutoutKPa: 1100 }),
       keep: true,
     });
     const first = secondsOf(lowered.firstActivation("head_pressure_near_trip:CH-1"))!;
-    expect(first).toBeLessThanOrEqual(60);
+    expect(first).toBeGreaterThanOrEqual(300);
+    expect(first).toBeLessThanOrEqual(330);
     const c = lowered.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "head_pressure_near_trip")!;
     expect(c.numbers.tripKPa).toBe(1100);
-    expect(runFrames({ durationS: 300, frame }).firstActivation("head_pressure_near_trip:CH-1")).toBeNull();
+    expect(runFrames({ durationS: 600, frame }).firstActivation("head_pressure_near_trip:CH-1")).toBeNull();
   });
 });
 

@@ -1,0 +1,125 @@
+// Runs a simulator scenario headless through a site's rule monitor on event time, and measures
+// what a technician would see: when each alarm was raised, how long before the loops crossed,
+// and the first advice of the crossover warning. Shared by the scenario tests and the lead report.
+import { equipmentOf, getScenario, runScenario, siteLayouts, type SiteLayout } from "@/simulator";
+import type { Site } from "@/lib/plant";
+import { createSiteMonitor, defaultRuleSettings, type Condition, type RuleSettings } from "@/lib/rules";
+import type { TransitionRecord } from "@/lib/alarms";
+
+export const REPLAY_START_MS = Date.UTC(2025, 6, 1, 14, 0, 0);
+
+/** The rules' view of a simulated site: chillers with capacity and refrigerant, pumps serving their chiller. */
+export function siteOfLayout(layout: SiteLayout): Site {
+  return equipmentOf(layout).map((e) => {
+    const chiller = layout.chillers.find((c) => c.tag === e.tag);
+    if (chiller)
+      return { tag: e.tag, kind: e.kind, capacityTons: chiller.capacityTons, refrigerant: chiller.refrigerant };
+    // Pumps are dedicated: CHWP-n and CWP-n serve CH-n.
+    const pump = /^C(?:H)?WP-(\d+)$/.exec(e.tag);
+    if (pump) return { tag: e.tag, kind: e.kind, serves: `CH-${pump[1]}` };
+    return { tag: e.tag, kind: e.kind };
+  });
+}
+
+export interface ChillerReplay {
+  /** First event time, while enabled, the chiller's condenser water entering was at or below its chilled water entering. */
+  crossedAtMs: number | null;
+  /** The condition of a rule the first time its alarm was raised, by rule id. */
+  firstRaised: Map<string, { atMs: number; condition: Condition | undefined }>;
+  /** Raw conditions of `restart_race` and `loops_crossed` while the chiller ran (for "no critical while running"). */
+  criticalWhileRunning: number;
+}
+
+export interface Replay {
+  scenario: string;
+  layout: string;
+  transitions: TransitionRecord[];
+  chillers: Map<string, ChillerReplay>;
+  wallMs: number;
+  durationS: number;
+}
+
+export function replay(
+  scenario: string,
+  opts: { layout?: string; durationS?: number; seed?: number; settings?: RuleSettings; site?: Site } = {},
+): Replay {
+  const layout = siteLayouts[opts.layout ?? "default"];
+  const site = opts.site ?? siteOfLayout(layout);
+  const durationS = opts.durationS ?? getScenario(scenario).defaultDurationS;
+  const wall0 = performance.now();
+  const monitor = createSiteMonitor({ site, settings: opts.settings ?? defaultRuleSettings });
+  const transitions: TransitionRecord[] = [];
+  const water = new Map<string, { cw?: number; chw?: number; running?: boolean; enabled?: boolean }>();
+  const chillers = new Map<string, ChillerReplay>();
+  for (const c of layout.chillers)
+    chillers.set(c.tag, { crossedAtMs: null, firstRaised: new Map(), criticalWhileRunning: 0 });
+  for (const sample of runScenario({
+    scenario,
+    seed: opts.seed ?? 1,
+    startMs: REPLAY_START_MS,
+    durationS,
+    sampleEveryS: 10,
+    layout,
+  })) {
+    for (const r of sample.readings) {
+      if (!chillers.has(r.equipment)) continue;
+      const w = water.get(r.equipment) ?? {};
+      if (r.quantity === "condenser_water_entering_temp") w.cw = r.value as number;
+      if (r.quantity === "chilled_water_entering_temp") w.chw = r.value as number;
+      if (r.quantity === "run_status") w.running = r.value as boolean;
+      if (r.quantity === "run_enable_command") w.enabled = r.value as boolean;
+      water.set(r.equipment, w);
+    }
+    for (const [tag, w] of water) {
+      const c = chillers.get(tag)!;
+      // A chiller the plant has not enabled (standby) sits in whatever water is around it: not a crossover.
+      if (
+        c.crossedAtMs === null &&
+        w.enabled !== false &&
+        w.cw !== undefined &&
+        w.chw !== undefined &&
+        w.cw - w.chw <= 0
+      )
+        c.crossedAtMs = sample.tsMs;
+    }
+    monitor.ingest(sample.readings);
+    const ev = monitor.evaluate(sample.tsMs);
+    for (const t of ev.transitions) {
+      transitions.push(t);
+      if (t.cause !== "condition_active" || t.to !== "unacknowledged") continue;
+      const c = chillers.get(t.equipment);
+      if (c && !c.firstRaised.has(t.ruleId))
+        c.firstRaised.set(t.ruleId, {
+          atMs: t.atMs,
+          condition: ev.conditions.find((x) => x.ruleId === t.ruleId && x.equipment === t.equipment),
+        });
+    }
+    for (const cond of ev.conditions) {
+      const c = chillers.get(cond.equipment);
+      if (c && cond.active && cond.priority === 1 && water.get(cond.equipment)?.running === true)
+        c.criticalWhileRunning++;
+    }
+  }
+  return {
+    scenario,
+    layout: layout.site,
+    transitions,
+    chillers,
+    wallMs: performance.now() - wall0,
+    durationS,
+  };
+}
+
+/** Alarms raised (condition became active and the alarm went unacknowledged), optionally of one key. */
+export const raised = (r: Replay, key?: string): TransitionRecord[] =>
+  r.transitions.filter(
+    (t) => t.cause === "condition_active" && t.to === "unacknowledged" && (key === undefined || t.alarmKey === key),
+  );
+
+/** Minutes the first crossover warning came before the loops crossed (null: no crossing or no warning before it). */
+export function crossoverLeadMin(r: Replay, tag: string): number | null {
+  const c = r.chillers.get(tag);
+  if (!c || c.crossedAtMs === null) return null;
+  const first = raised(r, `crossover_risk:${tag}`).find((t) => t.atMs <= c.crossedAtMs!);
+  return first ? (c.crossedAtMs - first.atMs) / 60_000 : null;
+}
