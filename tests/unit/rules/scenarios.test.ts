@@ -48,7 +48,7 @@ const activations = (r: Replay, key: string) =>
   r.transitions.filter((t) => t.alarmKey === key && t.cause === "condition_active" && t.to === "unacknowledged");
 
 describe("power-blip, no action", () => {
-  const durationS = 75 * 60; // the scenario's late reset comes at 80 min
+  const durationS = 165 * 60; // the scenario's late reset comes at 170 min
   let r: Replay;
   beforeAll(() => {
     r = replay("power-blip", durationS);
@@ -78,7 +78,10 @@ describe("power-blip, no action", () => {
   it("names the root cause and the equipment problems on the way", () => {
     expect(activations(r, "power_event_suspected:site").length).toBe(1);
     expect(activations(r, "tower_fan_not_running:CT-1").length).toBe(1);
-    expect(activations(r, "head_pressure_near_trip:CH-1").length).toBe(1);
+    // The controller holds and unloads near its cut-out, so the pressure can dwell at the warning's edge;
+    // one re-raise at most before the trip.
+    expect(activations(r, "head_pressure_near_trip:CH-1").length).toBeGreaterThanOrEqual(1);
+    expect(activations(r, "head_pressure_near_trip:CH-1").length).toBeLessThanOrEqual(2);
     expect(activations(r, "loops_crossed:CH-1").length).toBe(1);
   });
 
