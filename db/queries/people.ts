@@ -113,7 +113,11 @@ export function getServiceOrganizationId(db: Db): string | null {
 }
 
 export function emailTaken(db: Db, email: string): boolean {
-  return !!db.select({ id: users.id }).from(users).where(eq(users.email, normalizeEmail(email))).get();
+  return !!db
+    .select({ id: users.id })
+    .from(users)
+    .where(eq(users.email, normalizeEmail(email)))
+    .get();
 }
 
 /**
@@ -153,14 +157,6 @@ export function countOtherEnabledAdmins(db: Db, exceptUserId: string): number {
       ),
     )
     .get()!.n;
-}
-
-export function setPersonFields(
-  db: Db,
-  userId: string,
-  fields: { role?: Role; organizationId?: string; disabled?: boolean },
-): void {
-  db.update(users).set(fields).where(eq(users.id, userId)).run();
 }
 
 /** Who a link or reset request is for: enabled accounts only. */

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { PASSWORD_MAX_LENGTH } from "@/lib/auth/password-policy";
+import { PASSWORD_MAX_LENGTH, PASSWORD_MIN_LENGTH } from "@/lib/auth/password-policy";
 import { roles } from "@/lib/auth/viewer";
 import { safeText } from "./text";
 
@@ -69,3 +69,30 @@ export const accountLinkRefusal = {
 
 /** The one answer to every reset request, whether or not the address has an account. */
 export const PASSWORD_RESET_ANSWER = "If an account exists for that address, we sent a link to reset its password.";
+
+/**
+ * The set-password forms: the length rule early, for quick feedback, and the two entries agreeing.
+ * Pasting is allowed (password managers; ASVS 5.0 6.2.7); the server checks the full policy.
+ */
+export const newPasswordFormSchema = z
+  .object({
+    password: z
+      .string()
+      .min(PASSWORD_MIN_LENGTH, `Use at least ${PASSWORD_MIN_LENGTH} characters`)
+      .max(PASSWORD_MAX_LENGTH, `At most ${PASSWORD_MAX_LENGTH} characters`),
+    confirm: z.string(),
+  })
+  .refine((v) => v.password === v.confirm, { message: "The two entries differ", path: ["confirm"] });
+export type NewPasswordFormInput = z.infer<typeof newPasswordFormSchema>;
+
+export const changePasswordFormSchema = z
+  .object({
+    currentPassword: z.string().min(1, "Enter your current password"),
+    newPassword: z
+      .string()
+      .min(PASSWORD_MIN_LENGTH, `Use at least ${PASSWORD_MIN_LENGTH} characters`)
+      .max(PASSWORD_MAX_LENGTH, `At most ${PASSWORD_MAX_LENGTH} characters`),
+    confirm: z.string(),
+  })
+  .refine((v) => v.newPassword === v.confirm, { message: "The two entries differ", path: ["confirm"] });
+export type ChangePasswordFormInput = z.infer<typeof changePasswordFormSchema>;

@@ -58,7 +58,12 @@ export const configSchema = z.object({
   /** The pause before each sign-in from a slowed address is checked. */
   SIGNIN_ADDRESS_DELAY_MS: z.coerce.number().int().min(0).max(10_000).default(1000),
   /** How long an e-mailed invitation link works (72 h), and a password-reset link (1 h: OWASP Forgot Password Cheat Sheet). */
-  INVITE_LINK_TTL_S: z.coerce.number().int().min(1).max(30 * 86_400).default(72 * 3600),
+  INVITE_LINK_TTL_S: z.coerce
+    .number()
+    .int()
+    .min(1)
+    .max(30 * 86_400)
+    .default(72 * 3600),
   RESET_LINK_TTL_S: z.coerce.number().int().min(1).max(86_400).default(3600),
   /** Password-reset requests per hour for one typed address, and from one client address. */
   PASSWORD_RESET_PER_HOUR_PER_ACCOUNT: z.coerce.number().int().min(1).default(5),

@@ -18,7 +18,6 @@ import {
   markAccountLinkUsed,
   peekAccountLink,
   setPasswordHash,
-  setPersonFields,
   updateAccount,
   type LinkPurpose,
 } from "@/db/queries/people";
@@ -236,7 +235,8 @@ function checkPassword(password: string, email: string): void {
  */
 export async function requestPasswordReset(db: Db, email: string, clientAddress: string): Promise<void> {
   const waitS = await passwordResetLimiter().take(email.trim().toLowerCase(), clientAddress);
-  if (waitS > 0) throw new AppError("rate_limited", `Too many reset requests; try again in ${Math.ceil(waitS / 60)} min.`);
+  if (waitS > 0)
+    throw new AppError("rate_limited", `Too many reset requests; try again in ${Math.ceil(waitS / 60)} min.`);
   const ttlS = loadConfig().RESET_LINK_TTL_S;
   const person = findEnabledUserByEmail(db, email);
   if (!person) {
@@ -260,7 +260,8 @@ export async function setPasswordWithLink(
   password: string,
 ): Promise<{ purpose: LinkPurpose; email: string }> {
   const link = peekAccountLink(db, token, Date.now());
-  if (!link.ok) throw new AppError(link.reason === "unknown" ? "not_found" : "conflict", accountLinkRefusal[link.reason]);
+  if (!link.ok)
+    throw new AppError(link.reason === "unknown" ? "not_found" : "conflict", accountLinkRefusal[link.reason]);
   checkPassword(password, link.email);
   const passwordHash = await hashPassword(password);
   db.transaction(

@@ -46,8 +46,16 @@ export function createPasswordResetLimiter(opts: {
   perAccountPerHour: number;
   perAddressPerHour: number;
 }): PasswordResetLimiter {
-  const perAccount = new RateLimiterMemory({ keyPrefix: "reset-account", points: opts.perAccountPerHour, duration: 3600 });
-  const perAddress = new RateLimiterMemory({ keyPrefix: "reset-address", points: opts.perAddressPerHour, duration: 3600 });
+  const perAccount = new RateLimiterMemory({
+    keyPrefix: "reset-account",
+    points: opts.perAccountPerHour,
+    duration: 3600,
+  });
+  const perAddress = new RateLimiterMemory({
+    keyPrefix: "reset-address",
+    points: opts.perAddressPerHour,
+    duration: 3600,
+  });
   const consume = async (limiter: RateLimiterMemory, key: string) => {
     try {
       await limiter.consume(key);

@@ -1,7 +1,6 @@
-import { peekAccountLink } from "@/db/queries/people";
-import type { AccountLinkStatusDto } from "@/lib/dto/people";
 import { AppError } from "@/lib/errors";
 import { ACCOUNT_LINK_TOKEN_PATTERN, accountLinkRefusal, setPasswordSchema } from "@/lib/schemas/people";
+import { accountLinkStatus } from "@/lib/server/account-links";
 import { readJson, route } from "@/lib/server/http";
 import { setPasswordWithLink } from "@/lib/server/people";
 import { getDb } from "@/lib/server/runtime";
@@ -11,14 +10,7 @@ import { getDb } from "@/lib/server/runtime";
 type Context = { params: Promise<{ token: string }> };
 
 export const GET = route<Context>(async (_request, { params }) => {
-  const { token } = await params;
-  const link = ACCOUNT_LINK_TOKEN_PATTERN.test(token)
-    ? peekAccountLink(getDb(), token, Date.now())
-    : ({ ok: false, reason: "unknown" } as const);
-  const status: AccountLinkStatusDto = link.ok
-    ? { valid: true, purpose: link.purpose, email: link.email, expiresAt: new Date(link.expiresAtMs).toISOString() }
-    : { valid: false, reason: link.reason };
-  return Response.json(status);
+  return Response.json(accountLinkStatus(getDb(), (await params).token));
 });
 
 export const POST = route<Context>(async (request, { params }) => {
