@@ -36,7 +36,8 @@ async function call(who: Who, path: string, init: RequestInit & { json?: unknown
   const res = await fetch(server.url + path, { ...init, body, headers, redirect: "manual" });
   const text = await res.text();
   bodies.push(text);
-  return { status: res.status, body: text ? JSON.parse(text) : null, text };
+  const json = (res.headers.get("content-type") ?? "").includes("json");
+  return { status: res.status, body: json && text ? JSON.parse(text) : null, text };
 }
 
 /** The newest message to `to` in the sink's outbox, waiting for it to arrive. */
@@ -79,6 +80,15 @@ beforeAll(async () => {
     expect(res.cookie, who).toBeTruthy();
     cookies[who] = res.cookie!;
   }
+  // In development mode each route compiles on its first request: do it here, under the hook's longer timeout.
+  for (const path of [
+    "/api/people",
+    "/api/outbox",
+    "/api/account",
+    "/api/audit",
+    `/api/account-links/${"C".repeat(43)}`,
+  ])
+    await call("admin", path);
 }, 180_000);
 
 afterAll(async () => {
@@ -466,4 +476,27 @@ describe("audit API", () => {
     expect(future.body.entries).toEqual([]);
     expect((await call("admin", "/api/audit?entityType=nonsense")).status).toBe(400);
   });
+});
+
+describe("pages", () => {
+  it("admin pages are the admin's; the e-mailed links' pages and forgot-password are public", async () => {
+    for (const path of ["/admin/people", "/admin/audit"]) {
+      expect((await call("admin", path)).status, path).toBe(200);
+      expect((await call("technician", path)).status, path).toBe(404);
+    }
+    const email = "page.check@tallgrass.example";
+    await invite(email, "technician");
+    const token = linkToken((await mailTo(email)).text, "invite");
+    const page = await call("anonymous", `/invite/${token}`);
+    expect(page.status).toBe(200);
+    expect(page.text).toContain(email);
+    // Showing the page does not use the link (mail scanners fetch links).
+    expect((await call("anonymous", `/api/account-links/${token}`)).body.valid).toBe(true);
+    const used = await call("anonymous", `/reset-password/${"B".repeat(43)}`);
+    expect(used.status).toBe(200);
+    expect(used.text).toContain("This link is not valid.");
+    const forgot = await call("anonymous", "/forgot-password");
+    expect(forgot.status).toBe(200);
+    expect((await call("anonymous", "/sign-in")).text).toContain("Forgot password?");
+  }, 180_000); // each page compiles on first request in development mode
 });
