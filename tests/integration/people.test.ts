@@ -81,14 +81,10 @@ beforeAll(async () => {
     cookies[who] = res.cookie!;
   }
   // In development mode each route compiles on its first request: do it here, under the hook's longer timeout.
-  for (const path of [
-    "/api/people",
-    "/api/outbox",
-    "/api/account",
-    "/api/audit",
-    `/api/account-links/${"C".repeat(43)}`,
-  ])
-    await call("admin", path);
+  const warm = ["/api/people", "/api/people/x", "/api/people/x/invitation", "/api/outbox", "/api/account"];
+  warm.push("/api/account/password", "/api/password-reset", "/api/audit", `/api/account-links/${"C".repeat(43)}`);
+  warm.push("/api/tokens", "/api/sites", "/api/alarms/x/ack");
+  for (const path of warm) await call("admin", path);
 }, 180_000);
 
 afterAll(async () => {
@@ -165,7 +161,7 @@ describe("invitations", () => {
     expect(account.body.account).toMatchObject({ email, role: "technician" });
     const person = await call("admin", `/api/people/${invited.body.person.id}`);
     expect(person.body.person.status).toBe("active");
-  });
+  }, 90_000); // eight bcrypt hashes on a shared 2-core machine
 
   it("re-sending an invitation kills the earlier link", async () => {
     const email = "second.look@tallgrass.example";
