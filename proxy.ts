@@ -13,6 +13,6 @@ export function proxy(request: NextRequest) {
 }
 
 export const config = {
-  // Pages only: the API answers 401 itself, and sign-in, assets and health stay public.
-  matcher: ["/((?!api|sign-in|ack|_next|icon.svg|favicon.ico).*)"],
+  // Pages only: the API answers 401 itself, and sign-in, the e-mailed links' pages, assets and health stay public.
+  matcher: ["/((?!api|sign-in|ack|invite|reset-password|forgot-password|_next|icon.svg|favicon.ico).*)"],
 };

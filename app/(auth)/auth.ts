@@ -108,6 +108,9 @@ export async function requireApiViewer(request: Request): Promise<Viewer> {
     const match = /^Bearer\s+(\S+)$/i.exec(authorization);
     const viewer = match ? viewerForToken(getDb(), match[1]) : null;
     if (!viewer) throw new AppError("unauthorized", "The API token is not valid.");
+    // A read token only reads; what act and admin tokens may do is checked by canAct/isAdmin (lib/auth/viewer.ts).
+    if (viewer.tokenScope === "read" && request.method !== "GET" && request.method !== "HEAD")
+      throw new AppError("forbidden", "This API token has the read scope: it can only read.");
     return viewer;
   }
   const viewer = await getViewer();

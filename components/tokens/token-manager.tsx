@@ -5,6 +5,7 @@ import { useState } from "react";
 import { useForm } from "react-hook-form";
 import useSWR from "swr";
 import { createTokenSchema, tokenLifetimesDays, type CreateTokenInput } from "@/lib/schemas/tokens";
+import { scopeAllows, tokenScopes, type TokenScope } from "@/lib/auth/viewer";
 import type { ApiTokenDto } from "@/lib/dto/tokens";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
@@ -13,7 +14,14 @@ import { fetchJson } from "@/lib/client/fetcher";
 const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString() : "never");
 const expired = (iso: string | null) => iso !== null && Date.parse(iso) <= Date.now();
 
-export function TokenManager() {
+const scopeText: Record<TokenScope, string> = {
+  read: "read — only reads",
+  act: "act — reads, acts on alarms and plants",
+  admin: "admin — everything you can do",
+};
+
+/** `maxScope`: the widest scope the signed-in person's role allows. */
+export function TokenManager({ maxScope }: { maxScope: TokenScope }) {
   const { data, mutate, error } = useSWR<{ tokens: ApiTokenDto[] }>("/api/tokens", fetchJson);
   const [created, setCreated] = useState<string | null>(null);
   const [actionError, setActionError] = useState<string | null>(null);
@@ -22,14 +30,14 @@ export function TokenManager() {
     handleSubmit,
     reset,
     formState: { errors, isSubmitting },
-  } = useForm<CreateTokenInput>({ resolver: zodResolver(createTokenSchema) });
+  } = useForm<CreateTokenInput>({ resolver: zodResolver(createTokenSchema), defaultValues: { scope: "read" } });
 
   async function onCreate(values: CreateTokenInput) {
     setActionError(null);
     try {
       const res = await fetchJson<{ token: string }>("/api/tokens", { method: "POST", body: JSON.stringify(values) });
       setCreated(res.token);
-      reset();
+      reset({ scope: "read" });
       await mutate();
     } catch (err) {
       setActionError((err as Error).message);
@@ -80,6 +88,24 @@ export function TokenManager() {
           </select>
           {errors.expiresInDays ? <p className="text-sm text-alarm">{errors.expiresInDays.message}</p> : null}
         </div>
+        <div className="flex flex-col gap-1">
+          <label htmlFor="token-scope" className="text-sm font-semibold">
+            Scope
+          </label>
+          <select
+            id="token-scope"
+            className="min-h-11 rounded border border-line bg-panel px-3 text-base"
+            {...register("scope")}
+          >
+            {tokenScopes
+              .filter((s) => scopeAllows(maxScope, s))
+              .map((s) => (
+                <option key={s} value={s}>
+                  {scopeText[s]}
+                </option>
+              ))}
+          </select>
+        </div>
         <Button type="submit" disabled={isSubmitting}>
           Create token
         </Button>
@@ -101,6 +127,9 @@ export function TokenManager() {
           >
             <span className="font-semibold">{t.name}</span>
             <code className="text-sm text-muted">{t.prefix}…</code>
+            <span className="rounded bg-surface px-2 py-0.5 text-xs font-semibold" data-testid="token-scope">
+              {t.scope}
+            </span>
             <span className="text-sm text-muted">
               created {when(t.createdAt)} · last used {when(t.lastUsedAt)} ·{" "}
               {t.expiresAt ? `${expired(t.expiresAt) ? "expired" : "expires"} ${when(t.expiresAt)}` : "does not expire"}

@@ -1,4 +1,5 @@
 import "server-only";
+import { writeAudit } from "./audit";
 import { randomUUID } from "node:crypto";
 import { and, asc, desc, eq, inArray, ne, sql } from "drizzle-orm";
 import type { Db } from "../client";
@@ -329,11 +330,26 @@ export function getRuleOverrides(db: Db, siteId: string): unknown {
 
 export function saveRuleOverrides(db: Db, viewer: Viewer, siteId: string, overrides: unknown): void {
   const settingsJson = JSON.stringify(overrides);
-  db.insert(siteRuleSettings)
-    .values({ siteId, settingsJson, updatedBy: viewer.userId === "system" ? null : viewer.userId })
-    .onConflictDoUpdate({
-      target: siteRuleSettings.siteId,
-      set: { settingsJson, updatedAt: Date.now(), updatedBy: viewer.userId === "system" ? null : viewer.userId },
-    })
-    .run();
+  db.transaction(
+    (tx) => {
+      const before = getRuleOverrides(db, siteId);
+      tx.insert(siteRuleSettings)
+        .values({ siteId, settingsJson, updatedBy: viewer.userId === "system" ? null : viewer.userId })
+        .onConflictDoUpdate({
+          target: siteRuleSettings.siteId,
+          set: { settingsJson, updatedAt: Date.now(), updatedBy: viewer.userId === "system" ? null : viewer.userId },
+        })
+        .run();
+      writeAudit(tx, viewer, {
+        action: "update",
+        entityType: "rule_settings",
+        entityId: siteId,
+        siteId,
+        summary: "Rule settings saved",
+        before,
+        after: overrides,
+      });
+    },
+    { behavior: "immediate" },
+  );
 }

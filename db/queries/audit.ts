@@ -2,7 +2,7 @@ import "server-only";
 import { and, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
 import type { Db } from "../client";
 import { auditLog, type AuditEntityType } from "../schema";
-import type { Viewer } from "@/lib/auth/viewer";
+import { isAdmin, type Viewer } from "@/lib/auth/viewer";
 
 export interface AuditEntry {
   action: string;
@@ -96,7 +96,7 @@ export interface AuditFilter {
 
 /** Administrators only: the audit trail names people and holds before/after values of every record. */
 export function listAudit(db: Db, viewer: Viewer, filter: AuditFilter = {}) {
-  if (viewer.role !== "admin") return [];
+  if (!isAdmin(viewer)) return [];
   const where: (SQL | undefined)[] = [
     filter.entityType ? eq(auditLog.entityType, filter.entityType) : undefined,
     filter.entityId ? eq(auditLog.entityId, filter.entityId) : undefined,

@@ -13,6 +13,7 @@ import {
   type GatewayProtocol,
   type GatewayState,
 } from "../schema";
+import { writeAudit } from "./audit";
 import { canSeeSite, isSiteRetired, siteScope } from "./sites";
 import { checkGatewayPassword, hashGatewayPassword, type HashGate } from "@/gateway/credential-hash";
 import { canAct, isAdmin, type Viewer } from "@/lib/auth/viewer";
@@ -171,6 +172,19 @@ export function getGateway(db: Db, viewer: Viewer, id: string): GatewayDto | nul
   return row ? toDtos(db, [row])[0] : null;
 }
 
+/** What the audit keeps of a gateway: never its password hash. */
+function audited(row: typeof gateways.$inferSelect) {
+  return {
+    name: row.name,
+    siteId: row.siteId,
+    protocol: row.protocol,
+    groupId: row.groupId,
+    edgeNodeId: row.edgeNodeId,
+    passwordRotatedAt: row.passwordRotatedAt?.toISOString() ?? null,
+    revokedAt: row.revokedAt?.toISOString() ?? null,
+  };
+}
+
 export async function createGateway(db: Db, viewer: Viewer, input: CreateGatewayInput): Promise<GatewayCredentials> {
   if (!canSeeSite(db, viewer, input.siteId)) throw notFound("No such site.");
   requireAdmin(viewer);
@@ -189,19 +203,34 @@ export async function createGateway(db: Db, viewer: Viewer, input: CreateGateway
       .get();
     if (clash) throw new AppError("conflict", "Another gateway already uses this Sparkplug group and edge node id.");
   }
-  db.insert(gateways)
-    .values({
-      id,
-      siteId: input.siteId,
-      name: input.name,
-      protocol: input.protocol,
-      groupId,
-      edgeNodeId,
-      username: id,
-      passwordHash,
-    })
-    .run();
-  const row = db.select().from(gateways).where(eq(gateways.id, id)).get()!;
+  const row = db.transaction(
+    (tx) => {
+      tx.insert(gateways)
+        .values({
+          id,
+          siteId: input.siteId,
+          name: input.name,
+          protocol: input.protocol,
+          groupId,
+          edgeNodeId,
+          username: id,
+          passwordHash,
+        })
+        .run();
+      const row = tx.select().from(gateways).where(eq(gateways.id, id)).get()!;
+      writeAudit(tx, viewer, {
+        action: "provision",
+        entityType: "gateway",
+        entityId: id,
+        siteId: row.siteId,
+        summary: `Gateway "${row.name}" provisioned (${row.protocol})`,
+        before: null,
+        after: audited(row),
+      });
+      return row;
+    },
+    { behavior: "immediate" },
+  );
   return { gateway: toDtos(db, [row])[0], username: id, password };
 }
 
@@ -212,8 +241,23 @@ export async function rotateGatewayPassword(db: Db, viewer: Viewer, id: string):
   if (row.revokedAt) throw new AppError("conflict", "This gateway is revoked; provision a new one.");
   const password = newPassword();
   const passwordHash = await hashGatewayPassword(password);
-  db.update(gateways).set({ passwordHash, passwordRotatedAt: new Date() }).where(eq(gateways.id, id)).run();
-  const updated = db.select().from(gateways).where(eq(gateways.id, id)).get()!;
+  const updated = db.transaction(
+    (tx) => {
+      tx.update(gateways).set({ passwordHash, passwordRotatedAt: new Date() }).where(eq(gateways.id, id)).run();
+      const updated = tx.select().from(gateways).where(eq(gateways.id, id)).get()!;
+      writeAudit(tx, viewer, {
+        action: "rotate_credentials",
+        entityType: "gateway",
+        entityId: id,
+        siteId: updated.siteId,
+        summary: `Gateway "${updated.name}": new password; the old one stopped working`,
+        before: audited(row),
+        after: audited(updated),
+      });
+      return updated;
+    },
+    { behavior: "immediate" },
+  );
   return { gateway: toDtos(db, [updated])[0], username: updated.username, password };
 }
 
@@ -222,10 +266,24 @@ export function revokeGateway(db: Db, viewer: Viewer, id: string): GatewayDto {
   if (!row) throw notFound("No such gateway.");
   requireAdmin(viewer);
   if (!row.revokedAt) {
-    db.update(gateways)
-      .set({ revokedAt: new Date(), state: "offline", stateChangedAt: new Date() })
-      .where(eq(gateways.id, id))
-      .run();
+    db.transaction(
+      (tx) => {
+        tx.update(gateways)
+          .set({ revokedAt: new Date(), state: "offline", stateChangedAt: new Date() })
+          .where(eq(gateways.id, id))
+          .run();
+        writeAudit(tx, viewer, {
+          action: "retire",
+          entityType: "gateway",
+          entityId: id,
+          siteId: row.siteId,
+          summary: `Gateway "${row.name}" retired; its credentials are revoked`,
+          before: audited(row),
+          after: audited(tx.select().from(gateways).where(eq(gateways.id, id)).get()!),
+        });
+      },
+      { behavior: "immediate" },
+    );
   }
   return toDtos(db, [db.select().from(gateways).where(eq(gateways.id, id)).get()!])[0];
 }
@@ -296,6 +354,25 @@ export function replacePointMap(
   if (errors.length > 0) return { accepted: 0, errors };
   db.transaction(
     (tx) => {
+      const before = tx
+        .select({
+          gatewayPoint: gatewayPointMaps.gatewayPoint,
+          pointId: gatewayPointMaps.pointId,
+          unit: gatewayPointMaps.unit,
+        })
+        .from(gatewayPointMaps)
+        .where(eq(gatewayPointMaps.gatewayId, id))
+        .orderBy(asc(gatewayPointMaps.gatewayPoint))
+        .all();
+      writeAudit(tx, viewer, {
+        action: "replace_point_map",
+        entityType: "gateway",
+        entityId: id,
+        siteId: gw.siteId,
+        summary: `Gateway "${gw.name}": point map replaced (${before.length} → ${resolved.length} rows)`,
+        before: { pointMap: before },
+        after: { pointMap: [...resolved].sort((a, b) => a.gatewayPoint.localeCompare(b.gatewayPoint)) },
+      });
       tx.delete(gatewayPointMaps).where(eq(gatewayPointMaps.gatewayId, id)).run();
       for (let i = 0; i < resolved.length; i += 500) {
         tx.insert(gatewayPointMaps)

@@ -1,6 +1,6 @@
 import "server-only";
 import { randomUUID } from "node:crypto";
-import { and, eq, isNull, lt } from "drizzle-orm";
+import { and, eq, isNull, lt, ne } from "drizzle-orm";
 import type { Db } from "../client";
 import { sessions, users } from "../schema";
 import type { Viewer } from "@/lib/auth/viewer";
@@ -77,5 +77,14 @@ export function pruneSessions(db: Db, beforeMs: number): number {
   return db
     .delete(sessions)
     .where(lt(sessions.lastSeenAt, new Date(beforeMs)))
+    .run().changes;
+}
+
+/** Ends every session of an account but one (a password change keeps the browser that made it). */
+export function revokeOtherSessions(db: Db, userId: string, keepSessionId: string): number {
+  return db
+    .update(sessions)
+    .set({ revokedAt: new Date() })
+    .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt), ne(sessions.id, keepSessionId)))
     .run().changes;
 }

@@ -3,7 +3,8 @@ import { createHash, randomBytes, randomUUID } from "node:crypto";
 import { and, desc, eq, gt, isNull, or } from "drizzle-orm";
 import type { Db } from "../client";
 import { apiTokens, users } from "../schema";
-import type { Viewer } from "@/lib/auth/viewer";
+import type { TokenScope, Viewer } from "@/lib/auth/viewer";
+import { writeAudit } from "./audit";
 import type { ApiTokenDto } from "@/lib/dto/tokens";
 import { viewerColumns } from "./users";
 
@@ -22,6 +23,7 @@ const dtoColumns = {
   lastUsedAt: apiTokens.lastUsedAt,
   revokedAt: apiTokens.revokedAt,
   expiresAt: apiTokens.expiresAt,
+  scope: apiTokens.scope,
 };
 
 type DtoRow = {
@@ -32,6 +34,7 @@ type DtoRow = {
   lastUsedAt: Date | null;
   revokedAt: Date | null;
   expiresAt: Date | null;
+  scope: TokenScope;
 };
 
 function toDto(row: DtoRow): ApiTokenDto {
@@ -43,6 +46,7 @@ function toDto(row: DtoRow): ApiTokenDto {
     lastUsedAt: row.lastUsedAt?.toISOString() ?? null,
     revokedAt: row.revokedAt?.toISOString() ?? null,
     expiresAt: row.expiresAt?.toISOString() ?? null,
+    scope: row.scope,
   };
 }
 
@@ -56,38 +60,82 @@ export function listTokens(db: Db, viewer: Viewer): ApiTokenDto[] {
     .map(toDto);
 }
 
-/** Returns the secret exactly once; only its hash is stored. A token without `expiresAt` does not expire. */
+/** What the audit keeps of a token: never its secret or hash. */
+const audited = (t: ApiTokenDto) => ({ name: t.name, prefix: t.prefix, scope: t.scope, expiresAt: t.expiresAt });
+
+/**
+ * Returns the secret exactly once; only its hash is stored. A token without `expiresAt` does not expire.
+ * The caller checks that `scope` is within what the viewer may grant (lib/server/tokens.ts).
+ */
 export function createToken(
   db: Db,
   viewer: Viewer,
   name: string,
   expiresAt: Date | null = null,
+  scope: TokenScope = "read",
 ): { token: string; apiToken: ApiTokenDto } {
   const token = TOKEN_PREFIX + randomBytes(32).toString("base64url");
   const id = randomUUID();
-  db.insert(apiTokens)
-    .values({ id, userId: viewer.userId, name, tokenHash: hashToken(token), prefix: token.slice(0, 10), expiresAt })
-    .run();
-  const row = db.select(dtoColumns).from(apiTokens).where(eq(apiTokens.id, id)).get()!;
-  return { token, apiToken: toDto(row) };
+  return db.transaction(
+    (tx) => {
+      tx.insert(apiTokens)
+        .values({
+          id,
+          userId: viewer.userId,
+          name,
+          tokenHash: hashToken(token),
+          prefix: token.slice(0, 10),
+          expiresAt,
+          scope,
+        })
+        .run();
+      const apiToken = toDto(tx.select(dtoColumns).from(apiTokens).where(eq(apiTokens.id, id)).get()!);
+      writeAudit(tx, viewer, {
+        action: "create",
+        entityType: "token",
+        entityId: id,
+        summary: `API token "${name}" created with scope ${scope}`,
+        before: null,
+        after: audited(apiToken),
+      });
+      return { token, apiToken };
+    },
+    { behavior: "immediate" },
+  );
 }
 
 /** Revokes one of the viewer's own tokens; false when there is no such token of theirs. */
 export function revokeToken(db: Db, viewer: Viewer, id: string): boolean {
-  const result = db
-    .update(apiTokens)
-    .set({ revokedAt: new Date() })
-    .where(and(eq(apiTokens.id, id), eq(apiTokens.userId, viewer.userId), isNull(apiTokens.revokedAt)))
-    .run();
-  return result.changes > 0;
+  return db.transaction(
+    (tx) => {
+      const own = and(eq(apiTokens.id, id), eq(apiTokens.userId, viewer.userId), isNull(apiTokens.revokedAt));
+      const before = tx.select(dtoColumns).from(apiTokens).where(own).get();
+      if (!before) return false;
+      tx.update(apiTokens).set({ revokedAt: new Date() }).where(own).run();
+      writeAudit(tx, viewer, {
+        action: "revoke",
+        entityType: "token",
+        entityId: id,
+        summary: `API token "${before.name}" revoked`,
+        before: audited(toDto(before)),
+        after: { ...audited(toDto(before)), revoked: true },
+      });
+      return true;
+    },
+    { behavior: "immediate" },
+  );
 }
 
-/** The viewer a bearer token acts as, with the same scope as its owner; records its use. Revoked or expired: null. */
+/**
+ * The viewer a bearer token acts as: its owner, narrowed to the token's scope (`tokenScope`); records its
+ * use. Revoked or expired, or its owner disabled or not yet past the invitation: null.
+ */
 export function viewerForToken(db: Db, token: string): Viewer | null {
   if (!token.startsWith(TOKEN_PREFIX)) return null;
   const row = db
     .select({
       tokenId: apiTokens.id,
+      tokenScope: apiTokens.scope,
       ...viewerColumns,
       disabled: users.disabled,
     })

@@ -26,13 +26,20 @@ export function normalizeEmail(email: string): string {
 
 export async function verifyCredentials(db: Db, email: string, password: string): Promise<Viewer | null> {
   const row = db
-    .select({ ...viewerColumns, passwordHash: users.passwordHash, disabled: users.disabled })
+    .select({
+      ...viewerColumns,
+      passwordHash: users.passwordHash,
+      disabled: users.disabled,
+      passwordSetAt: users.passwordSetAt,
+    })
     .from(users)
     .where(eq(users.email, normalizeEmail(email)))
     .get();
+  // Every refusal costs one bcrypt comparison, so the answer's timing does not tell an invited or
+  // disabled account from a wrong password or an unknown address.
   const ok = await bcrypt.compare(password, row?.passwordHash ?? DUMMY_HASH);
-  if (!row || !ok || row.disabled) return null;
-  const { passwordHash, disabled: _disabled, ...viewer } = row;
+  if (!row || !ok || row.disabled || row.passwordSetAt === null) return null;
+  const { passwordHash, disabled: _disabled, passwordSetAt: _set, ...viewer } = row;
   // A hash made at a lower cost (an older seed) is brought up to the common one while the password is at hand.
   if (needsRehash(passwordHash)) {
     const upgraded = await hashPassword(password);

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { tokenScopes } from "@/lib/auth/viewer";
 import { safeText } from "./text";
 
 /** The lifetimes the token form offers, in days; the API takes any whole number up to the longest. */
@@ -14,5 +15,7 @@ export const createTokenSchema = z.object({
     .min(1, "At least a day")
     .max(MAX_TOKEN_LIFETIME_DAYS, `At most ${MAX_TOKEN_LIFETIME_DAYS} days`)
     .optional(),
+  /** Absent: the widest scope the caller may grant (its role's), as tokens had before scopes. */
+  scope: z.enum(tokenScopes, { error: "Choose read, act or admin" }).optional(),
 });
 export type CreateTokenInput = z.infer<typeof createTokenSchema>;

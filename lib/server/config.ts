@@ -57,6 +57,17 @@ export const configSchema = z.object({
   SIGNIN_MAX_PER_ADDRESS: z.coerce.number().int().min(1).default(100),
   /** The pause before each sign-in from a slowed address is checked. */
   SIGNIN_ADDRESS_DELAY_MS: z.coerce.number().int().min(0).max(10_000).default(1000),
+  /** How long an e-mailed invitation link works (72 h), and a password-reset link (1 h: OWASP Forgot Password Cheat Sheet). */
+  INVITE_LINK_TTL_S: z.coerce
+    .number()
+    .int()
+    .min(1)
+    .max(30 * 86_400)
+    .default(72 * 3600),
+  RESET_LINK_TTL_S: z.coerce.number().int().min(1).max(86_400).default(3600),
+  /** Password-reset requests per hour for one typed address, and from one client address. */
+  PASSWORD_RESET_PER_HOUR_PER_ACCOUNT: z.coerce.number().int().min(1).default(5),
+  PASSWORD_RESET_PER_HOUR_PER_ADDRESS: z.coerce.number().int().min(1).default(30),
   /** Reverse proxies whose X-Forwarded-For is believed: empty, a hop count, or addresses and CIDR ranges. */
   TRUSTED_PROXY: z
     .string()

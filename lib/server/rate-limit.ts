@@ -32,6 +32,48 @@ export function createApiRateLimiter(opts: { writesPerMin: number; trendsPerMin:
   };
 }
 
+export interface PasswordResetLimiter {
+  /** Counts one request for a typed e-mail from an address; 0 when it may go ahead, else seconds to wait. */
+  take(email: string, address: string): Promise<number>;
+}
+
+/**
+ * Reset requests mail a person, so they are limited per typed address (no mailbox flooding) and per
+ * client address (no spraying of many addresses), whether or not the account exists: the limit
+ * itself tells nothing about an account (OWASP Forgot Password Cheat Sheet).
+ */
+export function createPasswordResetLimiter(opts: {
+  perAccountPerHour: number;
+  perAddressPerHour: number;
+}): PasswordResetLimiter {
+  const perAccount = new RateLimiterMemory({
+    keyPrefix: "reset-account",
+    points: opts.perAccountPerHour,
+    duration: 3600,
+  });
+  const perAddress = new RateLimiterMemory({
+    keyPrefix: "reset-address",
+    points: opts.perAddressPerHour,
+    duration: 3600,
+  });
+  const consume = async (limiter: RateLimiterMemory, key: string) => {
+    try {
+      await limiter.consume(key);
+      return 0;
+    } catch (res) {
+      if (res instanceof RateLimiterRes) return Math.max(1, Math.ceil(res.msBeforeNext / 1000));
+      throw res;
+    }
+  };
+  return {
+    async take(email, address) {
+      const byAddress = await consume(perAddress, address);
+      if (byAddress > 0) return byAddress;
+      return consume(perAccount, email);
+    },
+  };
+}
+
 const WRITE_METHODS = new Set(["POST", "PUT", "PATCH", "DELETE"]);
 
 function cookieValue(header: string | null, name: string): string | undefined {

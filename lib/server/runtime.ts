@@ -6,7 +6,12 @@ import type { AlarmService } from "./alarms/service";
 import type { Escalator } from "./alarms/escalation";
 import { loadConfig } from "./config";
 import { allowedOriginsOf } from "./origin";
-import { createApiRateLimiter, type ApiRateLimiter } from "./rate-limit";
+import {
+  createApiRateLimiter,
+  createPasswordResetLimiter,
+  type ApiRateLimiter,
+  type PasswordResetLimiter,
+} from "./rate-limit";
 import type { LatestInMemory } from "@/db/queries/readings";
 import type { SimulationManager } from "./simulation/manager";
 import { createStorageHealth, type StorageHealth } from "./storage-health";
@@ -53,6 +58,7 @@ interface Registry {
   allowedOrigins?: ReadonlySet<string>;
   signInAddressDelayMs?: number;
   storage?: StorageHealth;
+  passwordResetLimiter?: PasswordResetLimiter;
 }
 
 const registry: Registry = ((globalThis as { __liftline?: Registry }).__liftline ??= {});
@@ -106,6 +112,18 @@ export function apiRateLimiter(): ApiRateLimiter {
     });
   }
   return registry.apiRateLimiter;
+}
+
+/** Password-reset requests per typed address and per client address, counted across the process. */
+export function passwordResetLimiter(): PasswordResetLimiter {
+  if (!registry.passwordResetLimiter) {
+    const config = loadConfig();
+    registry.passwordResetLimiter = createPasswordResetLimiter({
+      perAccountPerHour: config.PASSWORD_RESET_PER_HOUR_PER_ACCOUNT,
+      perAddressPerHour: config.PASSWORD_RESET_PER_HOUR_PER_ADDRESS,
+    });
+  }
+  return registry.passwordResetLimiter;
 }
 
 /** The origins browsers may send state-changing requests from (NEXTAUTH_URL's and ALLOWED_ORIGINS). */

@@ -77,6 +77,18 @@ function bodyFor(r: Route): { type: string; body?: string } {
       return json({ type: "reset-alarm", equipment: "CH-1" });
     case "POST /api/tokens":
       return json({ name: "forged" });
+    case "POST /api/people":
+      return json({ email: "forged@evil.example", name: "Forged", role: "admin" });
+    case "PATCH /api/people/[userId]":
+      return json({ disabled: true });
+    case "PATCH /api/account":
+      return json({ name: "Forged name" });
+    case "POST /api/account/password":
+      return json({ currentPassword: "wrong", newPassword: "a forged new passphrase" });
+    case "POST /api/password-reset":
+      return json({ email: "admin@tallgrass.example" });
+    case "POST /api/account-links/[token]":
+      return json({ password: "a forged new passphrase" });
     default:
       return { type: "application/json" };
   }

@@ -32,6 +32,12 @@ const sections = [
     title: "Alarm-system health",
     text: "Alarm rates, floods, frequent, chattering and stale alarms, priority split.",
   },
+  {
+    href: "/admin/people",
+    title: "People",
+    text: "Invite technicians, administrators and customer users; change roles; disable or re-enable accounts.",
+  },
+  { href: "/admin/audit", title: "Audit log", text: "Every administrative change: who, when, before → after." },
   { href: "/admin/outbox", title: "Outbox", text: "E-mail caught by the local SMTP sink." },
   { href: "/on-call", title: "On-call rota", text: "Who is primary and backup, by day or week." },
   { href: "/api-docs", title: "API", text: "The REST API, described in OpenAPI 3.1." },

@@ -1,6 +1,10 @@
 import type { Metadata } from "next";
 import Link from "next/link";
+import { PasswordForm } from "@/components/settings/password-form";
+import { ProfileForm } from "@/components/settings/profile-form";
 import { UnitSystemForm } from "@/components/settings/unit-system-form";
+import { getAccount } from "@/db/queries/people";
+import { getDb } from "@/lib/server/runtime";
 import { requirePageViewer } from "../../(auth)/auth";
 import { saveUnitSystem } from "./actions";
 
@@ -9,10 +13,17 @@ export const dynamic = "force-dynamic";
 
 export default async function SettingsPage() {
   const viewer = await requirePageViewer();
+  const account = getAccount(getDb(), viewer);
   return (
     <section className="flex max-w-xl flex-col gap-6">
       <h1 className="text-2xl font-semibold">Settings</h1>
+      <p className="text-muted">
+        {viewer.email} · {viewer.role}
+        {account ? ` · ${account.organizationName}` : ""}
+      </p>
+      <ProfileForm name={viewer.name} phone={account?.phone ?? null} />
       <UnitSystemForm unitSystem={viewer.unitSystem} save={saveUnitSystem} />
+      <PasswordForm email={viewer.email} />
       <p>
         <Link href="/settings/tokens" className="underline">
           API tokens
