@@ -69,7 +69,9 @@ export function checkAgainstReading(
 
 /** "1 h 20 min": how long a change has been in place. */
 export function inPlaceFor(madeAtMs: number, nowMs: number): string {
-  return formatDuration((nowMs - madeAtMs) / 1000);
+  const min = Math.max(0, Math.round((nowMs - madeAtMs) / 60_000));
+  if (min < 60) return formatDuration((nowMs - madeAtMs) / 1000);
+  return min % 60 ? `${Math.floor(min / 60)} h ${min % 60} min` : `${min / 60} h`;
 }
 
 /** "4:00 PM", or "Dec 2, 4:00 PM" when not today, in the site's zone. */
