@@ -95,7 +95,12 @@ describe("temporary-change reminders", () => {
     now += EVERY_MS;
     expect(await reminders.run()).toBe(2); // reminder 3: primary and backup
     mail = await waitForMail(4);
-    expect(mail.slice(0, 2).map((m) => m.to).sort()).toEqual(["luis@tallgrass.example", "priya@tallgrass.example"]);
+    expect(
+      mail
+        .slice(0, 2)
+        .map((m) => m.to)
+        .sort(),
+    ).toEqual(["luis@tallgrass.example", "priya@tallgrass.example"]);
     expect(temporaryChangeRow(db, change.id)!.escalatedAt?.getTime()).toBe(now);
     expect(temporaryChangeRow(db, change.id)!.reminders).toBe(3);
 

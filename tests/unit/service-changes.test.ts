@@ -61,7 +61,13 @@ describe("plainChangeSentence", () => {
   });
   it("puts a safety bypass in words without trade terms", () => {
     const s = plainChangeSentence(
-      { ...base, kind: "safety_bypassed", what: "Low flow switch", reason: "flow switch paddle stuck", putBackDueAt: due },
+      {
+        ...base,
+        kind: "safety_bypassed",
+        what: "Low flow switch",
+        reason: "flow switch paddle stuck",
+        putBackDueAt: due,
+      },
       "America/New_York",
       now,
     );
