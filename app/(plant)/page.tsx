@@ -4,6 +4,8 @@ import { SiteBoard } from "@/components/sites/site-board";
 import { boardStatuses } from "@/lib/server/board/site-status";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
 import { redirect } from "next/navigation";
+import { inPlaceBySite } from "@/db/queries/temporary-changes";
+import { ServiceRequestQueue } from "@/components/service/service-requests";
 import { requirePageViewer } from "../(auth)/auth";
 
 export const dynamic = "force-dynamic";
@@ -19,5 +21,19 @@ export default async function BoardPage() {
     viewer,
     sites.map((s) => s.id),
   );
-  return <SiteBoard fallback={sites.map((s) => ({ ...s, status: statuses.get(s.id) }))} canAct={canAct(viewer)} />;
+  const changes = inPlaceBySite(
+    db,
+    viewer,
+    sites.map((s) => s.id),
+  );
+  return (
+    <>
+      {canAct(viewer) ? <ServiceRequestQueue /> : null}
+      <SiteBoard
+        fallback={sites.map((s) => ({ ...s, status: statuses.get(s.id) }))}
+        canAct={canAct(viewer)}
+        changes={Object.fromEntries(changes)}
+      />
+    </>
+  );
 }

@@ -7,6 +7,8 @@ import type { SiteStatus } from "@/lib/realtime/events";
 import { fetchJson } from "@/lib/client/fetcher";
 import { PriorityBadge } from "@/components/alarms/priority";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
+import { inPlaceFor } from "@/lib/service/changes";
+import { useNow } from "@/components/service/use-now";
 
 export type BoardSite = SiteSummaryDto & { status?: SiteStatus };
 
@@ -29,7 +31,19 @@ function severity(s: BoardSite): number {
   return w ? w.priority * 2 - (w.active ? 1 : 0) : 99;
 }
 
-export function SiteBoard({ fallback, canAct }: { fallback: BoardSite[]; canAct: boolean }) {
+/** Temporary changes in place per site: how many, since when, and the earliest put-back-by. */
+export type BoardChanges = Record<string, { count: number; oldestMadeAt: number; earliestDueAt: number }>;
+
+export function SiteBoard({
+  fallback,
+  canAct,
+  changes = {},
+}: {
+  fallback: BoardSite[];
+  canAct: boolean;
+  changes?: BoardChanges;
+}) {
+  const now = useNow();
   const { data, error, mutate } = useSWR<{ sites: BoardSite[] }>("/api/sites", fetchJson, {
     fallbackData: { sites: fallback },
   });
@@ -85,6 +99,18 @@ export function SiteBoard({ fallback, canAct }: { fallback: BoardSite[]; canAct:
                 ) : (
                   <p className="mt-3 text-sm text-muted">No active warnings</p>
                 )}
+                {changes[site.id] ? (
+                  <p
+                    className={`mt-3 rounded px-2 py-1 text-sm font-semibold ${changes[site.id].earliestDueAt < now ? "bg-alarm text-white" : "bg-warning/20"}`}
+                    data-testid="site-changes"
+                  >
+                    {changes[site.id].count === 1
+                      ? "1 temporary change"
+                      : `${changes[site.id].count} temporary changes`}{" "}
+                    in place for {inPlaceFor(changes[site.id].oldestMadeAt, now)}
+                    {changes[site.id].earliestDueAt < now ? " · overdue" : ""}
+                  </p>
+                ) : null}
                 <p className="mt-3 text-sm">
                   {site.status?.unacknowledged ? (
                     <span className="font-semibold" data-testid="site-unack">

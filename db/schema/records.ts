@@ -40,6 +40,9 @@ export const auditEntityTypes = [
   "gateway",
   "token",
   "rule_settings",
+  "service_request",
+  "visit",
+  "temporary_change",
 ] as const;
 export type AuditEntityType = (typeof auditEntityTypes)[number];
 

@@ -4,3 +4,4 @@ export { plantOperations } from "./paths/plant";
 export { simulatorOperations } from "./paths/simulator";
 export { recordOperations } from "./paths/records";
 export { pointOperations } from "./paths/points";
+export { serviceOperations } from "./paths/service";

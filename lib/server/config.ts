@@ -46,6 +46,12 @@ export const configSchema = z.object({
   /** The local SMTP sink's port when SMTP_URL is unset; 0 picks a free one. */
   SMTP_PORT: port(0),
   ESCALATION_DELAY_MIN: z.coerce.number().min(0.05).max(240).default(10),
+  /** Temporary changes past their put-back-by time: remind again this often until put back. */
+  CHANGE_REMINDER_EVERY_MIN: z.coerce.number().min(0.01).max(1440).default(30),
+  /** Reminders to the on-call primary alone before the backup, then the admins, hear too. */
+  CHANGE_REMINDER_ESCALATE_AFTER: z.coerce.number().int().min(0).max(100).default(2),
+  /** How often the server looks for overdue temporary changes. */
+  CHANGE_REMINDER_TICK_MS: z.coerce.number().int().min(100).max(3_600_000).default(60_000),
   MAIL_FROM: z.string().default("Liftline <alerts@liftline.invalid>"),
   /** Failed sign-ins are forgotten this long after the last one; also the longest an account is slowed. */
   SIGNIN_WINDOW_S: z.coerce.number().int().min(1).default(900),

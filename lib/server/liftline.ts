@@ -11,6 +11,7 @@ import { createRuleFeed } from "./alarms/feed";
 import { startAlarmSystem } from "./alarms/start";
 import { createBoardAlarmSummary } from "./board/site-status";
 import { buildIfNeeded } from "./build";
+import { startChangeReminders } from "./change-reminders";
 import type { Config } from "./config";
 import { createLivePublisher } from "./realtime/live";
 import { createRealtimeServer, disconnectSessionSockets, disconnectUserSockets } from "./realtime/server";
@@ -166,6 +167,19 @@ async function start(
   started("the alarm system", () => alarmSystem.close());
   const stopStorageAlarm = startStorageAlarm({ db, health: storage, mailer: alarmSystem.mailer, publicUrl, log });
   started("the storage alarm", stopStorageAlarm);
+  const changeReminders = startChangeReminders({
+    db,
+    mailer: alarmSystem.mailer,
+    clock: Date.now,
+    publicUrl,
+    policy: {
+      everyMs: config.CHANGE_REMINDER_EVERY_MIN * 60_000,
+      escalateAfter: config.CHANGE_REMINDER_ESCALATE_AFTER,
+    },
+    tickMs: config.CHANGE_REMINDER_TICK_MS,
+    log,
+  });
+  started("the temporary-change reminders", changeReminders.stop);
   const feedRules = createRuleFeed({ db, service: alarmSystem.service });
 
   const gatewaySide = await startGatewaySide({

@@ -3,6 +3,7 @@ import {
   plantOperations,
   pointOperations,
   recordOperations,
+  serviceOperations,
   simulatorOperations,
   type OpenApiDocument,
 } from "@/lib/openapi";
@@ -20,6 +21,7 @@ export function openApiDocument(): OpenApiDocument {
       ...plantOperations,
       ...recordOperations,
       ...pointOperations,
+      ...serviceOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,

@@ -9,6 +9,9 @@ import { AlarmTimeline } from "@/components/alarms/alarm-timeline";
 import { TrendChart } from "@/components/charts/trend-chart";
 import { isQuantityKey, quantities, type QuantityKey } from "@/lib/quantities";
 import { canAct } from "@/lib/auth/viewer";
+import { TemporaryChangeBanner } from "@/components/service/change-banner";
+import { OpenVisitButton } from "@/components/service/open-visit-button";
+import { openVisitsForAlarm } from "@/db/queries/visits";
 import { requirePageViewer } from "../../../(auth)/auth";
 
 export const metadata: Metadata = { title: "Alarm" };
@@ -34,6 +37,7 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
   if (!alarm) notFound();
   const site = getSite(db, viewer, alarm.siteId)!;
   const staff = canAct(viewer);
+  const visits = staff ? openVisitsForAlarm(db, viewer, alarm.id) : [];
   const equipment = site.equipment.find((e) => e.tag === alarm.equipment);
   const charts = (evidence[alarm.ruleId] ?? []).flatMap((q) => {
     const point = equipment?.points.find((p) => p.quantity === q);
@@ -49,6 +53,20 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
         </Link>{" "}
         · {alarm.equipment}
       </p>
+      <TemporaryChangeBanner siteId={site.id} staff={staff} timeZone={site.timeZone} />
+      {staff ? (
+        visits.length ? (
+          <p className="text-sm font-semibold">
+            {visits.map((v) => (
+              <Link key={v.id} href={`/visits/${v.id}`} className="underline">
+                Continue the open visit ({v.technician.name})
+              </Link>
+            ))}
+          </p>
+        ) : (
+          <OpenVisitButton alarmId={alarm.id} />
+        )
+      ) : null}
       <AlarmCard alarm={alarm} canAct={staff} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
       <section>
         <h2 className="mb-2 text-lg font-semibold">History</h2>

@@ -4,6 +4,10 @@ import { getDb } from "@/lib/server/runtime";
 import { getSite } from "@/db/queries/sites";
 import { LivePoints } from "@/components/sites/live-points";
 import { SiteWarnings } from "@/components/sites/site-warnings";
+import { TemporaryChangeBanner } from "@/components/service/change-banner";
+import { OpenVisitButton } from "@/components/service/open-visit-button";
+import { ServiceRequestPanel } from "@/components/service/service-requests";
+import { listVisits } from "@/db/queries/visits";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
 import Link from "next/link";
 import { requirePageViewer } from "../../../(auth)/auth";
@@ -23,6 +27,8 @@ export default async function SitePage({ params }: Props) {
   const site = getSite(getDb(), viewer, (await params).siteId);
   // A site the viewer may not see looks exactly like one that does not exist.
   if (!site) notFound();
+  const staff = canAct(viewer);
+  const openVisits = staff ? listVisits(getDb(), viewer, { siteId: site.id, open: true }) : [];
   return (
     <article>
       <header className="mb-4">
@@ -51,9 +57,21 @@ export default async function SitePage({ params }: Props) {
           </p>
         ) : null}
       </header>
+      <TemporaryChangeBanner siteId={site.id} staff={staff} timeZone={site.timeZone} />
+      {staff ? (
+        <section className="mb-4 flex flex-col gap-2" aria-label="Visits">
+          {openVisits.map((v) => (
+            <Link key={v.id} href={`/visits/${v.id}`} className="text-sm font-semibold underline">
+              Open visit: {v.technician.name}, {v.mode === "remote" ? "remote" : "on site"}
+            </Link>
+          ))}
+          <OpenVisitButton siteId={site.id} />
+        </section>
+      ) : null}
       <SiteWarnings siteId={site.id} canAct={canAct(viewer)} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
       <h2 className="mb-2 mt-8 text-lg font-semibold">Equipment and points</h2>
       <LivePoints siteId={site.id} equipment={site.equipment} unitSystem={viewer.unitSystem} />
+      {staff ? null : <ServiceRequestPanel siteId={site.id} timeZone={site.timeZone} />}
     </article>
   );
 }

@@ -1,0 +1,22 @@
+import { requireApiViewer } from "@/app/(auth)/auth";
+import { getServiceRequest, updateServiceRequest } from "@/db/queries/service-requests";
+import { notFound } from "@/lib/errors";
+import { readJson, route } from "@/lib/server/http";
+import { getDb } from "@/lib/server/runtime";
+import { updateServiceRequestSchema } from "@/lib/schemas/service";
+
+type Ctx = { params: Promise<{ requestId: string }> };
+
+export const GET = route<Ctx>(async (request, { params }) => {
+  const viewer = await requireApiViewer(request);
+  const found = getServiceRequest(getDb(), viewer, (await params).requestId);
+  if (!found) throw notFound("No such service request.");
+  return Response.json({ request: found });
+});
+
+export const PATCH = route<Ctx>(async (request, { params }) => {
+  const viewer = await requireApiViewer(request);
+  const input = await readJson(request, updateServiceRequestSchema);
+  const updated = updateServiceRequest(getDb(), viewer, (await params).requestId, input, Date.now());
+  return Response.json({ request: updated });
+});
