@@ -40,6 +40,7 @@ export const auditEntityTypes = [
   "gateway",
   "token",
   "rule_settings",
+  "file",
 ] as const;
 export type AuditEntityType = (typeof auditEntityTypes)[number];
 
