@@ -4,6 +4,7 @@ import { getDb } from "@/lib/server/runtime";
 import { getSite } from "@/db/queries/sites";
 import { LivePoints } from "@/components/sites/live-points";
 import { SiteWarnings } from "@/components/sites/site-warnings";
+import { FilesStrip } from "@/components/files/files-strip";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
 import Link from "next/link";
 import { requirePageViewer } from "../../../(auth)/auth";
@@ -46,6 +47,23 @@ export default async function SitePage({ params }: Props) {
       <SiteWarnings siteId={site.id} canAct={canAct(viewer)} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
       <h2 className="mb-2 mt-8 text-lg font-semibold">Equipment and points</h2>
       <LivePoints siteId={site.id} equipment={site.equipment} unitSystem={viewer.unitSystem} />
+      {canAct(viewer) ? (
+        <section aria-labelledby="records-title" className="mt-8">
+          <h2 id="records-title" className="mb-2 text-lg font-semibold">
+            Photos, files and refrigerant logs
+          </h2>
+          <p className="mb-3 flex flex-wrap gap-x-4 text-sm">
+            {site.equipment
+              .filter((e) => e.kind === "chiller")
+              .map((e) => (
+                <Link key={e.id} href={`/sites/${site.id}/equipment/${e.id}/refrigerant`} className="underline">
+                  Refrigerant log {e.tag}
+                </Link>
+              ))}
+          </p>
+          <FilesStrip siteId={site.id} canAct />
+        </section>
+      ) : null}
     </article>
   );
 }
