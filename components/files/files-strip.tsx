@@ -64,8 +64,21 @@ export function FilesStrip({
   async function setShared(file: StoredFileDto, shared: boolean) {
     setMessage(null);
     try {
-      await fetchJson(file.url, { method: "PATCH", body: JSON.stringify({ sharedWithCustomer: shared }) });
-      await mutate();
+      // Shown at once, rolled back if the server refuses: a phone's round trip should not leave the box unchanged.
+      await mutate(
+        async () => {
+          await fetchJson(file.url, { method: "PATCH", body: JSON.stringify({ sharedWithCustomer: shared }) });
+          return undefined;
+        },
+        {
+          optimisticData: (current) => ({
+            files: (current?.files ?? []).map((f) => (f.id === file.id ? { ...f, sharedWithCustomer: shared } : f)),
+          }),
+          populateCache: false,
+          revalidate: true,
+          rollbackOnError: true,
+        },
+      );
     } catch (err) {
       setMessage((err as Error).message);
     }

@@ -281,7 +281,7 @@ function EntryRow({
 }) {
   const wasCorrected = corrected !== undefined && e.amountKg !== null && Math.abs(corrected - e.amountKg) > 1e-9;
   return (
-    <tr className="border-b border-line align-top">
+    <tr className="border-b border-line align-top" data-testid="refrigerant-entry">
       <td className="p-2">{e.id}</td>
       <td className="p-2 whitespace-nowrap">{new Date(e.at).toLocaleString()}</td>
       <td className="p-2">

@@ -120,6 +120,8 @@ describe("refrigerant log", () => {
 
   it("customers read their own chiller's log but cannot add to it; other organizations' chillers are 404", async () => {
     expect((await call("customer", `/api/equipment/${ownChiller}/refrigerant`)).status).toBe(200);
+    // Ids hold a colon (`site:CH-1`); a link or fetch that percent-encodes it reaches the same log.
+    expect((await call("customer", `/api/equipment/${encodeURIComponent(ownChiller)}/refrigerant`)).status).toBe(200);
     const refused = await post("customer", ownChiller, { kind: "added", amountKg: 1, reason: "top-up" });
     expect(refused.status).toBe(403);
     expect((await call("customer", `/api/equipment/${otherChiller}/refrigerant`)).status).toBe(404);

@@ -56,7 +56,11 @@ export default async function SitePage({ params }: Props) {
             {site.equipment
               .filter((e) => e.kind === "chiller")
               .map((e) => (
-                <Link key={e.id} href={`/sites/${site.id}/equipment/${e.id}/refrigerant`} className="underline">
+                <Link
+                  key={e.id}
+                  href={`/sites/${site.id}/equipment/${encodeURIComponent(e.id)}/refrigerant`}
+                  className="underline"
+                >
                   Refrigerant log {e.tag}
                 </Link>
               ))}

@@ -3,14 +3,14 @@ import { getDb } from "@/lib/server/runtime";
 import { addRefrigerantEntry, findChiller, getRefrigerantLog } from "@/db/queries/refrigerant";
 import { canAct } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
-import { readJson, route } from "@/lib/server/http";
+import { pathParam, readJson, route } from "@/lib/server/http";
 import { refrigerantEntrySchema } from "@/lib/schemas/refrigerant";
 
 type Context = { params: Promise<{ equipmentId: string }> };
 
 export const GET = route<Context>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
-  const log = getRefrigerantLog(getDb(), viewer, (await params).equipmentId);
+  const log = getRefrigerantLog(getDb(), viewer, pathParam((await params).equipmentId));
   if (!log) throw notFound("No such chiller.");
   return Response.json(log);
 });
@@ -18,7 +18,7 @@ export const GET = route<Context>(async (request, { params }) => {
 export const POST = route<Context>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
   const db = getDb();
-  const { equipmentId } = await params;
+  const equipmentId = pathParam((await params).equipmentId);
   if (!findChiller(db, viewer, equipmentId)) throw notFound("No such chiller.");
   if (!canAct(viewer))
     throw new AppError("forbidden", "Only the service company's staff can add to the refrigerant log.");
