@@ -60,6 +60,7 @@ export function RefrigerantLogPanel({
   });
   const kind = form.watch("kind");
   const [error, setError] = useState<string | null>(null);
+  const [formKey, setFormKey] = useState(0);
   const errors = form.formState.errors;
 
   const onSubmit = form.handleSubmit(async (values) => {
@@ -67,6 +68,8 @@ export function RefrigerantLogPanel({
     try {
       await fetchJson(url, { method: "POST", body: JSON.stringify(values) });
       form.reset({ kind: values.kind });
+      // A fresh set of inputs: an old date or amount left in a field would go into the next entry unseen.
+      setFormKey((k) => k + 1);
       await mutate();
     } catch (err) {
       setError((err as Error).message);
@@ -119,7 +122,12 @@ export function RefrigerantLogPanel({
       </p>
 
       {canAct ? (
-        <form onSubmit={onSubmit} className="flex flex-col gap-3 rounded-lg border border-line bg-panel p-3" noValidate>
+        <form
+          key={formKey}
+          onSubmit={onSubmit}
+          className="flex flex-col gap-3 rounded-lg border border-line bg-panel p-3"
+          noValidate
+        >
           <h2 className="text-lg font-semibold">Add an entry</h2>
           <div className="grid grid-cols-1 gap-3 sm:grid-cols-2">
             <div className="flex flex-col gap-1">

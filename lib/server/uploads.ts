@@ -122,7 +122,9 @@ export async function receiveUpload(
   const body = await readBodyLimited(request, MAX_UPLOAD_BYTES + FORM_OVERHEAD_BYTES);
   let form: FormData;
   try {
-    form = await new Response(new Uint8Array(body), { headers: { "content-type": request.headers.get("content-type")! } }).formData();
+    form = await new Response(new Uint8Array(body), {
+      headers: { "content-type": request.headers.get("content-type")! },
+    }).formData();
   } catch {
     throw new AppError("bad_request", "The form could not be read; send it as multipart/form-data.");
   }

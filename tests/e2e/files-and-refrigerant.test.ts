@@ -100,6 +100,9 @@ describe.skipIf(!hasChromium)("photos and the refrigerant log in Chromium (phone
     await page.getByLabel("Result").selectOption("no_leak");
     await page.getByRole("button", { name: "Add to the log" }).click();
     await expect.poll(() => page.getByTestId("refrigerant-entry").count(), wait).toBe(3);
+    // The form starts empty again, so an old date is not carried into the next entry.
+    expect(await page.getByLabel("When (empty: now)").inputValue()).toBe("");
+    expect(await page.getByLabel("What").inputValue()).toBe("leak_check");
     await screenshot(page, "refrigerant-log-technician-phone");
     expect(problems).toEqual([]);
     await context.close();
