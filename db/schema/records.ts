@@ -43,6 +43,7 @@ export const auditEntityTypes = [
   "service_request",
   "visit",
   "temporary_change",
+  "file",
 ] as const;
 export type AuditEntityType = (typeof auditEntityTypes)[number];
 

@@ -5,3 +5,4 @@ export { simulatorOperations } from "./paths/simulator";
 export { recordOperations } from "./paths/records";
 export { pointOperations } from "./paths/points";
 export { serviceOperations } from "./paths/service";
+export { fileOperations } from "./paths/files";

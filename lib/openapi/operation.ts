@@ -24,7 +24,7 @@ export interface Operation {
   query?: z.ZodObject;
   body?: z.ZodType;
   /** Media type of the body; JSON unless said. */
-  bodyType?: "application/json" | "text/csv";
+  bodyType?: "application/json" | "text/csv" | "multipart/form-data";
   /** Success responses by status; the error responses are added from `access`. */
   responses: Record<number, string>;
   /** Success media type when not JSON (exports, CSV). */

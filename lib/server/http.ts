@@ -59,3 +59,15 @@ export async function readJson<S extends z.ZodType>(request: Request, schema: S)
   }
   return schema.parse(body);
 }
+
+/**
+ * A dynamic path segment as stored: ids such as `site:CH-1` arrive percent-encoded (`%3A`) when a
+ * link or fetch encoded them, and Next passes some segments on undecoded.
+ */
+export function pathParam(value: string): string {
+  try {
+    return decodeURIComponent(value);
+  } catch {
+    return value;
+  }
+}

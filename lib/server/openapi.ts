@@ -4,6 +4,7 @@ import {
   pointOperations,
   recordOperations,
   serviceOperations,
+  fileOperations,
   simulatorOperations,
   type OpenApiDocument,
 } from "@/lib/openapi";
@@ -22,6 +23,7 @@ export function openApiDocument(): OpenApiDocument {
       ...recordOperations,
       ...pointOperations,
       ...serviceOperations,
+      ...fileOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,

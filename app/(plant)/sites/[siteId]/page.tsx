@@ -8,6 +8,7 @@ import { TemporaryChangeBanner } from "@/components/service/change-banner";
 import { OpenVisitButton } from "@/components/service/open-visit-button";
 import { ServiceRequestPanel } from "@/components/service/service-requests";
 import { listVisits } from "@/db/queries/visits";
+import { FilesStrip } from "@/components/files/files-strip";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
 import Link from "next/link";
 import { requirePageViewer } from "../../../(auth)/auth";
@@ -72,6 +73,27 @@ export default async function SitePage({ params }: Props) {
       <h2 className="mb-2 mt-8 text-lg font-semibold">Equipment and points</h2>
       <LivePoints siteId={site.id} equipment={site.equipment} unitSystem={viewer.unitSystem} />
       {staff ? null : <ServiceRequestPanel siteId={site.id} timeZone={site.timeZone} />}
+      {canAct(viewer) ? (
+        <section aria-labelledby="records-title" className="mt-8">
+          <h2 id="records-title" className="mb-2 text-lg font-semibold">
+            Photos, files and refrigerant logs
+          </h2>
+          <p className="mb-3 flex flex-wrap gap-x-4 text-sm">
+            {site.equipment
+              .filter((e) => e.kind === "chiller")
+              .map((e) => (
+                <Link
+                  key={e.id}
+                  href={`/sites/${site.id}/equipment/${encodeURIComponent(e.id)}/refrigerant`}
+                  className="underline"
+                >
+                  Refrigerant log {e.tag}
+                </Link>
+              ))}
+          </p>
+          <FilesStrip siteId={site.id} canAct />
+        </section>
+      ) : null}
     </article>
   );
 }
