@@ -6,3 +6,4 @@ export { recordOperations } from "./paths/records";
 export { pointOperations } from "./paths/points";
 export { serviceOperations } from "./paths/service";
 export { fileOperations } from "./paths/files";
+export { peopleOperations } from "./paths/people";

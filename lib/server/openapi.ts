@@ -5,6 +5,7 @@ import {
   recordOperations,
   serviceOperations,
   fileOperations,
+  peopleOperations,
   simulatorOperations,
   type OpenApiDocument,
 } from "@/lib/openapi";
@@ -24,6 +25,7 @@ export function openApiDocument(): OpenApiDocument {
       ...pointOperations,
       ...serviceOperations,
       ...fileOperations,
+      ...peopleOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,
