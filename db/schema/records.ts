@@ -40,6 +40,7 @@ export const auditEntityTypes = [
   "gateway",
   "token",
   "rule_settings",
+  "escalation_policy",
 ] as const;
 export type AuditEntityType = (typeof auditEntityTypes)[number];
 
