@@ -80,3 +80,6 @@ export const inboundSmsSchema = z.object({
     }),
   }),
 });
+
+/** Which notification an acknowledge link came from (recorded on the alarm's deliveries). */
+export const ackLinkQuerySchema = z.strictObject({ via: z.enum(["email", "push"]).default("email") });

@@ -1,4 +1,10 @@
-import { buildOpenApiDocument, plantOperations, simulatorOperations, type OpenApiDocument } from "@/lib/openapi";
+import {
+  buildOpenApiDocument,
+  notifyOperations,
+  plantOperations,
+  simulatorOperations,
+  type OpenApiDocument,
+} from "@/lib/openapi";
 import { startRunSchemaFor } from "@/lib/schemas/simulator";
 import { drillActionSchema } from "@/simulator/actions-schema";
 import { scenarioNames } from "@/simulator/scenarios";
@@ -11,6 +17,7 @@ export function openApiDocument(): OpenApiDocument {
   cached ??= buildOpenApiDocument(
     [
       ...plantOperations,
+      ...notifyOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,
