@@ -14,5 +14,5 @@ export function proxy(request: NextRequest) {
 
 export const config = {
   // Pages only: the API answers 401 itself, and sign-in, assets and health stay public.
-  matcher: ["/((?!api|sign-in|ack|_next|icon.svg|favicon.ico).*)"],
+  matcher: ["/((?!api|sign-in|ack|_next|icon.svg|favicon.ico|sw.js|manifest.webmanifest|icons/).*)"],
 };

@@ -1,12 +1,14 @@
 "use client";
 
 import Link from "next/link";
+import { useEffect } from "react";
 import useSWR from "swr";
 import type { SiteSummaryDto } from "@/lib/dto/sites";
 import type { SiteStatus } from "@/lib/realtime/events";
 import { fetchJson } from "@/lib/client/fetcher";
 import { PriorityBadge } from "@/components/alarms/priority";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
+import { saveBoardSnapshot } from "@/components/pwa/service-worker";
 
 export type BoardSite = SiteSummaryDto & { status?: SiteStatus };
 
@@ -43,6 +45,16 @@ export function SiteBoard({ fallback, canAct }: { fallback: BoardSite[]; canAct:
   });
   // The most urgent plant first: on a phone it is the one the technician must see.
   const sites = [...(data?.sites ?? [])].sort((a, b) => severity(a) - severity(b) || a.name.localeCompare(b.name));
+  // The offline page shows this board, marked not live, when the phone has no connection.
+  useEffect(() => {
+    void saveBoardSnapshot(
+      (data?.sites ?? []).map((s) => ({
+        name: s.name,
+        data: dataLabel[s.status?.data ?? "no_gateway"],
+        alarm: s.status?.worst?.active ? (canAct ? s.status.worst.title : s.status.worst.ownerTitle) : null,
+      })),
+    ).catch(() => undefined);
+  }, [data, canAct]);
   return (
     <section aria-labelledby="board-title">
       <h1 id="board-title" className="text-2xl font-semibold">
