@@ -48,6 +48,9 @@ beforeAll(async () => {
 }, 180_000);
 
 afterAll(async () => {
+  // What the server said about sending, for a failure's diagnosis.
+  const lines = (server?.output() ?? "").split("\n").filter((l) => /escalation|push|sms|notify/i.test(l));
+  if (lines.length) console.log(lines.slice(-20).join("\n"));
   await gw?.endAsync();
   await server?.stop();
 });
@@ -65,17 +68,43 @@ async function publishAlarm(active: boolean) {
   });
 }
 
-async function ch2Alarm(): Promise<{ id: string; state: string; activations: number }> {
-  return waitFor(
+/** Publishes and waits until the rules saw it: two readings in one writer flush would be one evaluation. */
+async function publishSettled(active: boolean) {
+  await publishAlarm(active);
+  // An acknowledged alarm that clears returns to normal and leaves the list of alarms.
+  await waitFor(
     async () => {
-      const { body } = await api(server, admin, "/api/alarms?site=millbrook-high");
-      return (
-        body.alarms as Array<{ id: string; ruleId: string; equipment: string; state: string; activations: number }>
-      ).find((a) => a.ruleId === "chiller_tripped" && a.equipment === "CH-2");
+      const alarm = await findCh2Alarm();
+      return (alarm ? alarm.conditionActive === active : !active) ? true : undefined;
     },
     10_000,
-    100,
+    20,
   );
+}
+
+type Ch2Alarm = {
+  id: string;
+  ruleId: string;
+  equipment: string;
+  state: string;
+  activations: number;
+  conditionActive: boolean;
+};
+
+async function findCh2Alarm(): Promise<Ch2Alarm | undefined> {
+  const { body } = await api(server, admin, "/api/alarms?site=millbrook-high");
+  return (body.alarms as Ch2Alarm[]).find((a) => a.ruleId === "chiller_tripped" && a.equipment === "CH-2");
+}
+
+const ch2Alarm = () => waitFor(findCh2Alarm, 10_000, 100);
+
+/** Wall time the server recorded the alarm's latest activation (its condition_active transition). */
+async function activationWallMs(alarmId: string): Promise<number> {
+  const { body } = await api(server, admin, `/api/alarms/${alarmId}`);
+  const events = (body.alarm.events as Array<{ cause: string; wallAtMs: number }>).filter(
+    (e) => e.cause === "condition_active",
+  );
+  return Math.max(...events.map((e) => e.wallAtMs));
 }
 
 // Development-mode servers compile each route on its first request: generous per-test limits.
@@ -186,7 +215,7 @@ describe("reaching the on-call technician", { timeout: 120_000 }, () => {
       }),
     });
     expect(forged.status).toBe(401);
-    await publishAlarm(false);
+    await publishSettled(false);
   });
 
   it("a dead subscription (410 from the push service) is removed", async () => {
@@ -199,19 +228,21 @@ describe("reaching the on-call technician", { timeout: 120_000 }, () => {
     });
     expect(added.status).toBe(201);
     await fetch(`${pushSinkUrl}/_control/gone/${deadEndpoint.split("/").pop()}`, { method: "POST" });
-    await publishAlarm(true);
+    await publishSettled(true);
     await waitFor(async () => {
       const { body } = await api(server, luis, "/api/notify/push-subscriptions");
       return (body.devices as Array<{ label: string }>).every((d) => d.label !== "old phone") ? true : undefined;
     }, 10_000);
     const { body } = await api(server, luis, "/api/notify/push-subscriptions");
     expect((body.devices as Array<{ label: string }>).map((d) => d.label)).toEqual(["work phone"]);
-    await publishAlarm(false);
+    await publishSettled(false);
   });
 
   it("measures activation → accepted by the fake push service and the fake SMS API over 50 alarms", async () => {
     const pushLatency: number[] = [];
     const smsLatency: number[] = [];
+    /** Of the push latency, the part after the server recorded the activation (escalation and sending). */
+    const sendLatency: number[] = [];
     for (let i = 0; i < 50; i++) {
       const pushesBefore = (await pushesReceived(pushSinkUrl, endpoint)).length;
       const textsBefore = (await texts(server, admin)).filter(
@@ -238,7 +269,8 @@ describe("reaching the on-call technician", { timeout: 120_000 }, () => {
       );
       pushLatency.push(push.receivedAtMs - t0);
       smsLatency.push(sms.receivedAt - t0);
-      await publishAlarm(false);
+      sendLatency.push(push.receivedAtMs - (await activationWallMs((await ch2Alarm()).id)));
+      await publishSettled(false);
     }
     const pct = (xs: number[], p: number) => {
       const s = [...xs].sort((a, b) => a - b);
@@ -249,6 +281,7 @@ describe("reaching the on-call technician", { timeout: 120_000 }, () => {
     console.log(
       `[notify latency, ${pushLatency.length} alarms] ${line("push", pushLatency)}; ${line("sms", smsLatency)}`,
     );
+    console.log(`[notify latency] ${line("activation recorded → push accepted", sendLatency)}`);
     console.log(`[notify latency] push per alarm (ms): ${pushLatency.join(" ")}`);
     // The issue's goal: under 2 s at p99.
     expect(pct(pushLatency, 99)).toBeLessThan(2000);
