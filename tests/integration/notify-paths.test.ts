@@ -22,8 +22,11 @@ let subscriber: TestSubscriber;
 let endpoint: string;
 let gw: MqttClient;
 let gatewayId: string;
-/** Event time of the next reading: synthetic, 10 s apart, so each reading is its own rule evaluation. */
-let eventMs = Date.now() - 3 * 3600_000;
+/**
+ * Readings' event time runs 3 h behind the wall clock and moves 10 s closer with each reading, so each is its own rule evaluation; it also keeps up with the wall clock, because the
+ * rules extrapolate event time while no reading comes and would ignore an older one.
+ */
+let eventOffsetMs = -3 * 3600_000;
 
 beforeAll(async () => {
   const pushPort = await freePort();
@@ -57,8 +60,8 @@ afterAll(async () => {
 
 let seq = 0;
 async function publishAlarm(active: boolean) {
-  eventMs += 10_000;
-  const at = new Date(eventMs).toISOString();
+  eventOffsetMs += 10_000;
+  const at = new Date(Date.now() + eventOffsetMs).toISOString();
   const readings = [
     { point: "CH2-ALM", value: active, ts: at },
     { point: "CH2-RUN", value: !active, ts: at },
