@@ -17,7 +17,7 @@ import { freePort, startServer, type TestServer } from "../helpers/server";
 // keys the test holds: everything after it — the app's request, the server's encryption and VAPID
 // signature, the push service's checks — is the real path.
 
-describe.skipIf(!hasChromium)("the phone app", { timeout: 180_000 }, () => {
+describe.skipIf(!hasChromium)("the phone app", { timeout: 400_000 }, () => {
   let server: TestServer;
   let browser: Browser;
   let pushSinkUrl: string;
@@ -26,7 +26,9 @@ describe.skipIf(!hasChromium)("the phone app", { timeout: 180_000 }, () => {
     pushSinkUrl = `http://127.0.0.1:${pushPort}`;
     server = await startServer({ env: { PUSH_SINK_PORT: String(pushPort) } });
     browser = await launchBrowser();
-  }, 180_000);
+    // A development-mode server compiles each page on its first request: do it before the clock runs.
+    await fetch(`${server.url}/sign-in`);
+  }, 300_000);
   afterAll(async () => {
     await browser?.close();
     await server?.stop();
@@ -47,6 +49,7 @@ describe.skipIf(!hasChromium)("the phone app", { timeout: 180_000 }, () => {
       { endpoint, keys: subscriber.keys },
     );
     const page = await context.newPage();
+    page.setDefaultTimeout(120_000);
     await signInAs(page, server.url, "luis@tallgrass.example");
 
     // Installable: the manifest is linked and valid, the worker is active, Chromium lists no errors.
@@ -119,6 +122,7 @@ describe.skipIf(!hasChromium)("the phone app", { timeout: 180_000 }, () => {
   it("offline, shows the last board marked not live; signing out deletes it", async () => {
     const context = await browser.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
+    page.setDefaultTimeout(120_000);
     await signInAs(page, server.url, "priya@tallgrass.example");
     await expect.poll(() => page.getByTestId("site-card").count()).toBe(3);
     await expect

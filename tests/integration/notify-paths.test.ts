@@ -291,6 +291,41 @@ describe("reaching the on-call technician", { timeout: 120_000 }, () => {
     expect(pct(smsLatency, 99)).toBeLessThan(2000);
   }, 300_000);
 
+  it("the backup hears within 5 s of the policy's delay (the running server's timer)", async () => {
+    const put = await api(server, admin, "/api/notify/policies/1", {
+      method: "PUT",
+      headers: { "content-type": "application/json" },
+      body: JSON.stringify({ paths: ["push", "sms"], backupAfterS: 5, adminsAfterS: null }),
+    });
+    expect(put.status).toBe(200);
+    // Only an admin edits escalation.
+    const refused = await api(server, luis, "/api/notify/policies/1", {
+      method: "PUT",
+      headers: { "content-type": "application/json" },
+      body: JSON.stringify({ paths: ["email"], backupAfterS: null, adminsAfterS: null }),
+    });
+    expect(refused.status).toBe(403);
+    await publishSettled(true);
+    const alarm = await ch2Alarm();
+    type Delivery = { step: number; activation: number; sentAt: number };
+    const steps = await waitFor(
+      async () => {
+        const { body } = await api(server, admin, `/api/alarms/${alarm.id}/deliveries`);
+        const mine = (body.deliveries as Delivery[]).filter((d) => d.activation === alarm.activations);
+        const first = mine.find((d) => d.step === 0);
+        const backup = mine.find((d) => d.step === 1);
+        return first && backup ? { first, backup } : undefined;
+      },
+      20_000,
+      200,
+    );
+    const lateMs = steps.backup.sentAt - steps.first.sentAt - 5000;
+    console.log(`[notify] backup notified ${lateMs} ms after the policy's 5 s delay`);
+    expect(lateMs).toBeGreaterThanOrEqual(0);
+    expect(lateMs).toBeLessThan(5000);
+    await publishSettled(false);
+  });
+
   it("a calendar feed lists exactly the person's shifts, and a revoked URL answers 404", async () => {
     const created = await api(server, luis, "/api/notify/calendar-feeds", { method: "POST" });
     expect(created.status).toBe(201);
