@@ -5,8 +5,14 @@ import webpush from "web-push";
 import { afterEach, beforeEach, describe, expect, it } from "vitest";
 import { migrateDb, openDb, type Db } from "@/db/client";
 import { saveAlarmChanges } from "@/db/queries/alarms";
-import { listDeliveries, savePushSubscription, startSmsVerification, verifySmsCode } from "@/db/queries/notify";
-import { createShift } from "@/db/queries/oncall";
+import {
+  listDeliveries,
+  savePreferences,
+  savePushSubscription,
+  startSmsVerification,
+  verifySmsCode,
+} from "@/db/queries/notify";
+import { createShift, listMail } from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";
 import { seedDemo } from "@/db/seed/demo";
 import { newAlarm, stepAlarm, type Priority } from "@/lib/alarms";
@@ -19,6 +25,7 @@ import { startFakePushService, type FakePushService } from "@/lib/server/notify/
 import { startFakeSmsApi, type FakeSmsApi } from "@/lib/server/notify/fake-sms";
 import { createPushSender } from "@/lib/server/notify/push";
 import { createSmsSender } from "@/lib/server/notify/sms";
+import { customerAlarmMail } from "@/lib/server/notify/customer-mail";
 import { decryptPush, newSubscriber } from "../helpers/notify";
 
 // Escalation by priority on every path, with a fake clock: the real push sender (web-push) to the
@@ -189,5 +196,30 @@ describe("escalation by priority (fake clock)", () => {
       n: number;
     };
     expect(left.n).toBe(0);
+  });
+});
+
+describe("customers' opt-in e-mail", () => {
+  it("tells a customer who chose it when a high alarm starts and ends at their own site, and nobody else", async () => {
+    const customer = getViewerById(db, "user-org-millbrook")!;
+    const other = getViewerById(db, "user-org-harborview")!;
+    savePreferences(db, customer, { alarmStartEndMail: true, serviceRequestMail: false });
+    savePreferences(db, other, { alarmStartEndMail: true, serviceRequestMail: false });
+    const tell = customerAlarmMail({ db, mailer, publicUrl: "http://liftline.test", log: () => {} });
+    const fresh = newAlarm({ ruleId: "chiller_tripped", equipment: "CH-1", priority: 2 });
+    const started = stepAlarm(fresh, { type: "condition", atMs: now, active: true });
+    saveAlarmChanges(db, "millbrook-high", [started.alarm], started.transitions, new Map());
+    tell("millbrook-high", started.transitions);
+    const cleared = stepAlarm(started.alarm, { type: "condition", atMs: now + 60_000, active: false });
+    saveAlarmChanges(db, "millbrook-high", [cleared.alarm], cleared.transitions, new Map());
+    tell("millbrook-high", cleared.transitions);
+    const mail = async () => listMail(db).filter((m) => m.to.includes("example"));
+    await expect.poll(async () => (await mail()).length, { timeout: 5000 }).toBe(2);
+    const sent = await mail();
+    expect(sent.every((m) => m.to === customer.email)).toBe(true);
+    expect(sent.map((m) => m.subject).sort()).toEqual([
+      "Millbrook High School: a high-priority alarm started",
+      "Millbrook High School: an alarm has cleared",
+    ]);
   });
 });
