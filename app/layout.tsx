@@ -7,9 +7,11 @@ import "./globals.css";
 export const metadata: Metadata = {
   title: { default: "Liftline", template: "%s · Liftline" },
   description: "Live chilled-water plant status and early warnings for service technicians.",
+  appleWebApp: { capable: true, title: "Liftline", statusBarStyle: "black-translucent" },
+  icons: { apple: "/icons/apple-touch-icon.png" },
 };
 
-export const viewport: Viewport = { width: "device-width", initialScale: 1 };
+export const viewport: Viewport = { width: "device-width", initialScale: 1, themeColor: "#0f2a44" };
 
 export default async function RootLayout({ children }: { children: React.ReactNode }) {
   // Rendered per request, so the scripts carry that response's CSP nonce (lib/server/security-headers.ts).

@@ -1,5 +1,6 @@
 import { AppHeader } from "@/components/layout/app-header";
 import { StorageAlarmBanner } from "@/components/layout/storage-alarm-banner";
+import { ServiceWorkerRegistration } from "@/components/pwa/service-worker";
 import { SocketProvider } from "@/components/realtime/socket-provider";
 import { canAct } from "@/lib/auth/viewer";
 import { storageHealth } from "@/lib/server/runtime";
@@ -13,6 +14,7 @@ export default async function PlantLayout({ children }: { children: React.ReactN
   return (
     <>
       <AppHeader viewer={viewer} />
+      <ServiceWorkerRegistration />
       {staff ? (
         <StorageAlarmBanner
           initial={

@@ -1,6 +1,7 @@
 "use client";
 
 import Link from "next/link";
+import { useEffect } from "react";
 import useSWR from "swr";
 import type { SiteSummaryDto } from "@/lib/dto/sites";
 import type { SiteStatus } from "@/lib/realtime/events";
@@ -9,6 +10,7 @@ import { PriorityBadge } from "@/components/alarms/priority";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { inPlaceFor } from "@/lib/service/changes";
 import { useNow } from "@/components/service/use-now";
+import { saveBoardSnapshot } from "@/components/pwa/service-worker";
 
 export type BoardSite = SiteSummaryDto & { status?: SiteStatus };
 
@@ -57,6 +59,16 @@ export function SiteBoard({
   });
   // The most urgent plant first: on a phone it is the one the technician must see.
   const sites = [...(data?.sites ?? [])].sort((a, b) => severity(a) - severity(b) || a.name.localeCompare(b.name));
+  // The offline page shows this board, marked not live, when the phone has no connection.
+  useEffect(() => {
+    void saveBoardSnapshot(
+      (data?.sites ?? []).map((s) => ({
+        name: s.name,
+        data: dataLabel[s.status?.data ?? "no_gateway"],
+        alarm: s.status?.worst?.active ? (canAct ? s.status.worst.title : s.status.worst.ownerTitle) : null,
+      })),
+    ).catch(() => undefined);
+  }, [data, canAct]);
   return (
     <section aria-labelledby="board-title">
       <h1 id="board-title" className="text-2xl font-semibold">

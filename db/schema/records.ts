@@ -44,6 +44,7 @@ export const auditEntityTypes = [
   "visit",
   "temporary_change",
   "file",
+  "escalation_policy",
 ] as const;
 export type AuditEntityType = (typeof auditEntityTypes)[number];
 

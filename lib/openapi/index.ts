@@ -7,3 +7,4 @@ export { pointOperations } from "./paths/points";
 export { serviceOperations } from "./paths/service";
 export { fileOperations } from "./paths/files";
 export { peopleOperations } from "./paths/people";
+export { notifyOperations } from "./paths/notify";

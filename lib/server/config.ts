@@ -45,13 +45,41 @@ export const configSchema = z.object({
   SMTP_URL: z.url({ protocol: /^smtps?$/ }).optional(),
   /** The local SMTP sink's port when SMTP_URL is unset; 0 picks a free one. */
   SMTP_PORT: port(0),
-  ESCALATION_DELAY_MIN: z.coerce.number().min(0.05).max(240).default(10),
   /** Temporary changes past their put-back-by time: remind again this often until put back. */
   CHANGE_REMINDER_EVERY_MIN: z.coerce.number().min(0.01).max(1440).default(30),
   /** Reminders to the on-call primary alone before the backup, then the admins, hear too. */
   CHANGE_REMINDER_ESCALATE_AFTER: z.coerce.number().int().min(0).max(100).default(2),
   /** How often the server looks for overdue temporary changes. */
   CHANGE_REMINDER_TICK_MS: z.coerce.number().int().min(100).max(3_600_000).default(60_000),
+  /** The application server's Web Push key pair (RFC 8292); generated into the data folder when unset. */
+  VAPID_PUBLIC_KEY: z
+    .string()
+    .regex(/^[A-Za-z0-9_-]{80,90}$/, "VAPID_PUBLIC_KEY: base64url P-256 public key")
+    .optional(),
+  VAPID_PRIVATE_KEY: z
+    .string()
+    .regex(/^[A-Za-z0-9_-]{40,45}$/, "VAPID_PRIVATE_KEY: base64url P-256 private key")
+    .optional(),
+  /** The contact push services may use (RFC 8292 §2.1). */
+  VAPID_SUBJECT: z
+    .string()
+    .regex(/^(mailto:|https:)/, "VAPID_SUBJECT: a mailto: or https: URI")
+    .default("mailto:alerts@liftline.invalid"),
+  /** The local fake push service's port; 0 picks a free one. */
+  PUSH_SINK_PORT: port(0),
+  /** The SMS provider's API key; without it the local fake SMS API takes the texts. */
+  SMS_API_KEY: z.string().min(1).optional(),
+  /** The SMS provider's API base URL (its SDK's default when unset). */
+  SMS_API_URL: z.url({ protocol: /^https?$/ }).optional(),
+  /** The number texts come from (E.164). */
+  SMS_FROM: z
+    .string()
+    .regex(/^\+[1-9]\d{6,14}$/, "SMS_FROM: an E.164 number")
+    .default("+15555550100"),
+  /** The provider's base64 Ed25519 key that signs inbound-message webhooks. */
+  SMS_WEBHOOK_PUBLIC_KEY: z.string().min(40).optional(),
+  /** The local fake SMS API's port; 0 picks a free one. */
+  SMS_SINK_PORT: port(0),
   MAIL_FROM: z.string().default("Liftline <alerts@liftline.invalid>"),
   /** Failed sign-ins are forgotten this long after the last one; also the longest an account is slowed. */
   SIGNIN_WINDOW_S: z.coerce.number().int().min(1).default(900),

@@ -233,6 +233,7 @@ async function start(
     disconnectSessionSockets: (sessionId) => disconnectSessionSockets(io, sessionId),
     sendMail: (message) => alarmSystem.mailer.send(message),
     heldMail: () => alarmSystem.mailer.held(),
+    notify: alarmSystem.notify,
   });
 
   await new Promise<void>((resolve, reject) => {

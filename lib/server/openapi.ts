@@ -6,6 +6,7 @@ import {
   serviceOperations,
   fileOperations,
   peopleOperations,
+  notifyOperations,
   simulatorOperations,
   type OpenApiDocument,
 } from "@/lib/openapi";
@@ -26,6 +27,7 @@ export function openApiDocument(): OpenApiDocument {
       ...serviceOperations,
       ...fileOperations,
       ...peopleOperations,
+      ...notifyOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,

@@ -16,6 +16,7 @@ import type { LatestInMemory } from "@/db/queries/readings";
 import type { SimulationManager } from "./simulation/manager";
 import { createStorageHealth, type StorageHealth } from "./storage-health";
 import type { MailDto } from "@/lib/dto/oncall";
+import type { NotifyPaths } from "./notify/start";
 
 // The process's one registry of what is running. Next bundles route handlers apart from
 // server.ts, so module state is not shared between them: the registry lives on globalThis,
@@ -48,6 +49,15 @@ export interface Runtime {
   sendMail(message: { to: string; subject: string; text: string }): Promise<void>;
   /** Mail the local SMTP sink took but could not store yet (the database could not be written). */
   heldMail(): MailDto[];
+  /** Push and text paths (absent in a process started without the alarm system). */
+  notify?: NotifyPaths;
+}
+
+/** The push and text paths, or a 503 for a process started without them. */
+export function requireNotifyPaths(): NotifyPaths {
+  const notify = registry.runtime?.notify;
+  if (!notify) throw new AppError("unavailable", "Notifications are not running in this process.");
+  return notify;
 }
 
 interface Registry {

@@ -20,6 +20,13 @@ let now: number;
 const clock = () => now;
 const DELAY_MS = 10 * 60_000;
 const START = Date.UTC(2026, 11, 1, 3, 0, 0); // 03:00 UTC, someone is on call
+/** E-mail only, backup after the delay and admins after twice it: the mail path on its own. */
+const emailOnly = (priority: number) => ({
+  priority,
+  paths: ["email" as const],
+  backupAfterS: DELAY_MS / 1000,
+  adminsAfterS: (2 * DELAY_MS) / 1000,
+});
 
 beforeEach(async () => {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "liftline-esc-"));
@@ -69,7 +76,7 @@ describe("on-call escalation", () => {
       mailer,
       clock,
       publicUrl: "http://liftline.test",
-      policy: { maxPriority: 2, delayMs: DELAY_MS },
+      policy: emailOnly,
       log: () => {},
     });
     raiseAlarm();
@@ -99,7 +106,7 @@ describe("on-call escalation", () => {
       mailer,
       clock,
       publicUrl: "http://liftline.test",
-      policy: { maxPriority: 2, delayMs: DELAY_MS },
+      policy: emailOnly,
       log: () => {},
     });
     const service = createAlarmService({ db, clock });
@@ -125,7 +132,7 @@ describe("on-call escalation", () => {
       mailer,
       clock,
       publicUrl: "http://liftline.test",
-      policy: { maxPriority: 2, delayMs: DELAY_MS },
+      policy: emailOnly,
       log: () => {},
     });
     raiseAlarm();
@@ -136,18 +143,14 @@ describe("on-call escalation", () => {
     expect(consumeAckLink(db, "made-up-token-made-up-token", now)).toEqual({ ok: false, reason: "unknown" });
   });
 
-  it("does not e-mail low-priority alarms", async () => {
-    const escalator = createEscalator({
-      db,
-      mailer,
-      clock,
-      publicUrl: "http://liftline.test",
-      policy: { maxPriority: 2, delayMs: DELAY_MS },
-      log: () => {},
-    });
+  it("e-mails a low-priority alarm to the primary once and never escalates it (the default policy)", async () => {
+    const escalator = createEscalator({ db, mailer, clock, publicUrl: "http://liftline.test", log: () => {} });
     const fresh = newAlarm({ ruleId: "efficiency_drift", equipment: "CH-1", priority: 4 });
     const { alarm, transitions } = stepAlarm(fresh, { type: "condition", atMs: now, active: true });
     saveAlarmChanges(db, "millbrook-high", [alarm], transitions, new Map());
+    expect(await escalator.run()).toBe(1);
+    expect((await waitForMail(1))[0].to).toBe("luis@tallgrass.example");
+    now += 24 * 3600_000;
     expect(await escalator.run()).toBe(0);
   });
 });

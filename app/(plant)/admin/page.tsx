@@ -39,6 +39,12 @@ const sections = [
   },
   { href: "/admin/audit", title: "Audit log", text: "Every administrative change: who, when, before → after." },
   { href: "/admin/outbox", title: "Outbox", text: "E-mail caught by the local SMTP sink." },
+  { href: "/admin/texts", title: "Texts", text: "Text messages caught by the local fake SMS API, and replies." },
+  {
+    href: "/admin/escalation",
+    title: "Escalation",
+    text: "Paths and delays per alarm priority, with the defaults' reasons.",
+  },
   { href: "/on-call", title: "On-call rota", text: "Who is primary and backup, by day or week." },
   { href: "/api-docs", title: "API", text: "The REST API, described in OpenAPI 3.1." },
 ];

@@ -1,9 +1,11 @@
 import type { Metadata } from "next";
 import Link from "next/link";
+import { NotificationSettings } from "@/components/settings/notification-settings";
 import { PasswordForm } from "@/components/settings/password-form";
 import { ProfileForm } from "@/components/settings/profile-form";
 import { UnitSystemForm } from "@/components/settings/unit-system-form";
 import { getAccount } from "@/db/queries/people";
+import { canAct } from "@/lib/auth/viewer";
 import { getDb } from "@/lib/server/runtime";
 import { requirePageViewer } from "../../(auth)/auth";
 import { saveUnitSystem } from "./actions";
@@ -24,6 +26,7 @@ export default async function SettingsPage() {
       <ProfileForm name={viewer.name} phone={account?.phone ?? null} />
       <UnitSystemForm unitSystem={viewer.unitSystem} save={saveUnitSystem} />
       <PasswordForm email={viewer.email} />
+      <NotificationSettings staff={canAct(viewer)} />
       <p>
         <Link href="/settings/tokens" className="underline">
           API tokens

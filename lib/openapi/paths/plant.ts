@@ -2,6 +2,7 @@ import { z } from "zod";
 import { ackSchema, alarmQuerySchema, noteSchema, shelveSchema, unshelveSchema } from "@/lib/schemas/alarms";
 import { includeRetiredQuery } from "@/lib/schemas/customers";
 import { createGatewaySchema, listGatewaysQuery } from "@/lib/schemas/gateways";
+import { ackLinkQuerySchema } from "@/lib/schemas/notify";
 import { shiftSchema } from "@/lib/schemas/oncall";
 import { pointParamsSchema, seriesQuerySchema } from "@/lib/schemas/readings";
 import { createTokenSchema } from "@/lib/schemas/tokens";
@@ -147,9 +148,10 @@ export const plantOperations: Operation[] = [
     method: "post",
     path: "/api/ack-links/{token}",
     tag: "Alarms",
-    summary: "Acknowledge through an e-mailed single-use link",
+    summary: "Acknowledge through an e-mailed or pushed single-use link",
     description: "The link is the credential: one alarm, one person, once, until it expires.",
     access: "public",
+    query: ackLinkQuerySchema,
     responses: { 200: "The alarm after acknowledgement" },
   },
   {

@@ -1,23 +1,28 @@
 import type { Db } from "@/db/client";
-import { defaultEscalationPolicy } from "@/lib/oncall/escalation";
 import type { CommStatus } from "@/lib/rules";
 import type { Config } from "../config";
 import { createMailer, type Mailer } from "../mail";
+import { customerAlarmMail } from "../notify/customer-mail";
+import { startNotifyPaths, type NotifyPaths } from "../notify/start";
 import type { StorageHealth } from "../storage-health";
 import { createEscalator, type Escalator } from "./escalation";
 import { createAlarmService, type AlarmService, type SiteEvaluationSummary } from "./service";
 
-// Starts the alarm side of the server: mail (real SMTP or the local sink), the rule checks
-// with their alarm state, and the escalation timer. server.ts calls this once.
+// Starts the alarm side of the server: mail (real SMTP or the local sink), push and texts (real
+// or the local fakes), the rule checks with their alarm state, and the escalation timer.
+// server.ts calls this once.
 
 export interface AlarmSystem {
   service: AlarmService;
   escalator: Escalator;
   mailer: Mailer;
+  notify: NotifyPaths;
   close(): Promise<void>;
 }
 
 const TICK_MS = 15_000;
+/** How often escalation looks for a step that fell due: well inside the 5 s it may be late. */
+const ESCALATION_TICK_MS = 1_000;
 
 export async function startAlarmSystem(deps: {
   db: Db;
@@ -40,14 +45,23 @@ export async function startAlarmSystem(deps: {
     log: deps.log,
     storage: deps.storage,
   });
+  let notify: NotifyPaths;
+  try {
+    notify = await startNotifyPaths({ db: deps.db, config: deps.config, publicUrl: deps.publicUrl, log: deps.log });
+  } catch (err) {
+    await mailer.close();
+    throw err;
+  }
   const escalator = createEscalator({
     db: deps.db,
     mailer,
     clock,
     publicUrl: deps.publicUrl,
-    policy: { ...defaultEscalationPolicy, delayMs: deps.config.ESCALATION_DELAY_MIN * 60_000 },
+    push: notify.push,
+    sms: notify.sms,
     log: deps.log,
   });
+  const tellCustomers = customerAlarmMail({ db: deps.db, mailer, publicUrl: deps.publicUrl, log: deps.log });
   const service = createAlarmService({
     db: deps.db,
     clock,
@@ -56,6 +70,7 @@ export async function startAlarmSystem(deps: {
     onAlarmsChanged: (siteId, transitions) => {
       deps.onSiteChanged?.(siteId, null);
       if (transitions.some((t) => t.to === "unacknowledged")) escalate();
+      tellCustomers(siteId, transitions);
     },
     log: deps.log,
     storage: deps.storage,
@@ -76,6 +91,11 @@ export async function startAlarmSystem(deps: {
     escalate();
   }, TICK_MS);
   timer.unref();
+  const escalationTimer = setInterval(() => {
+    const due = escalator.nextDueAtMs();
+    if (due !== null && due <= clock()) escalate();
+  }, ESCALATION_TICK_MS);
+  escalationTimer.unref();
   if (mailer.sinkPort)
     deps.log(
       `Mail goes to the local SMTP sink on port ${mailer.sinkPort} (admin Outbox page); set SMTP_URL to send real mail.`,
@@ -84,8 +104,11 @@ export async function startAlarmSystem(deps: {
     service,
     escalator,
     mailer,
+    notify,
     async close() {
       clearInterval(timer);
+      clearInterval(escalationTimer);
+      await notify.close();
       await mailer.close();
     },
   };

@@ -5,6 +5,8 @@ import { getDb } from "@/lib/server/runtime";
 import { getAlarm } from "@/db/queries/alarms";
 import { getSite } from "@/db/queries/sites";
 import { AlarmCard } from "@/components/alarms/alarm-card";
+import { AlarmDeliveries } from "@/components/alarms/alarm-deliveries";
+import { listDeliveries } from "@/db/queries/notify";
 import { AlarmTimeline } from "@/components/alarms/alarm-timeline";
 import { TrendChart } from "@/components/charts/trend-chart";
 import { isQuantityKey, quantities, type QuantityKey } from "@/lib/quantities";
@@ -72,6 +74,12 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
         <h2 className="mb-2 text-lg font-semibold">History</h2>
         <AlarmTimeline events={alarm.events} staff={staff} timeZone={site.timeZone} />
       </section>
+      {staff ? (
+        <section>
+          <h2 className="mb-2 text-lg font-semibold">Notifications</h2>
+          <AlarmDeliveries deliveries={listDeliveries(db, viewer, alarm.id)} timeZone={site.timeZone} />
+        </section>
+      ) : null}
       {charts.length ? (
         <section className="flex flex-col gap-4">
           <h2 className="text-lg font-semibold">Readings</h2>
