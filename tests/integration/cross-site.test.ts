@@ -133,13 +133,18 @@ function snapshot(): Record<string, string> {
     // The rules keep raising other alarms as the test gateway's data ages: alarm rows are the target's only.
     const scope = (name: string) => {
       if (name === "alarms") return " where id = ?";
+      // Escalations of other alarms go on mailing in the background; a forged invitation or reset would not.
+      if (name === "mail_messages")
+        return " where subject in ('Liftline: you are invited', 'Liftline: reset your password')";
       const columns = db.prepare(`pragma table_info("${name}")`).all() as { name: string }[];
       return columns.some((c) => c.name === "alarm_id") ? " where alarm_id = ?" : "";
     };
     // Some tables have no rowid: rows are compared as a sorted list.
     const rows = (name: string) => {
       const where = scope(name);
-      const all = db.prepare(`select * from "${name}"${where}`).all(...(where ? [ids.alarmId] : [])) as unknown[];
+      const all = db
+        .prepare(`select * from "${name}"${where}`)
+        .all(...(where.includes("?") ? [ids.alarmId] : [])) as unknown[];
       return all.map((r) => JSON.stringify(r)).sort();
     };
     return Object.fromEntries(tables.map(({ name }) => [name, rows(name).join("\n")]));
@@ -188,6 +193,20 @@ beforeAll(async () => {
   ids.userId = oncall.body.people[0].id;
   ids.siteId = "harborview-mob";
   ids.token = "not-a-real-ack-link-token";
+  // Records no one has: a request that got through answers 404 and changes nothing, and the check
+  // that matters here (403 before any handler runs) does not depend on the record existing.
+  Object.assign(ids, {
+    customerId: "org-no-such-customer",
+    equipmentId: "no-such-site:CH-9",
+    pointId: "999999",
+    fileId: "00000000000000000000000000000000",
+    changeId: "no-such-change",
+    requestId: "no-such-request",
+    visitId: "no-such-visit",
+    feedId: "no-such-feed",
+    subscriptionId: "no-such-subscription",
+    priority: "4",
+  });
 });
 afterAll(() => server?.stop());
 

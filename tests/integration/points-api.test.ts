@@ -317,7 +317,8 @@ describe("site point list", () => {
     }
     const rows: string[] = [HEADER];
     for (let c = 1; c <= 200; c++)
-      for (const q of pointsByKind.chiller) rows.push(`CH-${c},chiller,${q},${unitOf(q)},5,,`);
+      for (const q of pointsByKind.chiller.filter((k) => k !== "chiller_stop_reason").slice(0, 25))
+        rows.push(`CH-${c},chiller,${q},${unitOf(q)},5,,`);
     expect(rows.length - 1).toBe(5000);
     const body = rows.join("\r\n");
     let t0 = performance.now();

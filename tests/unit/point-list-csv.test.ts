@@ -124,10 +124,11 @@ describe("point-list CSV parser", () => {
   });
 
   it("validates 5,000 rows quickly", () => {
-    // 200 chillers × 25 points each (the chiller's point list in lib/quantities.ts) = 5,000 rows.
+    // 200 chillers × 25 of the chiller's points (lib/quantities.ts) = 5,000 rows.
     const lines = [HEADER];
     for (let c = 1; c <= 200; c++)
-      for (const q of pointsByKind.chiller) lines.push(`CH-${c},chiller,${q},${unitFor(q)},5,,`);
+      for (const q of pointsByKind.chiller.filter((k) => k !== "chiller_stop_reason").slice(0, 25))
+        lines.push(`CH-${c},chiller,${q},${unitFor(q)},5,,`);
     expect(lines.length - 1).toBe(5000);
     const t0 = performance.now();
     const { rows, errors } = parsePointListCsv(lines.join("\r\n"));

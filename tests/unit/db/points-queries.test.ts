@@ -46,7 +46,7 @@ describe("importPointList", () => {
   it("applies 5,000 rows in one transaction quickly", () => {
     const lines = [POINT_LIST_COLUMNS.join(",")];
     for (let c = 1; c <= 200; c++)
-      for (const q of pointsByKind.chiller)
+      for (const q of pointsByKind.chiller.filter((k) => k !== "chiller_stop_reason").slice(0, 25))
         lines.push(`CH-${c},chiller,${q},${q === "fault_text" ? "text" : unit(q)},5,,`);
     const { rows, errors } = parsePointListCsv(lines.join("\n"));
     expect(errors).toEqual([]);
