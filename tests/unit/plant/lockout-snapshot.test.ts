@@ -112,10 +112,11 @@ describe("site snapshot", () => {
     expect(c.crossoverMarginK).toBeCloseTo(16.9, 6);
   });
 
-  it("reports the pressure margin only while running", () => {
+  // A stopped chiller's shell pressures are the most direct reading of a crossover: kept, not dropped.
+  it("reports the pressure margin while stopped too", () => {
     const c = computeSiteSnapshot(site, latestFromReadings([...base, r("run_status", false, "CH-1", T0 + 1)]), T0 + 1)
       .chillers[0];
-    expect(c.crossoverPressureMarginKPa).toBeNull();
+    expect(c.crossoverPressureMarginKPa).not.toBeNull();
     expect(c.crossoverMarginK).not.toBeNull();
   });
 });
