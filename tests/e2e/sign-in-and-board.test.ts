@@ -41,10 +41,13 @@ describe.skipIf(!hasChromium)("sign-in and the board in Chromium", () => {
     const context = await env.browser.newContext({ viewport: viewports.desktop });
     const page = await context.newPage();
     await page.goto(`${env.server.url}/sign-in`);
+    // Wait for the form to be live: a click before hydration would submit it as a plain GET.
+    await page.waitForLoadState("networkidle");
     await page.getByLabel("E-mail").fill("admin@tallgrass.example");
     await page.getByLabel("Password").fill("not-the-password");
     await page.getByRole("button", { name: "Sign in" }).click();
-    await expect.poll(() => page.getByText("E-mail or password is incorrect").count()).toBe(1);
+    // A refusal costs a full bcrypt comparison (cost 12), which takes seconds on a loaded machine.
+    await expect.poll(() => page.getByText("E-mail or password is incorrect").count(), { timeout: 15_000 }).toBe(1);
     expect(await page.locator("form [role=alert]").textContent()).toContain("E-mail or password is incorrect");
     await screenshot(page, "sign-in-error-desktop");
     await signInAs(page, env.server.url, "admin@tallgrass.example");
@@ -53,5 +56,5 @@ describe.skipIf(!hasChromium)("sign-in and the board in Chromium", () => {
     const again = await page.goto(`${env.server.url}/`);
     expect(new URL(again!.url()).pathname).toBe("/sign-in");
     await context.close();
-  });
+  }, 120_000);
 });
