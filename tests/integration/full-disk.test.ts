@@ -108,9 +108,10 @@ async function fullDiskScenario(server: TestServer, disk: Disk) {
 
   await disk.fill();
 
-  // Readings while full: published until the server refuses one (no PUBACK), at most 40 times.
+  // Readings while full: published until the server refuses one (no PUBACK), at most 400 times. The WAL
+  // file keeps the size the seed's writes gave it, so the first readings can still fit in it.
   let refusals = 0;
-  for (let i = 0; i < 40 && refusals < 3; i++) if (!(await publishReadings(BIG))) refusals++;
+  for (let i = 0; i < 400 && refusals < 3; i++) if (!(await publishReadings(BIG))) refusals++;
   expect(refusals, "the server refused readings it could not store").toBeGreaterThan(0);
 
   const health = await waitFor(async () => {
