@@ -46,6 +46,15 @@ async function screenshots(
   // Nothing may hang off the right edge of a phone screen.
   const overflow = await p.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
   expect(overflow, `${name} is wider than a phone`).toBeLessThanOrEqual(0);
+  // Nor may a table hide columns in a box that scrolls sideways.
+  const wideBoxes = await p.evaluate(() =>
+    [...document.querySelectorAll("main *")]
+      .filter(
+        (el) => ["auto", "scroll"].includes(getComputedStyle(el).overflowX) && el.scrollWidth > el.clientWidth + 1,
+      )
+      .map((el) => `${el.tagName.toLowerCase()}.${el.className}`),
+  );
+  expect(wideBoxes, `${name} scrolls sideways inside`).toEqual([]);
   await small.close();
   phoneProblems.push(...seen.map((problem) => `${name}: ${problem}`));
 }
