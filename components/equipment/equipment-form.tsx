@@ -5,6 +5,7 @@ import { useRef, useState } from "react";
 import { useForm, type FieldErrors, type Resolver } from "react-hook-form";
 import { equipmentSchema } from "@/lib/schemas/equipment";
 import {
+  emptyEquipmentForm,
   equipmentFields,
   equipmentKindLabels,
   equipmentKinds,
@@ -66,7 +67,7 @@ export function EquipmentForm({
   kindRef.current = kind;
   const form = useForm<EquipmentFormValues>({
     resolver: resolverFor(kindRef, unitSystem),
-    defaultValues: initial ?? { tag: "", name: "" },
+    defaultValues: initial ?? emptyEquipmentForm(unitSystem),
   });
   const {
     register,
@@ -96,7 +97,7 @@ export function EquipmentForm({
           `/api/sites/${encodeURIComponent(siteId)}/equipment`,
           { method: "POST", body: JSON.stringify(formToBody(kind, values, unitSystem)) },
         );
-        reset({ tag: "", name: "" });
+        reset(emptyEquipmentForm(unitSystem));
         setMessage(`Added ${res.equipment.tag}.`);
       }
       router.refresh();

@@ -70,7 +70,7 @@ export function PeopleManager({ selfId }: { selfId: string }) {
         ),
       }),
       column.accessor("role", { header: "Role", cell: (c) => roleLabel[c.getValue()] }),
-      column.accessor("organizationName", { header: "Organization", meta: { className: "hidden sm:table-cell" } }),
+      column.accessor("organizationName", { header: "Organization" }),
       column.accessor("status", {
         header: "Status",
         cell: (c) => (
@@ -85,7 +85,7 @@ export function PeopleManager({ selfId }: { selfId: string }) {
         cell: (c) => {
           const p = c.row.original;
           return (
-            <div className="flex flex-wrap justify-end gap-2">
+            <div className="flex flex-wrap gap-2 sm:justify-end">
               {p.status === "invited" ? (
                 <Button
                   variant="secondary"
@@ -151,9 +151,10 @@ export function PeopleManager({ selfId }: { selfId: string }) {
           }
         />
       ) : null}
+      {/* Below sm each person is a card (cells stacked), so nothing hides off the right edge of a phone. */}
       <div className="overflow-x-auto rounded-lg border border-line bg-panel">
         <table className="w-full text-sm" data-testid="people-table">
-          <thead className="text-left text-muted">
+          <thead className="text-left text-muted max-sm:sr-only">
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id}>
                 {g.headers.map((h) => (
@@ -166,9 +167,12 @@ export function PeopleManager({ selfId }: { selfId: string }) {
           </thead>
           <tbody>
             {table.getRowModel().rows.map((row) => (
-              <tr key={row.id} className="border-t border-line align-top">
+              <tr key={row.id} className="border-t border-line align-top max-sm:block max-sm:py-2">
                 {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className={`px-3 py-2 ${cell.column.columnDef.meta?.className ?? ""}`}>
+                  <td
+                    key={cell.id}
+                    className={`px-3 py-2 max-sm:block max-sm:py-0.5 ${cell.column.columnDef.meta?.className ?? ""}`}
+                  >
                     {flexRender(cell.column.columnDef.cell, cell.getContext())}
                   </td>
                 ))}

@@ -147,26 +147,35 @@ export function PointListImport({ siteId }: { siteId: string }) {
             Show unchanged points
           </label>
           <div className="overflow-x-auto">
-            <table className="w-full min-w-[36rem] text-left text-sm">
+            {/* On a phone the line, equipment and before columns fold into their neighbours to fit 390 px. */}
+            <table className="w-full text-left text-sm">
               <thead>
                 <tr className="border-b border-line">
-                  <th className="py-1 pr-2">Line</th>
-                  <th className="py-1 pr-2">Equipment</th>
+                  <th className="py-1 pr-2 max-sm:hidden">Line</th>
+                  <th className="py-1 pr-2 max-sm:hidden">Equipment</th>
                   <th className="py-1 pr-2">Point</th>
                   <th className="py-1 pr-2">What</th>
-                  <th className="py-1 pr-2">Before</th>
+                  <th className="py-1 pr-2 max-sm:hidden">Before</th>
                   <th className="py-1 pr-2">After</th>
                 </tr>
               </thead>
               <tbody>
                 {items.slice(0, 1000).map((i) => (
                   <tr key={i.line} className="border-b border-line/50">
-                    <td className="py-1 pr-2 font-mono">{i.line}</td>
-                    <td className="py-1 pr-2">{i.equipmentTag}</td>
-                    <td className="py-1 pr-2 font-mono text-xs">{i.quantity}</td>
+                    <td className="py-1 pr-2 font-mono max-sm:hidden">{i.line}</td>
+                    <td className="py-1 pr-2 max-sm:hidden">{i.equipmentTag}</td>
+                    <td className="py-1 pr-2 font-mono text-xs break-all">
+                      <span className="block font-sans text-sm sm:hidden">
+                        {i.equipmentTag} · line {i.line}
+                      </span>
+                      {i.quantity}
+                    </td>
                     <td className="py-1 pr-2">{actionLabel[i.action]}</td>
-                    <td className="py-1 pr-2">{valuesText(i.before)}</td>
-                    <td className="py-1 pr-2">{valuesText(i.after)}</td>
+                    <td className="py-1 pr-2 max-sm:hidden">{valuesText(i.before)}</td>
+                    <td className="py-1 pr-2">
+                      {i.before ? <span className="block text-muted sm:hidden">{valuesText(i.before)} →</span> : null}
+                      {valuesText(i.after)}
+                    </td>
                   </tr>
                 ))}
               </tbody>

@@ -126,6 +126,15 @@ export function equipmentFields(kind: EquipmentKindName, system: UnitSystem): Eq
 export type EquipmentFormValues = Record<string, string>;
 
 /**
+ * An empty add form: every field of every kind named, since a reset that names only some keeps the
+ * rest, and the fields the kinds share (nameplate, serves) would carry into the next equipment.
+ */
+export function emptyEquipmentForm(system: UnitSystem): EquipmentFormValues {
+  const names = equipmentKinds.flatMap((k) => equipmentFields(k, system).map((f) => f.name));
+  return Object.fromEntries(["tag", "name", ...names].map((n) => [n, ""]));
+}
+
+/**
  * The typed values as the API's body (canonical units). Empty fields are left out, or sent as
  * null with `clearEmpty` (an edit clears a field that way).
  */

@@ -60,7 +60,8 @@ export async function shownXRange(chart: Locator): Promise<{ min: number; max: n
 export async function screenshot(page: Page, name: string): Promise<string> {
   fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
   const file = path.join(SCREENSHOT_DIR, `${name}.png`);
-  await page.screenshot({ path: file, fullPage: true });
+  // Hiding the caret writes inline styles on inputs, which breaks hydration of a page still hydrating.
+  await page.screenshot({ path: file, fullPage: true, caret: "initial" });
   return file;
 }
 

@@ -253,6 +253,30 @@ describe("equipment", () => {
     const cleared = await api(server, admin, url, json("PUT", { values: { startToStartS: null } }));
     expect(cleared.body.equipment.limits.startToStartS).toMatchObject({ value: 900, source: "default" });
   });
+
+  it("equipment routes take the id percent-encoded, as the pages' links and forms send its colon (%3A)", async () => {
+    const encoded = encodeURIComponent("harborview-mob:CH-1");
+    expect(encoded).toBe("harborview-mob%3ACH-1");
+    const got = await api(server, tech, `/api/equipment/${encoded}`);
+    expect(got.status).toBe(200);
+    expect(got.body.equipment.id).toBe("harborview-mob:CH-1");
+    expect((await api(server, tech, `/api/equipment/${encoded}/points`)).status).toBe(200);
+    const set = await api(
+      server,
+      admin,
+      `/api/equipment/${encoded}/limits`,
+      json("PUT", { values: { stopToStartS: 240 } }),
+    );
+    expect(set.status).toBe(200);
+    expect(set.body.equipment.limits.stopToStartS).toMatchObject({ value: 240, source: "entered" });
+    const cleared = await api(
+      server,
+      admin,
+      `/api/equipment/${encoded}/limits`,
+      json("PUT", { values: { stopToStartS: null } }),
+    );
+    expect(cleared.body.equipment.limits.stopToStartS).toMatchObject({ value: 180, source: "default" });
+  });
 });
 
 describe("head_pressure_near_trip follows the chiller's cut-out", () => {

@@ -1,6 +1,12 @@
 import { describe, expect, it } from "vitest";
 import { equipmentSchema } from "@/lib/schemas/equipment";
-import { formToBody, recordToForm } from "@/lib/plant/equipment-form";
+import {
+  emptyEquipmentForm,
+  equipmentFields,
+  equipmentKinds,
+  formToBody,
+  recordToForm,
+} from "@/lib/plant/equipment-form";
 import { recordFromDisplay, recordToDisplay } from "@/lib/plant/record-units";
 
 // The equipment form's unit handling: what a technician types in IP or SI reaches the API in
@@ -114,5 +120,17 @@ describe("equipment form to API body", () => {
       "ip",
     );
     expect(values).toMatchObject({ designFlowLps: "1200", designHeadKPa: "80", loop: "chilled_water", serves: "CH-1" });
+  });
+});
+
+describe("an empty add form", () => {
+  it("names every field of every kind, so a reset after adding a chiller leaves no serial for the next tower", () => {
+    for (const system of ["ip", "si"] as const) {
+      const empty = emptyEquipmentForm(system);
+      for (const kind of equipmentKinds)
+        for (const f of equipmentFields(kind, system)) expect(empty, `${kind}.${f.name}`).toHaveProperty(f.name, "");
+      expect(empty).toMatchObject({ tag: "", name: "", serial: "", model: "", year: "" });
+      expect(Object.values(empty).every((v) => v === "")).toBe(true);
+    }
   });
 });

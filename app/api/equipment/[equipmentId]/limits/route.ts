@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { readJson, route } from "@/lib/server/http";
+import { pathParam, readJson, route } from "@/lib/server/http";
 import { setEquipmentLimits } from "@/lib/server/plant-records";
 import { getDb } from "@/lib/server/runtime";
 import { chillerLimitsSchema } from "@/lib/schemas/equipment";
@@ -9,7 +9,7 @@ type Ctx = { params: Promise<{ equipmentId: string }> };
 /** Enters (number) or clears (null) a chiller's limits; the rules use them at once. */
 export const PUT = route<Ctx>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
-  const { equipmentId } = await params;
+  const equipmentId = pathParam((await params).equipmentId);
   const body = await readJson(request, chillerLimitsSchema);
   return Response.json(setEquipmentLimits(getDb(), viewer, equipmentId, body));
 });

@@ -1,5 +1,5 @@
 import { requireApiViewer } from "@/app/(auth)/auth";
-import { route } from "@/lib/server/http";
+import { pathParam, route } from "@/lib/server/http";
 import { restoreEquipment } from "@/lib/server/plant-records";
 import { getDb } from "@/lib/server/runtime";
 
@@ -7,6 +7,6 @@ type Ctx = { params: Promise<{ equipmentId: string }> };
 
 export const POST = route<Ctx>(async (request, { params }) => {
   const viewer = await requireApiViewer(request);
-  const equipment = restoreEquipment(getDb(), viewer, (await params).equipmentId);
+  const equipment = restoreEquipment(getDb(), viewer, pathParam((await params).equipmentId));
   return Response.json({ equipment: equipment ?? null, changed: equipment !== null });
 });
