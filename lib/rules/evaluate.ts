@@ -2,7 +2,7 @@
 
 import { asRefrigerant, limitsOf } from "@/lib/plant/equipment-limits";
 import { minStartMarginK } from "@/lib/plant/crossover";
-import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
+import { saturationPressureKPa, saturationTempC, type Refrigerant } from "@/lib/refrigerant";
 import { computeSiteSnapshot, type ChillerHistoryInputs, type SiteSnapshot } from "@/lib/plant/snapshot";
 import type { Site } from "@/lib/plant/site";
 import { chillerTripped } from "./chiller-trip";
@@ -33,6 +33,29 @@ export const rules: Record<RuleId, Rule> = {
   low_evaporator_pressure: lowEvaporatorPressure,
 };
 
+const SATURATION_CACHE_SIZE = 20_000;
+const saturationCaches = new Map<string, Map<number, number>>();
+
+/**
+ * `saturationTempC` for one refrigerant, remembered per pressure reading: the margin series
+ * revisits every sample of the last hour at each evaluation, and each inversion is a Newton
+ * solve (a 24 h replay spent most of its 1–3 minutes here). Cleared when full, so it stays small.
+ */
+export function cachedSaturationTempC(refrigerant: Refrigerant): (kPa: number) => number {
+  let cache = saturationCaches.get(refrigerant);
+  if (!cache) saturationCaches.set(refrigerant, (cache = new Map()));
+  const memo = cache;
+  return (kPa) => {
+    let t = memo.get(kPa);
+    if (t === undefined) {
+      if (memo.size >= SATURATION_CACHE_SIZE) memo.clear();
+      t = saturationTempC(refrigerant, kPa);
+      memo.set(kPa, t);
+    }
+    return t;
+  };
+}
+
 /** The site's derived numbers at `nowMs`, including time to crossover and lockout from history. */
 export function snapshotFromHistory(
   site: Site,
@@ -61,21 +84,27 @@ export function snapshotFromHistory(
     // The shells' pressures read the crossover most directly (running: the lift; stopped: each
     // shell's saturation); the water margin stands in when the site has no such points.
     const refrigerant = asRefrigerant(chiller.refrigerant) ?? "R-134a";
-    const satTempC = (kPa: number) => saturationTempC(refrigerant, kPa);
+    const satTempC = cachedSaturationTempC(refrigerant);
     const evapKPa = num(probe, chiller.tag, "evaporator_refrigerant_pressure");
     const condKPa = num(probe, chiller.tag, "condenser_refrigerant_pressure");
     const chwC = num(probe, chiller.tag, "chilled_water_entering_temp");
     const basis = evapKPa !== null && condKPa !== null ? "refrigerant" : "water";
     const baseKPa = evapKPa ?? (chwC !== null ? saturationPressureKPa(refrigerant, chwC) : null);
     const startMarginK = baseKPa !== null ? minStartMarginK(satTempC, baseKPa, limitsOf(chiller).minStartLiftKPa) : 0;
-    const series = (windowS: number) =>
-      (basis === "refrigerant"
-        ? refrigerantMarginSeries(probe, chiller, windowS, satTempC)
-        : marginSeries(probe, chiller, windowS)
-      ).map((p) => ({ tsMs: p.tsMs, value: p.value - startMarginK }));
+    // One walk over the longer window; the shorter one is its tail.
+    const longS = Math.min(Math.max(c.fitWindowS, c.slowFitWindowS), sinceChangeS);
+    const long = (
+      basis === "refrigerant"
+        ? refrigerantMarginSeries(probe, chiller, longS, satTempC)
+        : marginSeries(probe, chiller, longS)
+    ).map((p) => ({ tsMs: p.tsMs, value: p.value - startMarginK }));
+    const tail = (windowS: number) => {
+      const fromMs = nowMs - Math.min(windowS, sinceChangeS) * 1000;
+      return long.filter((p) => p.tsMs >= fromMs);
+    };
     perChiller[chiller.tag] = {
-      marginSamples: series(Math.min(c.fitWindowS, sinceChangeS)),
-      slowMarginSamples: series(Math.min(c.slowFitWindowS, sinceChangeS)),
+      marginSamples: tail(c.fitWindowS),
+      slowMarginSamples: tail(c.slowFitWindowS),
       lastStartMs,
       lastStopMs,
       marginBasis: basis,
