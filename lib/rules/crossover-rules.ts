@@ -15,6 +15,7 @@ import { bool, chillerCalledFor, chillersOf, num, str, type RuleContext } from "
 import { formatDuration } from "@/lib/units";
 import { fmtDelta, fmtPressure, fmtRate } from "./format";
 import { makeCondition } from "./make-condition";
+import { chillerStopReasons, type ChillerStopReason } from "@/lib/quantities";
 
 function chillerView(ctx: RuleContext, chiller: Equipment): ChillerSnapshot | undefined {
   return ctx.snapshot.chillers.find((c) => c.tag === chiller.tag);
@@ -64,18 +65,29 @@ function crossoverNumbers(s: ChillerSnapshot): Record<string, number | null> {
 export function chillerState(ctx: RuleContext, chiller: Equipment, v: ChillerSnapshot): ChillerState {
   const s = ctx.settings.restartRace;
   const running = v.running === true;
-  // A latched alarm or a drive fault holds the compressor off until a person resets it; a chiller
-  // stopped on low load or by its schedule restarts by itself once its timers allow.
-  const held = bool(ctx, chiller.tag, "chiller_alarm") === true || bool(ctx, chiller.tag, "drive_fault") === true;
+  // The controller's stop reason says what holds the compressor off: a trip is latched until a
+  // person resets it (so is a chiller stopped by hand); a safety resets itself once its cause
+  // clears; low load and the schedule restart by themselves when the timers allow. Without that
+  // point, a latched alarm or a drive fault is taken as held.
+  const reason = stopReasonOf(str(ctx, chiller.tag, "chiller_stop_reason"));
+  const held =
+    !running &&
+    (reason !== null
+      ? reason === "trip" || reason === "manual"
+      : bool(ctx, chiller.tag, "chiller_alarm") === true || bool(ctx, chiller.tag, "drive_fault") === true);
   const lockoutS = v.lockout.lockoutLeftS;
   const startMs = lastEdgeMs(ctx.history.edges(chiller.tag, "run_status", ctx.nowMs).rises);
   return {
     running,
     held,
+    stopReason: running ? "running" : reason,
     restartInS: running ? 0 : held ? Math.max(lockoutS, s.resetAllowanceS) : lockoutS,
     sinceStartS: running && startMs !== null ? (ctx.nowMs - startMs) / 1000 : null,
   };
 }
+
+const stopReasonOf = (v: string | null): ChillerStopReason | null =>
+  v !== null && (chillerStopReasons as readonly string[]).includes(v) ? (v as ChillerStopReason) : null;
 
 /** Seconds until a stopped chiller could be back on load (start, then soft-load). */
 export function backOnLoadS(ctx: RuleContext, state: ChillerState): number {
@@ -163,7 +175,7 @@ export function restartRace(ctx: RuleContext): Condition[] {
       latchedAlarm: Number(state.held),
     };
     const held = state.held
-      ? `is held off${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} until someone resets it (anti-recycle ${formatDuration(lockoutS)} left; ${formatDuration(s.resetAllowanceS)} allowed to reach and reset it)`
+      ? `is held off${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} until someone ${state.stopReason === "manual" ? "enables it again" : "resets it"} (anti-recycle ${formatDuration(lockoutS)} left; ${formatDuration(s.resetAllowanceS)} allowed to reach and reset it)`
       : `is off and locked out for ${formatDuration(lockoutS)} more`;
     return [
       makeCondition({

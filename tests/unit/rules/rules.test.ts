@@ -161,6 +161,53 @@ describe("restart race (rule 2)", () => {
     expect(c.advice.join(" ")).toMatch(/hand reset at the device/);
   });
 
+  it("reads the controller's stop reason: a trip is latched (waits for a reset), a safety resets itself", () => {
+    // Trip reported with no latched-alarm point: held, so the 30 min reset allowance counts (race from ≈ 260 s,
+    // as above).
+    const trip = runFrames({
+      site: zeroLift,
+      durationS: 900,
+      frame: (tS) => ({ ...closingOff(() => 0)(tS), stopReason: "trip" }),
+      keep: true,
+    });
+    const tripFirst = secondsOf(trip.firstActivation("restart_race:CH-1"));
+    expect(tripFirst).not.toBeNull();
+    expect(tripFirst!).toBeLessThanOrEqual(280);
+    expect(trip.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "restart_race")!.numbers.latchedAlarm).toBe(1);
+    // A drive fault with the controller reporting a safety stop: it restarts by itself when the 60 s timer
+    // allows, so no race until the crossing is within the time to load (as for a plain lockout).
+    for (const stopReason of ["safety", "low_load", "schedule"]) {
+      const auto = runFrames({
+        site: zeroLift,
+        durationS: 3000,
+        frame: (tS) => ({ ...closingOff((t) => Math.max(0, 60 - t))(tS), driveFault: true, stopReason }),
+      });
+      const first = secondsOf(auto.firstActivation("restart_race:CH-1"));
+      expect(first, stopReason).not.toBeNull();
+      expect(first!, stopReason).toBeGreaterThan(crossingS - 400);
+    }
+    // Without the stop-reason point the same drive fault is taken as held.
+    const noPoint = runFrames({
+      site: zeroLift,
+      durationS: 900,
+      frame: (tS) => ({ ...closingOff((t) => Math.max(0, 60 - t))(tS), driveFault: true }),
+    });
+    expect(secondsOf(noPoint.firstActivation("restart_race:CH-1"))!).toBeLessThanOrEqual(280);
+  });
+
+  it("a chiller stopped by hand waits for someone to enable it: says so instead of a reset", () => {
+    const r = runFrames({
+      site: zeroLift,
+      durationS: 900,
+      frame: (tS) => ({ ...closingOff(() => 0)(tS), stopReason: "manual" }),
+      keep: true,
+    });
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "restart_race")!;
+    expect(c.active).toBe(true);
+    expect(c.technicianMessage).toMatch(/until someone enables it again/);
+    expect(c.advice.join(" ")).toMatch(/stopped by hand/);
+  });
+
   it("does not fire while the chiller runs", () => {
     const r = runFrames({
       site: zeroLift,

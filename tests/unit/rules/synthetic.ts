@@ -44,6 +44,8 @@ export interface Frame {
   chillerAlarm: boolean;
   faultText: string;
   inhibitLeftS: number | null;
+  /** The controller's `chiller_stop_reason`; null: the site has no such point. */
+  stopReason: string | null;
   towerMode: "auto" | "off" | "hand";
   towerFault: boolean;
   fanSpeedPct: number;
@@ -74,6 +76,7 @@ export const normalFrame: Frame = {
   chillerAlarm: false,
   faultText: "",
   inhibitLeftS: 0,
+  stopReason: null,
   towerMode: "auto",
   towerFault: false,
   fanSpeedPct: 60,
@@ -105,6 +108,7 @@ export function readingsOf(tsMs: number, f: Frame): Reading[] {
   add("CH-1", "chiller_alarm", f.chillerAlarm);
   add("CH-1", "fault_text", f.faultText);
   add("CH-1", "restart_inhibit_time_left", f.inhibitLeftS);
+  add("CH-1", "chiller_stop_reason", f.stopReason);
   add("CT-1", "condenser_water_entering_temp", f.towerInC);
   add("CT-1", "condenser_water_leaving_temp", f.cwInC);
   add("CT-1", "condenser_water_temp_setpoint", f.towerSetpointC);
