@@ -89,6 +89,13 @@ export function chillerState(ctx: RuleContext, chiller: Equipment, v: ChillerSna
 const stopReasonOf = (v: string | null): ChillerStopReason | null =>
   v !== null && (chillerStopReasons as readonly string[]).includes(v) ? (v as ChillerStopReason) : null;
 
+/** Stopped on low load or by its schedule with its timers run out: it starts when the load calls for it. */
+export const onDemand = (state: ChillerState): boolean =>
+  !state.running &&
+  !state.held &&
+  (state.stopReason === "low_load" || state.stopReason === "schedule") &&
+  (state.restartInS ?? 0) <= 0;
+
 /** Seconds until a stopped chiller could be back on load (start, then soft-load). */
 export function backOnLoadS(ctx: RuleContext, state: ChillerState): number {
   return (state.restartInS ?? 0) + ctx.settings.restartRace.compressorLoadS;
@@ -113,10 +120,19 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
     const state = chillerState(ctx, chiller, v);
     // A stopped chiller that will restart by itself is at risk only if the margin closes before it
     // can be back on load (plus time for someone to act): the normal stop-to-start after a blip is not.
+    // One stopped on low load or its schedule with its timers run out starts as soon as the chilled
+    // water calls for it — the same warming that closes the margin — so only a margin already a dead
+    // band below the start margin is a risk there (a start a little under it normally still loads).
     const selfRestartS = !state.running && !state.held ? backOnLoadS(ctx, state) + race.reactionAllowanceS : null;
     const beforeRestart =
-      selfRestartS === null || (t !== null && t.timeToCrossoverS <= selfRestartS + (was ? s.timeDeadBandS : 0));
-    const closingSoon = t !== null && t.timeToCrossoverS <= warnS && t.fittedMarginK <= warnMarginK;
+      selfRestartS === null ||
+      (onDemand(state)
+        ? t !== null && t.fittedMarginK <= (was ? 0 : -s.marginDeadBandK)
+        : t !== null && t.timeToCrossoverS <= selfRestartS + (was ? s.timeDeadBandS : 0));
+    const projectWithinK = state.running
+      ? Math.min(warnMarginK, s.runningWarnMarginK + (was ? s.marginDeadBandK : 0))
+      : warnMarginK;
+    const closingSoon = t !== null && t.timeToCrossoverS <= warnS && t.fittedMarginK <= projectWithinK;
     const smallAndClosing = t !== null && t.fittedMarginK <= smallMarginK;
     // Once raised, the risk stays up through the crossing itself; "loops crossed" then adds its alarm.
     const active =
@@ -161,12 +177,19 @@ export function restartRace(ctx: RuleContext): Condition[] {
     const was = ctx.wasActive("restart_race", chiller.tag);
     const lockoutS = v.lockout.lockoutLeftS;
     const state = chillerState(ctx, chiller, v);
+    // A chiller waiting only for load has no timer to race: it starts when the chilled water calls
+    // (crossover_risk and loops_crossed still watch its margin).
     const neededS = backOnLoadS(ctx, state);
     const off = v.running === false;
     const ttcS = closing ? closing.timeToCrossoverS : crossed ? 0 : null;
     const latchedText = state.held ? str(ctx, chiller.tag, "fault_text") : null;
     // The race is lost when the margin reaches what a start needs before the compressor can be back on load.
-    const active = off && chillerCalledFor(ctx, chiller) && ttcS !== null && ttcS < neededS + (was ? s.deadBandS : 0);
+    const active =
+      off &&
+      !onDemand(state) &&
+      chillerCalledFor(ctx, chiller) &&
+      ttcS !== null &&
+      ttcS < neededS + (was ? s.deadBandS : 0);
     const n = {
       ...crossoverNumbers(v),
       compressorLoadS: s.compressorLoadS,

@@ -80,7 +80,8 @@ export function snapshotFromHistory(
     const lastStopMs = lastEdgeMs(edges.falls);
     // A start or stop changes how the loops move; fit only the margin since then.
     const lastChangeMs = Math.max(lastStartMs ?? -Infinity, lastStopMs ?? -Infinity);
-    const sinceChangeS = Math.max(0, (nowMs - lastChangeMs) / 1000);
+    const settleS = lastStopMs !== null && lastStopMs === lastChangeMs ? c.stopSettleS : 0;
+    const sinceChangeS = Math.max(0, (nowMs - lastChangeMs) / 1000 - settleS);
     // The shells' pressures read the crossover most directly (running: the lift; stopped: each
     // shell's saturation); the water margin stands in when the site has no such points.
     const refrigerant = asRefrigerant(chiller.refrigerant) ?? "R-134a";

@@ -43,6 +43,17 @@ export const ruleSettingsSchema = z.strictObject({
       slowMinClosingRateKPerMin: positive.default(0.005),
       /** A margin this small that is closing at all (either fit) is a risk whatever the projected time (K). */
       smallMarginK: positive.default(3),
+      /**
+       * A running chiller's projection counts only within this margin of the minimum (K): its lift
+       * swings by several kelvin with load and staging (another chiller starting halves its load while
+       * the tower catches up), and it is guarded by its own low-lift safety.
+       */
+      runningWarnMarginK: positive.default(5),
+      /**
+       * After a stop the fit waits this long (s): the shells' pressures fall from the running lift to
+       * their waters' saturation in a minute or two, and that collapse is not the loops closing.
+       */
+      stopSettleS: seconds.default(180),
     })
     .prefault({}),
   restartRace: z
