@@ -18,6 +18,8 @@ import { lowEvaporatorPressure } from "./low-evaporator-pressure";
 import { powerEventSuspected } from "./power-event";
 import type { RuleSettings } from "./settings";
 import { towerFanNotRunning } from "./tower-fan";
+import { towerFanNotInAuto } from "./fan-mode";
+import { startsPerHour } from "./starts-per-hour";
 
 export const rules: Record<RuleId, Rule> = {
   crossover_risk: crossoverRisk,
@@ -31,6 +33,8 @@ export const rules: Record<RuleId, Rule> = {
   comm_lost: commLost,
   efficiency_drift: efficiencyDrift,
   low_evaporator_pressure: lowEvaporatorPressure,
+  tower_fan_not_in_auto: towerFanNotInAuto,
+  starts_per_hour: startsPerHour,
 };
 
 const SATURATION_CACHE_SIZE = 20_000;

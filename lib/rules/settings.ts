@@ -92,6 +92,10 @@ export const ruleSettingsSchema = z.strictObject({
       commandedAtPct: z.number().min(0).max(100).default(5),
     })
     .prefault({}),
+  /** Fan drive in off or hand while a chiller it serves runs: this shift's job, before the water shows it. */
+  towerFanMode: z.strictObject({ ...common(3, 120, 60) }).prefault({}),
+  /** Starts in the last hour against the chiller record's `maxStartsPerHour`. */
+  startsPerHour: z.strictObject({ ...common(3, 0, 300) }).prefault({}),
   headPressure: z
     .strictObject({
       ...common(2, 15, 60),

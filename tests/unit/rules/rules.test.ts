@@ -524,3 +524,51 @@ describe("a normal running plant", () => {
     expect(r.transitions.filter((t) => t.to === "unacknowledged")).toEqual([]);
   });
 });
+
+describe("tower fan drive out of auto while the plant runs", () => {
+  it("off or hand while the chiller runs, whatever the water temperature and with or without a setpoint point", () => {
+    // Condenser water well below its setpoint: the temperature rule stays quiet; the mode rule does not.
+    for (const towerMode of ["off", "hand"] as const) {
+      const r = runFrames({
+        durationS: 600,
+        frame: () => ({ towerMode, fanRunning: towerMode === "hand", cwInC: 24 }),
+      });
+      expect(r.firstActivation("tower_fan_not_running:CT-1"), towerMode).toBeNull();
+      // 120 s on-delay: a drive switched through off on its way to auto is not an alarm.
+      expect(secondsOf(r.firstActivation("tower_fan_not_in_auto:CT-1")), towerMode).toBe(120);
+    }
+    const noSetpoint = runFrames({
+      durationS: 600,
+      frame: () => ({ towerMode: "off", fanRunning: false, towerSetpointC: null }),
+    });
+    expect(noSetpoint.firstActivation("tower_fan_not_in_auto:CT-1")).not.toBeNull();
+  });
+
+  it("quiet in auto, and quiet with the drive off while no chiller runs (holding the condenser water up)", () => {
+    expect(runFrames({ durationS: 600, frame: () => ({}) }).firstActivation("tower_fan_not_in_auto:CT-1")).toBeNull();
+    const stopped = runFrames({ durationS: 600, frame: () => ({ towerMode: "off", running: false }) });
+    expect(stopped.firstActivation("tower_fan_not_in_auto:CT-1")).toBeNull();
+  });
+});
+
+describe("starts per hour against the chiller record's limit", () => {
+  /** Runs 5 min, then stops for the rest of each period. */
+  const cycling = (periodS: number) => (tS: number) => ({ running: tS % periodS < 300 });
+
+  it("raises at the record's 4 starts an hour (common practice for large motors, recalled) and not below it", () => {
+    const r = runFrames({ durationS: 3500, frame: cycling(900) });
+    // Starts at 0 (running from the first reading, not an edge), 900, 1800, 2700 s: three in the hour.
+    expect(r.firstActivation("starts_per_hour:CH-1")).toBeNull();
+    const r2 = runFrames({ durationS: 3600, frame: cycling(700), keep: true });
+    // Rises at 700, 1400, 2100, 2800 s: the fourth start raises it.
+    expect(secondsOf(r2.firstActivation("starts_per_hour:CH-1"))).toBe(2800);
+    const c = r2.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "starts_per_hour")!;
+    expect(c.numbers.maxStartsPerHour).toBe(4);
+    expect(c.caution).toMatch(/do not shorten anti-recycle timers/);
+  });
+
+  it("takes the limit from the chiller's record", () => {
+    const r = runFrames({ site: withChillerLimits({ maxStartsPerHour: 6 }), durationS: 3600, frame: cycling(700) });
+    expect(r.firstActivation("starts_per_hour:CH-1")).toBeNull();
+  });
+});

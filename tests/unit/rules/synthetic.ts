@@ -50,7 +50,8 @@ export interface Frame {
   towerFault: boolean;
   fanSpeedPct: number;
   fanRunning: boolean;
-  towerSetpointC: number;
+  /** null: the site has no condenser-water setpoint point. */
+  towerSetpointC: number | null;
   /** Tower entering water (from the chiller); the tower's leaving water is cwInC. */
   towerInC: number;
   wetBulbC: number;
