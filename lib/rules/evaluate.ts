@@ -2,7 +2,8 @@
 
 import { asRefrigerant, limitsOf } from "@/lib/plant/equipment-limits";
 import { minStartMarginK } from "@/lib/plant/crossover";
-import { saturationPressureKPa, saturationTempC, type Refrigerant } from "@/lib/refrigerant";
+import { saturationPressureKPa } from "@/lib/refrigerant";
+import { cachedSaturationTempC } from "./saturation";
 import { computeSiteSnapshot, type ChillerHistoryInputs, type SiteSnapshot } from "@/lib/plant/snapshot";
 import type { Site } from "@/lib/plant/site";
 import { chillerTripped } from "./chiller-trip";
@@ -36,29 +37,6 @@ export const rules: Record<RuleId, Rule> = {
   tower_fan_not_in_auto: towerFanNotInAuto,
   starts_per_hour: startsPerHour,
 };
-
-const SATURATION_CACHE_SIZE = 20_000;
-const saturationCaches = new Map<string, Map<number, number>>();
-
-/**
- * `saturationTempC` for one refrigerant, remembered per pressure reading: the margin series
- * revisits every sample of the last hour at each evaluation, and each inversion is a Newton
- * solve (a 24 h replay spent most of its 1–3 minutes here). Cleared when full, so it stays small.
- */
-export function cachedSaturationTempC(refrigerant: Refrigerant): (kPa: number) => number {
-  let cache = saturationCaches.get(refrigerant);
-  if (!cache) saturationCaches.set(refrigerant, (cache = new Map()));
-  const memo = cache;
-  return (kPa) => {
-    let t = memo.get(kPa);
-    if (t === undefined) {
-      if (memo.size >= SATURATION_CACHE_SIZE) memo.clear();
-      t = saturationTempC(refrigerant, kPa);
-      memo.set(kPa, t);
-    }
-    return t;
-  };
-}
 
 /** The site's derived numbers at `nowMs`, including time to crossover and lockout from history. */
 export function snapshotFromHistory(

@@ -171,6 +171,14 @@ export const ruleSettingsSchema = z.strictObject({
       deadBandK: seconds.default(0.5),
       /** Suppressed by design while off and this long after a start, when evaporator pressure dips. */
       startupGraceS: seconds.default(5 * 60),
+      // The cut-out itself is the chiller record's `lowEvapTempCutoutC`.
+      /** Warn when the fitted fall reaches the cut-out within this (s): time to restore flow or raise the setpoint. */
+      warnTimeToTripS: positive.default(10 * 60),
+      /** Projections count only this close to the cut-out (K): a normal pull-down is far above it. */
+      watchWithinK: positive.default(4),
+      fitWindowS: positive.default(5 * 60),
+      /** A fall slower than this (K/min) is drift, not a trip coming. */
+      minFallKPerMin: positive.default(0.1),
     })
     .prefault({}),
 });

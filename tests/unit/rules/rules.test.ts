@@ -572,3 +572,35 @@ describe("starts per hour against the chiller record's limit", () => {
     expect(r.firstActivation("starts_per_hour:CH-1")).toBeNull();
   });
 });
+
+describe("low evaporator: projected to the chiller record's cut-out", () => {
+  // Saturated evaporating temperature falling 0.3 K/min from 5 °C toward the record's default 0.6 °C cut-out
+  // (33 °F, freeze protection for water — common practice): the cut-out comes at ≈ 880 s.
+  const falling = (derived: boolean) => (tS: number) => {
+    const satC = 5 - (0.3 / 60) * tS;
+    return { evapSatC: derived ? null : satC, evapKPa: saturationPressureKPa("R-134a", satC) };
+  };
+
+  it("warns about 10 min before the cut-out, not 2 min before it as the fixed 1.1 °C limit would", () => {
+    for (const derived of [false, true]) {
+      const r = runFrames({ durationS: 900, frame: falling(derived), keep: true });
+      const first = secondsOf(r.firstActivation("low_evaporator_pressure:CH-1"));
+      // 10 min before ≈ 280 s, plus the 15 s on-delay and the fit's first samples.
+      expect(first, `derived ${derived}`).toBeGreaterThanOrEqual(270);
+      expect(first!, `derived ${derived}`).toBeLessThanOrEqual(330);
+      const c = r.evaluations.find((e) => e.atMs === r.firstActivation("low_evaporator_pressure:CH-1"))!;
+      const cond = c.conditions.find((x) => x.ruleId === "low_evaporator_pressure")!;
+      expect(cond.numbers.cutoutC).toBeCloseTo(0.6, 1);
+      // Derived from pressure through the refrigerant's saturation curve: within 0.05 K of the read value.
+      expect(cond.numbers.evaporatorSaturatedC).toBeCloseTo(5 - (0.3 / 60) * secondsOf(c.atMs)!, 1);
+    }
+  });
+
+  it("quiet on a steady 3 °C evaporator", () => {
+    const r = runFrames({
+      durationS: 900,
+      frame: () => ({ evapSatC: 3, evapKPa: saturationPressureKPa("R-134a", 3) }),
+    });
+    expect(r.firstActivation("low_evaporator_pressure:CH-1")).toBeNull();
+  });
+});

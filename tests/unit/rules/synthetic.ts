@@ -36,7 +36,8 @@ export interface Frame {
   enabled: boolean;
   condKPa: number;
   evapKPa: number;
-  evapSatC: number;
+  /** null: the site reads no saturated temperature (the rules derive it from the pressure). */
+  evapSatC: number | null;
   condSatC: number;
   powerKw: number;
   driveC: number;
