@@ -14,6 +14,7 @@ export const ruleIds = [
   "low_evaporator_pressure",
   "tower_fan_not_in_auto",
   "starts_per_hour",
+  "pump_not_proven",
 ] as const;
 export type RuleId = (typeof ruleIds)[number];
 

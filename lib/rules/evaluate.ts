@@ -21,6 +21,7 @@ import type { RuleSettings } from "./settings";
 import { towerFanNotRunning } from "./tower-fan";
 import { towerFanNotInAuto } from "./fan-mode";
 import { startsPerHour } from "./starts-per-hour";
+import { pumpNotProven } from "./pump-proof";
 
 export const rules: Record<RuleId, Rule> = {
   crossover_risk: crossoverRisk,
@@ -36,6 +37,7 @@ export const rules: Record<RuleId, Rule> = {
   low_evaporator_pressure: lowEvaporatorPressure,
   tower_fan_not_in_auto: towerFanNotInAuto,
   starts_per_hour: startsPerHour,
+  pump_not_proven: pumpNotProven,
 };
 
 /** The site's derived numbers at `nowMs`, including time to crossover and lockout from history. */

@@ -96,6 +96,8 @@ export const ruleSettingsSchema = z.strictObject({
   towerFanMode: z.strictObject({ ...common(3, 120, 60) }).prefault({}),
   /** Starts in the last hour against the chiller record's `maxStartsPerHour`. */
   startsPerHour: z.strictObject({ ...common(3, 0, 300) }).prefault({}),
+  /** Pump commanded on but not proven; the 30 s on-delay is a flow-proof delay (common practice). */
+  pumpProof: z.strictObject({ ...common(2, 30, 30) }).prefault({}),
   headPressure: z
     .strictObject({
       ...common(2, 15, 60),

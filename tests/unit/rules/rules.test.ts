@@ -604,3 +604,26 @@ describe("low evaporator: projected to the chiller record's cut-out", () => {
     expect(r.firstActivation("low_evaporator_pressure:CH-1")).toBeNull();
   });
 });
+
+describe("pump commanded on but not proven (loss of flow at its source)", () => {
+  it("raises after the 30 s flow-proof delay (common practice) when the run is not proven or the drive faults", () => {
+    const r = runFrames({
+      durationS: 300,
+      frame: (tS) => ({ cwPumpCommand: true, cwPumpStatus: tS < 100, cwPumpFault: false }),
+      keep: true,
+    });
+    expect(secondsOf(r.firstActivation("pump_not_proven:CWP-1"))).toBe(130);
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "pump_not_proven")!;
+    expect(c.technicianMessage).toMatch(/serves CH-1/);
+    expect(c.caution).toMatch(/lockout\/tagout/);
+    const fault = runFrames({ durationS: 120, frame: () => ({ cwPumpCommand: true, cwPumpFault: true }) });
+    expect(fault.firstActivation("pump_not_proven:CWP-1")).not.toBeNull();
+  });
+
+  it("quiet when off as commanded, and when the site has no command point", () => {
+    const off = runFrames({ durationS: 120, frame: () => ({ cwPumpCommand: false, cwPumpStatus: false }) });
+    expect(off.firstActivation("pump_not_proven:CWP-1")).toBeNull();
+    const noCommand = runFrames({ durationS: 120, frame: () => ({ cwPumpStatus: false }) });
+    expect(noCommand.firstActivation("pump_not_proven:CWP-1")).toBeNull();
+  });
+});

@@ -56,6 +56,10 @@ export interface Frame {
   /** Tower entering water (from the chiller); the tower's leaving water is cwInC. */
   towerInC: number;
   wetBulbC: number;
+  /** Condenser pump: proven run, command (null: no such point), drive fault. */
+  cwPumpStatus: boolean;
+  cwPumpCommand: boolean | null;
+  cwPumpFault: boolean | null;
   /** Equipment that sends nothing this step. */
   silent: string[];
 }
@@ -79,6 +83,9 @@ export const normalFrame: Frame = {
   faultText: "",
   inhibitLeftS: 0,
   stopReason: null,
+  cwPumpStatus: true,
+  cwPumpCommand: null,
+  cwPumpFault: null,
   towerMode: "auto",
   towerFault: false,
   fanSpeedPct: 60,
@@ -119,7 +126,9 @@ export function readingsOf(tsMs: number, f: Frame): Reading[] {
   add("CT-1", "fan_speed", f.fanSpeedPct);
   add("CT-1", "fan_status", f.fanRunning);
   add("CHWP-1", "pump_status", true);
-  add("CWP-1", "pump_status", true);
+  add("CWP-1", "pump_status", f.cwPumpStatus);
+  add("CWP-1", "pump_run_command", f.cwPumpCommand);
+  add("CWP-1", "pump_fault", f.cwPumpFault);
   add("AHU-1", "run_status", true);
   add("WS-1", "outdoor_wet_bulb_temp", f.wetBulbC);
   return out;
