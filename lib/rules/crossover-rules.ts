@@ -134,10 +134,19 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
       : warnMarginK;
     const closingSoon = t !== null && t.timeToCrossoverS <= warnS && t.fittedMarginK <= projectWithinK;
     const smallAndClosing = t !== null && t.fittedMarginK <= smallMarginK;
+    // Whenever the restart race is lost (rule 2), the risk is up too, however wide the margin still is:
+    // a critical page never comes without the warning that explains it.
+    const raceLost =
+      !state.running &&
+      !onDemand(state) &&
+      t !== null &&
+      t.timeToCrossoverS < backOnLoadS(ctx, state) + (was ? race.deadBandS : 0);
     // Once raised, the risk stays up through the crossing itself; "loops crossed" then adds its alarm.
     const active =
       calledFor &&
-      (((closingSoon || smallAndClosing) && beforeRestart) || (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
+      (((closingSoon || smallAndClosing) && beforeRestart) ||
+        raceLost ||
+        (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
     const n: Record<string, number | null> = { ...crossoverNumbers(v), restartInS: state.restartInS };
     const when = n.timeToCrossoverS !== null ? `in about ${formatDuration(n.timeToCrossoverS)}` : "soon";
     const band = t
