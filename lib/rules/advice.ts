@@ -2,12 +2,16 @@
 // (keep the condenser water up, take load off) harms as the restart nears (the compressor then
 // needs heat rejection), so each step depends on where the chiller is, and says why in one line.
 
+import type { ChillerStopReason } from "@/lib/quantities";
+
 export interface ChillerState {
   running: boolean;
   /** Seconds until the chiller can start (anti-recycle timers, a reset); null when no one knows (held). */
   restartInS: number | null;
-  /** Held off by a latched alarm or a drive fault: a person must reset it. */
+  /** Held off until a person acts: a latched trip to reset, or a chiller stopped by hand. */
   held: boolean;
+  /** What the controller reports holds it off (`chiller_stop_reason`), when the site has that point. */
+  stopReason?: ChillerStopReason | null;
   /** Seconds since the last start, when running. */
   sinceStartS: number | null;
 }
@@ -31,6 +35,8 @@ const WATCH_DRIVE =
   "After the restart, watch the drive temperature for the first minutes on load — with little liquid in the condenser the motor and drive are poorly cooled; unload if it climbs.";
 const RESET_HELD =
   "The chiller will not restart until its alarm is reset: read the fault log and clear the cause first; a mechanical high-pressure cut-out may need a hand reset at the device, so someone may need to go to site.";
+const MANUAL_HELD =
+  "The chiller was stopped by hand: it will not restart until someone enables it again — find out who stopped it and why before enabling it.";
 const RAISE_LIFT =
   "Hold the condenser water up: raise the tower setpoint or the fan's minimum, open the tower bypass where there is one — the chiller's pressure difference falls with the condenser water.";
 
@@ -43,7 +49,7 @@ export function crossoverAdvice(state: ChillerState, restartNearS: number, watch
   const near = !state.held && state.restartInS !== null && state.restartInS <= restartNearS;
   if (near) return [RESTORE_FAN, FAN_LOCKOUT_CHECK, WATCH_DRIVE];
   const steps = [HOLD_CONDENSER_WATER_UP, SHED_LOAD];
-  if (state.held) steps.push(RESET_HELD);
+  if (state.held) steps.push(state.stopReason === "manual" ? MANUAL_HELD : RESET_HELD);
   steps.push(
     "If the restart will still come too late, shorten the anti-recycle timers only within the manufacturer's limits and under supervision, and put them back afterwards.",
   );

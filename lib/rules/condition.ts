@@ -12,6 +12,9 @@ export const ruleIds = [
   "comm_lost",
   "efficiency_drift",
   "low_evaporator_pressure",
+  "tower_fan_not_in_auto",
+  "starts_per_hour",
+  "pump_not_proven",
 ] as const;
 export type RuleId = (typeof ruleIds)[number];
 

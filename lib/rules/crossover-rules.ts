@@ -15,6 +15,7 @@ import { bool, chillerCalledFor, chillersOf, num, str, type RuleContext } from "
 import { formatDuration } from "@/lib/units";
 import { fmtDelta, fmtPressure, fmtRate } from "./format";
 import { makeCondition } from "./make-condition";
+import { chillerStopReasons, type ChillerStopReason } from "@/lib/quantities";
 
 function chillerView(ctx: RuleContext, chiller: Equipment): ChillerSnapshot | undefined {
   return ctx.snapshot.chillers.find((c) => c.tag === chiller.tag);
@@ -64,18 +65,36 @@ function crossoverNumbers(s: ChillerSnapshot): Record<string, number | null> {
 export function chillerState(ctx: RuleContext, chiller: Equipment, v: ChillerSnapshot): ChillerState {
   const s = ctx.settings.restartRace;
   const running = v.running === true;
-  // A latched alarm or a drive fault holds the compressor off until a person resets it; a chiller
-  // stopped on low load or by its schedule restarts by itself once its timers allow.
-  const held = bool(ctx, chiller.tag, "chiller_alarm") === true || bool(ctx, chiller.tag, "drive_fault") === true;
+  // The controller's stop reason says what holds the compressor off: a trip is latched until a
+  // person resets it (so is a chiller stopped by hand); a safety resets itself once its cause
+  // clears; low load and the schedule restart by themselves when the timers allow. Without that
+  // point, a latched alarm or a drive fault is taken as held.
+  const reason = stopReasonOf(str(ctx, chiller.tag, "chiller_stop_reason"));
+  const held =
+    !running &&
+    (reason !== null
+      ? reason === "trip" || reason === "manual"
+      : bool(ctx, chiller.tag, "chiller_alarm") === true || bool(ctx, chiller.tag, "drive_fault") === true);
   const lockoutS = v.lockout.lockoutLeftS;
   const startMs = lastEdgeMs(ctx.history.edges(chiller.tag, "run_status", ctx.nowMs).rises);
   return {
     running,
     held,
+    stopReason: running ? "running" : reason,
     restartInS: running ? 0 : held ? Math.max(lockoutS, s.resetAllowanceS) : lockoutS,
     sinceStartS: running && startMs !== null ? (ctx.nowMs - startMs) / 1000 : null,
   };
 }
+
+const stopReasonOf = (v: string | null): ChillerStopReason | null =>
+  v !== null && (chillerStopReasons as readonly string[]).includes(v) ? (v as ChillerStopReason) : null;
+
+/** Stopped on low load or by its schedule with its timers run out: it starts when the load calls for it. */
+export const onDemand = (state: ChillerState): boolean =>
+  !state.running &&
+  !state.held &&
+  (state.stopReason === "low_load" || state.stopReason === "schedule") &&
+  (state.restartInS ?? 0) <= 0;
 
 /** Seconds until a stopped chiller could be back on load (start, then soft-load). */
 export function backOnLoadS(ctx: RuleContext, state: ChillerState): number {
@@ -101,15 +120,33 @@ export function crossoverRisk(ctx: RuleContext): Condition[] {
     const state = chillerState(ctx, chiller, v);
     // A stopped chiller that will restart by itself is at risk only if the margin closes before it
     // can be back on load (plus time for someone to act): the normal stop-to-start after a blip is not.
+    // One stopped on low load or its schedule with its timers run out starts as soon as the chilled
+    // water calls for it — the same warming that closes the margin — so only a margin already a dead
+    // band below the start margin is a risk there (a start a little under it normally still loads).
     const selfRestartS = !state.running && !state.held ? backOnLoadS(ctx, state) + race.reactionAllowanceS : null;
     const beforeRestart =
-      selfRestartS === null || (t !== null && t.timeToCrossoverS <= selfRestartS + (was ? s.timeDeadBandS : 0));
-    const closingSoon = t !== null && t.timeToCrossoverS <= warnS && t.fittedMarginK <= warnMarginK;
+      selfRestartS === null ||
+      (onDemand(state)
+        ? t !== null && t.fittedMarginK <= (was ? 0 : -s.marginDeadBandK)
+        : t !== null && t.timeToCrossoverS <= selfRestartS + (was ? s.timeDeadBandS : 0));
+    const projectWithinK = state.running
+      ? Math.min(warnMarginK, s.runningWarnMarginK + (was ? s.marginDeadBandK : 0))
+      : warnMarginK;
+    const closingSoon = t !== null && t.timeToCrossoverS <= warnS && t.fittedMarginK <= projectWithinK;
     const smallAndClosing = t !== null && t.fittedMarginK <= smallMarginK;
+    // Whenever the restart race is lost (rule 2), the risk is up too, however wide the margin still is:
+    // a critical page never comes without the warning that explains it.
+    const raceLost =
+      !state.running &&
+      !onDemand(state) &&
+      t !== null &&
+      t.timeToCrossoverS < backOnLoadS(ctx, state) + (was ? race.deadBandS : 0);
     // Once raised, the risk stays up through the crossing itself; "loops crossed" then adds its alarm.
     const active =
       calledFor &&
-      (((closingSoon || smallAndClosing) && beforeRestart) || (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
+      (((closingSoon || smallAndClosing) && beforeRestart) ||
+        raceLost ||
+        (was && (crossed || (v.crossoverMarginK ?? 1) <= 0)));
     const n: Record<string, number | null> = { ...crossoverNumbers(v), restartInS: state.restartInS };
     const when = n.timeToCrossoverS !== null ? `in about ${formatDuration(n.timeToCrossoverS)}` : "soon";
     const band = t
@@ -149,12 +186,19 @@ export function restartRace(ctx: RuleContext): Condition[] {
     const was = ctx.wasActive("restart_race", chiller.tag);
     const lockoutS = v.lockout.lockoutLeftS;
     const state = chillerState(ctx, chiller, v);
+    // A chiller waiting only for load has no timer to race: it starts when the chilled water calls
+    // (crossover_risk and loops_crossed still watch its margin).
     const neededS = backOnLoadS(ctx, state);
     const off = v.running === false;
     const ttcS = closing ? closing.timeToCrossoverS : crossed ? 0 : null;
     const latchedText = state.held ? str(ctx, chiller.tag, "fault_text") : null;
     // The race is lost when the margin reaches what a start needs before the compressor can be back on load.
-    const active = off && chillerCalledFor(ctx, chiller) && ttcS !== null && ttcS < neededS + (was ? s.deadBandS : 0);
+    const active =
+      off &&
+      !onDemand(state) &&
+      chillerCalledFor(ctx, chiller) &&
+      ttcS !== null &&
+      ttcS < neededS + (was ? s.deadBandS : 0);
     const n = {
       ...crossoverNumbers(v),
       compressorLoadS: s.compressorLoadS,
@@ -163,7 +207,7 @@ export function restartRace(ctx: RuleContext): Condition[] {
       latchedAlarm: Number(state.held),
     };
     const held = state.held
-      ? `is held off${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} until someone resets it (anti-recycle ${formatDuration(lockoutS)} left; ${formatDuration(s.resetAllowanceS)} allowed to reach and reset it)`
+      ? `is held off${latchedText && latchedText !== "none" ? ` ("${latchedText}")` : ""} until someone ${state.stopReason === "manual" ? "enables it again" : "resets it"} (anti-recycle ${formatDuration(lockoutS)} left; ${formatDuration(s.resetAllowanceS)} allowed to reach and reset it)`
       : `is off and locked out for ${formatDuration(lockoutS)} more`;
     return [
       makeCondition({

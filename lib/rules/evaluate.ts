@@ -2,7 +2,8 @@
 
 import { asRefrigerant, limitsOf } from "@/lib/plant/equipment-limits";
 import { minStartMarginK } from "@/lib/plant/crossover";
-import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
+import { saturationPressureKPa } from "@/lib/refrigerant";
+import { cachedSaturationTempC } from "./saturation";
 import { computeSiteSnapshot, type ChillerHistoryInputs, type SiteSnapshot } from "@/lib/plant/snapshot";
 import type { Site } from "@/lib/plant/site";
 import { chillerTripped } from "./chiller-trip";
@@ -18,6 +19,9 @@ import { lowEvaporatorPressure } from "./low-evaporator-pressure";
 import { powerEventSuspected } from "./power-event";
 import type { RuleSettings } from "./settings";
 import { towerFanNotRunning } from "./tower-fan";
+import { towerFanNotInAuto } from "./fan-mode";
+import { startsPerHour } from "./starts-per-hour";
+import { pumpNotProven } from "./pump-proof";
 
 export const rules: Record<RuleId, Rule> = {
   crossover_risk: crossoverRisk,
@@ -31,6 +35,9 @@ export const rules: Record<RuleId, Rule> = {
   comm_lost: commLost,
   efficiency_drift: efficiencyDrift,
   low_evaporator_pressure: lowEvaporatorPressure,
+  tower_fan_not_in_auto: towerFanNotInAuto,
+  starts_per_hour: startsPerHour,
+  pump_not_proven: pumpNotProven,
 };
 
 /** The site's derived numbers at `nowMs`, including time to crossover and lockout from history. */
@@ -57,25 +64,32 @@ export function snapshotFromHistory(
     const lastStopMs = lastEdgeMs(edges.falls);
     // A start or stop changes how the loops move; fit only the margin since then.
     const lastChangeMs = Math.max(lastStartMs ?? -Infinity, lastStopMs ?? -Infinity);
-    const sinceChangeS = Math.max(0, (nowMs - lastChangeMs) / 1000);
+    const settleS = lastStopMs !== null && lastStopMs === lastChangeMs ? c.stopSettleS : 0;
+    const sinceChangeS = Math.max(0, (nowMs - lastChangeMs) / 1000 - settleS);
     // The shells' pressures read the crossover most directly (running: the lift; stopped: each
     // shell's saturation); the water margin stands in when the site has no such points.
     const refrigerant = asRefrigerant(chiller.refrigerant) ?? "R-134a";
-    const satTempC = (kPa: number) => saturationTempC(refrigerant, kPa);
+    const satTempC = cachedSaturationTempC(refrigerant);
     const evapKPa = num(probe, chiller.tag, "evaporator_refrigerant_pressure");
     const condKPa = num(probe, chiller.tag, "condenser_refrigerant_pressure");
     const chwC = num(probe, chiller.tag, "chilled_water_entering_temp");
     const basis = evapKPa !== null && condKPa !== null ? "refrigerant" : "water";
     const baseKPa = evapKPa ?? (chwC !== null ? saturationPressureKPa(refrigerant, chwC) : null);
     const startMarginK = baseKPa !== null ? minStartMarginK(satTempC, baseKPa, limitsOf(chiller).minStartLiftKPa) : 0;
-    const series = (windowS: number) =>
-      (basis === "refrigerant"
-        ? refrigerantMarginSeries(probe, chiller, windowS, satTempC)
-        : marginSeries(probe, chiller, windowS)
-      ).map((p) => ({ tsMs: p.tsMs, value: p.value - startMarginK }));
+    // One walk over the longer window; the shorter one is its tail.
+    const longS = Math.min(Math.max(c.fitWindowS, c.slowFitWindowS), sinceChangeS);
+    const long = (
+      basis === "refrigerant"
+        ? refrigerantMarginSeries(probe, chiller, longS, satTempC)
+        : marginSeries(probe, chiller, longS)
+    ).map((p) => ({ tsMs: p.tsMs, value: p.value - startMarginK }));
+    const tail = (windowS: number) => {
+      const fromMs = nowMs - Math.min(windowS, sinceChangeS) * 1000;
+      return long.filter((p) => p.tsMs >= fromMs);
+    };
     perChiller[chiller.tag] = {
-      marginSamples: series(Math.min(c.fitWindowS, sinceChangeS)),
-      slowMarginSamples: series(Math.min(c.slowFitWindowS, sinceChangeS)),
+      marginSamples: tail(c.fitWindowS),
+      slowMarginSamples: tail(c.slowFitWindowS),
       lastStartMs,
       lastStopMs,
       marginBasis: basis,

@@ -32,9 +32,14 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
     const was = ctx.wasActive("head_pressure_near_trip", chiller.tag);
     const slackKPa = was ? s.deadBandKPa : 0;
     const toTrip = fit && pKPa < tripKPa ? projectToValue(fit, tripKPa) : null;
-    const rising = (riseKPaPerMin ?? 0) >= (was ? 0 : s.minRiseKPaPerMin);
+    // Once raised it returns to normal only when clearly so (ISA-18.2 dead band): back out of the watch
+    // band, or falling at the rise rate. A controller holding or unloading near its cut-out keeps the
+    // pressure at the projection's edge — still at its limit, and a warning that cleared and returned
+    // there would chatter.
+    const rising = (riseKPaPerMin ?? 0) >= s.minRiseKPaPerMin;
+    const falling = (riseKPaPerMin ?? 0) <= -s.minRiseKPaPerMin;
     const watched = pKPa >= tripKPa - s.watchWithinKPa - slackKPa && !starting;
-    const soon = watched && rising && toTrip !== null && toTrip.timeS <= s.warnTimeToTripS + (was ? 120 : 0);
+    const soon = watched && (was ? !falling : rising && toTrip !== null && toTrip.timeS <= s.warnTimeToTripS);
     const atLimit = pKPa >= tripKPa - s.warnWithinKPa - slackKPa;
     const active = running && (soon || atLimit);
     const rate = riseKPaPerMin !== null ? `, rising ${riseKPaPerMin.toFixed(1)} kPa/min` : "";

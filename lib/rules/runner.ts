@@ -25,6 +25,9 @@ const ruleSettingKey: Record<Condition["ruleId"], keyof RuleSettings> = {
   comm_lost: "commLost",
   efficiency_drift: "efficiencyDrift",
   low_evaporator_pressure: "lowEvaporatorPressure",
+  tower_fan_not_in_auto: "towerFanMode",
+  starts_per_hour: "startsPerHour",
+  pump_not_proven: "pumpProof",
 };
 
 export function delaysFor(

@@ -43,6 +43,17 @@ export const ruleSettingsSchema = z.strictObject({
       slowMinClosingRateKPerMin: positive.default(0.005),
       /** A margin this small that is closing at all (either fit) is a risk whatever the projected time (K). */
       smallMarginK: positive.default(3),
+      /**
+       * A running chiller's projection counts only within this margin of the minimum (K): its lift
+       * swings by several kelvin with load and staging (another chiller starting halves its load while
+       * the tower catches up), and it is guarded by its own low-lift safety.
+       */
+      runningWarnMarginK: positive.default(5),
+      /**
+       * After a stop the fit waits this long (s): the shells' pressures fall from the running lift to
+       * their waters' saturation in a minute or two, and that collapse is not the loops closing.
+       */
+      stopSettleS: seconds.default(180),
     })
     .prefault({}),
   restartRace: z
@@ -81,6 +92,12 @@ export const ruleSettingsSchema = z.strictObject({
       commandedAtPct: z.number().min(0).max(100).default(5),
     })
     .prefault({}),
+  /** Fan drive in off or hand while a chiller it serves runs: this shift's job, before the water shows it. */
+  towerFanMode: z.strictObject({ ...common(3, 120, 60) }).prefault({}),
+  /** Starts in the last hour against the chiller record's `maxStartsPerHour`. */
+  startsPerHour: z.strictObject({ ...common(3, 0, 300) }).prefault({}),
+  /** Pump commanded on but not proven; the 30 s on-delay is a flow-proof delay (common practice). */
+  pumpProof: z.strictObject({ ...common(2, 30, 30) }).prefault({}),
   headPressure: z
     .strictObject({
       ...common(2, 15, 60),
@@ -156,6 +173,14 @@ export const ruleSettingsSchema = z.strictObject({
       deadBandK: seconds.default(0.5),
       /** Suppressed by design while off and this long after a start, when evaporator pressure dips. */
       startupGraceS: seconds.default(5 * 60),
+      // The cut-out itself is the chiller record's `lowEvapTempCutoutC`.
+      /** Warn when the fitted fall reaches the cut-out within this (s): time to restore flow or raise the setpoint. */
+      warnTimeToTripS: positive.default(10 * 60),
+      /** Projections count only this close to the cut-out (K): a normal pull-down is far above it. */
+      watchWithinK: positive.default(4),
+      fitWindowS: positive.default(5 * 60),
+      /** A fall slower than this (K/min) is drift, not a trip coming. */
+      minFallKPerMin: positive.default(0.1),
     })
     .prefault({}),
 });

@@ -5,6 +5,7 @@ import { equipmentOf, getScenario, runScenario, siteLayouts, type SiteLayout } f
 import type { Site } from "@/lib/plant";
 import { createSiteMonitor, defaultRuleSettings, type Condition, type RuleSettings } from "@/lib/rules";
 import type { TransitionRecord } from "@/lib/alarms";
+import { limitsOf } from "@/lib/plant/equipment-limits";
 
 export const REPLAY_START_MS = Date.UTC(2025, 6, 1, 14, 0, 0);
 
@@ -26,7 +27,10 @@ export interface ChillerReplay {
   crossedAtMs: number | null;
   /** The condition of a rule the first time its alarm was raised, by rule id. */
   firstRaised: Map<string, { atMs: number; condition: Condition | undefined }>;
-  /** Raw conditions of `restart_race` and `loops_crossed` while the chiller ran (for "no critical while running"). */
+  /**
+   * Evaluations at which a priority-1 alarm of this chiller was active while it ran with its condenser −
+   * evaporator pressure difference at or above its record's minimum (for "no critical while running above it").
+   */
   criticalWhileRunning: number;
 }
 
@@ -49,7 +53,10 @@ export function replay(
   const wall0 = performance.now();
   const monitor = createSiteMonitor({ site, settings: opts.settings ?? defaultRuleSettings });
   const transitions: TransitionRecord[] = [];
-  const water = new Map<string, { cw?: number; chw?: number; running?: boolean; enabled?: boolean }>();
+  const water = new Map<
+    string,
+    { cw?: number; chw?: number; running?: boolean; enabled?: boolean; condKPa?: number; evapKPa?: number }
+  >();
   const chillers = new Map<string, ChillerReplay>();
   for (const c of layout.chillers)
     chillers.set(c.tag, { crossedAtMs: null, firstRaised: new Map(), criticalWhileRunning: 0 });
@@ -68,6 +75,8 @@ export function replay(
       if (r.quantity === "chilled_water_entering_temp") w.chw = r.value as number;
       if (r.quantity === "run_status") w.running = r.value as boolean;
       if (r.quantity === "run_enable_command") w.enabled = r.value as boolean;
+      if (r.quantity === "condenser_refrigerant_pressure") w.condKPa = r.value as number;
+      if (r.quantity === "evaporator_refrigerant_pressure") w.evapKPa = r.value as number;
       water.set(r.equipment, w);
     }
     for (const [tag, w] of water) {
@@ -96,8 +105,11 @@ export function replay(
     }
     for (const cond of ev.conditions) {
       const c = chillers.get(cond.equipment);
-      if (c && cond.active && cond.priority === 1 && water.get(cond.equipment)?.running === true)
-        c.criticalWhileRunning++;
+      if (!c) continue;
+      const w = water.get(cond.equipment);
+      const minKPa = limitsOf(site.find((e) => e.tag === cond.equipment)!).minStartLiftKPa;
+      const aboveMin = w?.condKPa !== undefined && w.evapKPa !== undefined ? w.condKPa - w.evapKPa >= minKPa : true;
+      if (cond.active && cond.priority === 1 && w?.running === true && aboveMin) c.criticalWhileRunning++;
     }
   }
   return {

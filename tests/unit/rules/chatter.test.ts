@@ -65,3 +65,29 @@ describe("no chatter at a limit", () => {
     expect(bare.activations("low_evaporator_pressure:CH-1")).toBeGreaterThan(5);
   });
 });
+
+describe("head pressure held at the warning's edge (ISA-18.2 dead band on the projected-time warning)", () => {
+  // Rises 10 kPa/min from 950 kPa (warned ≈ 10 min before the 1204.5 kPa cut-out), then the controller holds
+  // it near 1145 kPa, creeping 0–1 kPa/min with ± 3 kPa noise — the projection drifts past 10 min and back.
+  const heldAtEdge = (tS: number): Partial<Frame> => ({
+    condKPa:
+      tS < 1170
+        ? 950 + (10 / 60) * tS
+        : 1145 + (0.5 / 60) * (tS - 1170) * (1 + Math.sin((tS - 1170) / 300)) + 3 * noise(tS / 10),
+  });
+
+  it("raises once and stays up through the hold", () => {
+    const r = runFrames({ durationS: 3600, frame: heldAtEdge });
+    expect(r.activations("head_pressure_near_trip:CH-1")).toBe(1);
+  });
+
+  it("clears once the pressure clearly falls", () => {
+    const r = runFrames({
+      durationS: 2400,
+      frame: (tS) => (tS < 1500 ? heldAtEdge(tS) : { condKPa: 1145 - (5 / 60) * (tS - 1500) }),
+      keep: true,
+    });
+    const last = r.evaluations.at(-1)!.conditions.find((c) => c.ruleId === "head_pressure_near_trip")!;
+    expect(last.active).toBe(false);
+  });
+});

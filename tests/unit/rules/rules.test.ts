@@ -35,9 +35,12 @@ describe("crossover risk (rule 1)", () => {
     const r = runFrames({ site: zeroLift, durationS: 3000, frame: (tS) => ({ ...closingOff()(tS), ...tripped }) });
     const first = secondsOf(r.firstActivation("crossover_risk:CH-1"));
     expect(first).not.toBeNull();
-    // ttc ≤ 1800 s from t ≈ 560 s; plus the 30 s on-delay.
-    expect(first!).toBeGreaterThanOrEqual(crossingS - 1800);
-    expect(first!).toBeLessThanOrEqual(crossingS - 1800 + 60);
+    // Held by its trip, the chiller is back on load at the earliest after the 1800 s reset allowance + 300 s to
+    // load: the restart race is lost once ttc < 2100 s (t ≈ 260 s), sooner than the 30 min horizon, and the
+    // warning rises with it (plus its 30 s on-delay) so a critical page never comes without it.
+    expect(first!).toBeGreaterThanOrEqual(crossingS - 2100);
+    expect(first!).toBeLessThanOrEqual(crossingS - 2100 + 60);
+    expect(secondsOf(r.firstActivation("restart_race:CH-1"))!).toBeLessThanOrEqual(first!);
     expect(crossingS - first!).toBeGreaterThanOrEqual(600);
     expect(r.activations("crossover_risk:CH-1")).toBe(1);
   });
@@ -159,6 +162,62 @@ describe("restart race (rule 2)", () => {
     const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "restart_race")!;
     expect(c.technicianMessage).toMatch(/held off.*until someone resets it/);
     expect(c.advice.join(" ")).toMatch(/hand reset at the device/);
+  });
+
+  it("reads the controller's stop reason: a trip is latched (waits for a reset), a safety resets itself", () => {
+    // Trip reported with no latched-alarm point: held, so the 30 min reset allowance counts (race from ≈ 260 s,
+    // as above).
+    const trip = runFrames({
+      site: zeroLift,
+      durationS: 900,
+      frame: (tS) => ({ ...closingOff(() => 0)(tS), stopReason: "trip" }),
+      keep: true,
+    });
+    const tripFirst = secondsOf(trip.firstActivation("restart_race:CH-1"));
+    expect(tripFirst).not.toBeNull();
+    expect(tripFirst!).toBeLessThanOrEqual(280);
+    expect(trip.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "restart_race")!.numbers.latchedAlarm).toBe(1);
+    // A drive fault with the controller reporting a safety stop: it restarts by itself when the 60 s timer
+    // allows, so no race until the crossing is within the time to load (as for a plain lockout).
+    const safety = runFrames({
+      site: zeroLift,
+      durationS: 3000,
+      frame: (tS) => ({ ...closingOff((t) => Math.max(0, 60 - t))(tS), driveFault: true, stopReason: "safety" }),
+    });
+    const first = secondsOf(safety.firstActivation("restart_race:CH-1"));
+    expect(first).not.toBeNull();
+    expect(first!).toBeGreaterThan(crossingS - 400);
+    // Stopped on low load or by the schedule with its timers run out, it starts when the load calls: there is
+    // no timer to race, so no critical race alarm at all (the crossing itself is loops_crossed's).
+    for (const stopReason of ["low_load", "schedule"]) {
+      const auto = runFrames({
+        site: zeroLift,
+        durationS: 3000,
+        frame: (tS) => ({ ...closingOff((t) => Math.max(0, 60 - t))(tS), stopReason }),
+      });
+      expect(auto.firstActivation("restart_race:CH-1"), stopReason).toBeNull();
+      expect(auto.firstActivation("loops_crossed:CH-1"), stopReason).not.toBeNull();
+    }
+    // Without the stop-reason point the same drive fault is taken as held.
+    const noPoint = runFrames({
+      site: zeroLift,
+      durationS: 900,
+      frame: (tS) => ({ ...closingOff((t) => Math.max(0, 60 - t))(tS), driveFault: true }),
+    });
+    expect(secondsOf(noPoint.firstActivation("restart_race:CH-1"))!).toBeLessThanOrEqual(280);
+  });
+
+  it("a chiller stopped by hand waits for someone to enable it: says so instead of a reset", () => {
+    const r = runFrames({
+      site: zeroLift,
+      durationS: 900,
+      frame: (tS) => ({ ...closingOff(() => 0)(tS), stopReason: "manual" }),
+      keep: true,
+    });
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "restart_race")!;
+    expect(c.active).toBe(true);
+    expect(c.technicianMessage).toMatch(/until someone enables it again/);
+    expect(c.advice.join(" ")).toMatch(/stopped by hand/);
   });
 
   it("does not fire while the chiller runs", () => {
@@ -466,5 +525,108 @@ describe("a normal running plant", () => {
       frame: (tS) => ({ chwInC: 12.2 + 0.2 * Math.sin(tS / 300), condKPa: 900 + 10 * Math.sin(tS / 200) }),
     });
     expect(r.transitions.filter((t) => t.to === "unacknowledged")).toEqual([]);
+  });
+});
+
+describe("tower fan drive out of auto while the plant runs", () => {
+  it("off or hand while the chiller runs, whatever the water temperature and with or without a setpoint point", () => {
+    // Condenser water well below its setpoint: the temperature rule stays quiet; the mode rule does not.
+    for (const towerMode of ["off", "hand"] as const) {
+      const r = runFrames({
+        durationS: 600,
+        frame: () => ({ towerMode, fanRunning: towerMode === "hand", cwInC: 24 }),
+      });
+      expect(r.firstActivation("tower_fan_not_running:CT-1"), towerMode).toBeNull();
+      // 120 s on-delay: a drive switched through off on its way to auto is not an alarm.
+      expect(secondsOf(r.firstActivation("tower_fan_not_in_auto:CT-1")), towerMode).toBe(120);
+    }
+    const noSetpoint = runFrames({
+      durationS: 600,
+      frame: () => ({ towerMode: "off", fanRunning: false, towerSetpointC: null }),
+    });
+    expect(noSetpoint.firstActivation("tower_fan_not_in_auto:CT-1")).not.toBeNull();
+  });
+
+  it("quiet in auto, and quiet with the drive off while no chiller runs (holding the condenser water up)", () => {
+    expect(runFrames({ durationS: 600, frame: () => ({}) }).firstActivation("tower_fan_not_in_auto:CT-1")).toBeNull();
+    const stopped = runFrames({ durationS: 600, frame: () => ({ towerMode: "off", running: false }) });
+    expect(stopped.firstActivation("tower_fan_not_in_auto:CT-1")).toBeNull();
+  });
+});
+
+describe("starts per hour against the chiller record's limit", () => {
+  /** Runs 5 min, then stops for the rest of each period. */
+  const cycling = (periodS: number) => (tS: number) => ({ running: tS % periodS < 300 });
+
+  it("raises at the record's 4 starts an hour (common practice for large motors, recalled) and not below it", () => {
+    const r = runFrames({ durationS: 3500, frame: cycling(900) });
+    // Starts at 0 (running from the first reading, not an edge), 900, 1800, 2700 s: three in the hour.
+    expect(r.firstActivation("starts_per_hour:CH-1")).toBeNull();
+    const r2 = runFrames({ durationS: 3600, frame: cycling(700), keep: true });
+    // Rises at 700, 1400, 2100, 2800 s: the fourth start raises it.
+    expect(secondsOf(r2.firstActivation("starts_per_hour:CH-1"))).toBe(2800);
+    const c = r2.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "starts_per_hour")!;
+    expect(c.numbers.maxStartsPerHour).toBe(4);
+    expect(c.caution).toMatch(/do not shorten anti-recycle timers/);
+  });
+
+  it("takes the limit from the chiller's record", () => {
+    const r = runFrames({ site: withChillerLimits({ maxStartsPerHour: 6 }), durationS: 3600, frame: cycling(700) });
+    expect(r.firstActivation("starts_per_hour:CH-1")).toBeNull();
+  });
+});
+
+describe("low evaporator: projected to the chiller record's cut-out", () => {
+  // Saturated evaporating temperature falling 0.3 K/min from 5 °C toward the record's default 0.6 °C cut-out
+  // (33 °F, freeze protection for water — common practice): the cut-out comes at ≈ 880 s.
+  const falling = (derived: boolean) => (tS: number) => {
+    const satC = 5 - (0.3 / 60) * tS;
+    return { evapSatC: derived ? null : satC, evapKPa: saturationPressureKPa("R-134a", satC) };
+  };
+
+  it("warns about 10 min before the cut-out, not 2 min before it as the fixed 1.1 °C limit would", () => {
+    for (const derived of [false, true]) {
+      const r = runFrames({ durationS: 900, frame: falling(derived), keep: true });
+      const first = secondsOf(r.firstActivation("low_evaporator_pressure:CH-1"));
+      // 10 min before ≈ 280 s, plus the 15 s on-delay and the fit's first samples.
+      expect(first, `derived ${derived}`).toBeGreaterThanOrEqual(270);
+      expect(first!, `derived ${derived}`).toBeLessThanOrEqual(330);
+      const c = r.evaluations.find((e) => e.atMs === r.firstActivation("low_evaporator_pressure:CH-1"))!;
+      const cond = c.conditions.find((x) => x.ruleId === "low_evaporator_pressure")!;
+      expect(cond.numbers.cutoutC).toBeCloseTo(0.6, 1);
+      // Derived from pressure through the refrigerant's saturation curve: within 0.05 K of the read value.
+      expect(cond.numbers.evaporatorSaturatedC).toBeCloseTo(5 - (0.3 / 60) * secondsOf(c.atMs)!, 1);
+    }
+  });
+
+  it("quiet on a steady 3 °C evaporator", () => {
+    const r = runFrames({
+      durationS: 900,
+      frame: () => ({ evapSatC: 3, evapKPa: saturationPressureKPa("R-134a", 3) }),
+    });
+    expect(r.firstActivation("low_evaporator_pressure:CH-1")).toBeNull();
+  });
+});
+
+describe("pump commanded on but not proven (loss of flow at its source)", () => {
+  it("raises after the 30 s flow-proof delay (common practice) when the run is not proven or the drive faults", () => {
+    const r = runFrames({
+      durationS: 300,
+      frame: (tS) => ({ cwPumpCommand: true, cwPumpStatus: tS < 100, cwPumpFault: false }),
+      keep: true,
+    });
+    expect(secondsOf(r.firstActivation("pump_not_proven:CWP-1"))).toBe(130);
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "pump_not_proven")!;
+    expect(c.technicianMessage).toMatch(/serves CH-1/);
+    expect(c.caution).toMatch(/lockout\/tagout/);
+    const fault = runFrames({ durationS: 120, frame: () => ({ cwPumpCommand: true, cwPumpFault: true }) });
+    expect(fault.firstActivation("pump_not_proven:CWP-1")).not.toBeNull();
+  });
+
+  it("quiet when off as commanded, and when the site has no command point", () => {
+    const off = runFrames({ durationS: 120, frame: () => ({ cwPumpCommand: false, cwPumpStatus: false }) });
+    expect(off.firstActivation("pump_not_proven:CWP-1")).toBeNull();
+    const noCommand = runFrames({ durationS: 120, frame: () => ({ cwPumpStatus: false }) });
+    expect(noCommand.firstActivation("pump_not_proven:CWP-1")).toBeNull();
   });
 });

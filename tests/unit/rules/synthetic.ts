@@ -36,7 +36,8 @@ export interface Frame {
   enabled: boolean;
   condKPa: number;
   evapKPa: number;
-  evapSatC: number;
+  /** null: the site reads no saturated temperature (the rules derive it from the pressure). */
+  evapSatC: number | null;
   condSatC: number;
   powerKw: number;
   driveC: number;
@@ -44,14 +45,21 @@ export interface Frame {
   chillerAlarm: boolean;
   faultText: string;
   inhibitLeftS: number | null;
+  /** The controller's `chiller_stop_reason`; null: the site has no such point. */
+  stopReason: string | null;
   towerMode: "auto" | "off" | "hand";
   towerFault: boolean;
   fanSpeedPct: number;
   fanRunning: boolean;
-  towerSetpointC: number;
+  /** null: the site has no condenser-water setpoint point. */
+  towerSetpointC: number | null;
   /** Tower entering water (from the chiller); the tower's leaving water is cwInC. */
   towerInC: number;
   wetBulbC: number;
+  /** Condenser pump: proven run, command (null: no such point), drive fault. */
+  cwPumpStatus: boolean;
+  cwPumpCommand: boolean | null;
+  cwPumpFault: boolean | null;
   /** Equipment that sends nothing this step. */
   silent: string[];
 }
@@ -74,6 +82,10 @@ export const normalFrame: Frame = {
   chillerAlarm: false,
   faultText: "",
   inhibitLeftS: 0,
+  stopReason: null,
+  cwPumpStatus: true,
+  cwPumpCommand: null,
+  cwPumpFault: null,
   towerMode: "auto",
   towerFault: false,
   fanSpeedPct: 60,
@@ -105,6 +117,7 @@ export function readingsOf(tsMs: number, f: Frame): Reading[] {
   add("CH-1", "chiller_alarm", f.chillerAlarm);
   add("CH-1", "fault_text", f.faultText);
   add("CH-1", "restart_inhibit_time_left", f.inhibitLeftS);
+  add("CH-1", "chiller_stop_reason", f.stopReason);
   add("CT-1", "condenser_water_entering_temp", f.towerInC);
   add("CT-1", "condenser_water_leaving_temp", f.cwInC);
   add("CT-1", "condenser_water_temp_setpoint", f.towerSetpointC);
@@ -113,7 +126,9 @@ export function readingsOf(tsMs: number, f: Frame): Reading[] {
   add("CT-1", "fan_speed", f.fanSpeedPct);
   add("CT-1", "fan_status", f.fanRunning);
   add("CHWP-1", "pump_status", true);
-  add("CWP-1", "pump_status", true);
+  add("CWP-1", "pump_status", f.cwPumpStatus);
+  add("CWP-1", "pump_run_command", f.cwPumpCommand);
+  add("CWP-1", "pump_fault", f.cwPumpFault);
   add("AHU-1", "run_status", true);
   add("WS-1", "outdoor_wet_bulb_temp", f.wetBulbC);
   return out;
