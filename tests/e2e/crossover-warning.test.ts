@@ -53,8 +53,10 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
       p.locator(
         "[data-testid=alarm-card]:is([data-rule=crossover_risk], [data-rule=restart_race], [data-rule=loops_crossed])",
       );
-    const alarm = crossoverCards(page).first();
-    await alarm.waitFor({ timeout: 30_000 });
+    await crossoverCards(page).first().waitFor({ timeout: 30_000 });
+    // Pin the card by its rule: the cards reorder as alarms change, and `.first()` would follow them.
+    const rule = await crossoverCards(page).first().getAttribute("data-rule");
+    const alarm = page.locator(`[data-testid=alarm-card][data-rule=${rule}]`).first();
     await expect.poll(() => alarm.getByTestId("caution").textContent()).toContain("qualified technicians");
     await screenshot(page, "site-crossover-technician-phone");
     // The margin sparkline's time axis is the last hour, however few values it has yet.
@@ -65,7 +67,7 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     await alarm.getByLabel("Note", { exact: true }).fill("On my way; tower fan found in off, putting it back to auto.");
     await alarm.getByLabel("Shared with the building owner").check();
     await alarm.getByRole("button", { name: "Save note" }).click();
-    await expect.poll(() => alarm.getByTestId("alarm-note").count()).toBe(1);
+    await expect.poll(() => alarm.getByTestId("alarm-note").count(), { timeout: 10_000 }).toBe(1);
 
     const ackNote = alarm.getByPlaceholder("Note (optional): what you are doing");
     if (await ackNote.count()) {
@@ -84,7 +86,7 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     const ownerPage = await owner.newPage();
     await signInAs(ownerPage, env.server.url, "facilities@millbrook.example");
     await ownerPage.goto(`${env.server.url}/sites/${SITE}`);
-    const ownerAlarm = crossoverCards(ownerPage).first();
+    const ownerAlarm = ownerPage.locator(`[data-testid=alarm-card][data-rule=${rule}]`).first();
     await ownerAlarm.waitFor({ timeout: 30_000 });
     await expect.poll(() => ownerAlarm.getByTestId("alarm-note").textContent()).toContain("tower fan found in off");
     expect(await ownerPage.getByRole("button", { name: /Acknowledge|Add note|Shelve/ }).count()).toBe(0);
