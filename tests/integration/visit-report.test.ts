@@ -130,6 +130,17 @@ describe("the customer's visit report", { timeout: 120_000 }, () => {
     expect(signedOut.status).toBe(401);
   });
 
+  it("lists the sent report on the customer's site page and offers preview and sending on the visit page", async () => {
+    const page = async (who: string, path: string) =>
+      (await fetch(`${server.url}${path}`, { headers: { cookie: cookies[who] } })).text();
+    const sitePage = await page("owner", "/sites/harborview-mob");
+    expect(sitePage).toContain(`/api/visits/${visitId}/report.pdf`);
+    expect(sitePage).toContain("Visit reports");
+    const visitPage = await page("tech", `/visits/${visitId}`);
+    expect(visitPage).toContain("Preview report");
+    expect(visitPage).toContain("Send report to the site&#x27;s contacts");
+  });
+
   it("may be sent again, each sending on record", async () => {
     expect((await post("tech", `/api/visits/${visitId}/report`, {})).status).toBe(201);
     const list = await api(server, cookies.tech, `/api/visits/${visitId}/report`);
