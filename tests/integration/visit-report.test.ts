@@ -1,5 +1,6 @@
 import { simpleParser, type ParsedMail } from "mailparser";
 import pdfParse from "pdf-parse/lib/pdf-parse.js";
+import sharp from "sharp";
 import { SMTPServer } from "smtp-server";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { api, waitFor } from "../helpers/mqtt";
@@ -61,6 +62,26 @@ async function pdfBytes(who: string, visitId: string) {
   return { status: res.status, type: res.headers.get("content-type"), bytes: Buffer.from(await res.arrayBuffer()) };
 }
 
+/** A small PNG photo attached to the visit, shared with the customer or not. */
+async function uploadPhoto(visitId: string, caption: string, shared: boolean) {
+  const png = await sharp({ create: { width: 64, height: 48, channels: 3, background: "#2a6f97" } })
+    .png()
+    .toBuffer();
+  const form = new FormData();
+  form.set("file", new Blob([new Uint8Array(png)], { type: "image/png" }), "strainer.png");
+  form.set("visitId", visitId);
+  form.set("caption", caption);
+  form.set("shared", String(shared));
+  return fetch(`${server.url}/api/sites/harborview-mob/files`, {
+    method: "POST",
+    headers: { cookie: cookies.tech, origin: server.url },
+    body: form,
+  });
+}
+
+const sharedCaption = "Strainer basket before cleaning";
+const unsharedCaption = "Controller service menu for our own records";
+
 describe("the customer's visit report", { timeout: 120_000 }, () => {
   const finding = "Condenser water strainer half blocked with scale";
   const summary = "Cleaned the strainer and checked condenser water flow";
@@ -82,6 +103,8 @@ describe("the customer's visit report", { timeout: 120_000 }, () => {
     expect(opened.status).toBe(201);
     visitId = opened.body.visit.id;
     expect((await post("tech", `/api/visits/${visitId}/entries`, { text: finding })).status).toBe(201);
+    expect((await uploadPhoto(visitId, sharedCaption, true)).status).toBe(201);
+    expect((await uploadPhoto(visitId, unsharedCaption, false)).status).toBe(201);
 
     // Before it is closed and sent: staff preview it, the customer and other organizations see nothing.
     const preview = await pdfBytes("tech", visitId);
@@ -116,6 +139,10 @@ describe("the customer's visit report", { timeout: 120_000 }, () => {
     expect(flat).toContain(summary);
     expect(flat).toContain("Luis Ferreira");
     expect(flat).toContain("Harborview Medical Office Building");
+    // Photos marked to share are drawn (an image XObject, ISO 32000-1:2008, 8.9.5) with their caption; others are left out.
+    expect(flat).toContain(sharedCaption);
+    expect(flat).not.toContain(unsharedCaption);
+    expect(attachment!.content.toString("latin1").match(/\/Subtype \/Image/g)).toHaveLength(1);
   });
 
   it("lets the site's customer read the sent report, and nobody else's customers", async () => {
