@@ -14,6 +14,7 @@ const nextConfig = {
     "nodemailer",
     "smtp-server",
     "sparkplug-payload",
+    "pdfkit",
   ],
   // `npm test` type-checks the whole project with tsc; the build need not do it twice. Tests
   // running development servers point Next at a tsconfig of their own (tests/helpers/server.ts).

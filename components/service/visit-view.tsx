@@ -7,6 +7,7 @@ import { Button } from "@/components/ui/button";
 import { fetchJson } from "@/lib/client/fetcher";
 import type { TemporaryChangeDto, VisitDto } from "@/lib/dto/service";
 import { useNow } from "./use-now";
+import { VisitReportPanel } from "./visit-report-panel";
 import { CHANGE_CAUTION, formatClock, inPlaceFor } from "@/lib/service/changes";
 
 type EquipmentOption = { id: string; tag: string; name: string; kind: string };
@@ -199,6 +200,8 @@ export function VisitView({
           ) : null}
         </section>
       ) : null}
+
+      <VisitReportPanel visitId={visit.id} closed={!open} staff={staff} timeZone={tz} />
 
       {staff && open ? <CloseForm visit={visit} inPlace={inPlace.length} people={people} run={run} /> : null}
       {staff && open ? <LogBar visitId={visit.id} run={run} /> : null}

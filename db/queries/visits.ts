@@ -5,6 +5,7 @@ import { alias } from "drizzle-orm/sqlite-core";
 import type { Db } from "../client";
 import { alarms, sites, users, visitAlarms, visitEntries, visits } from "../schema";
 import { siteScope } from "./sites";
+import { reportWasSent } from "./visit-reports";
 import { listTemporaryChanges, type ChangeReadOptions } from "./temporary-changes";
 import { canAct, type Viewer } from "@/lib/auth/viewer";
 import type { VisitDto, VisitSnapshot, VisitSummaryDto } from "@/lib/dto/service";
@@ -79,14 +80,38 @@ export function getVisit(db: Db, viewer: Viewer, visitId: string, opts: ChangeRe
   const summary = getVisitSummary(db, viewer, visitId);
   if (!summary) return null;
   const staff = canAct(viewer);
-  const snapshots = staff
+  return readVisit(db, viewer, summary, { full: staff, staffWording: staff }, opts);
+}
+
+/**
+ * The whole visit for the customer's report: staff always; a customer of the site's organization only
+ * once a report was sent (until then the visit's log is the service company's own). Alarm titles use
+ * the customer's wording, since the report is written for them.
+ */
+export function getVisitForReport(db: Db, viewer: Viewer, visitId: string, opts: ChangeReadOptions): VisitDto | null {
+  const summary = getVisitSummary(db, viewer, visitId);
+  if (!summary) return null;
+  if (!canAct(viewer) && !reportWasSent(db, visitId)) return null;
+  return readVisit(db, viewer, summary, { full: true, staffWording: false }, opts);
+}
+
+function readVisit(
+  db: Db,
+  viewer: Viewer,
+  summary: VisitSummaryDto,
+  show: { full: boolean; staffWording: boolean },
+  opts: ChangeReadOptions,
+): VisitDto {
+  const visitId = summary.id;
+  const staff = show.staffWording;
+  const snapshots = show.full
     ? db
         .select({ open: visits.openSnapshot, close: visits.closeSnapshot })
         .from(visits)
         .where(eq(visits.id, visitId))
         .get()
     : undefined;
-  const entries = staff
+  const entries = show.full
     ? db
         .select({
           id: visitEntries.id,

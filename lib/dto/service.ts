@@ -117,3 +117,15 @@ export interface VisitDto {
 }
 
 export type VisitSummaryDto = Omit<VisitDto, "entries" | "openSnapshot" | "closeSnapshot" | "alarms" | "changes">;
+
+/** A customer's report sent for a visit. */
+export interface VisitReportDto {
+  id: number;
+  visitId: string;
+  siteId: string;
+  visitOpenedAt: number;
+  visitClosedAt: number | null;
+  sentAt: number;
+  sentBy: string;
+  recipients: string[];
+}

@@ -119,3 +119,7 @@ export const putBackSchema = z.object({
   valueNow: safeText(z.string().trim().min(1, "The value as you left it").max(100)),
 });
 export type PutBackInput = z.infer<typeof putBackSchema>;
+
+/** Sending a visit's report takes no fields: it goes to the site's contacts that have an e-mail address. */
+export const sendVisitReportSchema = z.object({}).strict();
+export type SendVisitReportInput = z.infer<typeof sendVisitReportSchema>;

@@ -10,8 +10,17 @@ import type { StorageHealth } from "./storage-health";
 // sink (smtp-server) on loopback that stores every message for the admin's Outbox page —
 // a stand-in for a real mail service, exercised through the same SMTP path.
 
+/** One e-mail: plain text always (the sink and the Outbox show it); HTML and attachments when there are. */
+export interface MailMessage {
+  to: string;
+  subject: string;
+  text: string;
+  html?: string;
+  attachments?: Array<{ filename: string; content: Buffer; contentType: string }>;
+}
+
 export interface Mailer {
-  send(message: { to: string; subject: string; text: string }): Promise<void>;
+  send(message: MailMessage): Promise<void>;
   close(): Promise<void>;
   /** The sink's port when it runs, else null. */
   sinkPort: number | null;

@@ -17,6 +17,7 @@ import type { SimulationManager } from "./simulation/manager";
 import { createStorageHealth, type StorageHealth } from "./storage-health";
 import type { MailDto } from "@/lib/dto/oncall";
 import type { NotifyPaths } from "./notify/start";
+import type { MailMessage } from "./mail";
 
 // The process's one registry of what is running. Next bundles route handlers apart from
 // server.ts, so module state is not shared between them: the registry lives on globalThis,
@@ -46,7 +47,7 @@ export interface Runtime {
   /** Closes the live sockets opened with one session (signed out); returns how many. */
   disconnectSessionSockets(sessionId: string): number;
   /** Sends an e-mail through the server's mail path (SMTP_URL or the local sink). */
-  sendMail(message: { to: string; subject: string; text: string }): Promise<void>;
+  sendMail(message: MailMessage): Promise<void>;
   /** Mail the local SMTP sink took but could not store yet (the database could not be written). */
   heldMail(): MailDto[];
   /** Push and text paths (absent in a process started without the alarm system). */

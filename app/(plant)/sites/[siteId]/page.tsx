@@ -8,6 +8,8 @@ import { TemporaryChangeBanner } from "@/components/service/change-banner";
 import { OpenVisitButton } from "@/components/service/open-visit-button";
 import { ServiceRequestPanel } from "@/components/service/service-requests";
 import { listVisits } from "@/db/queries/visits";
+import { listVisitReports } from "@/db/queries/visit-reports";
+import { SiteReports } from "@/components/service/site-reports";
 import { FilesStrip } from "@/components/files/files-strip";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
 import Link from "next/link";
@@ -73,6 +75,7 @@ export default async function SitePage({ params }: Props) {
       <h2 className="mb-2 mt-8 text-lg font-semibold">Equipment and points</h2>
       <LivePoints siteId={site.id} equipment={site.equipment} unitSystem={viewer.unitSystem} />
       {staff ? null : <ServiceRequestPanel siteId={site.id} timeZone={site.timeZone} />}
+      <SiteReports reports={listVisitReports(getDb(), viewer, { siteId: site.id })} timeZone={site.timeZone} />
       {canAct(viewer) ? (
         <section aria-labelledby="records-title" className="mt-8">
           <h2 id="records-title" className="mb-2 text-lg font-semibold">
