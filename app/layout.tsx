@@ -8,7 +8,8 @@ export const metadata: Metadata = {
   title: { default: "Liftline", template: "%s · Liftline" },
   description: "Live chilled-water plant status and early warnings for service technicians.",
   appleWebApp: { capable: true, title: "Liftline", statusBarStyle: "black-translucent" },
-  icons: { apple: "/icons/apple-touch-icon.png" },
+  // Naming icons here replaces the file-based app/icon.svg link, so the page icon is named too.
+  icons: { icon: { url: "/icon.svg", type: "image/svg+xml" }, apple: "/icons/apple-touch-icon.png" },
 };
 
 export const viewport: Viewport = { width: "device-width", initialScale: 1, themeColor: "#0f2a44" };

@@ -79,6 +79,11 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
     LIFTLINE_SIMULATOR: "0",
     LIFTLINE_BUILD_IF_NEEDED: "0",
     NEXT_TELEMETRY_DISABLED: "1",
+    // The local sinks get ports chosen here too: left to the OS, one could take the HTTP or MQTT port
+    // between a stop and a restart on the same ports (the durability tests).
+    SMTP_PORT: String(await freePort()),
+    PUSH_SINK_PORT: String(await freePort()),
+    SMS_SINK_PORT: String(await freePort()),
     ...opts.env,
   };
   if (env.NODE_ENV === "development") {
