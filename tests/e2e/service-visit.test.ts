@@ -56,7 +56,7 @@ describe.skipIf(!hasChromium)("a service visit at phone width", () => {
     await expect.poll(() => page.getByTestId("visit-change").count(), { timeout: 20_000 }).toBe(1);
 
     await page.getByLabel("Finding or action").fill("Condenser tubes fouled; tower fan drive was in fault");
-    await page.getByRole("button", { name: "Send" }).click();
+    await page.getByRole("button", { name: "Send", exact: true }).click();
     await expect
       .poll(() => page.getByTestId("visit-log").textContent(), { timeout: 20_000 })
       .toContain("Condenser tubes fouled");
