@@ -483,10 +483,11 @@ export function savePreferences(db: Db, viewer: Viewer, prefs: PreferencesDto): 
   return getPreferences(db, viewer);
 }
 
-/** Customer users of an organization who asked to hear when high and critical alarms start and end. */
-export function alarmMailSubscribers(
+/** Customer users of an organization who opted in to one kind of plain-language e-mail. */
+function customerMailSubscribers(
   db: Db,
   organizationId: string,
+  preference: "alarmStartEndMail" | "serviceRequestMail",
 ): Array<{ id: string; email: string; name: string }> {
   return db
     .select({ id: users.id, email: users.email, name: users.name })
@@ -497,30 +498,15 @@ export function alarmMailSubscribers(
         eq(users.organizationId, organizationId),
         eq(users.role, "customer"),
         eq(users.disabled, false),
-        eq(notificationPreferences.alarmStartEndMail, true),
+        eq(notificationPreferences[preference], true),
       ),
     )
     .all();
 }
 
-/** Customer users of an organization who asked to hear when a service request changes state (called by the service-request side). */
-export function serviceRequestMailSubscribers(
-  db: Db,
-  organizationId: string,
-): Array<{ id: string; email: string; name: string }> {
-  return db
-    .select({ id: users.id, email: users.email, name: users.name })
-    .from(notificationPreferences)
-    .innerJoin(users, eq(users.id, notificationPreferences.userId))
-    .where(
-      and(
-        eq(users.organizationId, organizationId),
-        eq(users.role, "customer"),
-        eq(users.disabled, false),
-        eq(notificationPreferences.serviceRequestMail, true),
-      ),
-    )
-    .all();
+/** Customer users of an organization who asked to hear when high and critical alarms start and end. */
+export function alarmMailSubscribers(db: Db, organizationId: string) {
+  return customerMailSubscribers(db, organizationId, "alarmStartEndMail");
 }
 
 // ---- the fake SMS provider's messages ----
