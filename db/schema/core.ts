@@ -73,6 +73,8 @@ export const sites = sqliteTable(
     contacts: text("contacts", { mode: "json" }).$type<SiteContact[]>().notNull().default([]),
     /** What a technician needs after hours: where the gate code is, plant-room access, who to call. */
     accessNotes: text("access_notes").notNull().default(""),
+    /** A simulated plant that exists only for drills: it never pages anyone and no customer sees it. */
+    training: integer("training", { mode: "boolean" }).notNull().default(false),
     createdAt: createdAt(),
     ...retired(),
   },

@@ -4,3 +4,4 @@ export * from "./alarms";
 export * from "./records";
 export * from "./service";
 export * from "./notify";
+export * from "./learning";

@@ -45,6 +45,8 @@ export const auditEntityTypes = [
   "temporary_change",
   "file",
   "escalation_policy",
+  "incident",
+  "drill",
 ] as const;
 export type AuditEntityType = (typeof auditEntityTypes)[number];
 
