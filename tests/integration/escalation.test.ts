@@ -155,6 +155,49 @@ describe("on-call escalation", () => {
   });
 });
 
+describe("passes that overlap", () => {
+  it("sends a critical alarm at once while another pass still waits on a slow mail server, and never twice", async () => {
+    let releaseMail: () => void = () => {};
+    const mailHeld = new Promise<void>((r) => (releaseMail = r));
+    const sentTo: string[] = [];
+    // A mail server that answers only when released: the first pass stays in flight.
+    const slowMailer = {
+      ...mailer,
+      send: async (m: { to: string }) => {
+        sentTo.push(m.to);
+        await mailHeld;
+      },
+    } as unknown as Mailer;
+    const escalator = createEscalator({
+      db,
+      mailer: slowMailer,
+      clock,
+      publicUrl: "http://liftline.test",
+      log: () => {},
+      policy: (priority) =>
+        priority === 1
+          ? { priority, paths: ["email"], backupAfterS: 180, adminsAfterS: 360 }
+          : { priority, paths: ["email"], backupAfterS: null, adminsAfterS: null },
+    });
+    const low = newAlarm({ ruleId: "efficiency_drift", equipment: "CH-1", priority: 4 });
+    const lowStep = stepAlarm(low, { type: "condition", atMs: now, active: true });
+    saveAlarmChanges(db, "millbrook-high", [lowStep.alarm], lowStep.transitions, new Map());
+    const firstPass = escalator.run();
+    await new Promise((r) => setTimeout(r, 20));
+    expect(sentTo).toHaveLength(1);
+    raiseAlarm();
+    // The second pass must reach the critical alarm's recipient while the first is still held.
+    const secondPass = escalator.run();
+    await new Promise((r) => setTimeout(r, 20));
+    expect(sentTo).toHaveLength(2);
+    releaseMail();
+    await Promise.all([firstPass, secondPass]);
+    // A third pass finds both recorded and sends nothing again.
+    expect(await escalator.run()).toBe(0);
+    expect(sentTo).toHaveLength(2);
+  });
+});
+
 describe("alarm audit trail", () => {
   it("cannot be edited or deleted", () => {
     raiseAlarm();

@@ -31,7 +31,7 @@ import type { SmsSender } from "../notify/sms";
 export const ACK_LINK_TTL_MS = 4 * 3600_000;
 
 export interface Escalator {
-  /** Sends whatever is due now; called on new alarms and on a timer. */
+  /** Sends whatever is due now; called on new alarms and on a timer; passes may overlap (nothing is sent twice). */
   run(): Promise<number>;
   /** When the next escalation step falls due (ms), or null: the timer wakes for it. */
   nextDueAtMs(): number | null;
@@ -52,8 +52,8 @@ export interface EscalatorDeps {
 export function createEscalator(deps: EscalatorDeps): Escalator {
   const { db } = deps;
   const policyOf = deps.policy ?? ((priority: number) => policyFor(db, priority));
-  let running: Promise<number> | null = null;
-  let again = false;
+  /** Notifications being sent now, by `alarm:activation:step:person`: a pass started meanwhile skips them. */
+  const inFlight = new Set<string>();
   let nextDue: number | null = null;
   /** Notifications sent whose record could not be saved (a full disk): not sent again on the next pass. */
   const sentUnrecorded = new Set<string>();
@@ -205,11 +205,39 @@ export function createEscalator(deps: EscalatorDeps): Escalator {
     return (await Promise.all(jobs)).flat() as DeliveryRecord[];
   }
 
+  /** One person's notifications for one step: sent, then recorded; the key is held while in flight. */
+  async function sendAndRecord(
+    key: string,
+    a: { id: string; activations: number },
+    alarm: AlarmWithHistoryDto,
+    step: EscalationStep,
+    person: Recipient,
+    paths: readonly NotificationPath[],
+    nowMs: number,
+  ): Promise<number> {
+    inFlight.add(key);
+    try {
+      const records = await notify(a, alarm, step, person, paths, nowMs);
+      try {
+        for (const r of records) recordDelivery(db, r);
+      } catch (err) {
+        sentUnrecorded.add(key);
+        throw err;
+      }
+      return records.filter((r) => r.status === "sent").length;
+    } finally {
+      inFlight.delete(key);
+    }
+  }
+
   async function runOnce(): Promise<number> {
     const nowMs = deps.clock();
-    let sent = 0;
     let soonest: number | null = null;
-    for (const a of alarmsAwaitingAck(db, 4)) {
+    const jobs: Array<Promise<number>> = [];
+    // Chosen synchronously and sent concurrently: a critical alarm never waits behind a slow
+    // mail server's answers for other alarms, and a key in flight is never sent twice.
+    const awaiting = [...alarmsAwaitingAck(db, 4)].sort((x, y) => x.priority - y.priority);
+    for (const a of awaiting) {
       const policy = policyOf(a.priority);
       const history = deliveriesOf(db, a.id, a.activations);
       const first = history.filter((n) => n.step === 0).map((n) => n.sentAt);
@@ -218,19 +246,12 @@ export function createEscalator(deps: EscalatorDeps): Escalator {
       const steps = dueStepsFor({ policy, waitingForAck: true, firstSentAtMs, sent: done, nowMs });
       for (const step of steps) {
         for (const person of recipients(step, nowMs)) {
-          const sentKey = `${a.id}:${a.activations}:${step}:${person.id}`;
-          if (sentUnrecorded.has(sentKey)) continue;
+          const key = `${a.id}:${a.activations}:${step}:${person.id}`;
+          if (sentUnrecorded.has(key) || inFlight.has(key)) continue;
           const viewer = getViewerById(db, person.id);
           const alarm = viewer ? getAlarm(db, viewer, a.id) : null;
           if (!alarm) continue;
-          const records = await notify(a, alarm, step, person, policy.paths, nowMs);
-          sent += records.filter((r) => r.status === "sent").length;
-          try {
-            for (const r of records) recordDelivery(db, r);
-          } catch (err) {
-            sentUnrecorded.add(sentKey);
-            throw err;
-          }
+          jobs.push(sendAndRecord(key, a, alarm, step, person, policy.paths, nowMs));
         }
         done.add(step);
       }
@@ -239,26 +260,14 @@ export function createEscalator(deps: EscalatorDeps): Escalator {
       if (next !== null && (soonest === null || next < soonest)) soonest = next;
     }
     nextDue = soonest;
-    return sent;
+    const outcomes = await Promise.allSettled(jobs);
+    const failed = outcomes.find((o): o is PromiseRejectedResult => o.status === "rejected");
+    if (failed) throw failed.reason;
+    return outcomes.reduce((n, o) => n + (o.status === "fulfilled" ? o.value : 0), 0);
   }
 
   return {
-    run() {
-      // One pass at a time (a slow mail server must not make two passes send twice); a call
-      // during a pass runs one more pass after it, so a new alarm never waits for the timer.
-      if (running) {
-        again = true;
-        return running;
-      }
-      running = runOnce().finally(() => {
-        running = null;
-        if (again) {
-          again = false;
-          void this.run().catch(() => undefined);
-        }
-      });
-      return running;
-    },
+    run: runOnce,
     nextDueAtMs: () => nextDue,
   };
 }
