@@ -504,6 +504,12 @@ function customerMailSubscribers(
     .all();
 }
 
+/** Customer users of the organization owning a site who asked to hear when its service requests move on. */
+export function serviceRequestMailSubscribers(db: Db, siteId: string) {
+  const site = db.select({ organizationId: sites.organizationId }).from(sites).where(eq(sites.id, siteId)).get();
+  return site ? customerMailSubscribers(db, site.organizationId, "serviceRequestMail") : [];
+}
+
 /** Customer users of an organization who asked to hear when high and critical alarms start and end. */
 export function alarmMailSubscribers(db: Db, organizationId: string) {
   return customerMailSubscribers(db, organizationId, "alarmStartEndMail");

@@ -2,7 +2,7 @@ import type { Db } from "@/db/client";
 import { findAlarmRef } from "@/db/queries/alarms";
 import { writeAudit } from "@/db/queries/audit";
 import { getSiteLatest, type LatestInMemory } from "@/db/queries/readings";
-import { getServiceRequest, updateServiceRequest } from "@/db/queries/service-requests";
+import { getServiceRequest } from "@/db/queries/service-requests";
 import { canSeeSite } from "@/db/queries/sites";
 import {
   getTemporaryChange,
@@ -34,6 +34,7 @@ import type {
 } from "@/lib/schemas/service";
 import { and, eq, inArray } from "drizzle-orm";
 import { getDb, getRuntime } from "./runtime";
+import { moveServiceRequest, tellCustomersRequestMoved } from "./service-requests";
 
 // The visit's use cases: each authorizes, writes in one transaction with its audit entry, and
 // answers the visit as the caller sees it. Routes call these; tests call them with their own context.
@@ -45,6 +46,10 @@ export interface ServiceContext {
   inMemory?: LatestInMemory;
   /** The derived values the rules reason with, as of the site's latest event time. */
   derived?: (siteId: string) => unknown;
+  /** Mail to customers who opted in (absent where no mailer runs), the app's address for links, a log line. */
+  sendMail?: (message: { to: string; subject: string; text: string }) => Promise<void>;
+  publicUrl?: string;
+  log?: (line: string) => void;
 }
 
 /** The context of the running server, for route handlers. */
@@ -55,6 +60,9 @@ export function serviceContext(): ServiceContext {
     nowMs: Date.now(),
     inMemory: runtime?.latestValue,
     derived: runtime ? (siteId) => runtime.alarms.snapshot(siteId) : undefined,
+    sendMail: runtime?.sendMail,
+    publicUrl: process.env.NEXTAUTH_URL,
+    log: (line) => console.log(line),
   };
 }
 
@@ -155,7 +163,7 @@ export function openVisit(ctx: ServiceContext, viewer: Viewer, input: OpenVisitI
   if (input.serviceRequestId) {
     const request = getServiceRequest(db, viewer, input.serviceRequestId)!;
     if (request.state === "received" || !request.assignedTo)
-      updateServiceRequest(db, viewer, input.serviceRequestId, { assignTo: "me", state: "assigned" }, ctx.nowMs);
+      moveServiceRequest(ctx, viewer, input.serviceRequestId, { assignTo: "me", state: "assigned" });
   }
   return readVisit(ctx, viewer, visitId);
 }
@@ -203,7 +211,7 @@ export function updateVisit(ctx: ServiceContext, viewer: Viewer, visitId: string
   if (input.arrive && before.serviceRequestId) {
     const request = getServiceRequest(ctx.db, viewer, before.serviceRequestId);
     if (request && (request.state === "received" || request.state === "assigned"))
-      updateServiceRequest(ctx.db, viewer, before.serviceRequestId, { state: "on_the_way" }, ctx.nowMs);
+      moveServiceRequest(ctx, viewer, before.serviceRequestId, { state: "on_the_way" });
   }
   return readVisit(ctx, viewer, visitId);
 }
@@ -440,5 +448,9 @@ export function closeVisit(ctx: ServiceContext, viewer: Viewer, visitId: string,
     },
     { behavior: "immediate" },
   );
+  if (visit.serviceRequestId) {
+    const request = getServiceRequest(ctx.db, viewer, visit.serviceRequestId);
+    if (request) tellCustomersRequestMoved(ctx, request);
+  }
   return readVisit(ctx, viewer, visitId);
 }

@@ -26,6 +26,8 @@ import { startFakeSmsApi, type FakeSmsApi } from "@/lib/server/notify/fake-sms";
 import { createPushSender } from "@/lib/server/notify/push";
 import { createSmsSender } from "@/lib/server/notify/sms";
 import { customerAlarmMail } from "@/lib/server/notify/customer-mail";
+import { createServiceRequest } from "@/db/queries/service-requests";
+import { moveServiceRequest } from "@/lib/server/service-requests";
 import { decryptPush, newSubscriber } from "../helpers/notify";
 
 // Escalation by priority on every path, with a fake clock: the real push sender (web-push) to the
@@ -221,5 +223,36 @@ describe("customers' opt-in e-mail", () => {
       "Millbrook High School: a high-priority alarm started",
       "Millbrook High School: an alarm has cleared",
     ]);
+  });
+
+  it("tells a customer who chose it when their service request moves on, in the site page's words, and nobody else", async () => {
+    const customer = getViewerById(db, "user-org-millbrook")!;
+    const quiet = getViewerById(db, "user-org-harborview")!;
+    savePreferences(db, customer, { alarmStartEndMail: false, serviceRequestMail: true });
+    savePreferences(db, quiet, { alarmStartEndMail: false, serviceRequestMail: true });
+    const request = createServiceRequest(
+      db,
+      customer,
+      {
+        siteId: "millbrook-high",
+        description: "Classrooms warm since noon",
+        urgency: "today",
+        callbackPhone: "555 0100",
+      },
+      now,
+    );
+    const tech = getViewerById(db, "user-tech-1")!;
+    const ctx = { db, nowMs: now, sendMail: (m: { to: string; subject: string; text: string }) => mailer.send(m) };
+    moveServiceRequest(ctx, tech, request.id, { assignTo: "me" });
+    // No change of state, no mail: an assignment to the same person again says nothing new.
+    moveServiceRequest(ctx, tech, request.id, { assignTo: "me" });
+    moveServiceRequest(ctx, tech, request.id, { state: "on_the_way" });
+    const mail = async () => listMail(db).filter((m) => m.subject.includes("your service request"));
+    await expect.poll(async () => (await mail()).length, { timeout: 5000 }).toBe(2);
+    const sent = await mail();
+    expect(sent.every((m) => m.to === customer.email)).toBe(true);
+    const bodies = sent.map((m) => m.text).join("\n");
+    expect(bodies).toContain(`${tech.name} is looking after your request.`);
+    expect(bodies).toContain(`${tech.name} is on the way.`);
   });
 });
