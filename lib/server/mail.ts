@@ -16,7 +16,8 @@ export interface MailMessage {
   subject: string;
   text: string;
   html?: string;
-  attachments?: Array<{ filename: string; content: Buffer; contentType: string }>;
+  /** `cid` makes an attachment an inline picture the HTML shows with `<img src="cid:…">`. */
+  attachments?: Array<{ filename: string; content: Buffer; contentType: string; cid?: string }>;
 }
 
 export interface Mailer {

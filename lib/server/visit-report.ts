@@ -1,14 +1,19 @@
 import PDFDocument from "pdfkit";
 import sharp from "sharp";
 import { writeAudit } from "@/db/queries/audit";
+import { listEquipment } from "@/db/queries/equipment";
 import { getStoredFile, listSiteFiles } from "@/db/queries/files";
+import { getSeries, getSiteLatest } from "@/db/queries/readings";
 import { getSite } from "@/db/queries/sites";
 import { insertVisitReport, listVisitReports } from "@/db/queries/visit-reports";
 import { getVisitForReport, getVisitSummary } from "@/db/queries/visits";
 import { canAct, type Viewer } from "@/lib/auth/viewer";
 import type { VisitDto, VisitReportDto } from "@/lib/dto/service";
 import { AppError, notFound } from "@/lib/errors";
+import { quantities } from "@/lib/quantities";
 import { visitReportModel, type VisitReportModel } from "@/lib/service/report";
+import { reportTrendSvg, type TrendLine } from "@/lib/service/report-trend";
+import { loadConfig } from "./config";
 import { fileStorage, type FileStorage } from "./file-storage";
 import type { MailMessage } from "./mail";
 import type { ServiceContext } from "./visits";
@@ -20,6 +25,48 @@ export interface VisitReport {
   visit: VisitDto;
   model: VisitReportModel;
   pdf: Buffer;
+  /** The key temperatures during the visit as a PNG, or null without readings. */
+  trendPng: Buffer | null;
+}
+
+const TREND_QUANTITIES = ["chilled_water_leaving_temp", "condenser_water_entering_temp"] as const;
+export const TREND_CAPTION = "Chilled water leaving and condenser water entering each chiller during the visit";
+
+/** The two loop temperatures a customer can follow, per chiller, from 30 min before the visit to its end. */
+async function keyTemperatureTrend(ctx: ServiceContext, viewer: Viewer, visit: VisitDto): Promise<Buffer | null> {
+  const chillers = new Map(
+    listEquipment(ctx.db, viewer, visit.siteId)
+      .filter((e) => e.kind === "chiller")
+      .slice(0, 2)
+      .map((e) => [e.id, e.tag]),
+  );
+  const pts = getSiteLatest(ctx.db, viewer, visit.siteId, ctx.nowMs, ctx.inMemory).points.filter(
+    (p) => chillers.has(p.equipmentId) && (TREND_QUANTITIES as readonly string[]).includes(p.quantity),
+  );
+  if (pts.length === 0) return null;
+  const fromMs = visit.openedAt - 30 * 60_000;
+  const toMs = Math.min(ctx.nowMs, (visit.closedAt ?? ctx.nowMs) + 10 * 60_000);
+  const rawRetentionMs = loadConfig().RAW_RETENTION_DAYS * 86_400_000;
+  const series = pts.map((p) => ({
+    p,
+    s: getSeries(ctx.db, viewer, p.pointId, { fromMs, toMs, maxPoints: 240 }, { nowMs: ctx.nowMs, rawRetentionMs }),
+  }));
+  const lines: TrendLine[] = series.map(({ p, s }) => ({
+    label: `${chillers.get(p.equipmentId)} ${quantities[p.quantity as (typeof TREND_QUANTITIES)[number]].label.toLowerCase()}`,
+    time: s.time,
+    value: s.avg,
+  }));
+  const svg = reportTrendSvg(lines, {
+    fromMs,
+    toMs,
+    unit: series[0].s.unit,
+    timeZone: visit.siteTimeZone,
+    marks: [
+      { atMs: visit.openedAt, label: "visit opened" },
+      ...(visit.closedAt !== null ? [{ atMs: visit.closedAt, label: "closed" }] : []),
+    ],
+  });
+  return svg ? sharp(Buffer.from(svg)).png().toBuffer() : null;
 }
 
 /** Shared photos' thumbnails as JPEG, since the PDF takes JPEG and PNG and thumbnails are stored as WebP. */
@@ -48,7 +95,11 @@ async function photoImages(
   );
 }
 
-function drawPdf(model: VisitReportModel, images: Array<{ caption: string; jpeg: Buffer | null }>): Promise<Buffer> {
+function drawPdf(
+  model: VisitReportModel,
+  images: Array<{ caption: string; jpeg: Buffer | null }>,
+  trendPng: Buffer | null,
+): Promise<Buffer> {
   const doc = new PDFDocument({ size: "A4", margin: 50, info: { Title: model.title, Author: "Liftline" } });
   const chunks: Buffer[] = [];
   doc.on("data", (c: Buffer) => chunks.push(c));
@@ -76,6 +127,12 @@ function drawPdf(model: VisitReportModel, images: Array<{ caption: string; jpeg:
   if (model.closing) list([model.closing], "");
   heading("The plant's key numbers, before and after");
   list(model.keyNumbers, "No readings were on record when the visit began or ended.");
+  if (trendPng) {
+    heading("Key temperatures during the visit");
+    if (doc.y > doc.page.height - 300) doc.addPage();
+    doc.image(trendPng, { fit: [480, 180] }).moveDown(0.2);
+    doc.font("Helvetica").fontSize(9).fillColor("#555").text(TREND_CAPTION).fillColor("black");
+  }
   heading("Photos");
   if (images.length === 0) list([], "No photos were shared.");
   for (const image of images) {
@@ -107,13 +164,14 @@ export async function buildVisitReport(
     { name: site.name, address: site.address },
     images.map(({ fileId, caption, originalName }) => ({ fileId, caption, originalName })),
   );
-  return { visit, model, pdf: await drawPdf(model, images) };
+  const trendPng = await keyTemperatureTrend(ctx, viewer, visit);
+  return { visit, model, pdf: await drawPdf(model, images, trendPng), trendPng };
 }
 
 const escapeHtml = (s: string) =>
   s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 
-export function reportMail(model: VisitReportModel): { text: string; html: string } {
+export function reportMail(model: VisitReportModel, withTrend = false): { text: string; html: string } {
   const sections: Array<[string, string[], string]> = [
     ["What we found", model.findings, "No findings were recorded."],
     ["What we did", model.done, "No work was recorded."],
@@ -151,6 +209,12 @@ export function reportMail(model: VisitReportModel): { text: string; html: strin
           ? `<ul style="font-family:sans-serif">${items.map((i) => `<li>${escapeHtml(i)}</li>`).join("")}</ul>`
           : `<p style="font-family:sans-serif;color:#555">${escapeHtml(empty)}</p>`),
     ),
+    ...(withTrend
+      ? [
+          `<h2 style="font-family:sans-serif;font-size:16px">Key temperatures during the visit</h2>`,
+          `<img src="cid:key-temperatures" alt="${escapeHtml(TREND_CAPTION)}" width="640" style="max-width:100%;height:auto">`,
+        ]
+      : []),
     `<p style="font-family:sans-serif">The full report, with photos, is attached as a PDF.</p>`,
   ].join("\n");
   return { text, html };
@@ -177,14 +241,26 @@ export async function sendVisitReport(
   if (recipients.length === 0)
     throw new AppError("conflict", "The site has no contact with an e-mail address. Add one on the site's page.");
   if (!sendMail) throw new AppError("unavailable", "Mail is not running in this process.");
-  const { text, html } = reportMail(report.model);
+  const { text, html } = reportMail(report.model, report.trendPng !== null);
   const day = new Date(report.visit.closedAt).toISOString().slice(0, 10);
   await sendMail({
     to: recipients.join(", "),
     subject: `Liftline: service visit report for ${site.name}`,
     text,
     html,
-    attachments: [{ filename: `visit-report-${day}.pdf`, content: report.pdf, contentType: "application/pdf" }],
+    attachments: [
+      { filename: `visit-report-${day}.pdf`, content: report.pdf, contentType: "application/pdf" },
+      ...(report.trendPng
+        ? [
+            {
+              filename: "key-temperatures.png",
+              content: report.trendPng,
+              contentType: "image/png",
+              cid: "key-temperatures",
+            },
+          ]
+        : []),
+    ],
   });
   const id = ctx.db.transaction(
     (tx) => {

@@ -3,7 +3,17 @@ import pdfParse from "pdf-parse/lib/pdf-parse.js";
 import sharp from "sharp";
 import { SMTPServer } from "smtp-server";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { api, waitFor } from "../helpers/mqtt";
+import {
+  adminCookie,
+  api,
+  connectGateway,
+  endClient,
+  provisionGateway,
+  publishQos1,
+  putPointMap,
+  readingsMessage,
+  waitFor,
+} from "../helpers/mqtt";
 import { freePort, signIn, startServer, type TestServer } from "../helpers/server";
 
 // The customer's report against the real server, end to end through SMTP: a customer's service
@@ -54,6 +64,26 @@ const post = (who: string, path: string, body: unknown) =>
     body: JSON.stringify(body),
   });
 
+/** Twenty minutes of CH-1's loop temperatures, so the report has a trend to draw (the simulator is off in tests). */
+async function publishLoopTemperatures() {
+  const admin = await adminCookie(server);
+  const gw = await provisionGateway(server, admin, { siteId: "harborview-mob" });
+  const csv =
+    "gateway_point,equipment,quantity,unit\nCH1-LCHWT,CH-1,chilled_water_leaving_temp,degF\nCH1-ECWT,CH-1,condenser_water_entering_temp,degF\n";
+  expect((await putPointMap(server, admin, gw.gateway.id, csv)).status).toBe(200);
+  const client = await connectGateway(server, gw);
+  const t0 = Date.now() - 20 * 60_000;
+  for (let i = 0; i <= 10; i++) {
+    const ts = new Date(t0 + i * 120_000).toISOString();
+    const readings = [
+      { point: "CH1-LCHWT", value: 44 + i * 0.2, ts },
+      { point: "CH1-ECWT", value: 85 - i * 0.3, ts },
+    ];
+    await publishQos1(client, `liftline/${gw.gateway.id}/readings`, readingsMessage(readings, i + 1, ts));
+  }
+  await endClient(client);
+}
+
 const addressesOf = (mail: ParsedMail) =>
   (Array.isArray(mail.to) ? mail.to : mail.to ? [mail.to] : []).flatMap((a) => a.value.map((v) => v.address));
 
@@ -102,6 +132,7 @@ describe("the customer's visit report", { timeout: 120_000 }, () => {
     const opened = await post("tech", "/api/visits", { serviceRequestId: created.body.request.id, mode: "on_site" });
     expect(opened.status).toBe(201);
     visitId = opened.body.visit.id;
+    await publishLoopTemperatures();
     expect((await post("tech", `/api/visits/${visitId}/entries`, { text: finding })).status).toBe(201);
     expect((await uploadPhoto(visitId, sharedCaption, true)).status).toBe(201);
     expect((await uploadPhoto(visitId, unsharedCaption, false)).status).toBe(201);
@@ -142,7 +173,14 @@ describe("the customer's visit report", { timeout: 120_000 }, () => {
     // Photos marked to share are drawn (an image XObject, ISO 32000-1:2008, 8.9.5) with their caption; others are left out.
     expect(flat).toContain(sharedCaption);
     expect(flat).not.toContain(unsharedCaption);
-    expect(attachment!.content.toString("latin1").match(/\/Subtype \/Image/g)).toHaveLength(1);
+    // The simulated plant has been publishing since the server started: the key temperatures are drawn
+    // as a second image, captioned, and ride in the e-mail as an inline PNG (PNG signature, ISO/IEC 15948 §5.2).
+    expect(flat).toContain("Chilled water leaving and condenser water entering each chiller during the visit");
+    expect(attachment!.content.toString("latin1").match(/\/Subtype \/Image/g)).toHaveLength(2);
+    const trend = mail.attachments.find((a) => a.contentType === "image/png");
+    expect(trend?.cid).toBe("key-temperatures");
+    expect(trend!.content.subarray(0, 8).toString("hex")).toBe("89504e470d0a1a0a");
+    expect(mail.html || "").toContain('src="cid:key-temperatures"');
   });
 
   it("lets the site's customer read the sent report, and nobody else's customers", async () => {
