@@ -22,6 +22,7 @@ import { towerFanNotRunning } from "./tower-fan";
 import { towerFanNotInAuto } from "./fan-mode";
 import { startsPerHour } from "./starts-per-hour";
 import { pumpNotProven } from "./pump-proof";
+import { chilledWaterNotMade } from "./chilled-water-not-made";
 
 export const rules: Record<RuleId, Rule> = {
   crossover_risk: crossoverRisk,
@@ -38,6 +39,7 @@ export const rules: Record<RuleId, Rule> = {
   tower_fan_not_in_auto: towerFanNotInAuto,
   starts_per_hour: startsPerHour,
   pump_not_proven: pumpNotProven,
+  chilled_water_not_made: chilledWaterNotMade,
 };
 
 /** The site's derived numbers at `nowMs`, including time to crossover and lockout from history. */

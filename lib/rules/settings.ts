@@ -96,6 +96,19 @@ export const ruleSettingsSchema = z.strictObject({
   towerFanMode: z.strictObject({ ...common(3, 120, 60) }).prefault({}),
   /** Starts in the last hour against the chiller record's `maxStartsPerHour`. */
   startsPerHour: z.strictObject({ ...common(3, 0, 300) }).prefault({}),
+  /** Chilled water leaving above its setpoint while the plant is called: the "it's warm in here" call. */
+  chilledWaterNotMade: z
+    .strictObject({
+      ...common(3, 15 * 60, 5 * 60),
+      /** Above the setpoint by more than this (K): 2.2 K = 4 °F, past normal control swing (common practice). */
+      marginK: positive.default(2.2),
+      deadBandK: seconds.default(0.5),
+      /** After a start the loop is pulled down for up to this long before it counts (common practice). */
+      pullDownS: seconds.default(30 * 60),
+      /** Used when the chiller reports no setpoint: 44 °F, the usual comfort-cooling design (AHRI 550/590 rating condition). */
+      defaultSetpointC: z.number().default(6.67),
+    })
+    .prefault({}),
   /** Pump commanded on but not proven; the 30 s on-delay is a flow-proof delay (common practice). */
   pumpProof: z.strictObject({ ...common(2, 30, 30) }).prefault({}),
   headPressure: z

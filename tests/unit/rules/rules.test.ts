@@ -630,3 +630,29 @@ describe("pump commanded on but not proven (loss of flow at its source)", () => 
     expect(noCommand.firstActivation("pump_not_proven:CWP-1")).toBeNull();
   });
 });
+
+describe("chilled water not being made (the customer's 'it's warm in here')", () => {
+  it("raises 15 min after the leaving water stays more than 4 °F (2.2 K, common practice) above a 44 °F setpoint", () => {
+    const r = runFrames({ durationS: 1800, frame: (tS) => ({ chwOutC: tS < 300 ? 6.7 : 9.5 }), keep: true });
+    // 300 s above + the 15 min on-delay.
+    const first = secondsOf(r.firstActivation("chilled_water_not_made:CH-1"));
+    expect(first).toBeGreaterThanOrEqual(1200);
+    expect(first!).toBeLessThanOrEqual(1210);
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "chilled_water_not_made")!;
+    expect(c.numbers.aboveSetpointK).toBeCloseTo(2.83, 2);
+    expect(c.advice[0]).toMatch(/short of capacity/);
+  });
+
+  it("stays quiet within the margin, while a started chiller pulls the loop down, and when its trip has its own alarm", () => {
+    expect(
+      runFrames({ durationS: 1800, frame: () => ({ chwOutC: 8.5 }) }).firstActivation("chilled_water_not_made:CH-1"),
+    ).toBeNull();
+    const pullDown = runFrames({
+      durationS: 1700,
+      frame: (tS) => ({ running: tS >= 60, chwOutC: tS < 60 ? 14 : 14 - (tS - 60) / 300 }),
+    });
+    expect(pullDown.firstActivation("chilled_water_not_made:CH-1")).toBeNull();
+    const tripped = runFrames({ durationS: 1800, frame: () => ({ running: false, chillerAlarm: true, chwOutC: 13 }) });
+    expect(tripped.firstActivation("chilled_water_not_made:CH-1")).toBeNull();
+  });
+});
