@@ -136,7 +136,10 @@ function staffReview(db: Db, incident: IncidentDto, system: UnitSystem): Inciden
   let toMs = (incident.endedAtMs ?? lastMemberMs) + MARGIN_PAD_MS;
   const sources = reviewSources(db, incident, fromMs, Number.MAX_SAFE_INTEGER);
   if (incident.endedAtMs === null && sources.latestReadingMs) toMs = Math.max(toMs, sources.latestReadingMs);
-  const transitions = sources.alarmTransitions.filter((t) => t.eventAtMs <= toMs);
+  const transitions =
+    incident.endedAtMs === null
+      ? sources.alarmTransitions
+      : sources.alarmTransitions.filter((t) => t.eventAtMs <= toMs);
   const pairs = transitions.map((t) => ({ wallMs: t.wallAtMs, eventMs: t.eventAtMs }));
   const toEvent = (wallMs: number) => wallToEventTime(pairs, wallMs);
 
@@ -216,6 +219,8 @@ function staffReview(db: Db, incident: IncidentDto, system: UnitSystem): Inciden
       toMs,
     ),
   );
+  // A lasting incident runs on to what people did most recently (commands land on the site's clock past the last reading).
+  if (incident.endedAtMs === null) toMs = Math.max(toMs, ...entries.map((e) => e.atMs));
   const timeline = orderTimeline(entries.filter((e) => e.atMs >= fromMs && e.atMs <= toMs));
 
   // Margin: condenser water entering minus chilled water entering, the reading the crossing is judged on.

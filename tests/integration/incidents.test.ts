@@ -19,6 +19,8 @@ let admin: string;
 let sim: SimulatedGateway | undefined;
 let incident: IncidentSummaryDto;
 let review: IncidentReviewDto;
+// The rules' own replay of the same night, run before the server starts (it holds the event loop for seconds).
+const reference = replay("power-blip", { layout: LAYOUT, durationS: SCENARIO_S });
 
 const json = (body: unknown) => ({ headers: { "content-type": "application/json" }, body: JSON.stringify(body) });
 
@@ -64,7 +66,6 @@ describe("power blip through the server", () => {
   it("forms one incident holding the power-event, fan-drive, high-pressure trip and crossover alarms", async () => {
     const rules = new Set(review.incident.members.map((m) => m.ruleId));
     // The chain the scenario describes (simulator/scenarios/power-blip.ts) and the rules raise in the replay.
-    const reference = replay("power-blip", { layout: LAYOUT, durationS: SCENARIO_S });
     const raisedByRules = new Set(
       reference.transitions.filter((t) => t.cause === "condition_active").map((t) => t.ruleId),
     );
@@ -101,7 +102,6 @@ describe("power blip through the server", () => {
 
   it("computes key figures; the warning lead agrees with the rules' lead report", () => {
     const f = review.keyFigures;
-    const reference = replay("power-blip", { layout: LAYOUT, durationS: SCENARIO_S });
     const benchLeadMin = crossoverLeadMin(reference, "CH-1");
     expect(benchLeadMin).not.toBeNull();
     expect(f.leadEnd?.kind).toBe("crossing");
