@@ -43,6 +43,7 @@ describe.skipIf(!hasChromium)("incident review page", () => {
     );
     // Compile the pages once before the browser's clock starts (development servers build on first request).
     await fetch(`${env.server.url}/sign-in`);
+    await api(env.server, admin, `/`);
     await api(env.server, admin, `/incidents?site=${SITE}`);
     await api(env.server, admin, `/incidents/${incidentId}`);
   }, 400_000);
