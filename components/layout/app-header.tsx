@@ -8,6 +8,7 @@ export function AppHeader({ viewer }: { viewer: Viewer }) {
   const links = [
     { href: "/", label: "Board" },
     { href: "/alarms", label: "Alarms" },
+    { href: "/incidents", label: "Incidents" },
     ...(canAct(viewer) ? [{ href: "/on-call", label: "On call" }] : []),
     ...(isAdmin(viewer) ? [{ href: "/admin", label: "Admin" }] : []),
     { href: "/settings", label: "Settings" },

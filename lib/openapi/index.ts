@@ -8,3 +8,4 @@ export { serviceOperations } from "./paths/service";
 export { fileOperations } from "./paths/files";
 export { peopleOperations } from "./paths/people";
 export { notifyOperations } from "./paths/notify";
+export { incidentOperations } from "./paths/incidents";

@@ -8,6 +8,7 @@ import {
   peopleOperations,
   notifyOperations,
   simulatorOperations,
+  incidentOperations,
   type OpenApiDocument,
 } from "@/lib/openapi";
 import { startRunSchemaFor } from "@/lib/schemas/simulator";
@@ -28,6 +29,7 @@ export function openApiDocument(): OpenApiDocument {
       ...fileOperations,
       ...peopleOperations,
       ...notifyOperations,
+      ...incidentOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,

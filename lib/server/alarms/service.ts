@@ -16,6 +16,7 @@ import {
   type SiteMonitor,
 } from "@/lib/rules";
 import type { StorageHealth } from "../storage-health";
+import type { IncidentFiler } from "../incidents";
 
 // Runs the rule checks of every site on the readings ingestion commits, on event time,
 // and keeps the alarms' ISA-18.2 state in the database. People's commands (acknowledge,
@@ -91,6 +92,8 @@ export function createAlarmService(deps: {
   onAlarmsChanged?: (siteId: string, transitions: TransitionRecord[]) => void;
   log?: (line: string) => void;
   storage?: Pick<StorageHealth, "report" | "ok">;
+  /** Groups stored activations into incidents and ends quiet ones (lib/server/incidents.ts). */
+  incidents?: IncidentFiler;
 }): AlarmService {
   const { db } = deps;
   const sites = new Map<string, SiteState>();
@@ -145,8 +148,9 @@ export function createAlarmService(deps: {
     }
     const all = s.unsaved.transitions.length ? [...s.unsaved.transitions, ...transitions] : transitions;
     if (!changed.size && !all.length) return;
+    let stored;
     try {
-      saveAlarmChanges(db, siteId, [...changed.values()], all, s.details);
+      stored = saveAlarmChanges(db, siteId, [...changed.values()], all, s.details);
     } catch (err) {
       if (!deps.storage?.report(err, "alarms") || by === "person") throw err;
       deps.log?.(`[alarms] ${siteId}: changes kept in memory until the database can be written: ${String(err)}`);
@@ -155,6 +159,7 @@ export function createAlarmService(deps: {
     }
     s.unsaved = { alarms: new Map(), transitions: [] };
     deps.storage?.ok();
+    deps.incidents?.saved(siteId, stored);
     if (all.length) deps.onAlarmsChanged?.(siteId, all);
   }
 
@@ -176,6 +181,7 @@ export function createAlarmService(deps: {
       });
     }
     persist(siteId, s, before, result.transitions, "rules");
+    deps.incidents?.evaluated(siteId, atMs);
     const summary = { siteId, atMs, snapshot: result.snapshot, transitions: result.transitions };
     deps.onEvaluated?.(summary);
     return summary;

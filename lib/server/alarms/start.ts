@@ -6,6 +6,7 @@ import { customerAlarmMail } from "../notify/customer-mail";
 import { startNotifyPaths, type NotifyPaths } from "../notify/start";
 import type { StorageHealth } from "../storage-health";
 import { createEscalator, type Escalator } from "./escalation";
+import { createIncidentFiler } from "../incidents";
 import { createAlarmService, type AlarmService, type SiteEvaluationSummary } from "./service";
 
 // Starts the alarm side of the server: mail (real SMTP or the local sink), push and texts (real
@@ -74,6 +75,7 @@ export async function startAlarmSystem(deps: {
     },
     log: deps.log,
     storage: deps.storage,
+    incidents: createIncidentFiler(deps.db, deps.log),
   });
   // Both run off timers and commits: a failure (a full disk) is logged and tried again next tick.
   const escalate = () =>

@@ -1,6 +1,7 @@
 import type { Db } from "@/db/client";
 import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } from "@/db/queries/gateways";
 import { resetSiteTimeline } from "@/db/queries/simulation";
+import { resetIncidentsFrom } from "@/db/queries/incidents";
 import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
 import type { GatewayChange } from "@/gateway/index";
 import { hourRebuilder } from "@/gateway/rollups";
@@ -73,6 +74,7 @@ export async function createSimulationManager(deps: {
   // A run that starts in the past (to reach "now" at its end) replaces the site's timeline.
   function resetSite(siteId: string, fromMs: number) {
     const pointIds = resetSiteTimeline(db, siteId, fromMs, now(), hourRebuilder(db.$client));
+    resetIncidentsFrom(db, siteId, fromMs);
     deps.onSiteReset?.(siteId, pointIds);
   }
 
