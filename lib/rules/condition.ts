@@ -16,6 +16,7 @@ export const ruleIds = [
   "starts_per_hour",
   "pump_not_proven",
   "chilled_water_not_made",
+  "sensor_implausible",
 ] as const;
 export type RuleId = (typeof ruleIds)[number];
 

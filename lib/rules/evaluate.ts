@@ -23,8 +23,10 @@ import { towerFanNotInAuto } from "./fan-mode";
 import { startsPerHour } from "./starts-per-hour";
 import { pumpNotProven } from "./pump-proof";
 import { chilledWaterNotMade } from "./chilled-water-not-made";
+import { sensorFaults, sensorImplausible, suppressOnFailedSensors } from "./plausibility";
 
-export const rules: Record<RuleId, Rule> = {
+/** Every rule but sensor plausibility, which runs first and can suppress the others (see `evaluateRules`). */
+export const rules: Record<Exclude<RuleId, "sensor_implausible">, Rule> = {
   crossover_risk: crossoverRisk,
   restart_race: restartRace,
   loops_crossed: loopsCrossed,
@@ -143,5 +145,11 @@ export function evaluateRules(args: EvaluateArgs): { conditions: Condition[]; sn
     timeZone: args.timeZone,
     wasActive: (ruleId, tag) => prevActive.has(`${ruleId}:${tag}`),
   };
-  return { conditions: Object.values(rules).flatMap((rule) => rule(ctx)), snapshot };
+  const faults = sensorFaults(ctx);
+  const conditions = suppressOnFailedSensors(
+    ctx,
+    Object.values(rules).flatMap((rule) => rule(ctx)),
+    faults,
+  );
+  return { conditions: [...conditions, ...sensorImplausible(ctx, faults)], snapshot };
 }

@@ -29,6 +29,7 @@ const ruleSettingKey: Record<Condition["ruleId"], keyof RuleSettings> = {
   starts_per_hour: "startsPerHour",
   pump_not_proven: "pumpProof",
   chilled_water_not_made: "chilledWaterNotMade",
+  sensor_implausible: "sensorPlausibility",
 };
 
 export function delaysFor(

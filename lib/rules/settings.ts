@@ -96,6 +96,20 @@ export const ruleSettingsSchema = z.strictObject({
   towerFanMode: z.strictObject({ ...common(3, 120, 60) }).prefault({}),
   /** Starts in the last hour against the chiller record's `maxStartsPerHour`. */
   startsPerHour: z.strictObject({ ...common(3, 0, 300) }).prefault({}),
+  /** A sensor outside its physical range, jumping, frozen while running, or off its refrigerant's curve. */
+  sensorPlausibility: z
+    .strictObject({
+      ...common(4, 60, 300),
+      /** The same value this long while the equipment runs counts as frozen (common practice). */
+      stuckAfterS: positive.default(60 * 60),
+      /** …while its companion reading (the other water temperature of the barrel, or the shell's water for a pressure) moved this much, K or kPa. */
+      companionMovedAtLeast: positive.default(1),
+      /** Two readings this close together are compared for a jump. */
+      rateWindowS: positive.default(60),
+      /** Saturated temperature against its pressure on the refrigerant's curve (K); sensors of ±0.5 K and transducers of ±1 % stay well inside (common practice). */
+      saturationToleranceK: positive.default(2),
+    })
+    .prefault({}),
   /** Chilled water leaving above its setpoint while the plant is called: the "it's warm in here" call. */
   chilledWaterNotMade: z
     .strictObject({

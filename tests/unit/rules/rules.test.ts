@@ -67,6 +67,9 @@ describe("crossover risk (rule 1)", () => {
     const cw = 12.2 + 4.5 - tS / 3600;
     return {
       cwInC: cw,
+      // The leaving water follows the entering water (a flat one beside it would read as a frozen sensor).
+      cwOutC: cw + 5.2,
+      towerInC: cw + 5.2,
       condKPa: saturationPressureKPa("R-134a", cw + 2),
       evapKPa: saturationPressureKPa("R-134a", 12.2 + 2),
     };
@@ -654,5 +657,58 @@ describe("chilled water not being made (the customer's 'it's warm in here')", ()
     expect(pullDown.firstActivation("chilled_water_not_made:CH-1")).toBeNull();
     const tripped = runFrames({ durationS: 1800, frame: () => ({ running: false, chillerAlarm: true, chwOutC: 13 }) });
     expect(tripped.firstActivation("chilled_water_not_made:CH-1")).toBeNull();
+  });
+});
+
+describe("sensor plausibility, and the rules resting on a failed sensor suppressed by design (ISA-18.2)", () => {
+  // A thermistor input that fails open reads the bottom of its range (common practice): here −40 °C. The
+  // site has no refrigerant pressures, so the crossover is judged on the entering water temperatures.
+  const noShellPressures = {
+    condKPa: null,
+    evapKPa: null,
+    condSatC: null,
+    evapSatC: null,
+  } as unknown as Partial<Frame>;
+  const failedOpen = (tS: number): Partial<Frame> => ({
+    ...noShellPressures,
+    running: false,
+    cwInC: tS < 120 ? 29.4 : -40,
+    towerInC: 29.4,
+    cwOutC: 29.4,
+  });
+
+  it("a condenser-water sensor failed open raises its own low alarm and never pages loops_crossed", () => {
+    const r = runFrames({ durationS: 900, frame: failedOpen, keep: true });
+    expect(r.firstActivation("sensor_implausible:CH-1")).not.toBeNull();
+    expect(r.evaluations.at(-1)!.alarms.get("sensor_implausible:CH-1")!.priority).toBe(4);
+    expect(r.firstActivation("loops_crossed:CH-1")).toBeNull();
+    expect(r.evaluations.at(-1)!.alarms.get("loops_crossed:CH-1")!.state).toBe("suppressed_by_design");
+    // The same reading with the check switched off pages it as critical: the suppression is what holds it.
+    const bare = runFrames({ durationS: 900, frame: failedOpen, settings: { sensorPlausibility: { enabled: false } } });
+    expect(bare.firstActivation("loops_crossed:CH-1")).not.toBeNull();
+  });
+
+  it("flags a saturated temperature off its pressure on the refrigerant's curve (R-134a: 250 kPa ≈ −4.3 °C, lib/REFERENCES.md)", () => {
+    const r = runFrames({ durationS: 300, frame: () => ({ evapSatC: 5.9, evapKPa: 250 }), keep: true });
+    const c = r.evaluations
+      .at(-1)!
+      .conditions.find((x) => x.ruleId === "sensor_implausible" && x.equipment === "CH-1")!;
+    expect(c.active).toBe(true);
+    expect(c.technicianMessage).toMatch(/evaporator saturated temp\w* disagrees with its pressure by 1\d\.\d K/i);
+  });
+
+  it("calls a reading frozen only when it stays exactly flat for an hour while its companion moves", () => {
+    const frozen = runFrames({
+      durationS: 2 * 3600,
+      stepS: 20,
+      frame: (tS) => ({ cwInC: 29.4, cwOutC: 34.6 + Math.sin(tS / 600) }),
+    });
+    const first = secondsOf(frozen.firstActivation("sensor_implausible:CH-1"));
+    expect(first).not.toBeNull();
+    // Flat over 90 % of the hour's window (the first sample need not sit on its edge).
+    expect(first!).toBeGreaterThanOrEqual(0.9 * 3600);
+    // A gateway reporting on change of value sends the same values for hours in a steady plant: not a fault.
+    const steady = runFrames({ durationS: 2 * 3600, stepS: 20, frame: () => ({}) });
+    expect(steady.firstActivation("sensor_implausible:CH-1")).toBeNull();
   });
 });

@@ -5,6 +5,7 @@ import type { QuantityKey } from "@/lib/quantities";
 import { createSiteMonitor, parseRuleSettings, type RuleSettingsInput, type SiteEvaluation } from "@/lib/rules";
 import type { CommStatus } from "@/lib/rules";
 import type { TransitionRecord } from "@/lib/alarms";
+import { saturationPressureKPa, saturationTempC } from "@/lib/refrigerant";
 import { effectiveChillerLimits, limitValues, type ChillerLimitValues } from "@/lib/plant/equipment-limits";
 
 export const T0 = Date.UTC(2025, 6, 1, 14, 0, 0);
@@ -143,6 +144,23 @@ export interface RunResult {
 }
 
 /** Feeds frames every stepS and evaluates after each; the same clock for readings and rules. */
+/**
+ * A frame as a chiller's controller reports it: a shell's saturated temperature and pressure agree on the
+ * R-134a curve, so a test that moves one moves the other (the sensor plausibility check compares them).
+ */
+function consistentFrame(partial: Partial<Frame>): Frame {
+  const f = { ...normalFrame, ...partial };
+  if (partial.evapSatC != null && partial.evapKPa === undefined)
+    f.evapKPa = saturationPressureKPa("R-134a", partial.evapSatC);
+  if (partial.evapKPa !== undefined && partial.evapSatC === undefined)
+    f.evapSatC = saturationTempC("R-134a", partial.evapKPa);
+  if (partial.condSatC !== undefined && partial.condKPa === undefined)
+    f.condKPa = saturationPressureKPa("R-134a", partial.condSatC);
+  if (partial.condKPa !== undefined && partial.condSatC === undefined)
+    f.condSatC = saturationTempC("R-134a", partial.condKPa);
+  return f;
+}
+
 export function runFrames(args: {
   durationS: number;
   stepS?: number;
@@ -165,7 +183,7 @@ export function runFrames(args: {
   const evaluations: SiteEvaluation[] = [];
   for (let tS = 0; tS <= args.durationS; tS += stepS) {
     const tsMs = T0 + tS * 1000;
-    monitor.ingest(readingsOf(tsMs, { ...normalFrame, ...args.frame(tS) }));
+    monitor.ingest(readingsOf(tsMs, consistentFrame(args.frame(tS))));
     const e = monitor.evaluate(tsMs, args.comms?.(tS));
     transitions.push(...e.transitions);
     if (args.keep) evaluations.push(e);
