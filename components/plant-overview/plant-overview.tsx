@@ -215,7 +215,7 @@ export function PlantOverview({
       viewBox={`0 0 ${model.width} ${model.height}`}
       width="100%"
       style={{ maxWidth: model.width * 1.15 }}
-      className="block text-ink"
+      className="mx-auto block text-ink"
       fontSize={model.fontPx}
       role="group"
       aria-labelledby={titleId}

@@ -92,14 +92,14 @@ export function LivePoints({
   return (
     <div className="flex flex-col gap-3">
       <div className="flex flex-wrap items-center justify-between gap-2">
-        {status ? (
-          <p
-            className={`rounded border px-3 py-1 text-sm ${status === "live" ? "border-line text-muted" : "border-stale font-semibold"}`}
-            data-testid="site-data-status"
-          >
-            {dataLabel[status]}
+        {status && status !== "live" ? (
+          // Said once at the top of the page while live; repeated here only when something is wrong.
+          <p className="rounded border-2 border-stale px-3 py-1 text-sm font-semibold" data-testid="site-data-status">
+            ⚠ {dataLabel[status]}
           </p>
-        ) : null}
+        ) : (
+          <span />
+        )}
         {showIdentifiers ? (
           <label className="flex items-center gap-2 text-sm">
             <input
