@@ -144,7 +144,8 @@ export function LivePlantOverview({
         </div>
         <p className="mt-1 px-1 text-xs text-muted">
           Solid line: supply; dashed: return. ▶ run · □ off · ◐ hand · ◆ fault · ○ no data. Dashed underline: stale. Tap
-          a value for its trend.
+          a value for its trend. Lockout times are the controller&apos;s or its timers&apos;: restart a chiller only as
+          the manufacturer&apos;s procedure allows.
         </p>
       </div>
       <p className="sr-only" aria-live="polite">
