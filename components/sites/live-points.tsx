@@ -1,13 +1,12 @@
 "use client";
 
 import Link from "next/link";
-import { useEffect, useState } from "react";
+import { useEffect, useState, useSyncExternalStore } from "react";
 import useSWR from "swr";
 import type { SiteLatestDto } from "@/lib/dto/readings";
-import type { EquipmentDto } from "@/lib/dto/sites";
+import type { EquipmentPointsView } from "@/lib/dto/sites";
 import type { SiteValues } from "@/lib/realtime/events";
 import { fetchJson } from "@/lib/client/fetcher";
-import { isQuantityKey, quantities, type Measure } from "@/lib/quantities";
 import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { isStale } from "@/lib/freshness";
@@ -28,15 +27,37 @@ const dataLabel = {
   no_gateway: "No gateway: no data",
 } as const;
 
-/** Every equipment's points with live values, age and stale marks; each opens its trend. */
+/** Wider than a phone (Tailwind's md breakpoint): equipment sections start open there. */
+const WIDE_QUERY = "(min-width: 768px)";
+
+function useWide(): boolean {
+  return useSyncExternalStore(
+    (changed) => {
+      const q = window.matchMedia(WIDE_QUERY);
+      q.addEventListener("change", changed);
+      return () => q.removeEventListener("change", changed);
+    },
+    () => window.matchMedia(WIDE_QUERY).matches,
+    // The server renders for a phone: sections collapsed.
+    () => false,
+  );
+}
+
+/**
+ * Every equipment's points with live values, age and stale marks; each opens its trend. Sections
+ * start collapsed on a phone and open on wider screens; staff can show the technical identifiers.
+ */
 export function LivePoints({
   siteId,
   equipment,
   unitSystem,
+  showIdentifiers,
 }: {
   siteId: string;
-  equipment: EquipmentDto[];
+  equipment: EquipmentPointsView[];
   unitSystem: UnitSystem;
+  /** Staff only: offers the toggle for point keys and Brick classes. */
+  showIdentifiers: boolean;
 }) {
   const { data, mutate } = useSWR<{ latest: SiteLatestDto }>(
     `/api/sites/${encodeURIComponent(siteId)}/latest`,
@@ -45,6 +66,8 @@ export function LivePoints({
   );
   const [live, setLive] = useState<Live>({});
   const [nowMs, setNowMs] = useState(() => Date.now());
+  const [identifiers, setIdentifiers] = useState(false);
+  const wide = useWide();
   useEffect(() => {
     const t = setInterval(() => setNowMs(Date.now()), 5000);
     return () => clearInterval(t);
@@ -67,95 +90,134 @@ export function LivePoints({
   const byId = new Map((data?.latest.points ?? []).map((p) => [p.pointId, p]));
   const status = data?.latest.data;
   return (
-    <div className="flex flex-col gap-4">
-      {status ? (
-        <p
-          className={`rounded px-3 py-2 text-sm ${status === "live" ? "bg-panel text-muted" : "bg-stale text-white"}`}
-          data-testid="site-data-status"
-        >
-          {dataLabel[status]}
-        </p>
-      ) : null}
+    <div className="flex flex-col gap-3">
+      <div className="flex flex-wrap items-center justify-between gap-2">
+        {status && status !== "live" ? (
+          // Said once at the top of the page while live; repeated here only when something is wrong.
+          <p className="rounded border-2 border-stale px-3 py-1 text-sm font-semibold" data-testid="site-data-status">
+            ⚠ {dataLabel[status]}
+          </p>
+        ) : (
+          <span />
+        )}
+        {showIdentifiers ? (
+          <label className="flex items-center gap-2 text-sm">
+            <input
+              type="checkbox"
+              checked={identifiers}
+              onChange={(e) => setIdentifiers(e.target.checked)}
+              data-testid="identifiers-toggle"
+            />
+            Show point keys and Brick classes
+          </label>
+        ) : null}
+      </div>
       {equipment.map((e) => (
-        <section
+        <EquipmentSection
           key={e.id}
-          aria-labelledby={`eq-${e.id}`}
-          className="rounded-lg border border-line bg-panel"
-          data-testid="equipment"
-        >
-          <header className="flex flex-wrap items-baseline gap-x-3 border-b border-line px-4 py-2">
-            <h3 id={`eq-${e.id}`} className="font-semibold">
-              {e.tag} <span className="font-normal text-muted">{e.name}</span>
-            </h3>
-            <p className="text-sm text-muted">
-              {[
-                kindLabel[e.kind] ?? e.kind,
-                e.capacityTons ? `${e.capacityTons} tons` : null,
-                e.refrigerant,
-                e.serves ? `serves ${e.serves}` : null,
-              ]
-                .filter(Boolean)
-                .join(" · ")}
-            </p>
-          </header>
-          <div className="overflow-x-auto">
-            <table className="w-full text-sm">
-              <thead className="sr-only">
-                <tr>
-                  <th scope="col">Point</th>
-                  <th scope="col">Value</th>
-                  <th scope="col">Age</th>
-                  <th scope="col">Brick class</th>
-                </tr>
-              </thead>
-              <tbody>
-                {e.points.map((p) => {
-                  const q = isQuantityKey(p.quantity) ? quantities[p.quantity] : undefined;
-                  const measure: Measure = q?.measure ?? "text";
-                  const latest = byId.get(p.id);
-                  const pushed = live[p.id];
-                  const tsMs = pushed?.tsMs ?? latest?.tsMs ?? null;
-                  const value = pushed ? pushed.value : (latest?.value ?? null);
-                  const stale = tsMs === null || isStale(tsMs, p.expectedIntervalS, nowMs) || status === "offline";
-                  return (
-                    <tr
-                      key={p.id}
-                      className="border-t border-line/60 first:border-t-0"
-                      data-testid="point-row"
-                      data-point={p.key}
-                      data-equipment={e.tag}
-                    >
-                      <th scope="row" className="px-4 py-1.5 text-left font-normal">
-                        <Link href={`/sites/${siteId}/points/${p.id}`} className="hover:underline">
-                          {q?.label ?? p.key}
-                        </Link>
-                      </th>
-                      <td
-                        className={`px-4 py-1.5 text-right tabular-nums ${stale ? "text-stale" : "font-semibold"}`}
-                        data-testid="point-value"
-                      >
-                        {tsMs === null ? "no data" : formatValue(value, measure, unitSystem)}
-                      </td>
-                      <td className="whitespace-nowrap px-4 py-1.5 text-right text-xs text-muted">
-                        {tsMs === null ? (
-                          ""
-                        ) : stale ? (
-                          <span className="rounded bg-stale px-1.5 py-0.5 text-white">
-                            stale · {formatDuration((nowMs - tsMs) / 1000)}
-                          </span>
-                        ) : (
-                          `${formatDuration((nowMs - tsMs) / 1000)} ago`
-                        )}
-                      </td>
-                      <td className="hidden px-4 py-1.5 font-mono text-xs text-muted lg:table-cell">{p.brickClass}</td>
-                    </tr>
-                  );
-                })}
-              </tbody>
-            </table>
-          </div>
-        </section>
+          equipment={e}
+          defaultOpen={wide}
+          render={(p) => {
+            const latest = byId.get(p.id);
+            const pushed = live[p.id];
+            const tsMs = pushed?.tsMs ?? latest?.tsMs ?? null;
+            const value = pushed ? pushed.value : (latest?.value ?? null);
+            const stale = tsMs === null || isStale(tsMs, p.expectedIntervalS, nowMs) || status === "offline";
+            return (
+              <tr
+                key={p.id}
+                className="border-t border-line/60 first:border-t-0"
+                data-testid="point-row"
+                data-point={p.identifiers?.key}
+                data-label={p.label}
+                data-equipment={e.tag}
+              >
+                <th scope="row" className="px-3 py-1.5 text-left font-normal">
+                  <Link href={`/sites/${siteId}/points/${p.id}`} className="hover:underline">
+                    {p.label}
+                  </Link>
+                  {identifiers && p.identifiers ? (
+                    <span className="block break-all font-mono text-xs text-muted" data-testid="point-identifiers">
+                      {p.identifiers.key} · {p.identifiers.brickClass}
+                    </span>
+                  ) : null}
+                </th>
+                <td
+                  className={`px-3 py-1.5 text-right tabular-nums ${stale ? "text-muted" : "font-semibold"}`}
+                  data-testid="point-value"
+                >
+                  {tsMs === null ? "no data" : formatValue(value, p.measure, unitSystem)}
+                </td>
+                <td className="whitespace-nowrap px-3 py-1.5 text-right text-xs text-muted">
+                  {tsMs === null ? (
+                    ""
+                  ) : stale ? (
+                    <span className="rounded border border-dashed border-stale px-1.5 py-0.5">
+                      stale · {formatDuration((nowMs - tsMs) / 1000)}
+                    </span>
+                  ) : (
+                    `${formatDuration((nowMs - tsMs) / 1000)} ago`
+                  )}
+                </td>
+              </tr>
+            );
+          }}
+        />
       ))}
     </div>
+  );
+}
+
+function EquipmentSection({
+  equipment: e,
+  defaultOpen,
+  render,
+}: {
+  equipment: EquipmentPointsView;
+  defaultOpen: boolean;
+  render: (p: EquipmentPointsView["points"][number]) => React.ReactNode;
+}) {
+  // Follows the screen until someone opens or closes it.
+  const [toggled, setToggled] = useState<boolean | null>(null);
+  const open = toggled ?? defaultOpen;
+  return (
+    <details
+      open={open}
+      onToggle={(ev) => setToggled(ev.currentTarget.open)}
+      className="rounded-lg border border-line bg-panel"
+      data-testid="equipment"
+      data-equipment={e.tag}
+      id={`equipment-${encodeURIComponent(e.tag)}`}
+    >
+      <summary
+        className="flex cursor-pointer flex-wrap items-baseline gap-x-3 px-4 py-2"
+        data-testid="equipment-toggle"
+      >
+        <h3 className="inline font-semibold">
+          {e.tag} <span className="font-normal text-muted">{e.name}</span>
+        </h3>
+        <span className="text-sm text-muted">
+          {[
+            kindLabel[e.kind] ?? e.kind,
+            e.capacityTons ? `${e.capacityTons} tons` : null,
+            e.refrigerant,
+            e.serves ? `serves ${e.serves}` : null,
+            `${e.points.length} points`,
+          ]
+            .filter(Boolean)
+            .join(" · ")}
+        </span>
+      </summary>
+      <table className="w-full border-t border-line text-sm" aria-label={`${e.tag} points`}>
+        <thead className="sr-only">
+          <tr>
+            <th scope="col">Point</th>
+            <th scope="col">Value</th>
+            <th scope="col">Age</th>
+          </tr>
+        </thead>
+        <tbody>{e.points.map(render)}</tbody>
+      </table>
+    </details>
   );
 }

@@ -147,6 +147,7 @@ export function getSite(
       designFlowLps: equipment.designFlowLps,
       refrigerant: equipment.refrigerant,
       serves: equipment.serves,
+      record: equipment.record,
     })
     .from(equipment)
     .where(
@@ -187,7 +188,7 @@ export function getSite(
     byEquipment.set(equipmentId, list);
   }
   const equipmentDtos = equipmentRows
-    .map((e) => ({ ...e, points: byEquipment.get(e.id) ?? [] }))
+    .map(({ record, ...e }) => ({ ...e, loop: pumpLoopOf(record), points: byEquipment.get(e.id) ?? [] }))
     .sort((a, b) => kindOrder(a.kind) - kindOrder(b.kind) || a.tag.localeCompare(b.tag, "en", { numeric: true }));
   const { contacts, accessNotes, retiredAt, ...summary } = row;
   return {
@@ -197,6 +198,11 @@ export function getSite(
     accessNotes,
     retiredAtMs: retiredAt?.getTime() ?? null,
   };
+}
+
+/** A pump's loop from its record (lib/schemas/equipment.ts); null for other kinds or an older record. */
+function pumpLoopOf(record: Record<string, unknown>): "chilled_water" | "condenser_water" | null {
+  return record.loop === "chilled_water" || record.loop === "condenser_water" ? record.loop : null;
 }
 
 // The rule checks' view of a site, read by the alarm service (a system process, no viewer).

@@ -1,3 +1,5 @@
+import type { Measure } from "@/lib/quantities";
+
 export interface SiteSummaryDto {
   id: string;
   name: string;
@@ -28,6 +30,8 @@ export interface EquipmentDto {
   designFlowLps: number | null;
   refrigerant: string | null;
   serves: string | null;
+  /** Pumps: the loop their record names. */
+  loop?: "chilled_water" | "condenser_water" | null;
   points: PointDto[];
 }
 
@@ -90,4 +94,26 @@ export interface EquipmentRecordDto extends RetiredDto {
   record: Record<string, unknown>;
   createdAtMs: number;
   limits: Record<string, ChillerLimitDto> | null;
+}
+
+/**
+ * One piece of equipment's points as the site page lists them: label and measure resolved on the
+ * server, and the technical identifiers (point key, Brick class) only for staff — a customer's page
+ * never carries them.
+ */
+export interface EquipmentPointsView {
+  id: string;
+  tag: string;
+  name: string;
+  kind: string;
+  capacityTons: number | null;
+  refrigerant: string | null;
+  serves: string | null;
+  points: Array<{
+    id: number;
+    label: string;
+    measure: Measure;
+    expectedIntervalS: number;
+    identifiers?: { key: string; brickClass: string };
+  }>;
 }

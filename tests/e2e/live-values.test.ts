@@ -25,6 +25,8 @@ describe.skipIf(!hasChromium)("live values in the browser", () => {
     const page = await context.newPage();
     await signInAs(page, env.server.url, "luis@tallgrass.example");
     await page.goto(`${env.server.url}/sites/harborview-mob`);
+    // On a phone the equipment sections start collapsed: open the chiller's.
+    await page.locator("[data-testid=equipment][data-equipment='CH-1'] [data-testid=equipment-toggle]").click();
     const cell = page.locator(
       "[data-testid=point-row][data-equipment='CH-1'][data-point=chilled_water_leaving_temp] [data-testid=point-value]",
     );

@@ -3,7 +3,9 @@ import { notFound } from "next/navigation";
 import { getDb } from "@/lib/server/runtime";
 import { getSite } from "@/db/queries/sites";
 import { LivePoints } from "@/components/sites/live-points";
-import { SiteWarnings } from "@/components/sites/site-warnings";
+import { SiteAlarms, SitePlantNumbers } from "@/components/sites/site-warnings";
+import { SiteStatusLine } from "@/components/sites/site-status-line";
+import { LivePlantOverview } from "@/components/plant-overview/live-plant-overview";
 import { TemporaryChangeBanner } from "@/components/service/change-banner";
 import { OpenVisitButton } from "@/components/service/open-visit-button";
 import { ServiceRequestPanel } from "@/components/service/service-requests";
@@ -12,6 +14,8 @@ import { listVisitReports } from "@/db/queries/visit-reports";
 import { SiteReports } from "@/components/service/site-reports";
 import { FilesStrip } from "@/components/files/files-strip";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
+import { overviewLayout } from "@/lib/plant/overview-layout";
+import { overviewInputs, pointsView } from "@/lib/plant/site-page-view";
 import Link from "next/link";
 import { requirePageViewer } from "../../../(auth)/auth";
 
@@ -25,6 +29,9 @@ export async function generateMetadata({ params }: Props): Promise<Metadata> {
   return { title: site?.name ?? "Not found" };
 }
 
+// Sections sit below the sticky in-page navigation when jumped to.
+const section = "scroll-mt-14";
+
 export default async function SitePage({ params }: Props) {
   const viewer = await requirePageViewer();
   const site = getSite(getDb(), viewer, (await params).siteId);
@@ -32,37 +39,38 @@ export default async function SitePage({ params }: Props) {
   if (!site) notFound();
   const staff = canAct(viewer);
   const openVisits = staff ? listVisits(getDb(), viewer, { siteId: site.id, open: true }) : [];
+  const inputs = overviewInputs(site.equipment);
+  const nav = [
+    ["overview", "Overview"],
+    ["alarms", "Alarms"],
+    ...(staff ? [["numbers", "Numbers"]] : []),
+    ["equipment", "Equipment"],
+    [staff ? "records" : "service", staff ? "Files" : "Service"],
+  ];
   return (
     <article>
-      <header className="mb-4">
-        <h1 className="text-2xl font-semibold">{site.name}</h1>
-        <p className="text-muted">
-          {site.customer.name} · {site.address} · {site.timeZone}
+      <header className="mb-3">
+        <h1 className="text-2xl font-semibold leading-tight">{site.name}</h1>
+        <p className="truncate text-sm text-muted">
+          {site.customer.name} · {site.address}
         </p>
-        <Link href={`/incidents?site=${site.id}`} className="text-sm underline" data-testid="site-incidents-link">
-          Incidents{canAct(viewer) ? "" : " written up for you"}
-        </Link>
-        {canAct(viewer) ? (
-          <p className="mt-1 flex flex-wrap gap-x-4 text-sm">
-            <Link href={`/sites/${site.id}/rules`} className="underline">
-              Rule settings
-            </Link>
-            {isAdmin(viewer) ? (
-              <>
-                <Link href={`/sites/${site.id}/setup`} className="underline">
-                  Site setup and equipment
-                </Link>
-                <Link href={`/sites/${site.id}/points/import`} className="underline">
-                  Point list and exports
-                </Link>
-                <Link href={`/sites/${site.id}/gateways`} className="underline">
-                  Gateways and point maps
-                </Link>
-              </>
-            ) : null}
-          </p>
-        ) : null}
+        <SiteStatusLine siteId={site.id} canAct={staff} />
+        <p className="mt-1 flex flex-wrap gap-x-4 text-sm">
+          <Link href={`/incidents?site=${site.id}`} className="underline" data-testid="site-incidents-link">
+            Incidents{staff ? "" : " written up for you"}
+          </Link>
+        </p>
       </header>
+      <nav
+        aria-label="On this page"
+        className="sticky top-0 z-10 -mx-4 mb-4 flex flex-wrap gap-x-4 gap-y-1 border-b border-line bg-surface px-4 py-2 text-sm"
+      >
+        {nav.map(([id, label]) => (
+          <a key={id} href={`#${id}`} className="font-semibold underline-offset-2 hover:underline">
+            {label}
+          </a>
+        ))}
+      </nav>
       <TemporaryChangeBanner siteId={site.id} staff={staff} timeZone={site.timeZone} />
       {staff ? (
         <section className="mb-4 flex flex-col gap-2" aria-label="Visits">
@@ -74,13 +82,45 @@ export default async function SitePage({ params }: Props) {
           <OpenVisitButton siteId={site.id} />
         </section>
       ) : null}
-      <SiteWarnings siteId={site.id} canAct={canAct(viewer)} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
-      <h2 className="mb-2 mt-8 text-lg font-semibold">Equipment and points</h2>
-      <LivePoints siteId={site.id} equipment={site.equipment} unitSystem={viewer.unitSystem} />
-      {staff ? null : <ServiceRequestPanel siteId={site.id} timeZone={site.timeZone} />}
+      <section id="overview" aria-labelledby="overview-title" className={`mb-6 ${section}`}>
+        <h2 id="overview-title" className="mb-2 text-lg font-semibold">
+          Plant overview
+        </h2>
+        <LivePlantOverview
+          siteId={site.id}
+          siteName={site.name}
+          narrow={overviewLayout(inputs, "narrow")}
+          wide={overviewLayout(inputs, "wide")}
+          unitSystem={viewer.unitSystem}
+        />
+      </section>
+      <div id="alarms" className={`mb-6 ${section}`}>
+        <SiteAlarms siteId={site.id} canAct={staff} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
+      </div>
+      {staff ? (
+        <div id="numbers" className={`mb-6 ${section}`}>
+          <SitePlantNumbers siteId={site.id} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
+        </div>
+      ) : null}
+      <section id="equipment" aria-labelledby="equipment-title" className={`mb-6 ${section}`}>
+        <h2 id="equipment-title" className="mb-2 text-lg font-semibold">
+          Equipment and points
+        </h2>
+        <LivePoints
+          siteId={site.id}
+          equipment={pointsView(site.equipment, staff)}
+          unitSystem={viewer.unitSystem}
+          showIdentifiers={staff}
+        />
+      </section>
+      {staff ? null : (
+        <div id="service" className={section}>
+          <ServiceRequestPanel siteId={site.id} timeZone={site.timeZone} />
+        </div>
+      )}
       <SiteReports reports={listVisitReports(getDb(), viewer, { siteId: site.id })} timeZone={site.timeZone} />
-      {canAct(viewer) ? (
-        <section aria-labelledby="records-title" className="mt-8">
+      {staff ? (
+        <section id="records" aria-labelledby="records-title" className={`mt-8 ${section}`}>
           <h2 id="records-title" className="mb-2 text-lg font-semibold">
             Photos, files and refrigerant logs
           </h2>
@@ -98,6 +138,32 @@ export default async function SitePage({ params }: Props) {
               ))}
           </p>
           <FilesStrip siteId={site.id} canAct />
+        </section>
+      ) : null}
+      {staff ? (
+        <section aria-labelledby="tools-title" className="mt-8">
+          <h2 id="tools-title" className="mb-2 text-lg font-semibold">
+            Site settings
+          </h2>
+          <p className="flex flex-wrap gap-x-4 gap-y-1 text-sm">
+            <Link href={`/sites/${site.id}/rules`} className="underline">
+              Rule settings
+            </Link>
+            {isAdmin(viewer) ? (
+              <>
+                <Link href={`/sites/${site.id}/setup`} className="underline">
+                  Site setup and equipment
+                </Link>
+                <Link href={`/sites/${site.id}/points/import`} className="underline">
+                  Point list and exports
+                </Link>
+                <Link href={`/sites/${site.id}/gateways`} className="underline">
+                  Gateways and point maps
+                </Link>
+              </>
+            ) : null}
+          </p>
+          <p className="mt-1 text-xs text-muted">{site.timeZone} site time</p>
         </section>
       ) : null}
     </article>
