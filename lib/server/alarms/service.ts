@@ -15,14 +15,20 @@ import {
   type RuleContext,
   type SiteMonitor,
 } from "@/lib/rules";
+import { EVALUATION_STEP_MS, isEvaluationDue } from "@/lib/rules/schedule";
 import type { StorageHealth } from "../storage-health";
 
 // Runs the rule checks of every site on the readings ingestion commits, on event time,
 // and keeps the alarms' ISA-18.2 state in the database. People's commands (acknowledge,
 // shelve, unshelve) go through here too, so the in-memory machines and the rows agree.
 
-/** Evaluate at most this often in event time: rules look at minutes, not seconds. */
-const EVALUATION_STEP_MS = 5_000;
+/**
+ * A due evaluation waits for a newer reading (so every reading of its instant is in, however
+ * the gateway split its messages and the writer its flushes) or, when none comes, this long.
+ */
+export const SETTLE_MS = 1_000;
+/** No reading for this long (wall clock): event time is run on with the wall clock, so silence is noticed. */
+export const SILENCE_MS = 60_000;
 
 export type AlarmCommand =
   | { type: "acknowledge"; note?: string }
@@ -42,8 +48,13 @@ export interface AlarmService {
    * readings are read during the call and none is kept (the rule feed reuses them).
    */
   record(siteId: string, readings: readonly Reading[]): boolean;
-  /** Runs the rule checks if a step of event time passed since the last evaluation. */
+  /**
+   * Runs the rule checks at the evaluation times the readings called for (lib/rules/schedule.ts)
+   * once a newer reading shows each time's readings are all in.
+   */
   evaluateDue(siteId: string): void;
+  /** Runs due evaluations whose readings have settled (SETTLE_MS without a newer one). */
+  settle(): void;
   command(viewer: Viewer, alarmId: string, command: AlarmCommand): { alarmId: string; state: string };
   /** The last derived numbers of a site (for its page), or null before any reading. */
   snapshot(siteId: string): SiteSnapshot | null;
@@ -58,6 +69,8 @@ export interface AlarmService {
    * history and alarms; a retired site's checks stop.
    */
   reload(siteId: string): void;
+  /** Drops a site's monitor (its timeline was replaced); the next reading rebuilds it from the database. */
+  forget(siteId: string): void;
   /** Wall-clock housekeeping: shelf expiry and silence, extrapolating event time. */
   tick(): void;
 }
@@ -68,8 +81,14 @@ interface SiteState {
   retired: boolean;
   monitor: SiteMonitor;
   lastEvaluatedMs: number;
+  /** Evaluation times the readings called for and not yet run, ascending. */
+  pending: number[];
+  /** The last evaluation time scheduled (run or pending). */
+  lastScheduledMs: number;
   latestEventMs: number;
   latestWallMs: number;
+  /** Wall time of the last reading ingested (for SETTLE_MS). */
+  ingestWallMs: number;
   snapshot: SiteSnapshot | null;
   details: Map<string, AlarmDetail>;
   /** Changes the rule checks made that could not be saved yet (a full disk); saved with the next ones. */
@@ -110,8 +129,11 @@ export function createAlarmService(deps: {
           timeZone: siteTimeZone(db, siteId),
         }),
         lastEvaluatedMs: -Infinity,
+        pending: [],
+        lastScheduledMs: -Infinity,
         latestEventMs: -Infinity,
         latestWallMs: deps.clock(),
+        ingestWallMs: deps.clock(),
         snapshot: null,
         details: new Map(),
         unsaved: { alarms: new Map(), transitions: [] },
@@ -190,18 +212,34 @@ export function createAlarmService(deps: {
     for (let i = 1; i < readings.length && ordered; i++) ordered = readings[i - 1].tsMs <= readings[i].tsMs;
     const sorted = ordered ? readings : [...readings].sort((a, b) => a.tsMs - b.tsMs);
     s.monitor.ingest(sorted);
+    // The evaluation times depend on the readings' times only, never on how they were batched.
+    for (const r of sorted)
+      if (isEvaluationDue(s.lastScheduledMs, r.tsMs)) {
+        s.pending.push(r.tsMs);
+        s.lastScheduledMs = r.tsMs;
+      }
     const newest = sorted[sorted.length - 1].tsMs;
     if (newest > s.latestEventMs) {
       s.latestEventMs = newest;
       s.latestWallMs = deps.clock();
     }
-    return s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS;
+    s.ingestWallMs = deps.clock();
+    return s.pending.length > 0 && s.pending[0] < s.latestEventMs;
+  }
+
+  /** Runs the pending evaluations before `untilMs` (all with Infinity), in order. */
+  function runPending(siteId: string, s: SiteState, untilMs: number) {
+    let n = 0;
+    while (n < s.pending.length && s.pending[n] < untilMs) n++;
+    if (!n) return;
+    const times = s.pending.splice(0, n);
+    for (const atMs of times) evaluateAt(siteId, s, atMs);
   }
 
   function evaluateDue(siteId: string) {
     const s = sites.get(siteId);
-    if (s && !s.retired && s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS)
-      evaluateAt(siteId, s, s.latestEventMs);
+    // A time is complete once a newer reading arrived: an in-order gateway sent all of it.
+    if (s && !s.retired) runPending(siteId, s, s.latestEventMs);
   }
 
   return {
@@ -252,6 +290,14 @@ export function createAlarmService(deps: {
       }
       return out;
     },
+    settle() {
+      const now = deps.clock();
+      for (const [siteId, s] of sites)
+        if (!s.retired && s.pending.length && now - s.ingestWallMs >= SETTLE_MS) runPending(siteId, s, Infinity);
+    },
+    forget(siteId) {
+      sites.delete(siteId);
+    },
     reload(siteId) {
       const old = sites.get(siteId);
       if (!old) return;
@@ -273,17 +319,22 @@ export function createAlarmService(deps: {
           history: old.monitor.history,
         }),
         // Evaluate with the new limits at the next reading rather than wait out a step.
-        lastEvaluatedMs: -Infinity,
+        lastScheduledMs: -Infinity,
       });
     },
     tick() {
       const now = deps.clock();
       for (const [siteId, s] of sites) {
         if (s.retired || !Number.isFinite(s.latestEventMs)) continue;
-        // With no readings arriving, let event time run on with the wall clock so silence
-        // is noticed and shelves expire.
+        runPending(siteId, s, Infinity);
+        // Only a silent site runs on the wall clock (silence is noticed, shelves expire): while
+        // readings flow, evaluations follow their times alone, so a replay finds the same ones.
+        if (now - s.latestWallMs < SILENCE_MS) continue;
         const extrapolated = s.latestEventMs + (now - s.latestWallMs);
-        if (extrapolated - s.lastEvaluatedMs >= EVALUATION_STEP_MS) evaluateAt(siteId, s, extrapolated);
+        if (extrapolated - s.lastEvaluatedMs >= EVALUATION_STEP_MS) {
+          evaluateAt(siteId, s, extrapolated);
+          s.lastScheduledMs = Math.max(s.lastScheduledMs, extrapolated);
+        }
       }
     },
   };
