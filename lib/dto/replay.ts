@@ -1,5 +1,6 @@
 import type { Equipment } from "@/lib/plant/site";
 import type { QuantityKey } from "@/lib/quantities";
+import type { RuleSettings } from "@/lib/rules/settings";
 
 /** One point's stored readings in a replay window, as columns (canonical SI; booleans as booleans). */
 export interface ReplayPointDto {
@@ -34,6 +35,8 @@ export interface ReplayWindowDto {
   equipment: Equipment[];
   points: ReplayPointDto[];
   transitions: ReplayTransitionDto[];
+  /** The site's crossover-fit settings, which the plant numbers (time to crossover) are drawn with. */
+  crossoverRisk: RuleSettings["crossoverRisk"];
   /** Alarm transitions recorded before the window whose alarm was still out of normal at its start. */
   activeAtStart: ReplayTransitionDto[];
 }

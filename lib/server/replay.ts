@@ -30,6 +30,7 @@ export function loadReplayWindow(
     points,
     transitions: recordedTransitions(db, viewer, siteId, fromMs, toMs),
     activeAtStart: transitionsStandingAt(db, viewer, siteId, fromMs),
+    crossoverRisk: loadRuleSettings(db, siteId).crossoverRisk,
   };
 }
 

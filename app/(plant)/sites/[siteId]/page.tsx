@@ -39,6 +39,9 @@ export default async function SitePage({ params }: Props) {
         <p className="text-muted">
           {site.customer.name} · {site.address} · {site.timeZone}
         </p>
+        <Link href={`/sites/${site.id}/replay`} className="text-sm underline" data-testid="replay-link">
+          Replay a past window
+        </Link>
         {canAct(viewer) ? (
           <p className="mt-1 flex flex-wrap gap-x-4 text-sm">
             <Link href={`/sites/${site.id}/rules`} className="underline">
