@@ -118,7 +118,7 @@ export function ReplayPlayer({
         data-testid="replay-banner"
       >
         <p className="text-sm font-bold uppercase tracking-wide">Replay — not live</p>
-        <p className="text-2xl font-semibold tabular-nums" data-testid="replay-clock" aria-live="off">
+        <p className="text-2xl font-semibold tabular-nums" data-testid="replay-clock" data-at-ms={atMs}>
           {formatDateTime(atMs, timeZone)} · {formatClock(atMs, timeZone)}
         </p>
         <p className="text-xs text-muted">
@@ -213,6 +213,7 @@ export function ReplayPlayer({
                 key={a.alarmKey}
                 className="flex flex-wrap items-center gap-2 rounded border border-line bg-panel p-2 text-sm"
                 data-testid="replay-alarm"
+                data-key={a.alarmKey}
                 data-rule={a.ruleId}
                 data-state={a.state}
               >
