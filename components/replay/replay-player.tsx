@@ -119,7 +119,8 @@ export function ReplayPlayer({
       >
         <p className="text-sm font-bold uppercase tracking-wide">Replay — not live</p>
         <p className="text-2xl font-semibold tabular-nums" data-testid="replay-clock" data-at-ms={atMs}>
-          {formatDateTime(atMs, timeZone)} · {formatClock(atMs, timeZone)}
+          {new Date(atMs).toLocaleDateString("en-US", { month: "short", day: "numeric", timeZone })}{" "}
+          {formatClock(atMs, timeZone)}
         </p>
         <p className="text-xs text-muted">
           Site time ({timeZone}) · {running ? `playing at ${speed}×` : "paused"} · window{" "}
