@@ -101,3 +101,23 @@ export function transitionsStandingAt(db: Db, viewer: Viewer, siteId: string, fr
     )
     .all(siteId, fromMs) as ReplayTransitionDto[];
 }
+
+/**
+ * Changes to what the rules read (rule settings, equipment, limits) recorded at or after `sinceMs`
+ * (wall clock): a replay runs with today's, so a window before such a change may replay differently.
+ */
+export function ruleInputChangesSince(
+  db: Db,
+  viewer: Viewer,
+  siteId: string,
+  sinceMs: number,
+): Array<{ atMs: number; entityType: string; summary: string }> {
+  requireSite(db, viewer, siteId);
+  return db.$client
+    .prepare(
+      `select at as atMs, entity_type as entityType, summary from audit_log
+        where site_id = ? and at >= ? and entity_type in ('rule_settings', 'equipment', 'limit')
+        order by at`,
+    )
+    .all(siteId, sinceMs) as Array<{ atMs: number; entityType: string; summary: string }>;
+}

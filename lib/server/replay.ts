@@ -1,5 +1,5 @@
 import type { Db } from "@/db/client";
-import { recordedTransitions, replayReadings, transitionsStandingAt } from "@/db/queries/replay";
+import { recordedTransitions, replayReadings, ruleInputChangesSince, transitionsStandingAt } from "@/db/queries/replay";
 import { siteEquipment, siteTimeZone } from "@/db/queries/sites";
 import type { Viewer } from "@/lib/auth/viewer";
 import type { ReplayPointDto, ReplayTransitionDto, ReplayWindowDto } from "@/lib/dto/replay";
@@ -54,6 +54,8 @@ export interface WindowReevaluation extends RuleReplay {
   /** Readable lines, one per transition only one side has (rule-caused ones); empty when they agree. */
   differences: string[];
   warmUpFromMs: number;
+  /** Rule settings, equipment or limits changed since the warm-up began: the replay ran with today's. */
+  changedSince: Array<{ atMs: number; entityType: string; summary: string }>;
 }
 
 /**
@@ -81,5 +83,11 @@ export function reevaluateWindow(
     toMs,
   });
   const recorded = recordedTransitions(db, viewer, siteId, fromMs, toMs);
-  return { ...result, recorded, differences: diffTransitions(recorded, result.transitions), warmUpFromMs };
+  return {
+    ...result,
+    recorded,
+    differences: diffTransitions(recorded, result.transitions),
+    warmUpFromMs,
+    changedSince: ruleInputChangesSince(db, viewer, siteId, warmUpFromMs),
+  };
 }

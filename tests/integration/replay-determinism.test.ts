@@ -93,7 +93,8 @@ describe("replay determinism", () => {
     expect(
       differences,
       `replay of ${new Date(fromMs).toISOString()}–${new Date(toMs).toISOString()}: ${recorded.length} recorded, ` +
-        `${result.transitions.length} replayed, ${result.evaluations} evaluations`,
+        `${result.transitions.length} replayed, ${result.evaluations} evaluations; rule inputs changed since: ` +
+        JSON.stringify(result.changedSince),
     ).toEqual([]);
     console.log(
       `[replay] ${recorded.length} recorded rule transitions reproduced by ${result.evaluations} evaluations over ${
