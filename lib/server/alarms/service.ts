@@ -318,8 +318,7 @@ export function createAlarmService(deps: {
           timeZone: siteTimeZone(db, siteId),
           history: old.monitor.history,
         }),
-        // Evaluate with the new limits at the next reading rather than wait out a step.
-        lastScheduledMs: -Infinity,
+        // The schedule stays the readings' (lib/rules/schedule.ts): the new limits apply from the next step.
       });
     },
     tick() {
