@@ -29,6 +29,11 @@ import type { StorageHealth } from "../storage-health";
 export const SETTLE_MS = 1_000;
 /** No reading for this long (wall clock): event time is run on with the wall clock, so silence is noticed. */
 export const SILENCE_MS = 60_000;
+/**
+ * Evaluations run per call at most: a gateway's backfill of hours calls for thousands, and the
+ * event loop must keep serving pages and PUBACKs between them (the rest run on later turns).
+ */
+const MAX_EVALUATIONS_PER_CALL = 50;
 
 export type AlarmCommand =
   | { type: "acknowledge"; note?: string }
@@ -50,9 +55,9 @@ export interface AlarmService {
   record(siteId: string, readings: readonly Reading[]): boolean;
   /**
    * Runs the rule checks at the evaluation times the readings called for (lib/rules/schedule.ts)
-   * once a newer reading shows each time's readings are all in.
+   * once a newer reading shows each time's readings are all in; true when some are left for a later call.
    */
-  evaluateDue(siteId: string): void;
+  evaluateDue(siteId: string): boolean;
   /** Runs due evaluations whose readings have settled (SETTLE_MS without a newer one). */
   settle(): void;
   command(viewer: Viewer, alarmId: string, command: AlarmCommand): { alarmId: string; state: string };
@@ -227,19 +232,19 @@ export function createAlarmService(deps: {
     return s.pending.length > 0 && s.pending[0] < s.latestEventMs;
   }
 
-  /** Runs the pending evaluations before `untilMs` (all with Infinity), in order. */
-  function runPending(siteId: string, s: SiteState, untilMs: number) {
+  /** Runs pending evaluations before `untilMs` (all with Infinity), in order, a bounded number; true when some are left. */
+  function runPending(siteId: string, s: SiteState, untilMs: number, max = MAX_EVALUATIONS_PER_CALL): boolean {
     let n = 0;
-    while (n < s.pending.length && s.pending[n] < untilMs) n++;
-    if (!n) return;
+    while (n < s.pending.length && n < max && s.pending[n] < untilMs) n++;
     const times = s.pending.splice(0, n);
     for (const atMs of times) evaluateAt(siteId, s, atMs);
+    return s.pending.length > 0 && s.pending[0] < untilMs;
   }
 
-  function evaluateDue(siteId: string) {
+  function evaluateDue(siteId: string): boolean {
     const s = sites.get(siteId);
     // A time is complete once a newer reading arrived: an in-order gateway sent all of it.
-    if (s && !s.retired) runPending(siteId, s, s.latestEventMs);
+    return !!s && !s.retired && runPending(siteId, s, s.latestEventMs);
   }
 
   return {
@@ -325,7 +330,7 @@ export function createAlarmService(deps: {
       const now = deps.clock();
       for (const [siteId, s] of sites) {
         if (s.retired || !Number.isFinite(s.latestEventMs)) continue;
-        runPending(siteId, s, Infinity);
+        runPending(siteId, s, Infinity, Infinity);
         // Only a silent site runs on the wall clock (silence is noticed, shelves expire): while
         // readings flow, evaluations follow their times alone, so a replay finds the same ones.
         if (now - s.latestWallMs < SILENCE_MS) continue;
