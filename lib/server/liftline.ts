@@ -212,7 +212,8 @@ async function start(
         onSiteReset: (siteId, pointIds) => {
           gatewaySide.writer.forget(pointIds);
           live.forget(pointIds);
-          alarmSystem.service.reload(siteId);
+          // A fresh monitor: the old run's readings and alarm states would otherwise mix into the new timeline.
+          alarmSystem.service.forget(siteId);
         },
       });
       const sim = simulation;

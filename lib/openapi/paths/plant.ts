@@ -5,6 +5,7 @@ import { createGatewaySchema, listGatewaysQuery } from "@/lib/schemas/gateways";
 import { ackLinkQuerySchema } from "@/lib/schemas/notify";
 import { shiftSchema } from "@/lib/schemas/oncall";
 import { pointParamsSchema, seriesQuerySchema } from "@/lib/schemas/readings";
+import { replayQuerySchema, siteParamsSchema } from "@/lib/schemas/replay";
 import { createTokenSchema } from "@/lib/schemas/tokens";
 import type { Operation } from "../operation";
 
@@ -62,6 +63,17 @@ export const plantOperations: Operation[] = [
     summary: "The derived numbers a technician reasons with (crossover margin, lift, lockout…)",
     access: "signed-in",
     responses: { 200: "Derived values as of the site's latest event time" },
+  },
+  {
+    method: "get",
+    path: "/api/sites/{siteId}/replay",
+    tag: "Readings",
+    summary: "A window of a site to replay: raw readings per point and the recorded alarm transitions",
+    description: "Default the last hour; at most 24 h. Counted against the trends rate limit.",
+    access: "signed-in",
+    params: siteParamsSchema,
+    query: replayQuerySchema,
+    responses: { 200: "The window", 400: "Bad or too long a window", 404: "No such site", 429: "Rate limited" },
   },
   {
     method: "get",

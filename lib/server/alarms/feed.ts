@@ -61,7 +61,8 @@ export function createRuleFeed(deps: { db: Db; service: AlarmService }): (rows: 
     const until = performance.now() + SLICE_MS;
     for (const siteId of due) {
       due.delete(siteId);
-      guarded(siteId, () => deps.service.evaluateDue(siteId));
+      // A backfill's many evaluations run a bounded batch per turn; the site waits again for the rest.
+      guarded(siteId, () => deps.service.evaluateDue(siteId) && due.add(siteId));
       if (performance.now() >= until) break;
     }
     if (due.size > 0) schedule();

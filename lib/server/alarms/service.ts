@@ -15,6 +15,7 @@ import {
   type RuleContext,
   type SiteMonitor,
 } from "@/lib/rules";
+import { EVALUATION_STEP_MS, isEvaluationDue } from "@/lib/rules/schedule";
 import type { StorageHealth } from "../storage-health";
 import type { IncidentFiler } from "../incidents";
 
@@ -22,8 +23,18 @@ import type { IncidentFiler } from "../incidents";
 // and keeps the alarms' ISA-18.2 state in the database. People's commands (acknowledge,
 // shelve, unshelve) go through here too, so the in-memory machines and the rows agree.
 
-/** Evaluate at most this often in event time: rules look at minutes, not seconds. */
-const EVALUATION_STEP_MS = 5_000;
+/**
+ * A due evaluation waits for a newer reading (so every reading of its instant is in, however
+ * the gateway split its messages and the writer its flushes) or, when none comes, this long.
+ */
+export const SETTLE_MS = 1_000;
+/** No reading for this long (wall clock): event time is run on with the wall clock, so silence is noticed. */
+export const SILENCE_MS = 60_000;
+/**
+ * Evaluations run per call at most: a gateway's backfill of hours calls for thousands, and the
+ * event loop must keep serving pages and PUBACKs between them (the rest run on later turns).
+ */
+const MAX_EVALUATIONS_PER_CALL = 50;
 
 export type AlarmCommand =
   | { type: "acknowledge"; note?: string }
@@ -43,8 +54,13 @@ export interface AlarmService {
    * readings are read during the call and none is kept (the rule feed reuses them).
    */
   record(siteId: string, readings: readonly Reading[]): boolean;
-  /** Runs the rule checks if a step of event time passed since the last evaluation. */
-  evaluateDue(siteId: string): void;
+  /**
+   * Runs the rule checks at the evaluation times the readings called for (lib/rules/schedule.ts)
+   * once a newer reading shows each time's readings are all in; true when some are left for a later call.
+   */
+  evaluateDue(siteId: string): boolean;
+  /** Runs due evaluations whose readings have settled (SETTLE_MS without a newer one). */
+  settle(): void;
   command(viewer: Viewer, alarmId: string, command: AlarmCommand): { alarmId: string; state: string };
   /** The last derived numbers of a site (for its page), or null before any reading. */
   snapshot(siteId: string): SiteSnapshot | null;
@@ -59,6 +75,8 @@ export interface AlarmService {
    * history and alarms; a retired site's checks stop.
    */
   reload(siteId: string): void;
+  /** Drops a site's monitor (its timeline was replaced); the next reading rebuilds it from the database. */
+  forget(siteId: string): void;
   /** Wall-clock housekeeping: shelf expiry and silence, extrapolating event time. */
   tick(): void;
 }
@@ -69,8 +87,14 @@ interface SiteState {
   retired: boolean;
   monitor: SiteMonitor;
   lastEvaluatedMs: number;
+  /** Evaluation times the readings called for and not yet run, ascending. */
+  pending: number[];
+  /** The last evaluation time scheduled (run or pending). */
+  lastScheduledMs: number;
   latestEventMs: number;
   latestWallMs: number;
+  /** Wall time of the last reading ingested (for SETTLE_MS). */
+  ingestWallMs: number;
   snapshot: SiteSnapshot | null;
   details: Map<string, AlarmDetail>;
   /** Changes the rule checks made that could not be saved yet (a full disk); saved with the next ones. */
@@ -113,8 +137,11 @@ export function createAlarmService(deps: {
           timeZone: siteTimeZone(db, siteId),
         }),
         lastEvaluatedMs: -Infinity,
+        pending: [],
+        lastScheduledMs: -Infinity,
         latestEventMs: -Infinity,
         latestWallMs: deps.clock(),
+        ingestWallMs: deps.clock(),
         snapshot: null,
         details: new Map(),
         unsaved: { alarms: new Map(), transitions: [] },
@@ -196,18 +223,34 @@ export function createAlarmService(deps: {
     for (let i = 1; i < readings.length && ordered; i++) ordered = readings[i - 1].tsMs <= readings[i].tsMs;
     const sorted = ordered ? readings : [...readings].sort((a, b) => a.tsMs - b.tsMs);
     s.monitor.ingest(sorted);
+    // The evaluation times depend on the readings' times only, never on how they were batched.
+    for (const r of sorted)
+      if (isEvaluationDue(s.lastScheduledMs, r.tsMs)) {
+        s.pending.push(r.tsMs);
+        s.lastScheduledMs = r.tsMs;
+      }
     const newest = sorted[sorted.length - 1].tsMs;
     if (newest > s.latestEventMs) {
       s.latestEventMs = newest;
       s.latestWallMs = deps.clock();
     }
-    return s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS;
+    s.ingestWallMs = deps.clock();
+    return s.pending.length > 0 && s.pending[0] < s.latestEventMs;
   }
 
-  function evaluateDue(siteId: string) {
+  /** Runs pending evaluations before `untilMs` (all with Infinity), in order, a bounded number; true when some are left. */
+  function runPending(siteId: string, s: SiteState, untilMs: number, max = MAX_EVALUATIONS_PER_CALL): boolean {
+    let n = 0;
+    while (n < s.pending.length && n < max && s.pending[n] < untilMs) n++;
+    const times = s.pending.splice(0, n);
+    for (const atMs of times) evaluateAt(siteId, s, atMs);
+    return s.pending.length > 0 && s.pending[0] < untilMs;
+  }
+
+  function evaluateDue(siteId: string): boolean {
     const s = sites.get(siteId);
-    if (s && !s.retired && s.latestEventMs - s.lastEvaluatedMs >= EVALUATION_STEP_MS)
-      evaluateAt(siteId, s, s.latestEventMs);
+    // A time is complete once a newer reading arrived: an in-order gateway sent all of it.
+    return !!s && !s.retired && runPending(siteId, s, s.latestEventMs);
   }
 
   return {
@@ -258,6 +301,14 @@ export function createAlarmService(deps: {
       }
       return out;
     },
+    settle() {
+      const now = deps.clock();
+      for (const [siteId, s] of sites)
+        if (!s.retired && s.pending.length && now - s.ingestWallMs >= SETTLE_MS) runPending(siteId, s, Infinity);
+    },
+    forget(siteId) {
+      sites.delete(siteId);
+    },
     reload(siteId) {
       const old = sites.get(siteId);
       if (!old) return;
@@ -278,18 +329,22 @@ export function createAlarmService(deps: {
           timeZone: siteTimeZone(db, siteId),
           history: old.monitor.history,
         }),
-        // Evaluate with the new limits at the next reading rather than wait out a step.
-        lastEvaluatedMs: -Infinity,
+        // The schedule stays the readings' (lib/rules/schedule.ts): the new limits apply from the next step.
       });
     },
     tick() {
       const now = deps.clock();
       for (const [siteId, s] of sites) {
         if (s.retired || !Number.isFinite(s.latestEventMs)) continue;
-        // With no readings arriving, let event time run on with the wall clock so silence
-        // is noticed and shelves expire.
+        runPending(siteId, s, Infinity, Infinity);
+        // Only a silent site runs on the wall clock (silence is noticed, shelves expire): while
+        // readings flow, evaluations follow their times alone, so a replay finds the same ones.
+        if (now - s.latestWallMs < SILENCE_MS) continue;
         const extrapolated = s.latestEventMs + (now - s.latestWallMs);
-        if (extrapolated - s.lastEvaluatedMs >= EVALUATION_STEP_MS) evaluateAt(siteId, s, extrapolated);
+        if (extrapolated - s.lastEvaluatedMs >= EVALUATION_STEP_MS) {
+          evaluateAt(siteId, s, extrapolated);
+          s.lastScheduledMs = Math.max(s.lastScheduledMs, extrapolated);
+        }
       }
     },
   };

@@ -22,7 +22,7 @@ export interface AlarmSystem {
 }
 
 const TICK_MS = 15_000;
-/** How often escalation looks for a step that fell due: well inside the 5 s it may be late. */
+/** How often escalation looks for a step that fell due (well inside the 5 s it may be late), and rule evaluations settle. */
 const ESCALATION_TICK_MS = 1_000;
 
 export async function startAlarmSystem(deps: {
@@ -94,6 +94,13 @@ export async function startAlarmSystem(deps: {
   }, TICK_MS);
   timer.unref();
   const escalationTimer = setInterval(() => {
+    // Rule evaluations whose readings settled without a newer one (a gateway's last sample).
+    try {
+      service.settle();
+    } catch (err) {
+      deps.storage?.report(err, "alarms");
+      deps.log(`[alarms] settling evaluations failed (retried in ${ESCALATION_TICK_MS / 1000} s): ${String(err)}`);
+    }
     const due = escalator.nextDueAtMs();
     if (due !== null && due <= clock()) escalate();
   }, ESCALATION_TICK_MS);

@@ -59,6 +59,9 @@ export default async function SitePage({ params }: Props) {
           <Link href={`/incidents?site=${site.id}`} className="underline" data-testid="site-incidents-link">
             Incidents{staff ? "" : " written up for you"}
           </Link>
+          <Link href={`/sites/${site.id}/replay`} className="underline" data-testid="replay-link">
+            Replay a past window
+          </Link>
         </p>
       </header>
       <nav
