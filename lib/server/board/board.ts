@@ -1,0 +1,24 @@
+import type { Db } from "@/db/client";
+import { boardSiteRows } from "@/db/queries/sites";
+import { inPlaceBySite } from "@/db/queries/temporary-changes";
+import type { Viewer } from "@/lib/auth/viewer";
+import type { BoardSiteDto } from "@/lib/dto/board";
+import { boardStatuses } from "./site-status";
+
+/**
+ * Every plant the viewer may see as the board shows it: record, live status (data and worst
+ * alarm), temporary changes in place, open service requests and visits. A fixed handful of
+ * queries for any number of sites; the page renders from it and `/api/board` answers it.
+ */
+export function readBoard(db: Db, viewer: Viewer): BoardSiteDto[] {
+  const rows = boardSiteRows(db, viewer);
+  if (rows.length === 0) return [];
+  const ids = rows.map((r) => r.id);
+  const statuses = boardStatuses(db, viewer, ids);
+  const changes = inPlaceBySite(db, viewer, ids);
+  return rows.map((r) => ({
+    ...r,
+    status: statuses.get(r.id) ?? { siteId: r.id, data: "no_gateway", worst: null, unacknowledged: 0 },
+    changes: changes.get(r.id) ?? null,
+  }));
+}
