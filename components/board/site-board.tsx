@@ -1,6 +1,6 @@
 "use client";
 
-import { useCallback, useDeferredValue, useEffect, useMemo, useState } from "react";
+import { startTransition, useCallback, useDeferredValue, useEffect, useMemo, useRef, useState } from "react";
 import useSWR from "swr";
 import type { BoardSiteDto } from "@/lib/dto/board";
 import type { SiteStatus } from "@/lib/realtime/events";
@@ -23,6 +23,11 @@ const stateFilters: Array<{ value: BoardView["state"]; label: string }> = [
 ];
 const sortLabels: Record<BoardSort, string> = { urgency: "Most urgent first", name: "Site name", customer: "Customer" };
 
+// The first screenful is rendered with the page, the rest as the list is scrolled: hundreds of
+// cards rendered at once would hold up the first paint for plants nobody sees yet.
+const FIRST_PAGE = 48;
+const NEXT_PAGE = 150;
+
 // The non-pushed parts (changes, requests, visits) change at human pace: a slow refresh covers them.
 const SLOW_REFRESH_MS = 120_000;
 
@@ -41,6 +46,7 @@ export function SiteBoard({
   canAct: boolean;
 }) {
   const nowMs = useNow();
+  const initialRef = useRef({ sites: initial });
   const [view, setView] = useState(initialView);
   const { data, error, mutate } = useSWR<{ sites: BoardSiteDto[] }>("/api/board", fetchJson, {
     fallbackData: { sites: initial },
@@ -52,8 +58,9 @@ export function SiteBoard({
   const onStatus = useCallback(
     (status: SiteStatus) =>
       void mutate(
-        (current) => {
-          if (!current) return current;
+        (cached) => {
+          // Until the first refresh the cache is empty and the board shows the server's list.
+          const current = cached ?? initialRef.current;
           const i = current.sites.findIndex((s) => s.id === status.siteId);
           if (i === -1) return current;
           // Only the plant the push is about gets a new object, so only its card re-renders.
@@ -88,6 +95,21 @@ export function SiteBoard({
       })),
     ).catch(() => undefined);
   }, [sites, canAct]);
+
+  const [limit, setLimit] = useState(FIRST_PAGE);
+  const moreRef = useRef<HTMLButtonElement>(null);
+  const showMore = useCallback(() => startTransition(() => setLimit((n) => n + NEXT_PAGE)), []);
+  const hidden = Math.max(0, shown.length - limit);
+  useEffect(() => {
+    const el = moreRef.current;
+    if (!el || typeof IntersectionObserver === "undefined") return;
+    // Well before the end comes into view, so scrolling (or tabbing) down never meets an empty end.
+    const observer = new IntersectionObserver((entries) => entries.some((e) => e.isIntersecting) && showMore(), {
+      rootMargin: "1200px 0px",
+    });
+    observer.observe(el);
+    return () => observer.disconnect();
+  }, [hidden, showMore]);
 
   const Item = view.view === "list" ? SiteRow : SiteCard;
   return (
@@ -190,10 +212,21 @@ export function SiteBoard({
         data-testid="site-list"
         data-layout={view.view}
       >
-        {shown.map((site) => (
+        {shown.slice(0, limit).map((site) => (
           <Item key={site.id} site={site} canAct={canAct} nowMs={site.changes ? nowMs : 0} />
         ))}
       </ul>
+      {hidden > 0 ? (
+        <button
+          ref={moreRef}
+          type="button"
+          onClick={showMore}
+          className="mt-4 min-h-11 w-full rounded border border-line bg-panel px-4 text-sm font-semibold text-ink hover:border-ink"
+          data-testid="board-more"
+        >
+          Show {Math.min(NEXT_PAGE, hidden)} more ({hidden} not shown yet)
+        </button>
+      ) : null}
     </section>
   );
 }

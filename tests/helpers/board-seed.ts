@@ -7,7 +7,10 @@ import { createServiceRequest } from "@/db/queries/service-requests";
 import { getViewerById } from "@/db/queries/users";
 import { seedDemo } from "@/db/seed/demo";
 import { applyConditions, emptyAlarmBook, type Priority } from "@/lib/alarms";
+import { POINT_LIST_COLUMNS } from "@/lib/point-list-csv";
+import { canonicalUnitOf, type QuantityKey } from "@/lib/quantities";
 import { createCustomer, createEquipment, createSite } from "@/lib/server/plant-records";
+import { uploadPointList } from "@/lib/server/points";
 import { openVisit, recordTemporaryChange } from "@/lib/server/visits";
 import { DEMO_PASSWORD } from "./server";
 
@@ -82,6 +85,20 @@ export function seedBoard(opts: { sites: number; customers: number; nowMs?: numb
         designHeadKPa: 150,
         loop: "chilled_water",
       });
+      // The points a gateway maps: the chiller's status and the loops' temperatures.
+      const pointRows = (
+        [
+          ["CH-1", "chiller", "chiller_alarm"],
+          ["CH-1", "chiller", "fault_text"],
+          ["CH-1", "chiller", "run_status"],
+          ["CH-1", "chiller", "chilled_water_leaving_temp"],
+          ["CH-1", "chiller", "condenser_water_entering_temp"],
+        ] as Array<[string, string, QuantityKey]>
+      ).map(([tag, kind, q]) => `${tag},${kind},${q},${canonicalUnitOf(q)},5,,`);
+      const points = uploadPointList(db, admin, site.id, [POINT_LIST_COLUMNS.join(","), ...pointRows].join("\n"), {
+        apply: true,
+      });
+      if (points.errors.length) throw new Error(`point list for ${site.id}: ${JSON.stringify(points.errors)}`);
       // A few of each state, spread across the list, as a large portfolio has on an ordinary day.
       if (i % 25 === 3) {
         const priority: Priority = i % 100 === 3 ? 1 : 2;
