@@ -27,7 +27,7 @@ export const SiteCard = memo(function SiteCard({
   const overdue = site.changes !== null && site.changes.earliestDueAt < nowMs;
   const work = workText(site);
   return (
-    <li className="[contain-intrinsic-size:auto_11rem] [content-visibility:auto]">
+    <li>
       <Link
         href={`/sites/${site.id}`}
         className={`block h-full rounded-lg border border-l-8 border-line bg-panel p-4 hover:border-ink ${w?.active ? edge[w.priority] : "border-l-line"} ${crossover ? "ring-2 ring-alarm" : ""} ${site.training ? "border-dashed" : ""}`}
@@ -51,7 +51,7 @@ export const SiteCard = memo(function SiteCard({
               {crossover ? <span className="text-sm font-semibold text-alarm">Loops heading for crossover</span> : null}
             </div>
             <p className={`text-sm leading-snug ${w.active ? "font-semibold" : "text-muted"}`}>
-              {w.equipment}: {canAct ? w.title : w.ownerTitle}
+              {canAct ? w.title : w.ownerTitle}
             </p>
           </div>
         ) : (

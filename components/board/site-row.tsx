@@ -17,7 +17,7 @@ export const SiteRow = memo(function SiteRow({
   const w = site.status.worst;
   const work = workText(site);
   return (
-    <li className="[contain-intrinsic-size:auto_4rem] [content-visibility:auto]">
+    <li>
       <Link
         href={`/sites/${site.id}`}
         className={`grid gap-x-4 gap-y-1 px-3 py-2 hover:bg-surface sm:grid-cols-[minmax(0,14rem)_minmax(0,1fr)_auto] sm:items-center ${site.training ? "bg-surface/60" : ""}`}
@@ -34,7 +34,7 @@ export const SiteRow = memo(function SiteRow({
             <p className="flex min-w-0 items-center gap-2" data-testid="site-worst" data-rule={w.ruleId}>
               <PriorityBadge priority={w.priority} />
               <span className={`truncate ${w.active ? "font-semibold" : "text-muted"}`}>
-                {w.equipment}: {canAct ? w.title : w.ownerTitle}
+                {canAct ? w.title : w.ownerTitle}
                 <span className="sr-only"> ({alarmStateText(w)})</span>
               </span>
             </p>
