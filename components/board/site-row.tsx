@@ -20,7 +20,7 @@ export const SiteRow = memo(function SiteRow({
     <li>
       <Link
         href={`/sites/${site.id}`}
-        className={`grid gap-x-4 gap-y-1 px-3 py-2 hover:bg-surface sm:grid-cols-[minmax(0,14rem)_minmax(0,1fr)_auto] sm:items-center ${site.training ? "bg-surface/60" : ""}`}
+        className={`grid grid-cols-1 gap-x-4 gap-y-1 px-3 py-2 hover:bg-surface sm:grid-cols-[minmax(0,14rem)_minmax(0,1fr)_auto] sm:items-center ${site.training ? "bg-surface/60" : ""}`}
         data-testid="site-row"
         data-site={site.id}
         data-training={site.training || undefined}

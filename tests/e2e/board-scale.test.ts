@@ -50,7 +50,7 @@ describe.skipIf(!hasChromium)("the board with 500 plants", { timeout: 600_000 },
 
   afterAll(async () => {
     console.log(
-      `\nBoard with ${SITES + DEMO_SITES} sites:\n${Object.entries(figures)
+      `\nBoard with ${SITES + DEMO_SITES} sites (${serverMode()} server):\n${Object.entries(figures)
         .map(([k, v]) => `  ${k}: ${v}`)
         .join("\n")}\n`,
     );
@@ -59,23 +59,25 @@ describe.skipIf(!hasChromium)("the board with 500 plants", { timeout: 600_000 },
   });
 
   it("renders its first cards in under a second", async () => {
-    const runs: Array<{ visibleMs: number; fcpMs: number; loadMs: number }> = [];
-    for (let i = 0; i < 3; i++) {
+    const runs: Array<{ visibleMs: number; ttfbMs: number; fcpMs: number; loadMs: number }> = [];
+    for (let i = 0; i < 5; i++) {
       const t0 = Date.now();
       await page.goto(`${server.url}/`, { waitUntil: "commit" });
       await page.getByTestId("site-card").first().waitFor({ state: "visible" });
       const visibleMs = Date.now() - t0;
       await page.waitForLoadState("load");
-      const [fcpMs, loadMs] = await page.evaluate(() => [
-        performance.getEntriesByName("first-contentful-paint")[0]?.startTime ?? -1,
-        (performance.getEntriesByType("navigation")[0] as PerformanceNavigationTiming).loadEventEnd,
-      ]);
-      runs.push({ visibleMs, fcpMs: Math.round(fcpMs), loadMs: Math.round(loadMs) });
+      const [ttfbMs, fcpMs, loadMs] = await page.evaluate(() => {
+        const nav = performance.getEntriesByType("navigation")[0] as PerformanceNavigationTiming;
+        const fcp = performance.getEntriesByName("first-contentful-paint")[0]?.startTime ?? -1;
+        return [nav.responseStart, fcp, nav.loadEventEnd].map(Math.round);
+      });
+      runs.push({ visibleMs, ttfbMs, fcpMs, loadMs });
     }
-    const visible = median(runs.map((r) => r.visibleMs));
+    const med = (k: keyof (typeof runs)[number]) => median(runs.map((r) => r[k]));
+    const visible = med("visibleMs");
     figures.firstRender =
-      `median ${visible} ms navigation → first card visible (runs: ${runs.map((r) => r.visibleMs).join(", ")} ms); ` +
-      `first contentful paint ${median(runs.map((r) => r.fcpMs))} ms; load event ${median(runs.map((r) => r.loadMs))} ms`;
+      `median of 5: ${visible} ms navigation → first card visible (runs: ${runs.map((r) => r.visibleMs).join(", ")} ms); ` +
+      `server's first byte ${med("ttfbMs")} ms, first contentful paint ${med("fcpMs")} ms, load event ${med("loadMs")} ms`;
     await screenshot(page, "board-500-desktop");
     // The goal is the product as it runs (a production build). A development server renders with
     // React's checks on and compiles on demand: there the figure is printed against a looser bound.
