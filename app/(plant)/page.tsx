@@ -1,6 +1,6 @@
 import { getDb } from "@/lib/server/runtime";
 import { SiteBoard } from "@/components/board/site-board";
-import { readBoard } from "@/lib/server/board/board";
+import { readBoardFirstPage } from "@/lib/server/board/board";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
 import { redirect } from "next/navigation";
 import { parseBoardView } from "@/lib/schemas/board";
@@ -15,13 +15,15 @@ export default async function BoardPage({
   searchParams: Promise<Record<string, string | string[] | undefined>>;
 }) {
   const viewer = await requirePageViewer();
-  const sites = readBoard(getDb(), viewer);
+  const view = parseBoardView(await searchParams);
+  // The page carries the view's first screenful and its counts; the browser fetches the rest.
+  const { initial, counts, total } = readBoardFirstPage(getDb(), viewer, view);
   // A new deployment: the administrator's board would be empty, so the checklist comes first.
-  if (sites.length === 0 && isAdmin(viewer)) redirect("/admin/setup");
+  if (total === 0 && isAdmin(viewer)) redirect("/admin/setup");
   return (
     <>
       {canAct(viewer) ? <ServiceRequestQueue /> : null}
-      <SiteBoard initial={sites} initialView={parseBoardView(await searchParams)} canAct={canAct(viewer)} />
+      <SiteBoard initial={initial} initialCounts={counts} total={total} initialView={view} canAct={canAct(viewer)} />
     </>
   );
 }

@@ -4,7 +4,7 @@ import { startTransition, useCallback, useDeferredValue, useEffect, useMemo, use
 import useSWR from "swr";
 import type { BoardSiteDto } from "@/lib/dto/board";
 import type { SiteStatus } from "@/lib/realtime/events";
-import { applyBoardView } from "@/lib/board/board-view";
+import { applyBoardView, BOARD_FIRST_PAGE, type BoardCounts } from "@/lib/board/board-view";
 import { boardSorts, boardViewQuery, type BoardSort, type BoardView } from "@/lib/schemas/board";
 import { fetchJson } from "@/lib/client/fetcher";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
@@ -25,7 +25,7 @@ const sortLabels: Record<BoardSort, string> = { urgency: "Most urgent first", na
 
 // The first screenful is rendered with the page, the rest as the list is scrolled: hundreds of
 // cards rendered at once would hold up the first paint for plants nobody sees yet.
-const FIRST_PAGE = 48;
+const FIRST_PAGE = BOARD_FIRST_PAGE;
 const NEXT_PAGE = 150;
 
 // The non-pushed parts (changes, requests, visits) change at human pace: a slow refresh covers them.
@@ -38,38 +38,40 @@ const SLOW_REFRESH_MS = 120_000;
  */
 export function SiteBoard({
   initial,
+  initialCounts,
+  total,
   initialView,
   canAct,
 }: {
+  /** The first screenful of the initial view, rendered with the page; the whole list is fetched after. */
   initial: BoardSiteDto[];
+  initialCounts: BoardCounts;
+  total: number;
   initialView: BoardView;
   canAct: boolean;
 }) {
   const nowMs = useNow();
-  const initialRef = useRef({ sites: initial });
   const [view, setView] = useState(initialView);
+  const [partial, setPartial] = useState(initial);
+  // One fetch of the whole list after the first paint (hundreds of plants inlined in the page
+  // would hold it up), then status pushes; the non-pushed parts refresh slowly.
   const { data, error, mutate } = useSWR<{ sites: BoardSiteDto[] }>("/api/board", fetchJson, {
-    fallbackData: { sites: initial },
-    // The server just rendered this list: fetching it again on mount would double the first load.
-    revalidateOnMount: false,
     revalidateOnFocus: false,
     refreshInterval: SLOW_REFRESH_MS,
   });
   const onStatus = useCallback(
-    (status: SiteStatus) =>
-      void mutate(
-        (cached) => {
-          // Until the first refresh the cache is empty and the board shows the server's list.
-          const current = cached ?? initialRef.current;
-          const i = current.sites.findIndex((s) => s.id === status.siteId);
-          if (i === -1) return current;
-          // Only the plant the push is about gets a new object, so only its card re-renders.
-          const sites = current.sites.slice();
-          sites[i] = { ...sites[i], status };
-          return { sites };
-        },
-        { revalidate: false },
-      ),
+    (status: SiteStatus) => {
+      // Only the plant the push is about gets a new object, so only its card re-renders.
+      const apply = (list: BoardSiteDto[]) => {
+        const i = list.findIndex((s) => s.id === status.siteId);
+        if (i === -1) return list;
+        const next = list.slice();
+        next[i] = { ...next[i], status };
+        return next;
+      };
+      setPartial(apply);
+      void mutate((cached) => cached && { sites: apply(cached.sites) }, { revalidate: false });
+    },
     [mutate],
   );
   useSiteEvents("board", { onStatus, onReconnect: () => void mutate() });
@@ -81,12 +83,17 @@ export function SiteBoard({
     window.history.replaceState(null, "", `${window.location.pathname}${boardViewQuery(next)}`);
   };
 
-  const sites = data?.sites ?? initial;
+  const complete = data !== undefined;
+  const sites = data?.sites ?? partial;
   const deferred = useDeferredValue(view);
-  const { shown, counts } = useMemo(() => applyBoardView(sites, deferred, nowMs), [sites, deferred, nowMs]);
+  const applied = useMemo(() => applyBoardView(sites, deferred, nowMs), [sites, deferred, nowMs]);
+  const shown = applied.shown;
+  // Until the whole list is here, the counts are the server's for the view it rendered.
+  const counts = complete ? applied.counts : initialCounts;
 
   // The offline page shows this board, marked not live, when the phone has no connection.
   useEffect(() => {
+    if (!complete) return;
     void saveBoardSnapshot(
       sites.map((s) => ({
         name: s.name,
@@ -94,7 +101,7 @@ export function SiteBoard({
         alarm: s.status.worst?.active ? (canAct ? s.status.worst.title : s.status.worst.ownerTitle) : null,
       })),
     ).catch(() => undefined);
-  }, [sites, canAct]);
+  }, [sites, complete, canAct]);
 
   const [limit, setLimit] = useState(FIRST_PAGE);
   const moreRef = useRef<HTMLButtonElement>(null);
@@ -113,13 +120,13 @@ export function SiteBoard({
 
   const Item = view.view === "list" ? SiteRow : SiteCard;
   return (
-    <section aria-labelledby="board-title">
+    <section aria-labelledby="board-title" data-complete={complete || undefined}>
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h1 id="board-title" className="text-2xl font-semibold">
           Plants
         </h1>
         <p className="text-sm text-muted" aria-live="polite" data-testid="board-shown">
-          Showing {shown.length} of {sites.length}
+          Showing {complete ? shown.length : initialCounts[initialView.state]} of {complete ? sites.length : total}
         </p>
       </div>
       {error ? <p className="mt-2 text-alarm">Could not refresh the board: {error.message}</p> : null}

@@ -33,7 +33,7 @@ export const SiteRow = memo(function SiteRow({
           {w ? (
             <p className="flex min-w-0 items-center gap-2" data-testid="site-worst" data-rule={w.ruleId}>
               <PriorityBadge priority={w.priority} />
-              <span className={`truncate ${w.active ? "font-semibold" : "text-muted"}`}>
+              <span className={`relative truncate ${w.active ? "font-semibold" : "text-muted"}`}>
                 {canAct ? w.title : w.ownerTitle}
                 <span className="sr-only"> ({alarmStateText(w)})</span>
               </span>

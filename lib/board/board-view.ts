@@ -4,6 +4,9 @@ import type { BoardSort, BoardState, BoardView } from "@/lib/schemas/board";
 // What the board does with its list: which states a plant is in, the urgency order, search,
 // filter and the counts at the top. Pure, so the page, the tests and the browser agree.
 
+/** Plants rendered with the page (a screenful on a desktop and more); the rest render as the list is scrolled. */
+export const BOARD_FIRST_PAGE = 48;
+
 /** The states a plant is in; "quiet" only when it is in none of the others. */
 export function siteStates(site: BoardSiteDto): BoardState[] {
   const out: BoardState[] = [];

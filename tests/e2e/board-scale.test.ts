@@ -22,7 +22,9 @@ const DEMO_SITES = 3;
 const hydrated = (page: Page) =>
   page.waitForFunction(() => {
     const el = document.querySelector("#board-search");
-    return el !== null && Object.keys(el).some((k) => k.startsWith("__reactProps"));
+    // …and the whole list has arrived (the page carries only the first screenful).
+    const complete = document.querySelector("[data-complete]") !== null;
+    return complete && el !== null && Object.keys(el).some((k) => k.startsWith("__reactProps"));
   });
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];

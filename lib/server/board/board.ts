@@ -3,6 +3,8 @@ import { boardSiteRows } from "@/db/queries/sites";
 import { inPlaceBySite } from "@/db/queries/temporary-changes";
 import type { Viewer } from "@/lib/auth/viewer";
 import type { BoardSiteDto } from "@/lib/dto/board";
+import { applyBoardView, BOARD_FIRST_PAGE } from "@/lib/board/board-view";
+import type { BoardView } from "@/lib/schemas/board";
 import { boardStatuses } from "./site-status";
 
 /**
@@ -21,4 +23,11 @@ export function readBoard(db: Db, viewer: Viewer): BoardSiteDto[] {
     status: statuses.get(r.id) ?? { siteId: r.id, data: "no_gateway", worst: null, unacknowledged: 0 },
     changes: changes.get(r.id) ?? null,
   }));
+}
+
+/** What the board page renders with: the view's first screenful, its counts, and how many plants in all. */
+export function readBoardFirstPage(db: Db, viewer: Viewer, view: BoardView, nowMs = Date.now()) {
+  const sites = readBoard(db, viewer);
+  const { shown, counts } = applyBoardView(sites, view, nowMs);
+  return { initial: shown.slice(0, BOARD_FIRST_PAGE), counts, total: sites.length };
 }
