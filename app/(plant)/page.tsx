@@ -1,39 +1,29 @@
 import { getDb } from "@/lib/server/runtime";
-import { listSites } from "@/db/queries/sites";
-import { SiteBoard } from "@/components/sites/site-board";
-import { boardStatuses } from "@/lib/server/board/site-status";
+import { SiteBoard } from "@/components/board/site-board";
+import { readBoardFirstPage } from "@/lib/server/board/board";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
 import { redirect } from "next/navigation";
-import { inPlaceBySite } from "@/db/queries/temporary-changes";
+import { parseBoardView } from "@/lib/schemas/board";
 import { ServiceRequestQueue } from "@/components/service/service-requests";
 import { requirePageViewer } from "../(auth)/auth";
 
 export const dynamic = "force-dynamic";
 
-export default async function BoardPage() {
+export default async function BoardPage({
+  searchParams,
+}: {
+  searchParams: Promise<Record<string, string | string[] | undefined>>;
+}) {
   const viewer = await requirePageViewer();
-  const db = getDb();
-  const sites = listSites(db, viewer);
+  const view = parseBoardView(await searchParams);
+  // The page carries the view's first screenful and its counts; the browser fetches the rest.
+  const { initial, counts, total } = readBoardFirstPage(getDb(), viewer, view);
   // A new deployment: the administrator's board would be empty, so the checklist comes first.
-  if (sites.length === 0 && isAdmin(viewer)) redirect("/admin/setup");
-  const statuses = boardStatuses(
-    db,
-    viewer,
-    sites.map((s) => s.id),
-  );
-  const changes = inPlaceBySite(
-    db,
-    viewer,
-    sites.map((s) => s.id),
-  );
+  if (total === 0 && isAdmin(viewer)) redirect("/admin/setup");
   return (
     <>
       {canAct(viewer) ? <ServiceRequestQueue /> : null}
-      <SiteBoard
-        fallback={sites.map((s) => ({ ...s, status: statuses.get(s.id) }))}
-        canAct={canAct(viewer)}
-        changes={Object.fromEntries(changes)}
-      />
+      <SiteBoard initial={initial} initialCounts={counts} total={total} initialView={view} canAct={canAct(viewer)} />
     </>
   );
 }

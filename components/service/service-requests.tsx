@@ -13,6 +13,8 @@ import { createServiceRequestSchema, type CreateServiceRequestInput } from "@/li
 import { formatClock } from "@/lib/service/changes";
 import { useNow } from "./use-now";
 
+const QUEUE_PREVIEW = 3;
+
 const urgencyLabel = { not_urgent: "Not urgent", today: "Today", now: "Now" } as const;
 
 /** The customer's "Ask for service" form and their site's requests with their state in plain words. */
@@ -104,9 +106,12 @@ export function ServiceRequestQueue() {
     refreshInterval: 30_000,
   });
   const [error, setError] = useState<string | null>(null);
+  const [all, setAll] = useState(false);
   const now = useNow();
   const open = (data?.requests ?? []).filter((r) => r.visitId === null);
   if (open.length === 0) return null;
+  // A large portfolio can have many waiting: the first few, so the board below stays in reach on a phone.
+  const shown = all ? open : open.slice(0, QUEUE_PREVIEW);
   const take = async (requestId: string) => {
     setError(null);
     try {
@@ -127,7 +132,7 @@ export function ServiceRequestQueue() {
       </h2>
       {error ? <p className="text-sm text-alarm">{error}</p> : null}
       <ul className="mt-2 flex flex-col gap-2" data-testid="request-queue">
-        {open.map((r) => (
+        {shown.map((r) => (
           <li
             key={r.id}
             className="flex flex-col gap-2 rounded-lg border border-l-8 border-line border-l-warning bg-panel p-3 sm:flex-row sm:items-center"
@@ -151,6 +156,11 @@ export function ServiceRequestQueue() {
           </li>
         ))}
       </ul>
+      {open.length > QUEUE_PREVIEW ? (
+        <Button type="button" variant="secondary" className="mt-2" aria-expanded={all} onClick={() => setAll(!all)}>
+          {all ? "Show fewer requests" : `Show all ${open.length} requests`}
+        </Button>
+      ) : null}
     </section>
   );
 }

@@ -29,22 +29,29 @@ function scope(viewer: Viewer, includeRetired?: boolean) {
   );
 }
 
-function siteCount(db: Queryable, customerId: string): number {
+/** A customer's own count leaves out training sites, which do not exist for customers. */
+function siteCount(db: Queryable, viewer: Viewer, customerId: string): number {
   return db
     .select({ n: count() })
     .from(sites)
-    .where(and(eq(sites.organizationId, customerId), isNull(sites.retiredAt)))
+    .where(
+      and(
+        eq(sites.organizationId, customerId),
+        isNull(sites.retiredAt),
+        seesAllSites(viewer) ? undefined : eq(sites.training, false),
+      ),
+    )
     .get()!.n;
 }
 
-function toDto(db: Queryable, r: CustomerRow): CustomerDto {
+function toDto(db: Queryable, viewer: Viewer, r: CustomerRow): CustomerDto {
   return {
     id: r.id,
     name: r.name,
     createdAtMs: r.createdAt.getTime(),
     retiredAtMs: r.retiredAt?.getTime() ?? null,
     retiredBy: r.retiredBy,
-    siteCount: siteCount(db, r.id),
+    siteCount: siteCount(db, viewer, r.id),
   };
 }
 
@@ -63,7 +70,7 @@ export function listCustomers(db: Db, viewer: Viewer, opts: { includeRetired?: b
     .where(scope(viewer, opts.includeRetired))
     .orderBy(asc(organizations.name))
     .all()
-    .map((r) => toDto(db, r));
+    .map((r) => toDto(db, viewer, r));
 }
 
 /** A customer the viewer may see (retired ones too, so their history and restore stay reachable for admins). */
@@ -75,7 +82,7 @@ export function getCustomer(db: Queryable, viewer: Viewer, customerId: string): 
     .get();
   // A retired customer is an admin's business only.
   if (!row || (row.retiredAt && !isAdmin(viewer))) return null;
-  return toDto(db, row);
+  return toDto(db, viewer, row);
 }
 
 const audited = (c: CustomerDto) => ({ name: c.name, retiredAtMs: c.retiredAtMs });

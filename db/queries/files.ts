@@ -14,7 +14,11 @@ import type { FileUpdateInput } from "@/lib/schemas/files";
 
 function fileScope(viewer: Viewer): SQL | undefined {
   if (seesAllSites(viewer)) return undefined;
-  return and(eq(sites.organizationId, viewer.organizationId), eq(storedFiles.sharedWithCustomer, true));
+  return and(
+    eq(sites.organizationId, viewer.organizationId),
+    eq(sites.training, false),
+    eq(storedFiles.sharedWithCustomer, true),
+  );
 }
 
 const columns = {

@@ -561,7 +561,8 @@ export function alarmForCustomerMail(
     })
     .from(alarms)
     .innerJoin(sites, eq(sites.id, alarms.siteId))
-    .where(and(eq(alarms.siteId, siteId), eq(alarms.key, key)))
+    // A training site's alarms are drills: no customer hears of them.
+    .where(and(eq(alarms.siteId, siteId), eq(alarms.key, key), eq(sites.training, false)))
     .get();
   if (!row) return null;
   let ownerMessage = "";

@@ -2,7 +2,17 @@ import "server-only";
 import { randomBytes } from "node:crypto";
 import { and, asc, count, eq, inArray, isNull, type SQL } from "drizzle-orm";
 import type { Db } from "../client";
-import { equipment, equipmentLimits, gateways, organizations, points, sites, type SiteContact } from "../schema";
+import {
+  equipment,
+  equipmentLimits,
+  gateways,
+  organizations,
+  points,
+  serviceRequests,
+  sites,
+  visits,
+  type SiteContact,
+} from "../schema";
 import { isAdmin, seesAllSites, type Viewer } from "@/lib/auth/viewer";
 import { AppError, notFound } from "@/lib/errors";
 import {
@@ -20,9 +30,12 @@ import type { SiteBody, SitePatchBody } from "@/lib/schemas/sites";
 import { writeAudit } from "./audit";
 
 // Authorization lives here, in the queries: a customer's viewer can only ever match its
-// own organization's rows, whatever the route or page above asks for.
+// own organization's rows, whatever the route or page above asks for. Training sites exist for
+// drills only: to a customer they do not exist at all (404 like any site not theirs).
 export function siteScope(viewer: Viewer): SQL | undefined {
-  return seesAllSites(viewer) ? undefined : eq(sites.organizationId, viewer.organizationId);
+  return seesAllSites(viewer)
+    ? undefined
+    : and(eq(sites.organizationId, viewer.organizationId), eq(sites.training, false));
 }
 
 const summaryColumns = {
@@ -82,6 +95,63 @@ export function listSites(db: Db, viewer: Viewer, opts: { includeRetired?: boole
       .map((r) => [r.siteId, r.n]),
   );
   return rows.map((r) => toSummary(r, counts.get(r.id) ?? 0));
+}
+
+/** Service-request states still waiting for the service company. */
+export const openRequestStates = ["received", "assigned", "on_the_way"] as const;
+
+/**
+ * The board's rows: every site in service the viewer may see with its training mark and its
+ * open service requests and visits. Four queries whatever the number of sites, so a board of
+ * hundreds of plants costs no more round trips than one of three.
+ */
+export function boardSiteRows(
+  db: Db,
+  viewer: Viewer,
+): Array<SiteSummaryDto & { training: boolean; openRequests: number; openVisits: number }> {
+  const scope = and(siteScope(viewer), inService);
+  const rows = db
+    .select({ ...summaryColumns, training: sites.training })
+    .from(sites)
+    .innerJoin(organizations, eq(organizations.id, sites.organizationId))
+    .where(scope)
+    .orderBy(asc(sites.name))
+    .all();
+  if (rows.length === 0) return [];
+  const perSite = (list: Array<{ siteId: string; n: number }>) => new Map(list.map((r) => [r.siteId, r.n]));
+  const equipmentCounts = perSite(
+    db
+      .select({ siteId: equipment.siteId, n: count() })
+      .from(equipment)
+      .innerJoin(sites, eq(sites.id, equipment.siteId))
+      .where(and(scope, isNull(equipment.retiredAt)))
+      .groupBy(equipment.siteId)
+      .all(),
+  );
+  const requestCounts = perSite(
+    db
+      .select({ siteId: serviceRequests.siteId, n: count() })
+      .from(serviceRequests)
+      .innerJoin(sites, eq(sites.id, serviceRequests.siteId))
+      .where(and(scope, inArray(serviceRequests.state, [...openRequestStates])))
+      .groupBy(serviceRequests.siteId)
+      .all(),
+  );
+  const visitCounts = perSite(
+    db
+      .select({ siteId: visits.siteId, n: count() })
+      .from(visits)
+      .innerJoin(sites, eq(sites.id, visits.siteId))
+      .where(and(scope, isNull(visits.closedAt)))
+      .groupBy(visits.siteId)
+      .all(),
+  );
+  return rows.map(({ training, ...r }) => ({
+    ...toSummary(r, equipmentCounts.get(r.id) ?? 0),
+    training,
+    openRequests: requestCounts.get(r.id) ?? 0,
+    openVisits: visitCounts.get(r.id) ?? 0,
+  }));
 }
 
 /** The ids of every site in service the viewer may see (the board's rooms, bulk checks). */

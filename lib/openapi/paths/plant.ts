@@ -41,6 +41,17 @@ export const plantOperations: Operation[] = [
   },
   {
     method: "get",
+    path: "/api/board",
+    tag: "Sites",
+    summary: "The board: every site the caller may see with its status",
+    description:
+      "Data status, worst active alarm, temporary changes in place, open service requests and visits per site; " +
+      "training sites only for staff. `site:status` pushes over the board rooms keep it current.",
+    access: "signed-in",
+    responses: { 200: "The sites with their board status" },
+  },
+  {
+    method: "get",
     path: "/api/sites/{siteId}",
     tag: "Sites",
     summary: "A site with its equipment and points",
