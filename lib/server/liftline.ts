@@ -228,6 +228,7 @@ async function start(
     latestValue: (pointId) => live.latest(pointId),
     simulation,
     sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
+    publishCommand: (topic, payload) => gatewaySide.publishCommand(topic, payload),
     gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),
     disconnectUserSockets: (userId) => disconnectUserSockets(io, userId),
     disconnectSessionSockets: (sessionId) => disconnectSessionSockets(io, sessionId),

@@ -40,6 +40,8 @@ export interface Runtime {
   simulation?: SimulationManager;
   /** Publishes a command to a gateway's command topic (the simulator's drills). */
   sendGatewayCommand(gatewayId: string, payload: unknown): Promise<void>;
+  /** Publishes a prepared command message (a Sparkplug DCMD to a simulated training node). */
+  publishCommand?(topic: string, payload: Buffer): void;
   /** Tells the gateway side that a gateway's record changed. */
   gatewayChanged(gatewayId: string, change: GatewayChange): void;
   /** Closes every live socket of a user (disabled, or their role or organization changed); returns how many. */
