@@ -12,6 +12,7 @@ import {
 } from "@/db/queries/notify";
 import { admins, alarmsAwaitingAck, allShifts, contactOf, createAckLink } from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";
+import { trainingSiteIds } from "@/db/queries/drills";
 import { priorityMeanings, type Priority } from "@/lib/alarms";
 import type { AlarmWithHistoryDto } from "@/lib/dto/alarms";
 import { pushPayload, smsText, type AlarmNotice } from "@/lib/notify/messages";
@@ -209,7 +210,10 @@ export function createEscalator(deps: EscalatorDeps): Escalator {
     const nowMs = deps.clock();
     let sent = 0;
     let soonest: number | null = null;
+    // Training sites' alarms are worked by the trainee on screen: no push, text or mail to anyone.
+    const training = trainingSiteIds(db);
     for (const a of alarmsAwaitingAck(db, 4)) {
+      if (training.has(a.siteId)) continue;
       const policy = policyOf(a.priority);
       const history = deliveriesOf(db, a.id, a.activations);
       const first = history.filter((n) => n.step === 0).map((n) => n.sentAt);
