@@ -10,8 +10,7 @@ import { systemViewer } from "@/lib/auth/viewer";
 import { newAlarm, type TransitionRecord } from "@/lib/alarms";
 import { createEscalator } from "@/lib/server/alarms/escalation";
 import { customerAlarmMail } from "@/lib/server/notify/customer-mail";
-import type { Mailer } from "@/lib/server/mail";
-import type { MailMessage } from "@/lib/dto/notify";
+import type { Mailer, MailMessage } from "@/lib/server/mail";
 import { eq } from "drizzle-orm";
 
 // A training site is a simulated plant for drills: its alarms must reach no one — no on-call push, text or
