@@ -42,7 +42,10 @@ export const drillCommandBodySchema = z.discriminatedUnion("type", [
 ]);
 export type DrillCommandBody = z.infer<typeof drillCommandBodySchema>;
 
-export const drillListQuerySchema = z.object({ traineeId: z.string().max(100).optional() });
+export const drillListQuerySchema = z.object({
+  traineeId: z.string().max(100).optional(),
+  siteId: z.string().max(100).optional(),
+});
 
 export const createTrainingSiteSchema = z.object({
   name: z.string().trim().min(1).max(120),

@@ -19,6 +19,7 @@ import { allowedOrigins, setDb, setRuntime, setStorageHealth } from "./runtime";
 import { resolveAuthSecret } from "./secret";
 import { applySecurityHeaders, securityHeaders, type SecurityHeaderOptions } from "./security-headers";
 import { createSimulationManager, type SimulationManager } from "./simulation/manager";
+import { createDrillService, type DrillService } from "./drills";
 import { startStorageAlarm } from "./storage-alarm";
 import { createStorageHealth } from "./storage-health";
 
@@ -201,6 +202,7 @@ async function start(
   // Simulated plants publish through their own gateways, like real ones: demo mode's sites, and the
   // training sites drills run on (these need no demo mode, only the embedded broker).
   let simulation: SimulationManager | undefined;
+  let drills: DrillService | undefined;
   const demoRuns = config.LIFTLINE_DEMO && config.LIFTLINE_SIMULATOR;
   if (gatewaySide.mqttPort === null) {
     if (demoRuns) log("Simulated gateways run only with the embedded broker; skipped with MQTT_URL set.");
@@ -219,6 +221,15 @@ async function start(
     });
     const sim = simulation;
     started("the simulation", () => sim.close());
+    drills = createDrillService({
+      db,
+      simulation,
+      sendJsonCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
+      publishCommand: (topic, payload) => gatewaySide.publishCommand(topic, payload),
+      log,
+    });
+    const d = drills;
+    started("the drills", () => d.close());
   }
 
   setRuntime({
@@ -228,6 +239,7 @@ async function start(
     siteDataStatus: (siteId) => live.dataStatus(siteId),
     latestValue: (pointId) => live.latest(pointId),
     simulation,
+    drills,
     sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
     publishCommand: (topic, payload) => gatewaySide.publishCommand(topic, payload),
     gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),

@@ -10,6 +10,7 @@ import {
   simulatorOperations,
   type OpenApiDocument,
 } from "@/lib/openapi";
+import { drillOperations } from "@/lib/openapi/paths/drills";
 import { startRunSchemaFor } from "@/lib/schemas/simulator";
 import { drillActionSchema } from "@/simulator/actions-schema";
 import { scenarioNames } from "@/simulator/scenarios";
@@ -28,6 +29,7 @@ export function openApiDocument(): OpenApiDocument {
       ...fileOperations,
       ...peopleOperations,
       ...notifyOperations,
+      ...drillOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,
