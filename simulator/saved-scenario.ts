@@ -12,7 +12,11 @@ export const savedScenarioDefinitionSchema = z.object({
   base: z.string(),
   layout: z.string(),
   atMs: z.number(),
-  conditions: z.object({ dryBulbC: z.number(), rhPct: z.number().min(0).max(100), ahusRunning: z.number().int().min(0) }),
+  conditions: z.object({
+    dryBulbC: z.number(),
+    rhPct: z.number().min(0).max(100),
+    ahusRunning: z.number().int().min(0),
+  }),
   initial: z.object({
     disabledChillers: z.array(z.string()),
     fanMode: z.enum(fanDriveModes),
@@ -60,7 +64,9 @@ export function savedScenarioDefinition(
     .map((c) => c.tag)
     .filter((tag, i) => i > 0 && value(tag, "run_status") !== true && value(tag, "run_enable_command") !== true);
   const mode = value("CT-1", "fan_drive_mode");
-  const fanMode = (fanDriveModes as readonly unknown[]).includes(mode) ? (mode as (typeof fanDriveModes)[number]) : "auto";
+  const fanMode = (fanDriveModes as readonly unknown[]).includes(mode)
+    ? (mode as (typeof fanDriveModes)[number])
+    : "auto";
   const chwSetpointC = num(value(layout.chillers[0].tag, "chilled_water_leaving_temp_setpoint"));
   return {
     base,

@@ -92,7 +92,8 @@ export function listTrainingSites(db: Db, viewer: Viewer): TrainingSiteDto[] {
   const out = new Map<string, TrainingSiteDto>();
   for (const r of rows) {
     if (!r.gatewayName?.startsWith(TRAINING_GATEWAY_PREFIX)) {
-      if (!out.has(r.id)) out.set(r.id, { id: r.id, name: r.name, layout: "default", protocol: "json", gatewayId: null });
+      if (!out.has(r.id))
+        out.set(r.id, { id: r.id, name: r.name, layout: "default", protocol: "json", gatewayId: null });
       continue;
     }
     out.set(r.id, {
@@ -168,11 +169,20 @@ export function finishDrill(
     (tx) => {
       const r = tx
         .update(drills)
-        .set({ state: "ended", outcome: end.outcome, endedAtMs: end.endedAtMs, score: end.score, scorePct: end.scorePct })
+        .set({
+          state: "ended",
+          outcome: end.outcome,
+          endedAtMs: end.endedAtMs,
+          score: end.score,
+          scorePct: end.scorePct,
+        })
         .where(and(eq(drills.id, drillId), eq(drills.state, "running")))
         .run();
       if (r.changes === 0) return false;
-      for (const s of steps) tx.insert(drillSteps).values({ drillId, ...s, adviceAtTime: null }).run();
+      for (const s of steps)
+        tx.insert(drillSteps)
+          .values({ drillId, ...s, adviceAtTime: null })
+          .run();
       writeAudit(tx, viewer, {
         action: "update",
         entityType: "drill",

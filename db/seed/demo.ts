@@ -376,7 +376,9 @@ export function addSimulatedPlant(db: Db, viewer: Viewer, siteId: string, layout
         values: { highCondPressureCutoutKPa: Math.round(highCondTripKPa * 10) / 10 },
       });
   }
-  const rows = list.flatMap((e) => pointsOf(layout, e.kind).map((q) => `${e.tag},${e.kind},${q},${canonicalUnitOf(q)},5,,`));
+  const rows = list.flatMap((e) =>
+    pointsOf(layout, e.kind).map((q) => `${e.tag},${e.kind},${q},${canonicalUnitOf(q)},5,,`),
+  );
   const result = uploadPointList(db, viewer, siteId, [POINT_LIST_COLUMNS.join(","), ...rows].join("\n"), {
     apply: true,
   });

@@ -42,7 +42,10 @@ export const FIRST_ACTION_ZERO_S = 30 * 60;
  * a latched trip reset, a chiller enabled. Putting things back (air handler on, timers up) is not a
  * first response; turning the fan off is scored by its effect on the outcome, not here.
  */
-export function isUsefulAction(a: NonNullable<DrillStepFact["action"]>, timerDefaults: Record<string, number>): boolean {
+export function isUsefulAction(
+  a: NonNullable<DrillStepFact["action"]>,
+  timerDefaults: Record<string, number>,
+): boolean {
   switch (a.type) {
     case "set-fan-drive-mode":
       return a.mode === "auto";
@@ -69,8 +72,17 @@ export function scoreDrill(input: {
 }): DrillScore {
   const { facts, endReason, steps } = input;
   const crossed = facts.crossedAtMs !== null;
+  // On time without a crossing: avoided when every chiller that ran is running again, else the crossing was
+  // only not reached yet (a chiller still down).
+  const stillDown = facts.chillers.some((c) => c.everRan && !c.running && c.trippedAtMs !== null);
   const outcome: DrillOutcome =
-    endReason === "stopped" ? "stopped" : crossed ? "crossed" : endReason === "recovery" ? "avoided" : "timed_out";
+    endReason === "stopped"
+      ? "stopped"
+      : crossed
+        ? "crossed"
+        : endReason === "recovery" || !stillDown
+          ? "avoided"
+          : "timed_out";
 
   const parts: ScorePart[] = [];
   parts.push({
@@ -139,8 +151,10 @@ export function scoreDrill(input: {
   for (const c of facts.chillers)
     for (const [timer, t] of Object.entries(c.timers))
       if (t.first !== null && t.last !== null && t.last < t.first) notBack.push(`${c.tag} ${timer} timer ${t.last} s`);
+  // An air handler counts as put back when the trainee's last command for it started it again.
   const lastAhu = new Map<string, boolean>();
-  for (const s of steps) if (s.action?.type === "set-air-handler") lastAhu.set(s.action.equipment, s.action.run === true);
+  for (const s of steps)
+    if (s.action?.type === "set-air-handler") lastAhu.set(s.action.equipment, s.action.run === true);
   for (const [tag, run] of lastAhu) if (!run) notBack.push(`${tag} still stopped`);
   const changed =
     lastAhu.size > 0 ||

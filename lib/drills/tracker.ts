@@ -38,6 +38,8 @@ export interface DrillFacts {
 
 /** How long a restarted chiller must run with positive lift to count as recovered (assumed: a quarter hour on load). */
 export const RECOVERY_HOLD_MS = 15 * 60_000;
+/** How long after recovery the drill waits for temporary changes to be put back (assumed). */
+export const RECOVERY_GRACE_MS = 30 * 60_000;
 /** Pressures inverted by more than this count as crossed (sensor noise on equal shells, assumed). */
 export const CROSSED_BY_KPA = 1;
 
@@ -171,16 +173,30 @@ export class DrillTracker {
     }
   }
 
+  /** Timers set below where they started, by chiller and timer (readings of the timer settings). */
+  timersShortened(): string[] {
+    const out: string[] = [];
+    for (const c of this.facts.chillers)
+      for (const [name, t] of Object.entries(c.timers))
+        if (t.first !== null && t.last !== null && t.last < t.first) out.push(`${c.tag} ${name}`);
+    return out;
+  }
+
   /** Feeds one sample and settles it. */
   sample(tsMs: number, readings: readonly TrackedReading[]): void {
     this.add(tsMs, readings);
     this.settle();
   }
 
-  /** Why the drill ends now, or null to go on. `endsAtMs`: the event time its time runs out. */
-  endReason(endsAtMs: number): DrillEndReason | null {
+  /**
+   * Why the drill ends now, or null to go on. `endsAtMs`: the event time its time runs out. `changesOutstanding`:
+   * temporary changes (shed air handlers, shortened timers) not yet put back — a recovered plant still waits
+   * for them, up to RECOVERY_GRACE_MS, since putting things back is part of the job.
+   */
+  endReason(endsAtMs: number, changesOutstanding = false): DrillEndReason | null {
     if (this.facts.failedRestart) return "failed_restart";
-    if (this.facts.recoveredAtMs !== null) return "recovery";
+    const r = this.facts.recoveredAtMs;
+    if (r !== null && (!changesOutstanding || this.facts.lastMs - r >= RECOVERY_GRACE_MS)) return "recovery";
     if (this.facts.lastMs >= endsAtMs) return "time";
     return null;
   }

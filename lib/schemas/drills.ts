@@ -8,7 +8,10 @@ export const builtInDrillScenarios = ["power-blip", "condenser-pump-loss", "slow
 export const trainingLayouts = ["default", "medical-office", "data-hall", "school"] as const;
 
 /** A built-in scenario or `saved:{id}` (a starting point saved from a real incident). */
-export const drillScenarioSchema = z.union([z.enum(builtInDrillScenarios), z.string().regex(/^saved:[A-Za-z0-9_-]{1,64}$/)]);
+export const drillScenarioSchema = z.union([
+  z.enum(builtInDrillScenarios),
+  z.string().regex(/^saved:[A-Za-z0-9_-]{1,64}$/),
+]);
 
 export const startDrillSchema = z.object({
   siteId: z.string().min(1).max(100),

@@ -76,7 +76,13 @@ function bodyFor(r: Route): { type: string; body?: string } {
     case "POST /api/simulator/[siteId]/drill":
       return json({ type: "reset-alarm", equipment: "CH-1" });
     case "POST /api/drills":
-      return json({ siteId: "training-forged", traineeId: ids.userId, scenario: "power-blip", speed: 600, hints: true });
+      return json({
+        siteId: "training-forged",
+        traineeId: ids.userId,
+        scenario: "power-blip",
+        speed: 600,
+        hints: true,
+      });
     case "POST /api/drills/[drillId]/commands":
       return json({ type: "set-fan-drive-mode", equipment: "CT-1", mode: "auto" });
     case "POST /api/training-sites":

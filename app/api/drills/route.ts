@@ -9,7 +9,9 @@ import { getDb } from "@/lib/server/runtime";
 export const GET = route(async (request) => {
   const viewer = await requireApiViewer(request);
   const q = drillListQuerySchema.parse(Object.fromEntries(new URL(request.url).searchParams));
-  const list = listDrills(getDb(), viewer, { traineeId: q.traineeId }).filter((d) => !q.siteId || d.siteId === q.siteId);
+  const list = listDrills(getDb(), viewer, { traineeId: q.traineeId }).filter(
+    (d) => !q.siteId || d.siteId === q.siteId,
+  );
   return Response.json({ drills: list });
 });
 

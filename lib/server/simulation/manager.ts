@@ -44,6 +44,8 @@ export interface SimulatedSite {
 /** A drill's run: once through, and told of every sample and event. */
 export interface RunHooks {
   loop?: boolean;
+  /** Simulated seconds between samples (default 10). */
+  sampleEveryS?: number;
   onSample?: (s: RunSample) => void;
   onEvent?: (e: SimEvent) => void;
 }
@@ -107,7 +109,9 @@ export async function createSimulationManager(deps: {
         })
       ).gateway;
     // Through the same parser as an uploaded CSV, so the simulated map is validated like any other.
-    const { rows, errors } = parsePointMapCsv(protocol === "sparkplug" ? sparkplugPointMapCsv(layout) : pointMapCsv(layout));
+    const { rows, errors } = parsePointMapCsv(
+      protocol === "sparkplug" ? sparkplugPointMapCsv(layout) : pointMapCsv(layout),
+    );
     const result = replacePointMap(db, systemAdmin, gw.id, rows, errors);
     if (result.errors.length)
       log(`[sim] point map for ${site.id}: ${result.errors.length} rows refused, first: ${result.errors[0].message}`);
@@ -164,6 +168,7 @@ export async function createSimulationManager(deps: {
       seed,
       siteLayout: site.layout,
       loop: hooks.loop ?? true,
+      sampleEveryS: hooks.sampleEveryS,
       startMs,
       log: (line) => log(`[sim] ${line}`),
       onSample: hooks.onSample,

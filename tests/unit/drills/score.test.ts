@@ -21,15 +21,30 @@ function run(actions: Array<{ atS: number; action: DrillAction }>) {
   const tracker = new DrillTracker(startMs);
   const endsAtMs = startMs + 4 * 3600_000;
   const events: string[] = [];
+  let reason: ReturnType<DrillTracker["endReason"]> = null;
   for (const s of runPlant({ scenario: "power-blip", seed: 7, startMs, durationS: 4 * 3600, layout, actions })) {
     tracker.sample(s.tsMs, s.readings);
     for (const e of s.events) events.push(`${e.kind} ${e.equipment}: ${e.message}`);
-    if (tracker.endReason(endsAtMs)) break;
+    const tS = (s.tsMs - startMs) / 1000;
+    const shed = actions.filter((a) => a.atS <= tS && a.action.type === "set-air-handler");
+    const lastRun = new Map(shed.map((a) => [a.action.equipment, a.action.type === "set-air-handler" && a.action.run]));
+    const outstanding = [...lastRun.values()].some((run) => !run) || tracker.timersShortened().length > 0;
+    reason = tracker.endReason(endsAtMs, outstanding);
+    if (reason) break;
   }
-  const endReason = tracker.endReason(endsAtMs) ?? "time";
-  const steps: DrillStepFact[] = actions.map((a) => ({ atMs: startMs + a.atS * 1000, kind: "command", action: a.action }));
+  const endReason = reason ?? "time";
+  const steps: DrillStepFact[] = actions.map((a) => ({
+    atMs: startMs + a.atS * 1000,
+    kind: "command",
+    action: a.action,
+  }));
   const trip = tracker.facts.chillers.find((c) => c.tag === "CH-1")?.trippedAtMs ?? null;
-  return { tracker, endReason, events, score: scoreDrill({ facts: tracker.facts, endReason, firstWarningMs: trip, steps, driveTripC, timerDefaults }) };
+  return {
+    tracker,
+    endReason,
+    events,
+    score: scoreDrill({ facts: tracker.facts, endReason, firstWarningMs: trip, steps, driveTripC, timerDefaults }),
+  };
 }
 
 describe("drill score", () => {
@@ -40,8 +55,14 @@ describe("drill score", () => {
 
   it("a trainee who acts in time and puts things back: crossover avoided, ends on recovery, full marks", () => {
     const putBack: Array<{ atS: number; action: DrillAction }> = [
-      { atS: tripAtS + 420, action: { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "start-to-start", seconds: 900 } },
-      { atS: tripAtS + 420, action: { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "stop-to-start", seconds: 180 } },
+      {
+        atS: tripAtS + 420,
+        action: { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "start-to-start", seconds: 900 },
+      },
+      {
+        atS: tripAtS + 420,
+        action: { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "stop-to-start", seconds: 180 },
+      },
       { atS: tripAtS + 480, action: { type: "set-air-handler", equipment: "AHU-2", run: true } },
       { atS: tripAtS + 480, action: { type: "set-air-handler", equipment: "AHU-3", run: true } },
     ];

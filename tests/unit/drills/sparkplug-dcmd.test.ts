@@ -17,7 +17,13 @@ const pointMap = sparkplugPointMapCsv(layout)
     const [gatewayPoint, equipmentTag, quantity] = line.split(",");
     return { gatewayPoint, equipmentTag, quantity };
   });
-const edge = new SparkplugEdgeNode({ groupId: "training", edgeNodeId: "sim-1", layout, now: () => 0, publish: () => {} });
+const edge = new SparkplugEdgeNode({
+  groupId: "training",
+  edgeNodeId: "sim-1",
+  layout,
+  now: () => 0,
+  publish: () => {},
+});
 
 const actions: DrillAction[] = [
   { type: "set-fan-drive-mode", equipment: "CT-1", mode: "auto" },
@@ -41,7 +47,12 @@ describe("drill actions over Sparkplug DCMD", () => {
 
   it("an action on a point the map lacks is refused before anything is sent", () => {
     expect(() =>
-      encodeDrillDcmd({ groupId: "g", edgeNodeId: "e" }, { type: "set-air-handler", equipment: "AHU-9", run: true }, pointMap, 1),
+      encodeDrillDcmd(
+        { groupId: "g", edgeNodeId: "e" },
+        { type: "set-air-handler", equipment: "AHU-9", run: true },
+        pointMap,
+        1,
+      ),
     ).toThrow(/not in the gateway's point map/);
   });
 });

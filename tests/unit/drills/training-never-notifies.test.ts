@@ -41,7 +41,15 @@ function raise(id: string, siteId: string) {
       state: "unacknowledged",
       conditionActive: true,
       machineJson: JSON.stringify(machine),
-      detailJson: JSON.stringify({ technicianMessage: "CH-1 tripped", ownerMessage: "A chiller stopped", advice: [], caution: null, numbers: {}, related: [], atMs: Date.now() }),
+      detailJson: JSON.stringify({
+        technicianMessage: "CH-1 tripped",
+        ownerMessage: "A chiller stopped",
+        advice: [],
+        caution: null,
+        numbers: {},
+        related: [],
+        atMs: Date.now(),
+      }),
       activeSinceMs: Date.now(),
       lastTransitionMs: Date.now(),
       activations: 1,
@@ -54,10 +62,17 @@ beforeAll(() => {
   db = openDb(path.join(dir, "test.db"));
   migrateDb(db);
   seedDemo(db, "training-test-password");
-  insertTrainingSite(db, admin, { id: "training-1", name: "Training plant", timeZone: "UTC", layout: "medical-office" });
+  insertTrainingSite(db, admin, {
+    id: "training-1",
+    name: "Training plant",
+    timeZone: "UTC",
+    layout: "medical-office",
+  });
   // The customer of a real site opted in to alarm mail, so the control case has someone to reach; the training
   // site is put under the same customer (as a misfiled one would be) so only the training flag can keep it quiet.
-  db.insert(notificationPreferences).values({ userId: `user-${DEMO_SITES[0].customer.id}`, alarmStartEndMail: true }).run();
+  db.insert(notificationPreferences)
+    .values({ userId: `user-${DEMO_SITES[0].customer.id}`, alarmStartEndMail: true })
+    .run();
   db.update(sites).set({ organizationId: DEMO_SITES[0].customer.id }).where(eq(sites.id, "training-1")).run();
 });
 
@@ -76,7 +91,13 @@ describe("training sites never notify anyone", () => {
   it("customer opt-in mail is not sent for a training site, and is for the real one", () => {
     sent.length = 0;
     const mail = customerAlarmMail({ db, mailer, publicUrl: "http://localhost", log: () => {} });
-    const t = { alarmKey: "chiller_trip:CH-1", priority: 1, cause: "condition_active", from: "normal", to: "unacknowledged" } as unknown as TransitionRecord;
+    const t = {
+      alarmKey: "chiller_trip:CH-1",
+      priority: 1,
+      cause: "condition_active",
+      from: "normal",
+      to: "unacknowledged",
+    } as unknown as TransitionRecord;
     mail("training-1", [t]);
     expect(sent).toHaveLength(0);
     mail(DEMO_SITES[0].id, [t]);
