@@ -9,6 +9,7 @@ export function AppHeader({ viewer }: { viewer: Viewer }) {
     { href: "/", label: "Board" },
     { href: "/alarms", label: "Alarms" },
     ...(canAct(viewer) ? [{ href: "/on-call", label: "On call" }] : []),
+    ...(canAct(viewer) ? [{ href: "/drills", label: "Drills" }] : []),
     ...(isAdmin(viewer) ? [{ href: "/admin", label: "Admin" }] : []),
     { href: "/settings", label: "Settings" },
   ];

@@ -449,3 +449,31 @@ export function trainingSiteIds(db: Db): Set<string> {
  */
 export const canStartDrills = (viewer: Viewer): boolean =>
   isAdmin(viewer) || (viewer.role === "technician" && canAct(viewer));
+
+/** Stored readings of a few points in an event-time window (canonical SI), for the debrief's trends. */
+export function drillSeries(
+  db: Db,
+  siteId: string,
+  fromMs: number,
+  toMs: number,
+  wanted: ReadonlyArray<{ tag: string; quantity: string }>,
+): Array<{ tag: string; quantity: string; xs: number[]; ys: number[] }> {
+  return wanted.map(({ tag, quantity }) => {
+    const p = db
+      .select({ id: points.id })
+      .from(points)
+      .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+      .where(and(eq(equipment.siteId, siteId), eq(equipment.tag, tag), eq(points.quantity, quantity)))
+      .get();
+    const rows = p
+      ? db
+          .select({ ts: readings.ts, value: readings.value })
+          .from(readings)
+          .where(and(eq(readings.pointId, p.id), gte(readings.ts, fromMs), lte(readings.ts, toMs)))
+          .orderBy(asc(readings.ts))
+          .all()
+      : [];
+    const numeric = rows.filter((r): r is { ts: number; value: number } => typeof r.value === "number");
+    return { tag, quantity, xs: numeric.map((r) => r.ts), ys: numeric.map((r) => r.value) };
+  });
+}

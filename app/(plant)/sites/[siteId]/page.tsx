@@ -13,6 +13,7 @@ import { SiteReports } from "@/components/service/site-reports";
 import { FilesStrip } from "@/components/files/files-strip";
 import { canAct, isAdmin } from "@/lib/auth/viewer";
 import Link from "next/link";
+import { DrillControls } from "@/components/drills/drill-controls";
 import { requirePageViewer } from "../../../(auth)/auth";
 
 export const dynamic = "force-dynamic";
@@ -60,6 +61,7 @@ export default async function SitePage({ params }: Props) {
           </p>
         ) : null}
       </header>
+      {staff ? <DrillControls siteId={site.id} /> : null}
       <TemporaryChangeBanner siteId={site.id} staff={staff} timeZone={site.timeZone} />
       {staff ? (
         <section className="mb-4 flex flex-col gap-2" aria-label="Visits">
