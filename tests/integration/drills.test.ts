@@ -1,6 +1,7 @@
 import Database from "better-sqlite3";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { adminCookie, api, waitFor } from "../helpers/mqtt";
+import { adminCookie, api } from "../helpers/mqtt";
+import { drillClient, jsonPost, warmDrillRoutes } from "../helpers/drills";
 import { signIn, startServer, type TestServer } from "../helpers/server";
 
 // Drills through the real server at 600×: a training site's simulated gateway publishes over MQTT, the
@@ -17,11 +18,8 @@ let trainee: string;
 let senior: string;
 let customer: string;
 const TRAINEE_ID = "user-tech-1";
-const json = (body: unknown) => ({
-  method: "POST",
-  headers: { "content-type": "application/json" },
-  body: JSON.stringify(body),
-});
+const json = jsonPost;
+let client: ReturnType<typeof drillClient>;
 
 async function cookieOf(email: string) {
   const { cookie } = await signIn(server.url, email);
@@ -35,104 +33,14 @@ async function trainingSite(name: string, protocol: "json" | "sparkplug") {
   return res.body.site as { id: string; gatewayId: string; protocol: string };
 }
 
-type Live = { running: boolean; simulatedMs: number; events: Array<{ tsMs: number; kind: string; message: string }> };
-async function live(
-  drillId: string,
-  // eslint-disable-next-line @typescript-eslint/no-explicit-any -- the score's parts are checked field by field below
-): Promise<{ drill: { state: string; outcome: string; score: any }; live: Live | null }> {
-  const t0 = Date.now();
-  const body = (await api(server, trainee, `/api/drills/${drillId}`)).body;
-  timings.push(-(Date.now() - t0));
-  return body;
-}
-const timings: number[] = [];
-const cmd = async (drillId: string, action: unknown) => {
-  const t0 = Date.now();
-  const r = await api(server, trainee, `/api/drills/${drillId}/commands`, json(action));
-  timings.push(Date.now() - t0);
-  return r;
-};
-
-async function ended(drillId: string) {
-  return waitFor(
-    async () => {
-      const d = (await live(drillId)).drill;
-      return d.state === "ended" ? d : null;
-    },
-    90_000,
-    250,
-  );
-}
-
-/**
- * The trainee who acts in time: at the first warning (the fan drive back from the blip in OFF), shed load, fan
- * to auto, timers to their minimums; if the chiller trips anyway, reset until it restarts before the
- * crossing; then put the timers and air handlers back. Returns which path the plant took.
- */
-async function actInTime(drillId: string): Promise<"restarted" | "no_trip"> {
-  const warning = await waitFor(
-    async () => {
-      const l = (await live(drillId)).live;
-      return l?.events.find((e) => /Fan drive restarted after power loss in OFF/.test(e.message)) ?? null;
-    },
-    60_000,
-    20,
-  );
-  // Sent together, as one technician at the panel would in a minute: at 600× every wall second is 10 simulated minutes.
-  const first = await Promise.all(
-    [
-      { type: "set-air-handler", equipment: "AHU-2", run: false },
-      { type: "set-air-handler", equipment: "AHU-3", run: false },
-      { type: "set-fan-drive-mode", equipment: "CT-1", mode: "auto" },
-      { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "start-to-start", seconds: 120 },
-      { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "stop-to-start", seconds: 60 },
-    ].map((a) => cmd(drillId, a)),
-  );
-  for (const r of first) expect(r.status, JSON.stringify(r.body)).toBe(202);
-  // If the head pressure trips the chiller before the fan catches up: reset (refused until the condenser
-  // pressure is 10 psi under the cut-out, so retried) until it restarts; otherwise wait for the loop to settle.
-  const path = await waitFor(
-    async () => {
-      const l = (await live(drillId)).live!;
-      const trip = l.events.find((e) => e.kind === "alarm" && /High condenser pressure/.test(e.message));
-      if (!trip) return l.simulatedMs - warning.tsMs >= 40 * 60_000 ? ("no_trip" as const) : null;
-      if (l.events.some((e) => /Compressor started/.test(e.message) && e.tsMs > trip.tsMs)) return "restarted" as const;
-      await cmd(drillId, { type: "reset-alarm", equipment: "CH-1" });
-      return null;
-    },
-    60_000,
-    20,
-  );
-  const back = await Promise.all(
-    [
-      { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "start-to-start", seconds: 900 },
-      { type: "set-anti-recycle-timer", equipment: "CH-1", timer: "stop-to-start", seconds: 180 },
-      { type: "set-air-handler", equipment: "AHU-2", run: true },
-      { type: "set-air-handler", equipment: "AHU-3", run: true },
-    ].map((a) => cmd(drillId, a)),
-  );
-  for (const r of back) expect(r.status).toBe(202);
-  return path;
-}
-
 beforeAll(async () => {
   server = await startServer();
   admin = await adminCookie(server);
   trainee = await cookieOf("luis@tallgrass.example");
   senior = await cookieOf("priya@tallgrass.example");
   customer = await cookieOf("facilities@harborview.example").catch(() => "");
-  // A development server compiles a route on its first request: do it before a 600× drill is racing.
-  await api(server, trainee, "/api/drills/drill-none");
-  await api(server, trainee, "/api/drills/drill-none/commands", json({ type: "reset-alarm", equipment: "CH-1" }));
-  await api(server, trainee, "/api/drills/drill-none/stop", { method: "POST" });
-  await api(server, trainee, "/api/drills", json({}));
-  await api(server, trainee, "/api/training-sites");
-  // A development server then writes its compile cache, holding its event loop for seconds: let it finish
-  // before a 600× drill runs (a production server does not do this).
-  if (server.output().includes("Compiling"))
-    await waitFor(async () => /Finished writing to filesystem cache/.test(server.output()), 60_000, 250).catch(
-      () => {},
-    );
+  client = drillClient(server, trainee);
+  await warmDrillRoutes(server, trainee);
 }, 240_000);
 
 afterAll(async () => {
@@ -156,7 +64,7 @@ describe("drills on training sites", () => {
       );
       expect(start.status, JSON.stringify(start.body)).toBe(201);
       const drillId = start.body.drill.id as string;
-      const low = await cmd(drillId, {
+      const low = await client.cmd(drillId, {
         type: "set-anti-recycle-timer",
         equipment: "CH-1",
         timer: "stop-to-start",
@@ -166,10 +74,12 @@ describe("drills on training sites", () => {
       expect(low.body.error.message).toMatch(/60–1800 s/);
       let path: string;
       try {
-        path = await actInTime(drillId);
+        path = await client.actInTime(drillId);
       } finally {
         const slowest = (xs: number[]) => Math.max(0, ...xs.map(Math.abs));
-        console.log(`[drill ${protocol}] ${timings.length} requests, slowest ${slowest(timings.splice(0))} ms`);
+        console.log(
+          `[drill ${protocol}] ${client.timings.length} requests, slowest ${slowest(client.timings.splice(0))} ms`,
+        );
         if (process.env.DRILL_DEBUG)
           console.log(
             server
@@ -180,7 +90,7 @@ describe("drills on training sites", () => {
               .join("\n"),
           );
       }
-      const d = await ended(drillId);
+      const d = await client.ended(drillId);
       if (d.outcome !== "avoided")
         console.log(
           d.score.events
@@ -220,7 +130,7 @@ describe("drills on training sites", () => {
       json({ siteId: site.id, traineeId: TRAINEE_ID, scenario: "power-blip", speed: 600, hints: false }),
     );
     expect(start.status, JSON.stringify(start.body)).toBe(201);
-    const d = await ended(start.body.drill.id);
+    const d = await client.ended(start.body.drill.id);
     expect(d.outcome).toBe("crossed");
     expect(d.score.endReason).toBe("failed_restart");
     expect(d.score.parts.find((p: { key: string }) => p.key === "crossover_avoided").points).toBe(0);
