@@ -23,13 +23,17 @@ describe.skipIf(!hasChromium)("drill debrief in a browser", () => {
     expect(site.status).toBe(201);
     const siteId = site.body.site.id as string;
     const client = drillClient(env.server, trainee!);
-    await warmDrillRoutes(env.server, trainee!);
 
     const ctx = await env.browser.newContext({ viewport: viewports.desktop });
     ctx.setDefaultTimeout(180_000);
     const page = await ctx.newPage();
     const problems = watchConsole(page);
     await signInAs(page, env.server.url, "admin@tallgrass.example");
+    // Pages compile on first load in a development server, holding it for seconds: before the 600× drills.
+    await page.goto(`${env.server.url}/sites/${siteId}`);
+    await page.goto(`${env.server.url}/drills`);
+    await page.goto(`${env.server.url}/drills/drill-none`);
+    await warmDrillRoutes(env.server, trainee!);
 
     const start = (hints: boolean) =>
       api(
