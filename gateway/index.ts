@@ -62,6 +62,8 @@ export interface GatewaySide {
   status(): { up: boolean; clients: number };
   /** Publishes a JSON message on a gateway's command topic, QoS 1 (the simulator's drills). */
   sendGatewayCommand(gatewayId: string, payload: unknown): void;
+  /** Publishes a prepared message (a Sparkplug DCMD to a simulated training node), QoS 1. */
+  publishCommand(topic: string, payload: Buffer): void;
   /** A gateway's record changed: drop its cached map, and cut its connection when it may no longer use it. */
   gatewayChanged(gatewayId: string, change: GatewayChange): void;
   close(): Promise<void>;
@@ -187,6 +189,7 @@ export async function startGatewaySide(opts: GatewaySideOptions): Promise<Gatewa
       embedded ? { up: true, clients: embedded.connectedClients() } : { up: ext?.connected() ?? false, clients: 0 },
     sendGatewayCommand: (gatewayId, payload) =>
       sendCommand(jsonTopics.commands(gatewayId), Buffer.from(JSON.stringify(payload))),
+    publishCommand: (topic, payload) => sendCommand(topic, payload),
     gatewayChanged(gatewayId, change) {
       registry.invalidate(gatewayId);
       if (change !== "credentials") opts.onMappingChanged?.();

@@ -12,7 +12,7 @@ import { actionOfCommand, drillCommandSchema, type DrillAction } from "./actions
 import { defaultLayout, equipmentOf, getLayout, type SiteLayout } from "./layout";
 import { pointName, wireValue } from "./points";
 import { PlantRunner, type RunSample, type SimEvent } from "./run";
-import { getScenario } from "./scenarios";
+import { getScenario, type Scenario } from "./scenarios";
 import { SparkplugEdgeNode } from "./sparkplug-edge";
 import type { EquipmentKind } from "@/lib/quantities";
 
@@ -27,7 +27,7 @@ export interface SimulatedGatewayOptions {
   /** Sparkplug only (required there): the node's group id and edge node id, as provisioned. */
   groupId?: string;
   edgeNodeId?: string;
-  scenario: string;
+  scenario: string | Scenario;
   /** Simulated seconds per wall second. */
   speed: number;
   seed: number;
@@ -43,6 +43,8 @@ export interface SimulatedGatewayOptions {
   log?: (line: string) => void;
   /** Called with each scenario event, fault-log entry and drill outcome. */
   onEvent?: (e: SimEvent) => void;
+  /** Called with each sample as it is published (a drill follows the plant through it). */
+  onSample?: (s: RunSample) => void;
   /** Wall clock, injectable for tests. */
   now?: () => number;
 }
@@ -66,7 +68,7 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
   const gatewayId = opts.gatewayId ?? opts.username;
   const layout = typeof opts.siteLayout === "string" ? getLayout(opts.siteLayout) : (opts.siteLayout ?? defaultLayout);
   if (!layout) throw new Error(`unknown site layout "${String(opts.siteLayout)}"`);
-  const scenario = getScenario(opts.scenario);
+  const scenario = typeof opts.scenario === "string" ? getScenario(opts.scenario) : opts.scenario;
   const durationS = opts.durationS ?? scenario.defaultDurationS;
   if (!(opts.speed > 0)) throw new Error("speed must be > 0");
   const topics = {
@@ -137,13 +139,14 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
     wall0 = now();
     sim0S = 0;
     log(
-      `[${gatewayId}] pass ${pass}: ${opts.scenario} from ${new Date(startMs).toISOString()} at ${opts.speed}× (${durationS} s)`,
+      `[${gatewayId}] pass ${pass}: ${scenario.name} from ${new Date(startMs).toISOString()} at ${opts.speed}× (${durationS} s)`,
     );
   };
   const firstStartMs = opts.startMs ?? Math.floor(now() + (durationS / opts.speed) * 1000 - durationS * 1000);
   newPass(firstStartMs);
 
   const publishSamples = (samples: RunSample[]) => {
+    if (opts.onSample) for (const s of samples) opts.onSample(s);
     if (sp) {
       for (const s of samples) for (const e of s.events) record(e);
       published += sp.publishSamples(samples);
@@ -306,7 +309,7 @@ export function startSimulatedGateway(opts: SimulatedGatewayOptions): SimulatedG
       return {
         gatewayId,
         protocol,
-        scenario: opts.scenario,
+        scenario: scenario.name,
         connected,
         pass,
         simulatedMs: runner.startMs + runner.tS * 1000,

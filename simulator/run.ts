@@ -22,7 +22,8 @@ export interface RunSample {
 }
 
 export interface RunScenarioOptions {
-  scenario: string;
+  /** A catalogue name, or a scenario object (a starting point saved from stored readings, `saved-scenario.ts`). */
+  scenario: string | Scenario;
   seed: number;
   startMs: number;
   durationS: number;
@@ -90,7 +91,7 @@ export class PlantRunner {
 
   constructor(opts: Omit<RunScenarioOptions, "durationS">) {
     this.layout = opts.layout ?? defaultLayout;
-    this.scenario = getScenario(opts.scenario);
+    this.scenario = typeof opts.scenario === "string" ? getScenario(opts.scenario) : opts.scenario;
     this.stepS = opts.stepS ?? 1;
     this.sampleEveryS = opts.sampleEveryS ?? 10;
     this.startMs = opts.startMs;

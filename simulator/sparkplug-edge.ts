@@ -382,7 +382,8 @@ export class SparkplugEdgeNode {
 
 /**
  * DCMD writes → drill actions. Writable: CT-1 FAN-MODE (with FAN-HZ for hand) and FAN-FLT=false (reset);
- * chillers ENABLE, ALARM=false (reset), STS-TMR / SPS-TMR (seconds); air handlers RUN. Checked with zod.
+ * CT-1 bypass valve position; chillers ENABLE, ALARM=false (reset), STS-TMR / SPS-TMR (seconds); air handlers RUN.
+ * Checked with zod.
  */
 export function drillActionsOfWrites(
   device: string,
@@ -432,6 +433,8 @@ export function drillActionsOfWrites(
       });
     else if (kind === "chiller" && q === "run_enable_command")
       push({ type: "set-chiller-enable", equipment: device, enabled: value });
+    else if (kind === "cooling_tower" && q === "tower_bypass_valve_position")
+      push({ type: "set-tower-bypass", equipment: device, positionPct: value });
     else if (kind === "air_handler" && q === "run_status")
       push({ type: "set-air-handler", equipment: device, run: value });
     else out.push({ kind: "refused", equipment: device, message: `Command refused: ${q} of ${device} is read-only` });

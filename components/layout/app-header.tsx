@@ -10,6 +10,7 @@ export function AppHeader({ viewer }: { viewer: Viewer }) {
     { href: "/alarms", label: "Alarms" },
     { href: "/incidents", label: "Incidents" },
     ...(canAct(viewer) ? [{ href: "/on-call", label: "On call" }] : []),
+    ...(canAct(viewer) ? [{ href: "/drills", label: "Drills" }] : []),
     ...(isAdmin(viewer) ? [{ href: "/admin", label: "Admin" }] : []),
     { href: "/settings", label: "Settings" },
   ];

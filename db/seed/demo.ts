@@ -3,7 +3,7 @@ import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "../client";
 import { hashPasswordSync, needsRehash } from "../password";
 import { equipment, onCallShifts, organizations, sites, users } from "../schema";
-import { systemViewer } from "@/lib/auth/viewer";
+import { systemViewer, type Viewer } from "@/lib/auth/viewer";
 import { chillerLimitDefaults } from "@/lib/plant/equipment-limits";
 import { fToC, WATER_HEAT_CAPACITY_KJ_PER_LK } from "@/lib/plant/units";
 import { canonicalUnitOf, type EquipmentKind } from "@/lib/quantities";
@@ -357,4 +357,31 @@ function upgradeDemoHashes(db: Db, demoPassword: string, passwordHash: string): 
     if (!needsRehash(row.hash) || !bcrypt.compareSync(demoPassword, row.hash)) continue;
     db.update(users).set({ passwordHash }).where(eq(users.id, row.id)).run();
   }
+}
+
+/**
+ * A simulated plant's equipment, limits and points on a site (a training site), as the demo sites get
+ * theirs: the equipment follows the simulator layout, so the rules trip where the model trips.
+ */
+export function addSimulatedPlant(db: Db, viewer: Viewer, siteId: string, layoutName: string): number {
+  const layout = siteLayouts[layoutName];
+  if (!layout) throw new Error(`unknown layout ${layoutName}`);
+  const list = plant(layout);
+  for (const { highCondTripKPa, ...e } of list) {
+    const made = createEquipment(db, viewer, siteId, e);
+    if (e.kind !== "chiller" || highCondTripKPa === undefined) continue;
+    const byDefault = chillerLimitDefaults(e.refrigerant, e.compressorType).highCondPressureCutoutKPa.value;
+    if (Math.abs(byDefault - highCondTripKPa) > 0.5)
+      setEquipmentLimits(db, viewer, made.id, {
+        values: { highCondPressureCutoutKPa: Math.round(highCondTripKPa * 10) / 10 },
+      });
+  }
+  const rows = list.flatMap((e) =>
+    pointsOf(layout, e.kind).map((q) => `${e.tag},${e.kind},${q},${canonicalUnitOf(q)},5,,`),
+  );
+  const result = uploadPointList(db, viewer, siteId, [POINT_LIST_COLUMNS.join(","), ...rows].join("\n"), {
+    apply: true,
+  });
+  if (result.errors.length > 0) throw new Error(`training point list: ${result.errors[0].message}`);
+  return list.length;
 }

@@ -2,7 +2,7 @@ import { createServer, type IncomingMessage, type Server, type ServerOptions } f
 import path from "node:path";
 import next from "next";
 import { migrateDb, openDb, type Db } from "@/db/client";
-import { demoAccounts, seedDemo, SERVICE_ORG } from "@/db/seed/demo";
+import { DEMO_SITES, demoAccounts, seedDemo, SERVICE_ORG } from "@/db/seed/demo";
 import { startGatewaySide } from "@/gateway/index";
 import { clientAddress, type TrustedProxies } from "@/lib/auth/client-address";
 import { CLIENT_ADDRESS_HEADER } from "@/lib/auth/session";
@@ -19,6 +19,7 @@ import { allowedOrigins, setDb, setRuntime, setStorageHealth } from "./runtime";
 import { resolveAuthSecret } from "./secret";
 import { applySecurityHeaders, securityHeaders, type SecurityHeaderOptions } from "./security-headers";
 import { createSimulationManager, type SimulationManager } from "./simulation/manager";
+import { createDrillService, type DrillService } from "./drills";
 import { startStorageAlarm } from "./storage-alarm";
 import { createStorageHealth } from "./storage-health";
 
@@ -198,27 +199,38 @@ async function start(
   });
   started("the gateway side", () => gatewaySide.close());
 
-  // Demo mode's simulated plants publish through their own gateways, like real ones.
+  // Simulated plants publish through their own gateways, like real ones: demo mode's sites, and the
+  // training sites drills run on (these need no demo mode, only the embedded broker).
   let simulation: SimulationManager | undefined;
-  if (config.LIFTLINE_DEMO && config.LIFTLINE_SIMULATOR) {
-    if (gatewaySide.mqttPort === null)
-      log("Simulated gateways run only with the embedded broker; skipped with MQTT_URL set.");
-    else {
-      simulation = await createSimulationManager({
-        db,
-        mqttUrl: `mqtt://127.0.0.1:${gatewaySide.mqttPort}`,
-        log,
-        gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),
-        onSiteReset: (siteId, pointIds) => {
-          gatewaySide.writer.forget(pointIds);
-          live.forget(pointIds);
-          // A fresh monitor: the old run's readings and alarm states would otherwise mix into the new timeline.
-          alarmSystem.service.forget(siteId);
-        },
-      });
-      const sim = simulation;
-      started("the simulation", () => sim.close());
-    }
+  let drills: DrillService | undefined;
+  const demoRuns = config.LIFTLINE_DEMO && config.LIFTLINE_SIMULATOR;
+  if (gatewaySide.mqttPort === null) {
+    if (demoRuns) log("Simulated gateways run only with the embedded broker; skipped with MQTT_URL set.");
+  } else {
+    simulation = await createSimulationManager({
+      db,
+      demoSites: demoRuns ? DEMO_SITES : [],
+      mqttUrl: `mqtt://127.0.0.1:${gatewaySide.mqttPort}`,
+      log,
+      gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),
+      onSiteReset: (siteId, pointIds) => {
+        gatewaySide.writer.forget(pointIds);
+        live.forget(pointIds);
+        // A fresh monitor: the old run's readings and alarm states would otherwise mix into the new timeline.
+        alarmSystem.service.forget(siteId);
+      },
+    });
+    const sim = simulation;
+    started("the simulation", () => sim.close());
+    drills = createDrillService({
+      db,
+      simulation,
+      sendJsonCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
+      publishCommand: (topic, payload) => gatewaySide.publishCommand(topic, payload),
+      log,
+    });
+    const d = drills;
+    started("the drills", () => d.close());
   }
 
   setRuntime({
@@ -228,7 +240,9 @@ async function start(
     siteDataStatus: (siteId) => live.dataStatus(siteId),
     latestValue: (pointId) => live.latest(pointId),
     simulation,
+    drills,
     sendGatewayCommand: async (gatewayId, payload) => gatewaySide.sendGatewayCommand(gatewayId, payload),
+    publishCommand: (topic, payload) => gatewaySide.publishCommand(topic, payload),
     gatewayChanged: (gatewayId, change) => gatewaySide.gatewayChanged(gatewayId, change),
     disconnectUserSockets: (userId) => disconnectUserSockets(io, userId),
     disconnectSessionSockets: (sessionId) => disconnectSessionSockets(io, sessionId),
@@ -251,7 +265,7 @@ async function start(
   log(
     `Liftline is running at ${publicUrl} (${dev ? "development" : "production"}; HTTP port ${httpPort}, ${gatewaySide.mqttPort === null ? `MQTT broker ${config.MQTT_URL}` : `MQTT port ${gatewaySide.mqttPort}`})`,
   );
-  if (simulation) {
+  if (simulation && demoRuns) {
     await simulation.startDefaults();
     log(
       "Simulated plants: two normal days and one power-blip incident (Millbrook High School), each through its own gateway. Set LIFTLINE_SIMULATOR=0 to run without them.",

@@ -11,6 +11,7 @@ import {
   incidentOperations,
   type OpenApiDocument,
 } from "@/lib/openapi";
+import { drillOperations } from "@/lib/openapi/paths/drills";
 import { startRunSchemaFor } from "@/lib/schemas/simulator";
 import { drillActionSchema } from "@/simulator/actions-schema";
 import { scenarioNames } from "@/simulator/scenarios";
@@ -30,6 +31,7 @@ export function openApiDocument(): OpenApiDocument {
       ...peopleOperations,
       ...notifyOperations,
       ...incidentOperations,
+      ...drillOperations,
       ...simulatorOperations({ startRun: startRunSchemaFor(scenarioNames), drillAction: drillActionSchema }),
     ],
     pkg.version,

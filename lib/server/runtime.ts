@@ -14,6 +14,7 @@ import {
 } from "./rate-limit";
 import type { LatestInMemory } from "@/db/queries/readings";
 import type { SimulationManager } from "./simulation/manager";
+import type { DrillService } from "./drills";
 import { createStorageHealth, type StorageHealth } from "./storage-health";
 import type { MailDto } from "@/lib/dto/oncall";
 import type { NotifyPaths } from "./notify/start";
@@ -38,8 +39,12 @@ export interface Runtime {
   latestValue: LatestInMemory;
   /** Demo mode's simulated gateways (absent when LIFTLINE_SIMULATOR=0 or not in demo mode). */
   simulation?: SimulationManager;
+  /** Drills on training sites (absent without the embedded broker). */
+  drills?: DrillService;
   /** Publishes a command to a gateway's command topic (the simulator's drills). */
   sendGatewayCommand(gatewayId: string, payload: unknown): Promise<void>;
+  /** Publishes a prepared command message (a Sparkplug DCMD to a simulated training node). */
+  publishCommand?(topic: string, payload: Buffer): void;
   /** Tells the gateway side that a gateway's record changed. */
   gatewayChanged(gatewayId: string, change: GatewayChange): void;
   /** Closes every live socket of a user (disabled, or their role or organization changed); returns how many. */

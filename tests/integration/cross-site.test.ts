@@ -75,6 +75,20 @@ function bodyFor(r: Route): { type: string; body?: string } {
       return json({ scenario: "power-blip", speed: 60 });
     case "POST /api/simulator/[siteId]/drill":
       return json({ type: "reset-alarm", equipment: "CH-1" });
+    case "POST /api/drills":
+      return json({
+        siteId: "training-forged",
+        traineeId: ids.userId,
+        scenario: "power-blip",
+        speed: 600,
+        hints: true,
+      });
+    case "POST /api/drills/[drillId]/commands":
+      return json({ type: "set-fan-drive-mode", equipment: "CT-1", mode: "auto" });
+    case "POST /api/training-sites":
+      return json({ name: "Forged training site", layout: "default" });
+    case "POST /api/saved-scenarios":
+      return json({ siteId: "harborview-mob", atMs: Date.now(), name: "forged", base: "power-blip" });
     case "POST /api/tokens":
       return json({ name: "forged" });
     case "POST /api/people":
@@ -194,6 +208,8 @@ beforeAll(async () => {
   ids.shiftId = oncall.body.shifts[0].id;
   ids.userId = oncall.body.people[0].id;
   ids.siteId = "harborview-mob";
+  // No drill exists: a forged request must change nothing whichever way it is refused.
+  ids.drillId = "drill-none";
   ids.token = "not-a-real-ack-link-token";
   // Records no one has: a request that got through answers 404 and changes nothing, and the check
   // that matters here (403 before any handler runs) does not depend on the record existing.

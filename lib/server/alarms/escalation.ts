@@ -12,6 +12,7 @@ import {
 } from "@/db/queries/notify";
 import { admins, alarmsAwaitingAck, allShifts, contactOf, createAckLink } from "@/db/queries/oncall";
 import { getViewerById } from "@/db/queries/users";
+import { trainingSiteIds } from "@/db/queries/drills";
 import { priorityMeanings, type Priority } from "@/lib/alarms";
 import type { AlarmWithHistoryDto } from "@/lib/dto/alarms";
 import { pushPayload, smsText, type AlarmNotice } from "@/lib/notify/messages";
@@ -234,10 +235,13 @@ export function createEscalator(deps: EscalatorDeps): Escalator {
     const nowMs = deps.clock();
     let soonest: number | null = null;
     const jobs: Array<Promise<number>> = [];
+    // Training sites' alarms are worked by the trainee on screen: no push, text or mail to anyone.
+    const training = trainingSiteIds(db);
     // Chosen synchronously and sent concurrently: a critical alarm never waits behind a slow
     // mail server's answers for other alarms, and a key in flight is never sent twice.
     const awaiting = [...alarmsAwaitingAck(db, 4)].sort((x, y) => x.priority - y.priority);
     for (const a of awaiting) {
+      if (training.has(a.siteId)) continue;
       const policy = policyOf(a.priority);
       const history = deliveriesOf(db, a.id, a.activations);
       const first = history.filter((n) => n.step === 0).map((n) => n.sentAt);

@@ -1,5 +1,6 @@
 import type { Db } from "@/db/client";
 import { alarmForCustomerMail, alarmMailSubscribers } from "@/db/queries/notify";
+import { isTrainingSite } from "@/db/queries/drills";
 import type { TransitionRecord } from "@/lib/alarms";
 import type { Mailer } from "../mail";
 
@@ -8,6 +9,8 @@ import type { Mailer } from "../mail";
 
 export function customerAlarmMail(deps: { db: Db; mailer: Mailer; publicUrl: string; log: (line: string) => void }) {
   return (siteId: string, transitions: readonly TransitionRecord[]) => {
+    // A training site is the service company's own simulated plant: no customer hears of it.
+    if (isTrainingSite(deps.db, siteId)) return;
     for (const t of transitions) {
       if (t.priority > 2) continue;
       const started = t.cause === "condition_active" && t.from === "normal";

@@ -2,17 +2,20 @@ import type { Db } from "@/db/client";
 import { createGateway, listGateways, replacePointMap, rotateGatewayPassword } from "@/db/queries/gateways";
 import { resetSiteTimeline } from "@/db/queries/simulation";
 import { resetIncidentsFrom } from "@/db/queries/incidents";
-import { DEMO_SITES, SERVICE_ORG } from "@/db/seed/demo";
+import { SERVICE_ORG } from "@/db/seed/demo";
+import { listTrainingSites, TRAINING_GATEWAY_PREFIX } from "@/db/queries/drills";
 import type { GatewayChange } from "@/gateway/index";
 import { hourRebuilder } from "@/gateway/rollups";
 import { systemViewer } from "@/lib/auth/viewer";
 import { parsePointMapCsv } from "@/lib/point-map-csv";
-import { getLayout, getScenario, pointMapCsv } from "@/simulator/index";
+import { getLayout, getScenario, pointMapCsv, type RunSample, type Scenario, type SimEvent } from "@/simulator/index";
 import { startSimulatedGateway, type SimulatedGateway } from "@/simulator/gateway-client";
+import { sparkplugPointMapCsv } from "@/simulator/sparkplug-edge";
 import type { SimulatedSiteStatus } from "@/lib/dto/simulator";
 
-// Demo mode's simulated plants: each demo site gets its own provisioned gateway, and a
-// simulator publishes through it over MQTT exactly like a real gateway box would.
+// Simulated plants: each demo site (demo mode) and each training site gets its own provisioned gateway,
+// and a simulator publishes through it over MQTT exactly like a real gateway box would. A training
+// site's gateway may speak Sparkplug B instead; drills then reach it as DCMD writes.
 
 export const SIMULATED_GATEWAY_NAME = "Simulated plant gateway";
 
@@ -30,10 +33,45 @@ export const DEFAULT_RUNS: Record<string, { scenario: string; speed: number; lea
 // Provisioning is an admin act; the server does it for the demo as the service company.
 const systemAdmin = systemViewer(SERVICE_ORG.id);
 
+/** A site a simulator may run on: a demo site (by the seed) or a training site (by an admin). */
+export interface SimulatedSite {
+  id: string;
+  name: string;
+  layout: string;
+  training?: boolean;
+  protocol?: "json" | "sparkplug";
+}
+
+/** A drill's run: once through, and told of every sample and event. */
+export interface RunHooks {
+  loop?: boolean;
+  /** Simulated seconds between samples (default 10). */
+  sampleEveryS?: number;
+  onSample?: (s: RunSample) => void;
+  onEvent?: (e: SimEvent) => void;
+}
+
+export interface SimulatedGatewayRef {
+  gatewayId: string;
+  protocol: "json" | "sparkplug";
+  groupId: string | null;
+  edgeNodeId: string | null;
+}
+
 export interface SimulationManager {
   list(): SimulatedSiteStatus[];
-  /** Starts `scenario` on a demo site at `speed`, replacing what ran there (see `start`). */
-  start(siteId: string, scenario: string, speed: number, seed?: number, leadInS?: number): Promise<SimulatedSiteStatus>;
+  /** Starts `scenario` on a simulated site at `speed`, replacing what ran there (see `start`). */
+  start(
+    siteId: string,
+    scenario: string | Scenario,
+    speed: number,
+    seed?: number,
+    leadInS?: number,
+    hooks?: RunHooks,
+  ): Promise<SimulatedSiteStatus>;
+  /** Provisions a training site's simulated gateway (JSON or Sparkplug B) with the layout's point map. */
+  addTrainingSite(site: SimulatedSite): Promise<SimulatedGatewayRef>;
+  gatewayOf(siteId: string): SimulatedGatewayRef | undefined;
   /** Starts every demo site's default run. */
   startDefaults(): Promise<void>;
   stop(siteId: string): Promise<void>;
@@ -42,6 +80,8 @@ export interface SimulationManager {
 
 export async function createSimulationManager(deps: {
   db: Db;
+  /** The demo sites to simulate (none when demo mode or its simulator is off); training sites are read from the database. */
+  demoSites: readonly SimulatedSite[];
   mqttUrl: string;
   log: (line: string) => void;
   /** Tells the running gateway side that a simulated gateway's point map was replaced. */
@@ -53,23 +93,45 @@ export async function createSimulationManager(deps: {
   const { db, log } = deps;
   const now = deps.now ?? Date.now;
   const runs = new Map<string, { gateway: SimulatedGateway; speed: number; startedAt: number }>();
-  const gatewayIds = new Map<string, string>();
+  const gatewayIds = new Map<string, SimulatedGatewayRef>();
+  const siteList: SimulatedSite[] = [];
 
-  // One gateway per demo site, with the simulator's own point map.
-  for (const site of DEMO_SITES) {
+  async function provision(site: SimulatedSite, name: string): Promise<SimulatedGatewayRef> {
     const layout = getLayout(site.layout)!;
-    let gw = listGateways(db, systemAdmin, site.id).find((g) => g.name === SIMULATED_GATEWAY_NAME && !g.revokedAt);
+    const protocol = site.protocol ?? "json";
+    let gw = listGateways(db, systemAdmin, site.id).find((g) => g.name === name && !g.revokedAt);
     if (!gw)
-      gw = (await createGateway(db, systemAdmin, { siteId: site.id, name: SIMULATED_GATEWAY_NAME, protocol: "json" }))
-        .gateway;
-    // Through the same parser as an uploaded CSV, so the demo map is validated like any other.
-    const { rows, errors } = parsePointMapCsv(pointMapCsv(layout));
+      gw = (
+        await createGateway(db, systemAdmin, {
+          siteId: site.id,
+          name,
+          protocol,
+          ...(protocol === "sparkplug" ? { groupId: "training", edgeNodeId: site.id.slice(0, 64) } : {}),
+        })
+      ).gateway;
+    // Through the same parser as an uploaded CSV, so the simulated map is validated like any other.
+    const { rows, errors } = parsePointMapCsv(
+      protocol === "sparkplug" ? sparkplugPointMapCsv(layout) : pointMapCsv(layout),
+    );
     const result = replacePointMap(db, systemAdmin, gw.id, rows, errors);
     if (result.errors.length)
       log(`[sim] point map for ${site.id}: ${result.errors.length} rows refused, first: ${result.errors[0].message}`);
     deps.gatewayChanged?.(gw.id, "point_map");
-    gatewayIds.set(site.id, gw.id);
+    const ref = { gatewayId: gw.id, protocol, groupId: gw.groupId, edgeNodeId: gw.edgeNodeId };
+    gatewayIds.set(site.id, ref);
+    if (!siteList.some((s) => s.id === site.id)) siteList.push(site);
+    return ref;
   }
+
+  // One gateway per demo site, with the simulator's own point map.
+  for (const site of deps.demoSites) await provision(site, SIMULATED_GATEWAY_NAME);
+  // Training sites made earlier keep their gateway (its name carries the layout).
+  for (const t of listTrainingSites(db, systemAdmin))
+    if (t.gatewayId && getLayout(t.layout))
+      await provision(
+        { id: t.id, name: t.name, layout: t.layout, training: true, protocol: t.protocol },
+        TRAINING_GATEWAY_PREFIX + t.layout,
+      );
 
   // A run that starts in the past (to reach "now" at its end) replaces the site's timeline.
   function resetSite(siteId: string, fromMs: number) {
@@ -80,15 +142,17 @@ export async function createSimulationManager(deps: {
 
   async function start(
     siteId: string,
-    scenario: string,
+    scenario: string | Scenario,
     speed: number,
     seed = 7,
     leadInS?: number,
+    hooks: RunHooks = {},
   ): Promise<SimulatedSiteStatus> {
-    const site = DEMO_SITES.find((s) => s.id === siteId);
-    const gatewayId = gatewayIds.get(siteId);
-    if (!site || !gatewayId) throw new Error(`${siteId} is not a simulated site`);
-    const durationS = getScenario(scenario).defaultDurationS;
+    const site = siteList.find((s) => s.id === siteId);
+    const ref = gatewayIds.get(siteId);
+    if (!site || !ref) throw new Error(`${siteId} is not a simulated site`);
+    const sc = typeof scenario === "string" ? getScenario(scenario) : scenario;
+    const durationS = sc.defaultDurationS;
     await stop(siteId);
     // The fast part (the whole run, or its lead-in) reaches "now" as it ends, so it starts that far back;
     // the simulator never stamps a reading later than "now".
@@ -96,21 +160,27 @@ export async function createSimulationManager(deps: {
     const startMs = Math.floor(now() - fastS * 1000 * (1 - 1 / speed));
     resetSite(siteId, startMs);
     // A fresh password each start: the server never stores a gateway's secret, only its hash.
-    const { username, password } = await rotateGatewayPassword(db, systemAdmin, gatewayId);
+    const { username, password } = await rotateGatewayPassword(db, systemAdmin, ref.gatewayId);
     const gateway = startSimulatedGateway({
       mqttUrl: deps.mqttUrl,
       username,
       password,
-      scenario,
+      scenario: sc,
       speed,
       seed,
       siteLayout: site.layout,
-      loop: true,
+      loop: hooks.loop ?? true,
+      sampleEveryS: hooks.sampleEveryS,
       startMs,
       log: (line) => log(`[sim] ${line}`),
+      onSample: hooks.onSample,
+      onEvent: hooks.onEvent,
+      ...(ref.protocol === "sparkplug"
+        ? { protocol: "sparkplug" as const, groupId: ref.groupId!, edgeNodeId: ref.edgeNodeId! }
+        : {}),
     });
     runs.set(siteId, { gateway, speed, startedAt: now() });
-    log(`[sim] ${site.name}: ${scenario} at ${speed}×`);
+    log(`[sim] ${site.name}: ${sc.name} at ${speed}×`);
     return status(siteId);
   }
 
@@ -122,23 +192,25 @@ export async function createSimulationManager(deps: {
   }
 
   function status(siteId: string): SimulatedSiteStatus {
-    const site = DEMO_SITES.find((s) => s.id === siteId)!;
+    const site = siteList.find((s) => s.id === siteId)!;
     const run = runs.get(siteId);
     return {
       siteId,
       siteName: site.name,
       layout: site.layout,
-      gatewayId: gatewayIds.get(siteId)!,
+      gatewayId: gatewayIds.get(siteId)!.gatewayId,
       run: run ? { ...run.gateway.status(), speed: run.speed, startedAt: run.startedAt } : null,
     };
   }
 
   return {
-    list: () => DEMO_SITES.map((s) => status(s.id)),
+    list: () => siteList.map((s) => status(s.id)),
     start,
+    addTrainingSite: (site) => provision({ ...site, training: true }, TRAINING_GATEWAY_PREFIX + site.layout),
+    gatewayOf: (siteId) => gatewayIds.get(siteId),
     async startDefaults() {
       for (const [siteId, run] of Object.entries(DEFAULT_RUNS))
-        await start(siteId, run.scenario, run.speed, 7, run.leadInS);
+        if (deps.demoSites.some((s) => s.id === siteId)) await start(siteId, run.scenario, run.speed, 7, run.leadInS);
     },
     stop,
     async close() {

@@ -17,6 +17,7 @@ import { canAct, isAdmin } from "@/lib/auth/viewer";
 import { overviewLayout } from "@/lib/plant/overview-layout";
 import { overviewInputs, pointsView } from "@/lib/plant/site-page-view";
 import Link from "next/link";
+import { DrillControls } from "@/components/drills/drill-controls";
 import { requirePageViewer } from "../../../(auth)/auth";
 
 export const dynamic = "force-dynamic";
@@ -74,6 +75,7 @@ export default async function SitePage({ params }: Props) {
           </a>
         ))}
       </nav>
+      {staff ? <DrillControls siteId={site.id} /> : null}
       <TemporaryChangeBanner siteId={site.id} staff={staff} timeZone={site.timeZone} />
       {staff ? (
         <section className="mb-4 flex flex-col gap-2" aria-label="Visits">

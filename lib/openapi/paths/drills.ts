@@ -1,0 +1,90 @@
+import {
+  createTrainingSiteSchema,
+  drillCommandBodySchema,
+  drillListQuerySchema,
+  saveScenarioSchema,
+  startDrillSchema,
+} from "@/lib/schemas/drills";
+import type { Operation } from "../operation";
+
+// Training sites and scored drills on them; saved starting points from real incidents' readings.
+
+export const drillOperations: Operation[] = [
+  {
+    method: "get",
+    path: "/api/training-sites",
+    tag: "Drills",
+    summary: "Training sites (simulated plants that never notify anyone)",
+    access: "staff",
+    responses: { 200: "The training sites with their layout and gateway" },
+  },
+  {
+    method: "post",
+    path: "/api/training-sites",
+    tag: "Drills",
+    summary: "Add a training site on a simulator layout, with its own simulated gateway",
+    access: "admin",
+    body: createTrainingSiteSchema,
+    responses: { 201: "The training site" },
+  },
+  {
+    method: "get",
+    path: "/api/drills",
+    tag: "Drills",
+    summary: "Drills, newest first, optionally for one trainee or site",
+    access: "staff",
+    query: drillListQuerySchema,
+    responses: { 200: "The drills with outcome and score" },
+  },
+  {
+    method: "post",
+    path: "/api/drills",
+    tag: "Drills",
+    summary: "Start a drill for a trainee on a training site (admins, senior technicians)",
+    access: "staff",
+    body: startDrillSchema,
+    responses: { 201: "The drill" },
+  },
+  {
+    method: "get",
+    path: "/api/drills/{drillId}",
+    tag: "Drills",
+    summary: "A drill with its steps and score; while running, its live state",
+    access: "staff",
+    responses: { 200: "The drill" },
+  },
+  {
+    method: "post",
+    path: "/api/drills/{drillId}/commands",
+    tag: "Drills",
+    summary: "A trainee's command to the simulated plant (never a real controller)",
+    access: "staff",
+    body: drillCommandBodySchema,
+    responses: { 202: "Sent and recorded as a step" },
+  },
+  {
+    method: "post",
+    path: "/api/drills/{drillId}/stop",
+    tag: "Drills",
+    summary: "End a running drill now and score it",
+    access: "staff",
+    responses: { 200: "The ended drill" },
+  },
+  {
+    method: "get",
+    path: "/api/saved-scenarios",
+    tag: "Drills",
+    summary: "Drill starting points saved from stored readings",
+    access: "staff",
+    responses: { 200: "The saved starting points" },
+  },
+  {
+    method: "post",
+    path: "/api/saved-scenarios",
+    tag: "Drills",
+    summary: "Save a site's stored readings at a moment as a drill starting point",
+    access: "staff",
+    body: saveScenarioSchema,
+    responses: { 201: "The saved starting point and what is approximated" },
+  },
+];
