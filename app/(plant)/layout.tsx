@@ -3,6 +3,8 @@ import { StorageAlarmBanner } from "@/components/layout/storage-alarm-banner";
 import { ServiceWorkerRegistration } from "@/components/pwa/service-worker";
 import { SocketProvider } from "@/components/realtime/socket-provider";
 import { canAct } from "@/lib/auth/viewer";
+import { parseThemeChoice, THEME_COOKIE } from "@/lib/theme";
+import { cookies } from "next/headers";
 import { storageHealth } from "@/lib/server/runtime";
 import { requirePageViewer } from "../(auth)/auth";
 
@@ -13,7 +15,7 @@ export default async function PlantLayout({ children }: { children: React.ReactN
   const problem = staff ? storageHealth().problem() : null;
   return (
     <>
-      <AppHeader viewer={viewer} />
+      <AppHeader viewer={viewer} theme={parseThemeChoice((await cookies()).get(THEME_COOKIE)?.value)} />
       <ServiceWorkerRegistration />
       {staff ? (
         <StorageAlarmBanner

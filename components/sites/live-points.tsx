@@ -70,7 +70,7 @@ export function LivePoints({
     <div className="flex flex-col gap-4">
       {status ? (
         <p
-          className={`rounded px-3 py-2 text-sm ${status === "live" ? "bg-panel text-muted" : "bg-stale text-white"}`}
+          className={`rounded px-3 py-2 text-sm ${status === "live" ? "bg-panel text-muted" : "bg-stale text-on-strong"}`}
           data-testid="site-data-status"
         >
           {dataLabel[status]}
@@ -140,7 +140,7 @@ export function LivePoints({
                         {tsMs === null ? (
                           ""
                         ) : stale ? (
-                          <span className="rounded bg-stale px-1.5 py-0.5 text-white">
+                          <span className="rounded bg-stale px-1.5 py-0.5 text-on-strong">
                             stale · {formatDuration((nowMs - tsMs) / 1000)}
                           </span>
                         ) : (

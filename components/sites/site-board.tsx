@@ -91,7 +91,7 @@ export function SiteBoard({
                 <div className="flex items-start justify-between gap-2">
                   <h2 className="font-semibold">{site.name}</h2>
                   <span
-                    className={`shrink-0 rounded px-2 py-0.5 text-xs ${site.status?.data === "live" ? "bg-surface text-muted" : "bg-stale text-white"}`}
+                    className={`shrink-0 rounded px-2 py-0.5 text-xs ${site.status?.data === "live" ? "bg-surface text-muted" : "bg-stale text-on-strong"}`}
                     data-testid="site-data"
                   >
                     {dataLabel[site.status?.data ?? "no_gateway"]}
@@ -113,7 +113,7 @@ export function SiteBoard({
                 )}
                 {changes[site.id] ? (
                   <p
-                    className={`mt-3 rounded px-2 py-1 text-sm font-semibold ${changes[site.id].earliestDueAt < now ? "bg-alarm text-white" : "bg-warning/20"}`}
+                    className={`mt-3 rounded px-2 py-1 text-sm font-semibold ${changes[site.id].earliestDueAt < now ? "bg-alarm text-on-strong" : "bg-warning/20"}`}
                     data-testid="site-changes"
                   >
                     {changes[site.id].count === 1
