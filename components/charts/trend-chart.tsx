@@ -99,7 +99,12 @@ export function TrendChart({
     const unit = series?.unit;
     if (!series || !unit || !columns || !box.current) return;
     const existing = plot.current;
-    if (existing && builtFor.current?.series === series && builtFor.current.label === label && builtFor.current.theme === theme) {
+    if (
+      existing &&
+      builtFor.current?.series === series &&
+      builtFor.current.label === label &&
+      builtFor.current.theme === theme
+    ) {
       // An unzoomed view follows now; a zoomed one stays where it is.
       const following =
         followedMax.current !== null && Math.abs((existing.scales.x.max ?? 0) - followedMax.current) < 0.5;
