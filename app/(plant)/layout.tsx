@@ -2,6 +2,7 @@ import { AppHeader } from "@/components/layout/app-header";
 import { StorageAlarmBanner } from "@/components/layout/storage-alarm-banner";
 import { ServiceWorkerRegistration } from "@/components/pwa/service-worker";
 import { SocketProvider } from "@/components/realtime/socket-provider";
+import { UnitSystemProvider } from "@/components/layout/unit-system";
 import { canAct } from "@/lib/auth/viewer";
 import { parseThemeChoice, THEME_COOKIE } from "@/lib/theme";
 import { cookies } from "next/headers";
@@ -27,7 +28,9 @@ export default async function PlantLayout({ children }: { children: React.ReactN
         />
       ) : null}
       <main className="mx-auto max-w-6xl px-4 py-6">
-        <SocketProvider>{children}</SocketProvider>
+        <UnitSystemProvider unitSystem={viewer.unitSystem}>
+          <SocketProvider>{children}</SocketProvider>
+        </UnitSystemProvider>
       </main>
     </>
   );

@@ -11,6 +11,7 @@ import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { inPlaceFor } from "@/lib/service/changes";
 import { useNow } from "@/components/service/use-now";
 import { saveBoardSnapshot } from "@/components/pwa/service-worker";
+import { useQuantityText } from "@/components/layout/unit-system";
 
 export type BoardSite = SiteSummaryDto & { status?: SiteStatus };
 
@@ -46,6 +47,7 @@ export function SiteBoard({
   changes?: BoardChanges;
 }) {
   const now = useNow();
+  const words = useQuantityText();
   const { data, error, mutate } = useSWR<{ sites: BoardSite[] }>("/api/sites", fetchJson, {
     fallbackData: { sites: fallback },
   });
@@ -65,10 +67,10 @@ export function SiteBoard({
       (data?.sites ?? []).map((s) => ({
         name: s.name,
         data: dataLabel[s.status?.data ?? "no_gateway"],
-        alarm: s.status?.worst?.active ? (canAct ? s.status.worst.title : s.status.worst.ownerTitle) : null,
+        alarm: s.status?.worst?.active ? words(canAct ? s.status.worst.title : s.status.worst.ownerTitle) : null,
       })),
     ).catch(() => undefined);
-  }, [data, canAct]);
+  }, [data, canAct, words]);
   return (
     <section aria-labelledby="board-title">
       <h1 id="board-title" className="text-2xl font-semibold">
@@ -106,7 +108,7 @@ export function SiteBoard({
                         <span className="text-sm font-semibold text-alarm">Loops heading for crossover</span>
                       ) : null}
                     </div>
-                    <p className="text-sm font-semibold leading-snug">{canAct ? w.title : w.ownerTitle}</p>
+                    <p className="text-sm font-semibold leading-snug">{words(canAct ? w.title : w.ownerTitle)}</p>
                   </div>
                 ) : (
                   <p className="mt-3 text-sm text-muted">No active warnings</p>
