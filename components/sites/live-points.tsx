@@ -11,6 +11,7 @@ import { isQuantityKey, quantities, type Measure } from "@/lib/quantities";
 import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { isStale } from "@/lib/freshness";
+import { tonsToKw } from "@/lib/plant/units";
 
 type Live = Record<number, { value: number | boolean | string | null; tsMs: number | null; quality: string | null }>;
 
@@ -72,6 +73,8 @@ export function LivePoints({
         <p
           className={`rounded px-3 py-2 text-sm ${status === "live" ? "bg-panel text-muted" : "bg-stale text-on-strong"}`}
           data-testid="site-data-status"
+          // A polite live region: read out when the data status changes, never on each value.
+          role="status"
         >
           {dataLabel[status]}
         </p>
@@ -90,7 +93,11 @@ export function LivePoints({
             <p className="text-sm text-muted">
               {[
                 kindLabel[e.kind] ?? e.kind,
-                e.capacityTons ? `${e.capacityTons} tons` : null,
+                e.capacityTons
+                  ? unitSystem === "ip"
+                    ? `${e.capacityTons} tons`
+                    : `${Math.round(tonsToKw(e.capacityTons))} kW`
+                  : null,
                 e.refrigerant,
                 e.serves ? `serves ${e.serves}` : null,
               ]
