@@ -168,6 +168,8 @@ describe.skipIf(!hasChromium)(
                   )
                   .join("\n"),
             );
+          // Printed as found too: the run is long, and the list is also printed whole at the end.
+          for (const line of serious.slice(serious.length - found.length)) console.log(line);
           if (found.length)
             await screenshot(page, `axe-${who}-${url.replaceAll("/", "_") || "board"}-${width}-${theme}`);
         }
