@@ -105,7 +105,7 @@ export function LivePoints({
                 .join(" · ")}
             </p>
           </header>
-          <div className="overflow-x-auto">
+          <div tabIndex={0} role="region" aria-label={`${e.tag} points`} className="overflow-x-auto">
             <table className="w-full text-sm">
               <thead className="sr-only">
                 <tr>

@@ -69,7 +69,7 @@ async function setTheme(page: Page, theme: "light" | "dark") {
 
 describe.skipIf(!hasChromium)(
   "accessibility: axe-core on every page, role, width and theme",
-  { timeout: 1_500_000 },
+  { timeout: 2_400_000 },
   () => {
     let server: TestServer;
     let browser: Browser;
