@@ -123,7 +123,7 @@ interface DisplayUnit {
   digits: number;
 }
 
-// Technicians read refrigerant pressures as gauge psig in IP; SI shows absolute kPa.
+// Technicians read refrigerant pressures as gauge psig in IP; SI shows absolute kPa, marked "kPa abs" so neither is mistaken for the other.
 const displayUnits: Record<UnitSystem, Record<Measure, DisplayUnit>> = {
   ip: {
     temperature: { label: "°F", lib: "F", digits: 1 },
@@ -140,7 +140,7 @@ const displayUnits: Record<UnitSystem, Record<Measure, DisplayUnit>> = {
   },
   si: {
     temperature: { label: "°C", digits: 1 },
-    pressure: { label: "kPa", digits: 0 },
+    pressure: { label: "kPa abs", digits: 0 },
     differential_pressure: { label: "kPa", digits: 1 },
     flow: { label: "L/s", digits: 1 },
     power: { label: "kW", digits: 0 },

@@ -2,7 +2,10 @@ import { AppHeader } from "@/components/layout/app-header";
 import { StorageAlarmBanner } from "@/components/layout/storage-alarm-banner";
 import { ServiceWorkerRegistration } from "@/components/pwa/service-worker";
 import { SocketProvider } from "@/components/realtime/socket-provider";
+import { UnitSystemProvider } from "@/components/layout/unit-system";
 import { canAct } from "@/lib/auth/viewer";
+import { parseThemeChoice, THEME_COOKIE } from "@/lib/theme";
+import { cookies } from "next/headers";
 import { storageHealth } from "@/lib/server/runtime";
 import { requirePageViewer } from "../(auth)/auth";
 
@@ -13,7 +16,7 @@ export default async function PlantLayout({ children }: { children: React.ReactN
   const problem = staff ? storageHealth().problem() : null;
   return (
     <>
-      <AppHeader viewer={viewer} />
+      <AppHeader viewer={viewer} theme={parseThemeChoice((await cookies()).get(THEME_COOKIE)?.value)} />
       <ServiceWorkerRegistration />
       {staff ? (
         <StorageAlarmBanner
@@ -25,7 +28,9 @@ export default async function PlantLayout({ children }: { children: React.ReactN
         />
       ) : null}
       <main className="mx-auto max-w-6xl px-4 py-6">
-        <SocketProvider>{children}</SocketProvider>
+        <UnitSystemProvider unitSystem={viewer.unitSystem}>
+          <SocketProvider>{children}</SocketProvider>
+        </UnitSystemProvider>
       </main>
     </>
   );

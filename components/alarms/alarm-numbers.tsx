@@ -1,5 +1,6 @@
 import { formatClock, formatDelta, formatPressureDelta } from "@/lib/client/format";
 import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
+import { KW_PER_TON } from "@/lib/plant/units";
 
 // Rule numbers carry their unit in the name (marginK, timeToCrossoverS, condenserPressureKPa);
 // each known key gets a label and a formatter in the viewer's units.
@@ -15,6 +16,8 @@ const pressurePerMin: Format = (v, s) => `${formatPressureDelta(v, s)}/min`;
 const clock: Format = (v, _s, tz) => formatClock(v, tz);
 const yesNo: Format = (v) => (v ? "yes" : "no");
 const plain: Format = (v) => (Number.isInteger(v) ? String(v) : v.toFixed(2));
+/** kW/ton in IP; SI states efficiency as COP (1 ton = 3.516853 kW, so COP = 3.516853 / kW per ton). */
+const efficiency: Format = (v, s) => (s === "ip" ? `${v.toFixed(2)} kW/ton` : `COP ${(KW_PER_TON / v).toFixed(1)}`);
 const percent: Format = (v) => `${(v <= 1 ? v * 100 : v).toFixed(0)} %`;
 
 const known: Record<string, [string, Format]> = {
@@ -49,8 +52,8 @@ const known: Record<string, [string, Format]> = {
   ageS: ["Silent for", duration],
   latchedAlarm: ["Latched alarm", yesNo],
   driveFault: ["Drive fault", yesNo],
-  kwPerTon: ["kW/ton (averaged)", plain],
-  baselineKwPerTon: ["Baseline kW/ton", plain],
+  kwPerTon: ["Efficiency (averaged)", efficiency],
+  baselineKwPerTon: ["Baseline efficiency", efficiency],
   condenserApproachK: ["Condenser approach", delta],
   baselineCondenserApproachK: ["Baseline approach", delta],
   coverage: ["Data coverage", percent],

@@ -129,7 +129,12 @@ export function AlarmTable({ sites, canAct }: { sites: Array<{ id: string; name:
         </label>
       </div>
       {error ? <p className="text-alarm">{error.message}</p> : null}
-      <div className="overflow-x-auto rounded-lg border border-line bg-panel">
+      <div
+        tabIndex={0}
+        role="region"
+        aria-label="Alarms"
+        className="overflow-x-auto rounded-lg border border-line bg-panel"
+      >
         <table className="w-full text-sm" data-testid="alarm-table">
           <thead className="text-left text-muted">
             {table.getHeaderGroups().map((g) => (

@@ -2,9 +2,9 @@ import { priorityMeanings, type Priority } from "@/lib/alarms/priority";
 
 // Colour is for abnormal states only, strongest for the most urgent priority.
 const styles: Record<Priority, string> = {
-  1: "bg-critical text-white",
-  2: "bg-alarm text-white",
-  3: "bg-warning text-white",
+  1: "bg-critical text-on-strong",
+  2: "bg-alarm text-on-strong",
+  3: "bg-warning text-on-strong",
   4: "border border-line bg-panel text-ink",
 };
 

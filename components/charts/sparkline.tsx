@@ -3,14 +3,15 @@
 import { useEffect, useRef } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
-import { exposeXRange, siteTimeZone } from "./uplot-options";
+import { chartPalette, exposeXRange, siteTimeZone, themedAxis } from "./uplot-options";
+import { useShownTheme } from "./use-theme-key";
 
 /** The dashed line at zero: where the loops cross. */
 function drawZeroLine(u: uPlot) {
   const y = u.valToPos(0, "y", true);
   if (y < u.bbox.top || y > u.bbox.top + u.bbox.height) return;
   u.ctx.save();
-  u.ctx.strokeStyle = "#b42318";
+  u.ctx.strokeStyle = chartPalette().alarm;
   u.ctx.setLineDash([4, 4]);
   u.ctx.beginPath();
   u.ctx.moveTo(u.bbox.left, y);
@@ -44,12 +45,14 @@ export function Sparkline({
   const [fromMs, toMs] = xRangeMs ?? [null, null];
   const box = useRef<HTMLDivElement>(null);
   const plot = useRef<uPlot | null>(null);
+  const theme = useShownTheme();
 
   useEffect(() => {
     let disposed = false;
     void import("uplot").then(({ default: UPlot }) => {
       if (disposed || !box.current) return;
       const width = box.current.clientWidth || 300;
+      const palette = chartPalette();
       const opts: uPlot.Options = {
         width,
         height,
@@ -63,10 +66,10 @@ export function Sparkline({
               : { time: true },
         },
         axes: [
-          { size: 28, font: "11px Inter, sans-serif" },
-          { size: 40, font: "11px Inter, sans-serif" },
+          { size: 28, font: "11px Inter, sans-serif", ...themedAxis(palette) },
+          { size: 40, font: "11px Inter, sans-serif", ...themedAxis(palette) },
         ],
-        series: [{}, { label, stroke: "#1f2328", width: 1.5 }],
+        series: [{}, { label, stroke: palette.ink, width: 1.5 }],
         hooks: {
           setScale: [exposeXRange],
           ...(zeroLine ? { draw: [drawZeroLine] } : {}),
@@ -78,7 +81,7 @@ export function Sparkline({
     return () => {
       disposed = true;
     };
-  }, [xs, ys, label, height, zeroLine, fromMs, toMs, timeZone]);
+  }, [xs, ys, label, height, zeroLine, fromMs, toMs, timeZone, theme]);
 
   useEffect(() => () => plot.current?.destroy(), []);
 

@@ -9,7 +9,8 @@ import { fetchJson } from "@/lib/client/fetcher";
 import type { Measure } from "@/lib/quantities";
 import { formatDuration, fromCanonical, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
-import { exposeXRange, siteTimeZone } from "./uplot-options";
+import { chartPalette, exposeXRange, siteTimeZone, themedAxis } from "./uplot-options";
+import { useShownTheme } from "./use-theme-key";
 
 export const ranges = { "1 h": 3600, "24 h": 86_400, "7 d": 7 * 86_400, "30 d": 30 * 86_400 } as const;
 type RangeLabel = keyof typeof ranges;
@@ -90,14 +91,20 @@ export function TrendChart({
   // or two, and uPlot's own range for so few points spans years.
   const series = data?.series;
   const fromMs = view.fromMs;
-  const builtFor = useRef<{ series: SeriesDto; label: string } | null>(null);
+  const theme = useShownTheme();
+  const builtFor = useRef<{ series: SeriesDto; label: string; theme: string } | null>(null);
   /** The x maximum this component last set; anything else means the viewer zoomed. */
   const followedMax = useRef<number | null>(null);
   useEffect(() => {
     const unit = series?.unit;
     if (!series || !unit || !columns || !box.current) return;
     const existing = plot.current;
-    if (existing && builtFor.current?.series === series && builtFor.current.label === label) {
+    if (
+      existing &&
+      builtFor.current?.series === series &&
+      builtFor.current.label === label &&
+      builtFor.current.theme === theme
+    ) {
       // An unzoomed view follows now; a zoomed one stays where it is.
       const following =
         followedMax.current !== null && Math.abs((existing.scales.x.max ?? 0) - followedMax.current) < 0.5;
@@ -117,32 +124,37 @@ export function TrendChart({
         // What was asked for: uPlot applies a scale change on its next commit.
         followedMax.current = max;
       };
+      const palette = chartPalette();
       const opts: uPlot.Options = {
         width: box.current.clientWidth || 600,
         height: 280,
         scales: { x: { time: true } },
         ...siteTimeZone(UPlot, timeZone),
-        axes: [{ font: "11px Inter, sans-serif" }, { label: unit, font: "11px Inter, sans-serif", size: 56 }],
+        axes: [
+          { font: "11px Inter, sans-serif", ...themedAxis(palette) },
+          { label: unit, font: "11px Inter, sans-serif", size: 56, ...themedAxis(palette) },
+        ],
         series: [
           {},
-          { label: "min", stroke: "#8a8f96", width: 1 },
-          { label: "max", stroke: "#8a8f96", width: 1 },
-          { label: `${label} (${unit})`, stroke: "#1f2328", width: 2 },
+          { label: "min", stroke: palette.stale, width: 1 },
+          { label: "max", stroke: palette.stale, width: 1 },
+          { label: `${label} (${unit})`, stroke: palette.ink, width: 2 },
         ],
-        bands: [{ series: [2, 1], fill: "rgba(138,143,150,0.2)" }],
+        // 8-digit hex: the stale token at 20 % alpha, in either theme.
+        bands: [{ series: [2, 1], fill: `${palette.stale}33` }],
         // Drag to zoom; a double-click goes back to the chosen range (uPlot's own reset fits the data).
         cursor: { drag: { x: true, y: false }, bind: { dblclick: (u) => () => (showRange(u), null) } },
         hooks: { setScale: [exposeXRange] },
       };
       plot.current?.destroy();
       plot.current = new UPlot(opts, columns, box.current);
-      builtFor.current = { series, label };
+      builtFor.current = { series, label, theme };
       showRange(plot.current);
     });
     return () => {
       disposed = true;
     };
-  }, [series, label, columns, fromMs, timeZone]);
+  }, [series, label, columns, fromMs, timeZone, theme]);
 
   useEffect(() => () => plot.current?.destroy(), []);
 
@@ -155,7 +167,7 @@ export function TrendChart({
             type="button"
             aria-pressed={r === range}
             onClick={() => setView({ range: r, fromMs: rangeStartMs(r) })}
-            className={`min-h-11 rounded border px-4 text-sm ${r === range ? "border-ink bg-ink text-white" : "border-line bg-panel"}`}
+            className={`min-h-11 rounded border px-4 text-sm ${r === range ? "border-ink bg-ink text-on-strong" : "border-line bg-panel"}`}
           >
             {r}
           </button>

@@ -53,7 +53,12 @@ export function CustomerSitesTable({ rows }: { rows: CustomerSiteRow[] }) {
           Show retired sites ({retiredCount})
         </label>
       ) : null}
-      <div className="overflow-x-auto rounded-lg border border-line bg-panel">
+      <div
+        tabIndex={0}
+        role="region"
+        aria-label="Sites"
+        className="overflow-x-auto rounded-lg border border-line bg-panel"
+      >
         <table className="w-full text-sm" data-testid="site-table">
           <thead className="text-left text-muted">
             {table.getHeaderGroups().map((g) => (

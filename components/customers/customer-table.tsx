@@ -59,7 +59,12 @@ export function CustomerTable({ customers }: { customers: CustomerDto[] }) {
         <input type="checkbox" checked={showRetired} onChange={(e) => setShowRetired(e.target.checked)} />
         Show retired customers ({retiredCount})
       </label>
-      <div className="overflow-x-auto rounded-lg border border-line bg-panel">
+      <div
+        tabIndex={0}
+        role="region"
+        aria-label="Customers"
+        className="overflow-x-auto rounded-lg border border-line bg-panel"
+      >
         <table className="w-full text-sm" data-testid="customer-table">
           <thead className="text-left text-muted">
             {table.getHeaderGroups().map((g) => (

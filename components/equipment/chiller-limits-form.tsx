@@ -113,7 +113,7 @@ export function ChillerLimitsForm({
             </>
           ) : (
             <>
-              <span className="rounded bg-ink px-2 py-0.5 text-xs font-semibold text-white">entered</span>
+              <span className="rounded bg-ink px-2 py-0.5 text-xs font-semibold text-on-strong">entered</span>
               <span className="text-muted">
                 by {limit.setByName ?? "the system"} on {formatDateTime(limit.setAtMs, timeZone)} (site time)
               </span>

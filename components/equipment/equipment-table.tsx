@@ -63,7 +63,12 @@ export function EquipmentTable({ siteId, rows }: { siteId: string; rows: Equipme
           Show retired equipment ({retiredCount})
         </label>
       ) : null}
-      <div className="overflow-x-auto rounded-lg border border-line bg-panel">
+      <div
+        tabIndex={0}
+        role="region"
+        aria-label="Equipment"
+        className="overflow-x-auto rounded-lg border border-line bg-panel"
+      >
         <table className="w-full text-sm" data-testid="equipment-table">
           <thead className="text-left text-muted">
             {table.getHeaderGroups().map((g) => (

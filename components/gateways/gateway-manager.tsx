@@ -96,7 +96,7 @@ export function GatewayManager({ siteId, timeZone }: { siteId: string; timeZone:
               <code className="text-sm text-muted">{g.username}</code>
               <span className="text-sm text-muted">{g.protocol === "json" ? "Liftline JSON" : "Sparkplug B"}</span>
               <span
-                className={`ml-auto rounded px-2 py-0.5 text-xs ${g.revokedAt ? "bg-stale text-white" : g.status.online ? "bg-surface" : "bg-stale text-white"}`}
+                className={`ml-auto rounded px-2 py-0.5 text-xs ${g.revokedAt ? "bg-stale text-on-strong" : g.status.online ? "bg-surface" : "bg-stale text-on-strong"}`}
               >
                 {g.revokedAt ? "revoked" : g.status.online ? "online" : "offline"}
               </span>

@@ -1,10 +1,12 @@
 import Link from "next/link";
 import { canAct, isAdmin, type Viewer } from "@/lib/auth/viewer";
+import type { ThemeChoice } from "@/lib/theme";
 import { SignOutButton } from "./sign-out-button";
+import { ThemeSwitch } from "./theme-switch";
 
 const roleLabel = { admin: "Admin", technician: "Technician", customer: "Building owner" } as const;
 
-export function AppHeader({ viewer }: { viewer: Viewer }) {
+export function AppHeader({ viewer, theme }: { viewer: Viewer; theme: ThemeChoice }) {
   const links = [
     { href: "/", label: "Board" },
     { href: "/alarms", label: "Alarms" },
@@ -20,10 +22,11 @@ export function AppHeader({ viewer }: { viewer: Viewer }) {
         <Link href="/" className="mr-auto text-lg font-semibold tracking-tight">
           Liftline
         </Link>
-        <div className="flex items-center gap-2 text-sm">
+        <div className="flex flex-wrap items-center gap-2 text-sm">
           <span className="text-muted" data-testid="viewer">
             {viewer.name} · {roleLabel[viewer.role]}
           </span>
+          <ThemeSwitch initial={theme} />
           <SignOutButton />
         </div>
         <nav aria-label="Main" className="-mx-3 flex w-full flex-wrap items-center text-sm sm:mx-0 sm:w-auto">

@@ -59,7 +59,7 @@ export function RotaEditor({ canEdit, nowMs }: { canEdit: boolean; nowMs: number
               className={`flex flex-wrap items-center gap-x-4 gap-y-1 rounded-lg border bg-panel px-4 py-3 ${current ? "border-ink" : "border-line"}`}
             >
               {current ? (
-                <span className="rounded bg-ink px-2 py-0.5 text-xs font-semibold text-white">On call now</span>
+                <span className="rounded bg-ink px-2 py-0.5 text-xs font-semibold text-on-strong">On call now</span>
               ) : null}
               <span className="text-sm">
                 {formatDateTime(s.startsAt)} → {formatDateTime(s.endsAt)}

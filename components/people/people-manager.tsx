@@ -152,7 +152,12 @@ export function PeopleManager({ selfId }: { selfId: string }) {
         />
       ) : null}
       {/* Below sm each person is a card (cells stacked), so nothing hides off the right edge of a phone. */}
-      <div className="overflow-x-auto rounded-lg border border-line bg-panel">
+      <div
+        tabIndex={0}
+        role="region"
+        aria-label="People"
+        className="overflow-x-auto rounded-lg border border-line bg-panel"
+      >
         <table className="w-full text-sm" data-testid="people-table">
           <thead className="text-left text-muted max-sm:sr-only">
             {table.getHeaderGroups().map((g) => (

@@ -146,7 +146,7 @@ export function PointListImport({ siteId }: { siteId: string }) {
             <input type="checkbox" checked={showUnchanged} onChange={(e) => setShowUnchanged(e.target.checked)} />
             Show unchanged points
           </label>
-          <div className="overflow-x-auto">
+          <div tabIndex={0} role="region" aria-label="Point list preview" className="overflow-x-auto">
             {/* On a phone the line, equipment and before columns fold into their neighbours to fit 390 px. */}
             <table className="w-full text-left text-sm">
               <thead>

@@ -246,7 +246,7 @@ export function RefrigerantLogPanel({
         </form>
       ) : null}
 
-      <div className="overflow-x-auto">
+      <div tabIndex={0} role="region" aria-label="Refrigerant log entries" className="overflow-x-auto">
         <table className="w-full min-w-[40rem] text-left text-sm" data-testid="refrigerant-entries">
           <caption className="sr-only">Entries, oldest first; entries are never edited, corrections are added</caption>
           <thead>

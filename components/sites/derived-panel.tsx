@@ -1,6 +1,7 @@
 import type { ChillerSnapshot, SiteSnapshot } from "@/lib/plant/snapshot";
 import { formatClock, formatDelta, formatPressureDelta } from "@/lib/client/format";
 import { formatDuration, type UnitSystem } from "@/lib/units";
+import { tonsToKw } from "@/lib/plant/units";
 import { Sparkline } from "@/components/charts/sparkline";
 
 function crossoverText(c: ChillerSnapshot): string {
@@ -14,6 +15,19 @@ function crossoverText(c: ChillerSnapshot): string {
   }
   if (fits.some((f) => f.status === "not_closing")) return "not closing";
   return "not enough data yet";
+}
+
+/** A chiller's state in words that change only when something meaningful does (for screen readers). */
+function chillerSummary(c: ChillerSnapshot): string {
+  const state = c.running === null ? "state unknown" : c.running ? "running" : "off";
+  const locked = c.lockout.source !== "unknown" && (c.lockout.lockoutLeftS ?? 0) > 0 ? ", restart locked out" : "";
+  const fits = [c.timeToCrossover, c.slowTimeToCrossover].filter((f) => f !== null);
+  const loops = fits.some((f) => f.status === "crossed")
+    ? ", loops crossed"
+    : fits.some((f) => f.status === "closing")
+      ? ", loops heading for crossover"
+      : "";
+  return `${c.tag} ${state}${locked}${loops}.`;
 }
 
 const windowEndingAt = (endMs: number, windowS: number): [number, number] => [endMs - windowS * 1000, endMs];
@@ -48,6 +62,10 @@ export function DerivedPanel({
   const scale = unitSystem === "ip" ? 1.8 : 1;
   return (
     <div className="grid gap-3 md:grid-cols-2">
+      {/* Read out politely when a chiller's state changes, not on each new value. */}
+      <p role="status" className="sr-only" data-testid="plant-summary">
+        {snapshot.chillers.map(chillerSummary).join(" ")}
+      </p>
       {snapshot.chillers.map((c) => (
         <section key={c.tag} className="rounded-lg border border-line bg-panel p-4" data-testid="chiller-derived">
           <h3 className="flex items-baseline justify-between font-semibold">
@@ -86,13 +104,18 @@ export function DerivedPanel({
               value={
                 c.loadTons === null
                   ? "—"
-                  : `${c.loadTons.toFixed(0)} tons${c.flowSource === "design" ? " (design flow)" : ""}`
+                  : `${unitSystem === "ip" ? `${c.loadTons.toFixed(0)} tons` : `${tonsToKw(c.loadTons).toFixed(0)} kW`}${c.flowSource === "design" ? " (design flow)" : ""}`
               }
             />
-            <Row
-              label="kW/ton · COP"
-              value={c.kwPerTon === null ? "—" : `${c.kwPerTon.toFixed(2)} · ${c.cop?.toFixed(1) ?? "—"}`}
-            />
+            {unitSystem === "ip" ? (
+              <Row
+                label="kW/ton · COP"
+                value={c.kwPerTon === null ? "—" : `${c.kwPerTon.toFixed(2)} · ${c.cop?.toFixed(1) ?? "—"}`}
+              />
+            ) : (
+              // SI states efficiency as COP alone (kW of cooling per kW of power).
+              <Row label="COP" value={c.cop?.toFixed(1) ?? "—"} />
+            )}
           </dl>
           {marginTrend[c.tag]?.tsMs.length ? (
             <div className="mt-3">

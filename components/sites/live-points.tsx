@@ -10,6 +10,7 @@ import { fetchJson } from "@/lib/client/fetcher";
 import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
 import { useSiteEvents } from "@/components/realtime/use-site-events";
 import { isStale } from "@/lib/freshness";
+import { tonsToKw } from "@/lib/plant/units";
 
 type Live = Record<number, { value: number | boolean | string | null; tsMs: number | null; quality: string | null }>;
 
@@ -94,7 +95,12 @@ export function LivePoints({
       <div className="flex flex-wrap items-center justify-between gap-2">
         {status && status !== "live" ? (
           // Said once at the top of the page while live; repeated here only when something is wrong.
-          <p className="rounded border-2 border-stale px-3 py-1 text-sm font-semibold" data-testid="site-data-status">
+          <p
+            className="rounded border-2 border-stale px-3 py-1 text-sm font-semibold"
+            data-testid="site-data-status"
+            // A polite live region: read out when the data status changes, never on each value.
+            role="status"
+          >
             ⚠ {dataLabel[status]}
           </p>
         ) : (
@@ -117,6 +123,7 @@ export function LivePoints({
           key={e.id}
           equipment={e}
           defaultOpen={wide}
+          unitSystem={unitSystem}
           render={(p) => {
             const latest = byId.get(p.id);
             const pushed = live[p.id];
@@ -171,10 +178,12 @@ export function LivePoints({
 function EquipmentSection({
   equipment: e,
   defaultOpen,
+  unitSystem,
   render,
 }: {
   equipment: EquipmentPointsView;
   defaultOpen: boolean;
+  unitSystem: UnitSystem;
   render: (p: EquipmentPointsView["points"][number]) => React.ReactNode;
 }) {
   // Follows the screen until someone opens or closes it.
@@ -199,7 +208,11 @@ function EquipmentSection({
         <span className="text-sm text-muted">
           {[
             kindLabel[e.kind] ?? e.kind,
-            e.capacityTons ? `${e.capacityTons} tons` : null,
+            e.capacityTons
+              ? unitSystem === "ip"
+                ? `${e.capacityTons} tons`
+                : `${Math.round(tonsToKw(e.capacityTons))} kW`
+              : null,
             e.refrigerant,
             e.serves ? `serves ${e.serves}` : null,
             `${e.points.length} points`,

@@ -1,7 +1,7 @@
 import type { ButtonHTMLAttributes } from "react";
 
 const variants = {
-  primary: "bg-ink text-white hover:bg-black disabled:bg-stale",
+  primary: "bg-ink text-on-strong hover:bg-ink/90 disabled:bg-stale",
   secondary: "border border-line bg-panel text-ink hover:bg-surface",
   danger: "border border-alarm/40 bg-panel text-alarm hover:bg-alarm/5",
 } as const;

@@ -9,6 +9,8 @@ import { siteScope } from "./sites";
 import type { Alarm, AlarmState, TransitionRecord } from "@/lib/alarms";
 import { withoutMovedLimits } from "@/lib/rules/settings";
 import type { AlarmDetail, AlarmDto, AlarmNoteDto, AlarmWithHistoryDto } from "@/lib/dto/alarms";
+import { renderDetailWords } from "@/lib/quantity-text";
+import type { UnitSystem } from "@/lib/units";
 
 /** An alarm note as screens get it: the author's name, never their id. */
 const noteColumns = {
@@ -46,8 +48,12 @@ type DtoRow = Omit<AlarmDto, "state" | "shelvedUntilMs" | "shelveReason" | "deta
   detailJson: string;
 };
 
-/** `staff`: the viewer is the service company's; a shelving reason is a technician's words, like event notes. */
-function toDto(row: DtoRow, staff: boolean): AlarmDto {
+/**
+ * `staff`: the viewer is the service company's; a shelving reason is a technician's words, like event notes.
+ * `words`: the unit system the stored words' quantities are rendered in, or "tokens" to leave them for each
+ * reader to render (status pushes go to rooms of viewers with different units).
+ */
+function toDto(row: DtoRow, staff: boolean, words: UnitSystem | "tokens"): AlarmDto {
   const { machineJson, detailJson, ...rest } = row;
   const machine = JSON.parse(machineJson) as Alarm;
   return {
@@ -55,8 +61,12 @@ function toDto(row: DtoRow, staff: boolean): AlarmDto {
     state: rest.state as AlarmState,
     shelvedUntilMs: machine.shelf?.untilMs ?? null,
     shelveReason: staff ? (machine.shelf?.reason ?? null) : null,
-    detail: JSON.parse(detailJson) as AlarmDetail,
+    detail: renderedDetail(JSON.parse(detailJson) as AlarmDetail, words),
   };
+}
+
+function renderedDetail(detail: AlarmDetail, words: UnitSystem | "tokens"): AlarmDetail {
+  return words === "tokens" ? detail : renderDetailWords(detail, words);
 }
 
 export interface AlarmFilter {
@@ -65,6 +75,8 @@ export interface AlarmFilter {
   priority?: number;
   /** Include alarms in `normal` (the full configured list). Default: only those not normal. */
   includeNormal?: boolean;
+  /** Leave quantity tokens in the stored words for the reader to render (default: the viewer's units). */
+  keepTokens?: boolean;
 }
 
 export function listAlarms(db: Db, viewer: Viewer, filter: AlarmFilter = {}): AlarmDto[] {
@@ -80,7 +92,7 @@ export function listAlarms(db: Db, viewer: Viewer, filter: AlarmFilter = {}): Al
     .where(and(...where))
     .orderBy(asc(alarms.priority), desc(alarms.lastTransitionMs))
     .all()
-    .map((row) => toDto(row, seesAllSites(viewer)));
+    .map((row) => toDto(row, seesAllSites(viewer), filter.keepTokens ? "tokens" : viewer.unitSystem));
 }
 
 export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHistoryDto | null {
@@ -116,7 +128,7 @@ export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHist
     .where(and(eq(alarmNotes.alarmId, alarmId), staff ? undefined : eq(alarmNotes.visibility, "customer")))
     .orderBy(asc(alarmNotes.id))
     .all();
-  return { ...toDto(row, staff), events, notes };
+  return { ...toDto(row, staff, viewer.unitSystem), events, notes };
 }
 
 /** The alarm's site and key, when the viewer may see it (for commands). */
@@ -271,6 +283,8 @@ export function alarmSummaryBySite(
 ): Map<string, { worst: AlarmDto | null; unacknowledged: number }> {
   const active = listAlarms(db, viewer, {
     states: ["unacknowledged", "acknowledged", "returned_unacknowledged", "latched"],
+    // Status pushes reach viewers with different units: each browser renders the quantities.
+    keepTokens: true,
   });
   const out = new Map<string, { worst: AlarmDto | null; unacknowledged: number }>();
   for (const a of active) {

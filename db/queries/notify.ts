@@ -488,9 +488,9 @@ function customerMailSubscribers(
   db: Db,
   organizationId: string,
   preference: "alarmStartEndMail" | "serviceRequestMail",
-): Array<{ id: string; email: string; name: string }> {
+): Array<{ id: string; email: string; name: string; unitSystem: "ip" | "si" }> {
   return db
-    .select({ id: users.id, email: users.email, name: users.name })
+    .select({ id: users.id, email: users.email, name: users.name, unitSystem: users.unitSystem })
     .from(notificationPreferences)
     .innerJoin(users, eq(users.id, notificationPreferences.userId))
     .where(

@@ -1,4 +1,5 @@
 import "server-only";
+import { renderQuantities } from "@/lib/quantity-text";
 import { randomUUID } from "node:crypto";
 import { and, asc, desc, eq, isNull, type SQL } from "drizzle-orm";
 import { alias } from "drizzle-orm/sqlite-core";
@@ -143,7 +144,8 @@ function readVisit(
     .all()
     .map(({ detailJson, ...a }) => {
       const detail = JSON.parse(detailJson) as { technicianMessage?: string; ownerMessage?: string };
-      return { ...a, title: (staff ? detail.technicianMessage : detail.ownerMessage) ?? a.ruleId };
+      const title = staff ? detail.technicianMessage : detail.ownerMessage;
+      return { ...a, title: title === undefined ? a.ruleId : renderQuantities(title, viewer.unitSystem) };
     });
   return {
     ...summary,

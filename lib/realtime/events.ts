@@ -24,7 +24,8 @@ export interface SiteValues {
 export interface SiteStatus {
   siteId: string;
   data: SiteDataState;
-  /** `title` is for technicians; `ownerTitle` says the same in plain words for building owners. */
+  /** `title` is for technicians; `ownerTitle` says the same in plain words for building owners. Pushed titles carry
+   * quantity tokens (lib/quantity-text.ts) that each browser renders in its viewer's units. */
   worst: {
     priority: number;
     ruleId: string;

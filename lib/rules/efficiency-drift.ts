@@ -8,6 +8,7 @@ import { chillerSnapshot } from "@/lib/plant/snapshot";
 import type { HistoryView } from "./history";
 import type { Condition } from "./condition";
 import { chillersOf, type RuleContext } from "./context";
+import { fmtDelta } from "./format";
 import { makeCondition } from "./make-condition";
 import type { Site } from "@/lib/plant/site";
 
@@ -84,7 +85,7 @@ export function efficiencyDrift(ctx: RuleContext): Condition[] {
         ? `kW/ton ${avg.kwPerTon!.toFixed(3)} is ${(kwDrift! * 100).toFixed(0)} % above its baseline ${baseline.kwPerTon!.toFixed(3)}`
         : null,
       approachHigh
-        ? `condenser approach ${avg.condenserApproachK!.toFixed(1)} K is ${approachDrift!.toFixed(1)} K above its baseline`
+        ? `condenser approach ${fmtDelta(avg.condenserApproachK!)} is ${fmtDelta(approachDrift!)} above its baseline`
         : null,
     ].filter((p): p is string => p !== null);
     return [

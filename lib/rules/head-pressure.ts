@@ -9,7 +9,7 @@ import type { Condition } from "./condition";
 import { bool, chillersOf, num, type RuleContext } from "./context";
 import { lastEdgeMs } from "./history";
 import { formatDuration } from "@/lib/units";
-import { fmtPressure } from "./format";
+import { fmtPressure, fmtPressureRate } from "./format";
 import { makeCondition } from "./make-condition";
 
 export const HAND_RESET_CAUTION =
@@ -42,7 +42,7 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
     const soon = watched && (was ? !falling : rising && toTrip !== null && toTrip.timeS <= s.warnTimeToTripS);
     const atLimit = pKPa >= tripKPa - s.warnWithinKPa - slackKPa;
     const active = running && (soon || atLimit);
-    const rate = riseKPaPerMin !== null ? `, rising ${riseKPaPerMin.toFixed(1)} kPa/min` : "";
+    const rate = riseKPaPerMin !== null ? `, rising ${fmtPressureRate(riseKPaPerMin)}` : "";
     return [
       makeCondition({
         ruleId: "head_pressure_near_trip",
@@ -51,7 +51,7 @@ export function headPressureNearTrip(ctx: RuleContext): Condition[] {
         priority: s.priority,
         atMs: ctx.nowMs,
         technicianMessage: active
-          ? `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}, ${Math.max(0, tripKPa - pKPa).toFixed(0)} kPa below its ${fmtPressure(tripKPa)} cut-out${rate}${toTrip ? `; cut-out in about ${formatDuration(toTrip.timeS)}` : ""}.`
+          ? `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}, ${fmtPressure(Math.max(0, tripKPa - pKPa), true)} below its ${fmtPressure(tripKPa)} cut-out${rate}${toTrip ? `; cut-out in about ${formatDuration(toTrip.timeS)}` : ""}.`
           : `${chiller.tag}: condenser pressure ${fmtPressure(pKPa)}.`,
         ownerMessage: active
           ? "The chiller is close to shutting itself down on high pressure."

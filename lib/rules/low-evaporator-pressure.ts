@@ -11,7 +11,7 @@ import { cachedSaturationTempC } from "./saturation";
 import { lastEdgeMs } from "./history";
 import type { Condition } from "./condition";
 import { bool, chillersOf, num, type RuleContext } from "./context";
-import { fmtTemp } from "./format";
+import { fmtRate, fmtTemp } from "./format";
 import { makeCondition } from "./make-condition";
 
 export function lowEvaporatorPressure(ctx: RuleContext): Condition[] {
@@ -52,7 +52,7 @@ export function lowEvaporatorPressure(ctx: RuleContext): Condition[] {
         atMs: ctx.nowMs,
         suppressedReason,
         technicianMessage: active
-          ? `${chiller.tag}: saturated evaporating temperature ${fmtTemp(satC)}${soon && toTrip ? `, falling ${fallKPerMin!.toFixed(2)} K/min; its ${fmtTemp(cutoutC)} cut-out in about ${formatDuration(toTrip.timeS)}` : `, at or below the ${fmtTemp(s.limitC)} freeze-risk limit`}.`
+          ? `${chiller.tag}: saturated evaporating temperature ${fmtTemp(satC)}${soon && toTrip ? `, falling ${fmtRate(fallKPerMin!)}; its ${fmtTemp(cutoutC)} cut-out in about ${formatDuration(toTrip.timeS)}` : `, at or below the ${fmtTemp(s.limitC)} freeze-risk limit`}.`
           : `${chiller.tag}: evaporator pressure normal.`,
         ownerMessage: active
           ? "A chiller is running colder than is safe for its water tubes."

@@ -3,13 +3,16 @@ import { alarmSummaryBySite } from "@/db/queries/alarms";
 import type { AlarmDto } from "@/lib/dto/alarms";
 import type { Viewer } from "@/lib/auth/viewer";
 import type { SiteStatus } from "@/lib/realtime/events";
+import { renderDetailWords } from "@/lib/quantity-text";
+import type { UnitSystem } from "@/lib/units";
 import { getRuntime } from "../runtime";
 
 type AlarmSide = Pick<SiteStatus, "worst" | "unacknowledged">;
 
-function toWorst(worst: AlarmDto | null | undefined): SiteStatus["worst"] {
+/** `words`: the reader's units, or "tokens" for a push to many readers (each browser renders them). */
+function toWorst(worst: AlarmDto | null | undefined, words: UnitSystem | "tokens"): SiteStatus["worst"] {
   if (!worst) return null;
-  const d = worst.detail;
+  const d = words === "tokens" ? worst.detail : renderDetailWords(worst.detail, words);
   return {
     priority: worst.priority,
     ruleId: worst.ruleId,
@@ -24,9 +27,10 @@ function toWorst(worst: AlarmDto | null | undefined): SiteStatus["worst"] {
 function alarmSide(
   summary: Map<string, { worst: AlarmDto | null; unacknowledged: number }>,
   siteId: string,
+  words: UnitSystem | "tokens",
 ): AlarmSide {
   const a = summary.get(siteId);
-  return { worst: toWorst(a?.worst), unacknowledged: a?.unacknowledged ?? 0 };
+  return { worst: toWorst(a?.worst, words), unacknowledged: a?.unacknowledged ?? 0 };
 }
 
 /**
@@ -46,7 +50,7 @@ export function createBoardAlarmSummary(
         atMs = clock();
         bySite = alarmSummaryBySite(db, viewer);
       }
-      return alarmSide(bySite, siteId);
+      return alarmSide(bySite, siteId, "tokens");
     },
     invalidate() {
       atMs = -Infinity;
@@ -60,6 +64,10 @@ export function boardStatuses(db: Db, viewer: Viewer, siteIds: readonly string[]
   const dataStatus = getRuntime()?.siteDataStatus;
   const out = new Map<string, SiteStatus>();
   for (const siteId of siteIds)
-    out.set(siteId, { siteId, data: dataStatus ? dataStatus(siteId) : "no_gateway", ...alarmSide(summary, siteId) });
+    out.set(siteId, {
+      siteId,
+      data: dataStatus ? dataStatus(siteId) : "no_gateway",
+      ...alarmSide(summary, siteId, viewer.unitSystem),
+    });
   return out;
 }

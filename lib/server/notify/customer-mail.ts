@@ -2,6 +2,7 @@ import type { Db } from "@/db/client";
 import { alarmForCustomerMail, alarmMailSubscribers } from "@/db/queries/notify";
 import { isTrainingSite } from "@/db/queries/drills";
 import type { TransitionRecord } from "@/lib/alarms";
+import { renderQuantities } from "@/lib/quantity-text";
 import type { Mailer } from "../mail";
 
 // Customers who opted in hear, in plain words, when a high or critical alarm starts and ends at
@@ -26,7 +27,7 @@ export function customerAlarmMail(deps: { db: Db; mailer: Mailer; publicUrl: str
           `Hello ${person.name},`,
           "",
           started
-            ? `Liftline raised an alarm on ${alarm.equipment} at ${alarm.siteName}. ${alarm.ownerMessage}`.trim()
+            ? `Liftline raised an alarm on ${alarm.equipment} at ${alarm.siteName}. ${renderQuantities(alarm.ownerMessage, person.unitSystem)}`.trim()
             : `The alarm on ${alarm.equipment} at ${alarm.siteName} has cleared: the condition is back to normal.`,
           "",
           started ? "Your service company's on-call technician has been told." : "",
