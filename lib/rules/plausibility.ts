@@ -9,6 +9,7 @@ import { towersServing, type Equipment } from "@/lib/plant/site";
 import { quantities, type QuantityKey } from "@/lib/quantities";
 import type { Condition, RuleId } from "./condition";
 import { bool, type RuleContext } from "./context";
+import { fmtDelta, fmtPressure, fmtTemp } from "./format";
 import { makeCondition } from "./make-condition";
 import { cachedSaturationTempC } from "./saturation";
 
@@ -102,7 +103,12 @@ export function sensorFaults(ctx: RuleContext): SensorFault[] {
       const v = latest.value;
       const [lo, hi] = plausibleRange[q]!;
       if (!Number.isFinite(v) || v < lo || v > hi) {
-        out.push({ tag: e.tag, quantity: q, reason: `reads ${v.toFixed(1)}, outside what it can be` });
+        const shown = !Number.isFinite(v)
+          ? String(v)
+          : quantities[q].measure === "pressure"
+            ? fmtPressure(v)
+            : fmtTemp(v);
+        out.push({ tag: e.tag, quantity: q, reason: `reads ${shown}, outside what it can be` });
         continue;
       }
       const rate = maxRatePerS[q];
@@ -166,7 +172,7 @@ function saturationDisagreement(ctx: RuleContext, chiller: Equipment): SensorFau
       out.push({
         tag: chiller.tag,
         quantity: tq,
-        reason: `disagrees with its pressure by ${diffK.toFixed(1)} K on the ${refrigerant} curve`,
+        reason: `disagrees with its pressure by ${fmtDelta(diffK)} on the ${refrigerant} curve`,
       });
   }
   return out;
@@ -219,7 +225,8 @@ export function suppressOnFailedSensors(
     if (!failed) return c;
     return {
       ...c,
-      suppressedReason: `${failed.tag} ${quantities[failed.quantity].label.toLowerCase()} ${failed.reason}`,
+      // Plain words without numbers: the reason is stored with the alarm and shown as it is.
+      suppressedReason: `${failed.tag} ${quantities[failed.quantity].label.toLowerCase()} failed its plausibility check`,
     };
   });
 }

@@ -2,6 +2,7 @@
 // the documented defaults of lib/rules/settings.ts unless a test says otherwise.
 import { describe, expect, it } from "vitest";
 import { saturationPressureKPa } from "@/lib/refrigerant";
+import { renderQuantities } from "@/lib/quantity-text";
 import { runFrames, secondsOf, withChillerLimits, type Frame } from "./synthetic";
 
 /**
@@ -694,7 +695,9 @@ describe("sensor plausibility, and the rules resting on a failed sensor suppress
       .at(-1)!
       .conditions.find((x) => x.ruleId === "sensor_implausible" && x.equipment === "CH-1")!;
     expect(c.active).toBe(true);
-    expect(c.technicianMessage).toMatch(/evaporator saturated temp\w* disagrees with its pressure by 1\d\.\d K/i);
+    expect(renderQuantities(c.technicianMessage, "si")).toMatch(
+      /evaporator saturated temp\w* disagrees with its pressure by 1\d\.\d K/i,
+    );
   });
 
   it("calls a reading frozen only when it stays exactly flat for an hour while its companion moves", () => {
