@@ -55,7 +55,7 @@ export function IncidentEditor({ incident, draft }: { incident: IncidentDto; dra
 
   return (
     <form
-      className="flex flex-col gap-3 rounded border border-line bg-panel p-4"
+      className="flex min-w-0 flex-col gap-3 rounded border border-line bg-panel p-4"
       aria-labelledby="review-form-title"
       onSubmit={(e) => {
         e.preventDefault();
@@ -152,7 +152,10 @@ export function IncidentRegroup({ incident, siblings }: { incident: IncidentDto;
     }
   };
   return (
-    <section className="flex flex-col gap-3 rounded border border-line bg-panel p-4" aria-labelledby="regroup-title">
+    <section
+      className="flex min-w-0 flex-col gap-3 rounded border border-line bg-panel p-4"
+      aria-labelledby="regroup-title"
+    >
       <h2 id="regroup-title" className="text-lg font-semibold">
         Alarms in this incident
       </h2>
@@ -203,10 +206,10 @@ export function IncidentRegroup({ incident, siblings }: { incident: IncidentDto;
       </div>
       {siblings.length ? (
         <div className="flex flex-wrap items-end gap-2">
-          <label className="flex flex-col gap-1">
+          <label className="flex w-full min-w-0 flex-col gap-1">
             <span className={label}>Merge another incident of this site into this one</span>
             <select
-              className="min-h-11 max-w-full rounded border border-line bg-panel px-3 text-base"
+              className="min-h-11 w-full min-w-0 rounded border border-line bg-panel px-3 text-base"
               value={other}
               onChange={(e) => setOther(e.target.value)}
             >

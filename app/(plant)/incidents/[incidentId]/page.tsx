@@ -150,7 +150,7 @@ export default async function IncidentPage({ params }: Props) {
           />
         </dl>
       </section>
-      <div className="grid gap-6 lg:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
         <section aria-labelledby="trends-title" className="min-w-0">
           <h2 id="trends-title" className="mb-2 text-lg font-semibold">
             Trends
@@ -197,7 +197,7 @@ export default async function IncidentPage({ params }: Props) {
         </section>
       </div>
       {canAct(viewer) ? (
-        <div className="mt-6 grid gap-6 lg:grid-cols-2">
+        <div className="mt-6 grid grid-cols-1 gap-6 lg:grid-cols-2">
           <IncidentEditor incident={incident} draft={draft} />
           <IncidentRegroup incident={incident} siblings={siblings} />
         </div>
