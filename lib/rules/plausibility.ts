@@ -113,9 +113,8 @@ export function sensorFaults(ctx: RuleContext): SensorFault[] {
       }
       const rate = maxRatePerS[q];
       if (rate !== undefined) {
-        const recent = ctx.history.numbers(e.tag, q, latest.tsMs - s.rateWindowS * 1000, latest.tsMs);
-        const prev = recent.length >= 2 ? recent[recent.length - 2] : undefined;
-        if (prev && latest.tsMs > prev.tsMs) {
+        const prev = ctx.history.latestAt(e.tag, q, latest.tsMs - 1);
+        if (prev && typeof prev.value === "number" && latest.tsMs - prev.tsMs <= s.rateWindowS * 1000) {
           const perS = Math.abs(v - prev.value) / ((latest.tsMs - prev.tsMs) / 1000);
           if (perS > rate) {
             out.push({ tag: e.tag, quantity: q, reason: "jumped faster than the water or refrigerant can change" });
@@ -126,7 +125,9 @@ export function sensorFaults(ctx: RuleContext): SensorFault[] {
       // The same value for this long while the equipment runs and its companion moved is a frozen
       // input or a gateway repeating a stale value.
       const other = companion[q];
-      if (running && other) {
+      // The reading of most of a window ago decides cheaply: a value that moved is not frozen.
+      const then = running && other ? ctx.history.latestAt(e.tag, q, ctx.nowMs - s.stuckAfterS * 900) : undefined;
+      if (other && then?.value === v) {
         const fromMs = ctx.nowMs - s.stuckAfterS * 1000;
         const window = ctx.history.numbers(e.tag, q, fromMs, ctx.nowMs);
         const spanS = window.length ? (window[window.length - 1].tsMs - window[0].tsMs) / 1000 : 0;
