@@ -24,6 +24,9 @@ import {
 import { towerApproachK, towerRangeK } from "./tower";
 import type { TimedValue } from "./trend";
 import { kwToTons } from "./units";
+import { asRefrigerant } from "./equipment-limits";
+import { saturationTempC } from "@/lib/refrigerant";
+import { wetBulbC as psychrometricWetBulbC } from "@/lib/psychrometrics";
 import { condenserDeltaTK, effectiveFlowLps, evaporatorDeltaTK, waterLoadKw } from "./water-side";
 
 export interface ChillerSnapshot {
@@ -158,10 +161,12 @@ export function chillerSnapshot(
   const chwOut = r.num("chilled_water_leaving_temp");
   const cwIn = condenserWaterEnteringC(site, r, chiller.tag);
   const cwOut = r.num("condenser_water_leaving_temp");
-  const evapSat = r.num("evaporator_saturated_temp");
-  const condSat = r.num("condenser_saturated_temp");
   const evapP = r.num("evaporator_refrigerant_pressure");
   const condP = r.num("condenser_refrigerant_pressure");
+  // Without saturated-temperature points, the shells' pressures give them through the refrigerant's curve.
+  const refrigerant = asRefrigerant(chiller.refrigerant) ?? "R-134a";
+  const evapSat = r.num("evaporator_saturated_temp") ?? (evapP !== null ? saturationTempC(refrigerant, evapP) : null);
+  const condSat = r.num("condenser_saturated_temp") ?? (condP !== null ? saturationTempC(refrigerant, condP) : null);
   const powerKw = r.num("compressor_power");
 
   const evapDt = diff(chwIn, chwOut, evaporatorDeltaTK);
@@ -221,6 +226,10 @@ export function wetBulbC(site: Site, latest: LatestValues): number | null {
   for (const w of equipmentOfKind(site, "weather_station")) {
     const v = latest[w.tag]?.outdoor_wet_bulb_temp?.value;
     if (typeof v === "number") return v;
+    // A station without a wet-bulb point: from dry bulb and relative humidity (ASHRAE psychrometrics).
+    const dry = latest[w.tag]?.outdoor_air_temp?.value;
+    const rh = latest[w.tag]?.outdoor_air_humidity?.value;
+    if (typeof dry === "number" && typeof rh === "number") return psychrometricWetBulbC(dry, rh);
   }
   return null;
 }

@@ -88,6 +88,27 @@ describe("site snapshot", () => {
     expect(t.approachK).toBeCloseTo(3.9, 6);
   });
 
+  it("derives saturated temperatures from the shells' pressures and wet bulb from dry bulb and humidity when the site has no such points", () => {
+    const bare = base.filter(
+      (x) =>
+        !["condenser_saturated_temp", "evaporator_saturated_temp", "outdoor_wet_bulb_temp"].includes(x.quantity) &&
+        x.quantity !== "condenser_refrigerant_pressure" &&
+        x.quantity !== "evaporator_refrigerant_pressure",
+    );
+    // R-134a: 957.35 kPa abs ↔ 100 °F (37.78 °C), 342.95 kPa abs ↔ 40 °F (4.44 °C) (REFERENCES.md, NIST table [K]).
+    const latest = latestFromReadings([
+      ...bare,
+      r("condenser_refrigerant_pressure", 957.35),
+      r("evaporator_refrigerant_pressure", 342.95),
+      // PsychroLib's documented example (REFERENCES.md §psychrometrics [K]): 25 °C, RH 20 % → wet bulb 12.513 °C.
+      r("outdoor_air_temp", 25, "WS-1"),
+      r("outdoor_air_humidity", 20, "WS-1"),
+    ]);
+    const snap = computeSiteSnapshot(site, latest, T0);
+    expect(snap.chillers[0].liftK).toBeCloseTo(37.78 - 4.44, 1);
+    expect(snap.wetBulbC).toBeCloseTo(12.513, 2);
+  });
+
   it("gives no load from design flow when the pump is not proven", () => {
     const c = computeSiteSnapshot(site, latestFromReadings([...base, r("pump_status", false, "CHWP-1")]), T0)
       .chillers[0];
