@@ -124,6 +124,7 @@ export function LivePoints({
           equipment={e}
           defaultOpen={wide}
           unitSystem={unitSystem}
+          historyHref={showIdentifiers ? `/sites/${siteId}/equipment/${encodeURIComponent(e.id)}` : undefined}
           render={(p) => {
             const latest = byId.get(p.id);
             const pushed = live[p.id];
@@ -179,11 +180,14 @@ function EquipmentSection({
   equipment: e,
   defaultOpen,
   unitSystem,
+  historyHref,
   render,
 }: {
   equipment: EquipmentPointsView;
   defaultOpen: boolean;
   unitSystem: UnitSystem;
+  /** Staff: the equipment's history page. */
+  historyHref?: string;
   render: (p: EquipmentPointsView["points"][number]) => React.ReactNode;
 }) {
   // Follows the screen until someone opens or closes it.
@@ -231,6 +235,13 @@ function EquipmentSection({
         </thead>
         <tbody>{e.points.map(render)}</tbody>
       </table>
+      {historyHref ? (
+        <p className="border-t border-line px-4 py-2 text-sm">
+          <Link href={historyHref} className="underline" data-testid="equipment-history-link">
+            {e.tag} history: alarms, faults, starts, visits and changes
+          </Link>
+        </p>
+      ) : null}
     </details>
   );
 }
