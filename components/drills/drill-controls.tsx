@@ -1,6 +1,7 @@
 "use client";
 
 import { useState } from "react";
+import { useQuantityText } from "@/components/layout/unit-system";
 import Link from "next/link";
 import useSWR from "swr";
 import { fetchJson } from "@/lib/client/fetcher";
@@ -24,6 +25,8 @@ interface Live {
  * there (nothing otherwise). With hints on, the rules' current advice is shown beside the controls.
  */
 export function DrillControls({ siteId }: { siteId: string }) {
+  // Advice comes with its numbers as quantity tokens: shown in the viewer's units.
+  const words = useQuantityText();
   const { data: list } = useSWR<{ drills: DrillDto[] }>(`/api/drills?siteId=${encodeURIComponent(siteId)}`, fetchJson, {
     refreshInterval: 5000,
   });
@@ -160,11 +163,11 @@ export function DrillControls({ siteId }: { siteId: string }) {
           {live.advice.map((a) => (
             <div key={`${a.equipment}-${a.title}`} className="mt-1 text-sm">
               <p className="font-semibold">
-                {a.equipment}: {a.title}
+                {a.equipment}: {words(a.title)}
               </p>
               <ul className="list-disc pl-5">
                 {a.advice.map((s) => (
-                  <li key={s}>{s}</li>
+                  <li key={s}>{words(s)}</li>
                 ))}
               </ul>
             </div>

@@ -1,6 +1,8 @@
 import type { DrillAlarmEventDto, DrillWithStepsDto } from "@/lib/dto/drills";
 import type { ScorePart } from "@/lib/drills/score";
 import { Sparkline } from "@/components/charts/sparkline";
+import { renderQuantities } from "@/lib/quantity-text";
+import type { UnitSystem } from "@/lib/units";
 
 export interface DebriefTrend {
   label: string;
@@ -30,11 +32,15 @@ export function DrillDebrief({
   drill,
   alarmEvents,
   trends,
+  unitSystem,
 }: {
   drill: DrillWithStepsDto;
   alarmEvents: DrillAlarmEventDto[];
   trends: DebriefTrend[];
+  /** The reader's units: alarm words carry their numbers as quantity tokens. */
+  unitSystem: UnitSystem;
 }) {
+  const words = (text: string) => renderQuantities(text, unitSystem);
   const tz = drill.siteTimeZone;
   const time = (ms: number) =>
     new Date(ms).toLocaleTimeString("en-US", { timeZone: tz, hour: "2-digit", minute: "2-digit", second: "2-digit" });
@@ -48,7 +54,7 @@ export function DrillDebrief({
     ...alarmEvents.map((e) => ({
       atMs: e.atMs,
       kind: "Alarm",
-      text: `${e.equipment}: ${e.title} — ${e.cause.replace(/_/g, " ")} (${e.from} → ${e.to})`,
+      text: `${e.equipment}: ${words(e.title)} — ${e.cause.replace(/_/g, " ")} (${e.from.replace(/_/g, " ")} → ${e.to.replace(/_/g, " ")})`,
       who: e.actorName,
     })),
     ...drill.steps.map((s) => ({
@@ -102,7 +108,7 @@ export function DrillDebrief({
         <h2 id="trends-title" className="mb-2 text-lg font-semibold">
           Trends
         </h2>
-        <div className="grid gap-3 md:grid-cols-2">
+        <div className="grid grid-cols-1 gap-3 md:grid-cols-2">
           {trends.map((t) => (
             <figure key={t.label} className="rounded border border-line bg-panel p-2">
               <figcaption className="text-sm font-semibold">{t.label}</figcaption>
@@ -130,7 +136,10 @@ export function DrillDebrief({
         {commands.length === 0 ? <p className="text-sm text-muted">The trainee sent no commands.</p> : null}
         <ol className="flex flex-col gap-2">
           {commands.map((s) => (
-            <li key={s.id} className="grid gap-2 rounded border border-line bg-panel p-2 text-sm md:grid-cols-2">
+            <li
+              key={s.id}
+              className="grid grid-cols-1 gap-2 rounded border border-line bg-panel p-2 text-sm md:grid-cols-2"
+            >
               <div>
                 <p className="font-semibold">
                   {time(s.atMs)} ({sinceStart(s.atMs)}) — {s.detail.text}
@@ -144,7 +153,7 @@ export function DrillDebrief({
                     {s.advice.flatMap((a) =>
                       a.advice.map((line) => (
                         <li key={`${a.equipment}-${line}`}>
-                          {a.equipment}: {line}
+                          {a.equipment}: {words(line)}
                         </li>
                       )),
                     )}
@@ -164,7 +173,10 @@ export function DrillDebrief({
         </h2>
         <ol className="flex flex-col text-sm">
           {timeline.map((t, i) => (
-            <li key={`${t.atMs}-${i}`} className="grid grid-cols-[6.5rem_5rem_1fr] gap-2 border-b border-line py-1">
+            <li
+              key={`${t.atMs}-${i}`}
+              className="grid grid-cols-[4.5rem_3.5rem_minmax(0,1fr)] gap-2 break-words border-b border-line py-1 sm:grid-cols-[6.5rem_5rem_minmax(0,1fr)]"
+            >
               <span className="tabular-nums">{time(t.atMs)}</span>
               <span className="font-semibold">{t.kind}</span>
               <span>

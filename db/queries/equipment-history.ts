@@ -10,6 +10,7 @@ import { seesAllSites, type Viewer } from "@/lib/auth/viewer";
 import type { EquipmentRecordDto } from "@/lib/dto/sites";
 import { changesOnly, runTotals, type HistoryEvent, type RunTotals } from "@/lib/equipment-history";
 import { quantities, type QuantityKey } from "@/lib/quantities";
+import { renderQuantities } from "@/lib/quantity-text";
 
 // One piece of equipment's history for staff: a customer's viewer gets null, as for equipment
 // that does not exist (the page is the service company's working record).
@@ -82,7 +83,10 @@ export function getEquipmentHistory(
       atMs: a.atMs,
       kind: "alarm",
       title: `P${a.priority} ${a.ruleId.replaceAll("_", " ")}: ${a.toState.replaceAll("_", " ")}`,
-      detail: a.cause === "condition_active" ? detail.technicianMessage : a.cause.replaceAll("_", " "),
+      detail:
+        a.cause === "condition_active" && detail.technicianMessage
+          ? renderQuantities(detail.technicianMessage, viewer.unitSystem)
+          : a.cause.replaceAll("_", " "),
       href: `/alarms/${encodeURIComponent(a.alarmId)}`,
     });
   }

@@ -66,7 +66,8 @@ async function keyTemperatureTrend(ctx: ServiceContext, viewer: Viewer, visit: V
       ...(visit.closedAt !== null ? [{ atMs: visit.closedAt, label: "closed" }] : []),
     ],
   });
-  return svg ? sharp(Buffer.from(svg)).png().toBuffer() : null;
+  // Flattened: a PNG with an alpha channel becomes two image objects in the PDF (the picture and its mask).
+  return svg ? sharp(Buffer.from(svg)).flatten({ background: "#ffffff" }).png().toBuffer() : null;
 }
 
 /** Shared photos' thumbnails as JPEG, since the PDF takes JPEG and PNG and thumbnails are stored as WebP. */

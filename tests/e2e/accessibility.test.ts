@@ -3,7 +3,7 @@ import path from "node:path";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { hasChromium, launchBrowser, screenshot, signInAs, viewports } from "../helpers/browser";
-import { adminCookie, api, raiseChillerTrip } from "../helpers/mqtt";
+import { adminCookie, api, raiseChillerTrip, waitFor } from "../helpers/mqtt";
 import { ROOT, startServer, type TestServer } from "../helpers/server";
 
 // axe-core (Deque's rules engine, WCAG 2.2 A/AA tags plus best practices) on every page of the app,
@@ -107,7 +107,37 @@ describe.skipIf(!hasChromium)(
         body: JSON.stringify({ alarmId, mode: "remote" }),
       });
       expect(visit.status).toBe(201);
+      // The trip files an incident; a drill on a training site (stopped at once) gives a debrief page.
+      const incidents = await waitFor(async () => {
+        const list = (await api(server, cookie, `/api/incidents?site=${SITE}`)).body.incidents as
+          Array<{ id: string }> | undefined;
+        return list?.length ? list : undefined;
+      }, 30_000);
+      const post = (url: string, body: unknown) =>
+        api(server, cookie, url, {
+          method: "POST",
+          headers: { "content-type": "application/json" },
+          body: JSON.stringify(body),
+        });
+      const training = await post("/api/training-sites", { name: "Axe training plant", layout: "default" });
+      expect(training.status, JSON.stringify(training.body)).toBe(201);
+      const drill = await post("/api/drills", {
+        siteId: training.body.site.id,
+        traineeId: "user-tech-1",
+        scenario: "power-blip",
+        speed: 60,
+        hints: true,
+      });
+      expect(drill.status, JSON.stringify(drill.body)).toBe(201);
+      const drillId = drill.body.drill.id as string;
+      await api(server, cookie, `/api/drills/${drillId}/stop`, { method: "POST" });
       urls.push(
+        "/incidents",
+        `/incidents/${incidents[0].id}`,
+        "/drills",
+        `/drills/${drillId}`,
+        `/sites/${SITE}/replay`,
+        `/sites/${SITE}/equipment/${chiller.id}`,
         "/",
         "/alarms",
         `/alarms/${alarmId}`,

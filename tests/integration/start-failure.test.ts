@@ -70,7 +70,7 @@ describe("a failed start-up", () => {
     expect(out).toMatch(new RegExp(`Could not listen for HTTP on 127\\.0\\.0\\.1 port ${httpPort}: .*EADDRINUSE`));
     // The broker had started (it starts before HTTP listens) and was stopped, in reverse order.
     expect(out).toMatch(
-      /Start-up failed; stopping: the gateway side, the temporary-change reminders, the storage alarm, the alarm system, .*the database/,
+      /Start-up failed; stopping: (the drills, the simulation, )?the gateway side, the temporary-change reminders, the storage alarm, the alarm system, .*the database/,
     );
     expect(await canConnect(mqttPort), "the MQTT port is free again").toBe(false);
   }, 120_000);

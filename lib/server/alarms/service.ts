@@ -27,7 +27,7 @@ import type { IncidentFiler } from "../incidents";
  * A due evaluation waits for a newer reading (so every reading of its instant is in, however
  * the gateway split its messages and the writer its flushes) or, when none comes, this long.
  */
-export const SETTLE_MS = 1_000;
+export const SETTLE_MS = 250;
 /** No reading for this long (wall clock): event time is run on with the wall clock, so silence is noticed. */
 export const SILENCE_MS = 60_000;
 /**
@@ -121,6 +121,7 @@ export function createAlarmService(deps: {
 }): AlarmService {
   const { db } = deps;
   const sites = new Map<string, SiteState>();
+  let settleTimer: ReturnType<typeof setTimeout> | null = null;
 
   function state(siteId: string): SiteState {
     let s = sites.get(siteId);
@@ -235,6 +236,18 @@ export function createAlarmService(deps: {
       s.latestWallMs = deps.clock();
     }
     s.ingestWallMs = deps.clock();
+    // A gateway's last sample has no newer reading behind it: settle it as soon as it has been quiet
+    // for SETTLE_MS rather than on the next 1-s tick, so a page goes out within a fraction of a second.
+    if (s.pending.length && !settleTimer)
+      settleTimer = setTimeout(() => {
+        settleTimer = null;
+        try {
+          service.settle();
+        } catch (err) {
+          // The 1-s housekeeping tick settles it again and reports a full disk.
+          deps.log?.(`[alarms] settling evaluations failed: ${String(err)}`);
+        }
+      }, SETTLE_MS + 10).unref();
     return s.pending.length > 0 && s.pending[0] < s.latestEventMs;
   }
 
@@ -253,7 +266,7 @@ export function createAlarmService(deps: {
     return !!s && !s.retired && runPending(siteId, s, s.latestEventMs);
   }
 
-  return {
+  const service: AlarmService = {
     record,
     evaluateDue,
     command(viewer, alarmId, command) {
@@ -348,4 +361,5 @@ export function createAlarmService(deps: {
       }
     },
   };
+  return service;
 }

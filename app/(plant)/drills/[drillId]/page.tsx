@@ -74,6 +74,7 @@ export default async function DrillPage({ params }: { params: Promise<{ drillId:
         drill={drill}
         alarmEvents={alarmEventsBetween(db, drill.siteId, drill.startedAtMs, toMs)}
         trends={trends}
+        unitSystem={viewer.unitSystem}
       />
     </article>
   );
