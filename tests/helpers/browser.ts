@@ -40,6 +40,10 @@ export function watchConsole(page: Page): string[] {
     if (msg.type() === "error") problems.push(`console: ${msg.text()}`);
   });
   page.on("pageerror", (err) => problems.push(`pageerror: ${err.message}`));
+  // The console names no URL for a failed resource: the response does.
+  page.on("response", (res) => {
+    if (res.status() >= 400) problems.push(`response ${res.status()}: ${res.url()}`);
+  });
   return problems;
 }
 

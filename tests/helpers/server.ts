@@ -115,6 +115,11 @@ export async function startServer(opts: StartOptions = {}): Promise<TestServer> 
   let out = "";
   child.stdout!.on("data", (d) => (out += d));
   child.stderr!.on("data", (d) => (out += d));
+  // LIFTLINE_TEST_SERVER_LOG=1 shows the server's own output while a test runs (for debugging one file).
+  if (process.env.LIFTLINE_TEST_SERVER_LOG) {
+    child.stderr!.on("data", (d) => process.stderr.write(d));
+    child.stdout!.on("data", (d) => process.stderr.write(d));
+  }
 
   const ready = await new Promise<ReadyMessage>((resolve, reject) => {
     const timer = setTimeout(

@@ -323,7 +323,9 @@ describe("head_pressure_near_trip follows the chiller's cut-out", () => {
         );
       }
     };
-    const start = Date.now() - 240_000;
+    // Rules run on the readings' own times (lib/rules/schedule.ts): the warning's 15 s on-delay is passed
+    // by readings after the change, so the plant keeps reporting for a while after it.
+    const start = Date.now() - 300_000;
     await publish(start, start + 180_000);
     const headAlarms = async () => {
       const { body } = await api(server, admin, `/api/alarms?site=${siteId}`);
@@ -341,7 +343,14 @@ describe("head_pressure_near_trip follows the chiller's cut-out", () => {
       json("PUT", { values: { highCondPressureCutoutKPa: 820 } }),
     );
     expect(set.status).toBe(200);
-    await publish(start + 190_000, start + 240_000);
+    // Live from here: the earlier trip's readings set the site's clock to now, and the rules do not go back
+    // to readings older than their last evaluation (lib/rules/schedule.ts); 20 s of the plant reporting
+    // passes the warning's 15 s on-delay.
+    const liveFrom = Date.now();
+    for (let i = 0; i <= 4; i++) {
+      await publish(liveFrom + i * 5_000, liveFrom + i * 5_000);
+      if (i < 4) await new Promise((r) => setTimeout(r, 5_000));
+    }
     const raised = await waitFor(async () => {
       const list = await headAlarms();
       return list.length ? list : undefined;
