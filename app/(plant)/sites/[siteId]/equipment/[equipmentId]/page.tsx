@@ -102,7 +102,7 @@ export default async function EquipmentHistoryPage({ params, searchParams }: Pro
             <Link
               key={k}
               href={href(query.days, toggle(k))}
-              aria-pressed={on}
+              aria-current={on ? "true" : undefined}
               className={`rounded-full border px-3 py-1.5 ${on ? "border-ink bg-ink text-panel" : "border-line bg-panel"}`}
             >
               {on ? "✓ " : ""}
