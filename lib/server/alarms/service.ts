@@ -28,6 +28,8 @@ import type { IncidentFiler } from "../incidents";
  * the gateway split its messages and the writer its flushes) or, when none comes, this long.
  */
 export const SETTLE_MS = 250;
+/** Longest run of settling evaluations in one turn of the event loop, ms. */
+const SETTLE_SLICE_MS = 8;
 /** No reading for this long (wall clock): event time is run on with the wall clock, so silence is noticed. */
 export const SILENCE_MS = 60_000;
 /**
@@ -122,6 +124,7 @@ export function createAlarmService(deps: {
   const { db } = deps;
   const sites = new Map<string, SiteState>();
   let settleTimer: ReturnType<typeof setTimeout> | null = null;
+  let settleSoon: ReturnType<typeof setImmediate> | null = null;
 
   function state(siteId: string): SiteState {
     let s = sites.get(siteId);
@@ -316,8 +319,21 @@ export function createAlarmService(deps: {
     },
     settle() {
       const now = deps.clock();
-      for (const [siteId, s] of sites)
-        if (!s.retired && s.pending.length && now - s.ingestWallMs >= SETTLE_MS) runPending(siteId, s, Infinity);
+      // A slice per turn of the event loop: every site's evaluation falls due at the same 5-s step of
+      // event time, and running them all in one call would hold PUBACKs and pushes for a whole portfolio.
+      const until = performance.now() + SETTLE_SLICE_MS;
+      for (const [siteId, s] of sites) {
+        if (s.retired || !s.pending.length || now - s.ingestWallMs < SETTLE_MS) continue;
+        runPending(siteId, s, Infinity);
+        if (performance.now() >= until) {
+          if (!settleSoon)
+            settleSoon = setImmediate(() => {
+              settleSoon = null;
+              service.settle();
+            });
+          return;
+        }
+      }
     },
     forget(siteId) {
       sites.delete(siteId);
