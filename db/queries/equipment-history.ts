@@ -144,9 +144,9 @@ export function getEquipmentHistory(
   const changes = listTemporaryChanges(
     db,
     viewer,
-    { siteId: eq0.siteId },
+    { siteId: eq0.siteId, equipmentId: eq0.id },
     { nowMs: window.nowMs, inMemory: window.inMemory },
-  ).filter((c) => c.equipmentId === eq0.id);
+  );
   for (const c of changes) {
     const href = `/visits/${encodeURIComponent(c.visitId)}`;
     if (c.madeAt >= fromMs && c.madeAt <= toMs)

@@ -47,6 +47,7 @@ export interface ChangeFilter {
   /** Only changes not yet put back. */
   inPlace?: boolean;
   changeId?: string;
+  equipmentId?: string;
 }
 
 export interface ChangeReadOptions {
@@ -66,6 +67,7 @@ export function listTemporaryChanges(
     filter.siteId ? eq(temporaryChanges.siteId, filter.siteId) : undefined,
     filter.visitId ? eq(temporaryChanges.visitId, filter.visitId) : undefined,
     filter.changeId ? eq(temporaryChanges.id, filter.changeId) : undefined,
+    filter.equipmentId ? eq(temporaryChanges.equipmentId, filter.equipmentId) : undefined,
     filter.inPlace ? isNull(temporaryChanges.putBackAt) : undefined,
   ];
   const rows = db

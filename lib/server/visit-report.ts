@@ -3,7 +3,8 @@ import sharp from "sharp";
 import { writeAudit } from "@/db/queries/audit";
 import { listEquipment } from "@/db/queries/equipment";
 import { getStoredFile, listSiteFiles } from "@/db/queries/files";
-import { getSeries, getSiteLatest } from "@/db/queries/readings";
+import { listEquipmentPoints } from "@/db/queries/points";
+import { getSeries } from "@/db/queries/readings";
 import { getSite } from "@/db/queries/sites";
 import { insertVisitReport, listVisitReports } from "@/db/queries/visit-reports";
 import { getVisitForReport, getVisitSummary } from "@/db/queries/visits";
@@ -34,15 +35,15 @@ export const TREND_CAPTION = "Chilled water leaving and condenser water entering
 
 /** The two loop temperatures a customer can follow, per chiller, from 30 min before the visit to its end. */
 async function keyTemperatureTrend(ctx: ServiceContext, viewer: Viewer, visit: VisitDto): Promise<Buffer | null> {
-  const chillers = new Map(
-    listEquipment(ctx.db, viewer, visit.siteId)
-      .filter((e) => e.kind === "chiller")
-      .slice(0, 2)
-      .map((e) => [e.id, e.tag]),
-  );
-  const pts = getSiteLatest(ctx.db, viewer, visit.siteId, ctx.nowMs, ctx.inMemory).points.filter(
-    (p) => chillers.has(p.equipmentId) && (TREND_QUANTITIES as readonly string[]).includes(p.quantity),
-  );
+  // Only the chillers' point ids are needed: their records, not the site's latest values.
+  const pts = listEquipment(ctx.db, viewer, visit.siteId)
+    .filter((e) => e.kind === "chiller")
+    .slice(0, 2)
+    .flatMap((e) =>
+      listEquipmentPoints(ctx.db, viewer, e.id)
+        .filter((p) => (TREND_QUANTITIES as readonly string[]).includes(p.quantity))
+        .map((p) => ({ pointId: p.id, tag: e.tag, quantity: p.quantity })),
+    );
   if (pts.length === 0) return null;
   const fromMs = visit.openedAt - 30 * 60_000;
   const toMs = Math.min(ctx.nowMs, (visit.closedAt ?? ctx.nowMs) + 10 * 60_000);
@@ -52,7 +53,7 @@ async function keyTemperatureTrend(ctx: ServiceContext, viewer: Viewer, visit: V
     s: getSeries(ctx.db, viewer, p.pointId, { fromMs, toMs, maxPoints: 240 }, { nowMs: ctx.nowMs, rawRetentionMs }),
   }));
   const lines: TrendLine[] = series.map(({ p, s }) => ({
-    label: `${chillers.get(p.equipmentId)} ${quantities[p.quantity as (typeof TREND_QUANTITIES)[number]].label.toLowerCase()}`,
+    label: `${p.tag} ${quantities[p.quantity as (typeof TREND_QUANTITIES)[number]].label.toLowerCase()}`,
     time: s.time,
     value: s.avg,
   }));
