@@ -98,8 +98,9 @@ describe("power blip through the server", () => {
     const fanOff = review.timeline.find((e) => /fan drive mode: off/.test(e.text))!;
     const trip = review.timeline.find((e) => e.ruleId === "chiller_tripped" && /raised/.test(e.text))!;
     // The blip faults the chiller's drive at the same instant; the fan drive's mode is read at the same or the
-    // next 10-s sample (simulator/README.md: readings every 10 s), so the two lie within one sample.
-    expect(Math.abs(fanOff.atMs - trip.atMs)).toBeLessThanOrEqual(10_000);
+    // next 10-s sample (simulator/README.md: readings every 10 s); at speed a message may carry a sample's
+    // readings a tick apart, so the two lie within two samples.
+    expect(Math.abs(fanOff.atMs - trip.atMs)).toBeLessThanOrEqual(20_000);
   });
 
   it("computes key figures; the warning lead agrees with the rules' lead report", () => {
