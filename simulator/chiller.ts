@@ -14,6 +14,8 @@ const driveCoolingBandK = 3;
 const fullCoolingDpKPa = 30 * KPA_PER_PSI;
 /** Low evaporator pressure: saturated temperature below 33 °F for 30 s (common practice, freeze protection). */
 const lowEvapTripC = fToC(33);
+/** A barrel's flow switch opens below this share of design flow (a paddle or ΔP switch; recalled, not verified). */
+export const flowSwitchShare = 0.25;
 /** Chiller start differential above setpoint and low-load stop below it (common practice). */
 const startDiffK = 1.1;
 const lowLoadStopK = 1.4;
@@ -136,8 +138,8 @@ function stop(
 /** Advance one chiller by env.dt seconds. Mutates `c` (a fresh copy owned by the caller). */
 export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, sink: ChillerSink): void {
   const { tS, dt } = env;
-  c.chwFlowLps = env.chwPumpOn ? p.chwDesignLps : 0;
-  c.cwFlowLps = env.cwPumpOn ? p.cwDesignLps : 0;
+  c.chwFlowLps = env.chwPumpOn ? p.chwDesignLps * c.chwFlowShare : 0;
+  c.cwFlowLps = env.cwPumpOn ? p.cwDesignLps * c.cwFlowShare : 0;
   c.chwInC = env.chwInC;
   c.cwInC = env.cwInC;
 
@@ -167,8 +169,8 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
 
   // Safeties while running.
   if (c.running) {
-    const cwProven = c.cwFlowLps > 0;
-    const chwProven = c.chwFlowLps > 0;
+    const cwProven = c.cwFlowLps > flowSwitchShare * p.cwDesignLps;
+    const chwProven = c.chwFlowLps > flowSwitchShare * p.chwDesignLps;
     c.cwFlowLowS = cwProven ? 0 : c.cwFlowLowS + dt;
     c.chwFlowLowS = chwProven ? 0 : c.chwFlowLowS + dt;
     c.lowEvapS = c.evapSatC < lowEvapTripC ? c.lowEvapS + dt : 0;
@@ -234,7 +236,7 @@ export function stepChiller(p: ChillerParams, c: ChillerState, env: ChillerEnv, 
   }
 
   // Flow loss while running is left to the flow-proof safeties (they trip and latch); a start needs both flows proven.
-  const flowsProven = c.chwFlowLps > 0 && c.cwFlowLps > 0;
+  const flowsProven = c.chwFlowLps > flowSwitchShare * p.chwDesignLps && c.cwFlowLps > flowSwitchShare * p.cwDesignLps;
   if (
     !c.running &&
     permissive &&

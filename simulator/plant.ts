@@ -81,6 +81,8 @@ export function initialState(
     migration: 0,
     pressuresInverted: false,
     condFouling: 1,
+    chwFlowShare: 1,
+    cwFlowShare: 1,
     cwFlowLowS: 0,
     chwFlowLowS: 0,
     lowEvapS: 0,
@@ -167,6 +169,20 @@ function applyCommand(s: PlantState, cmd: PlantCommand, events: ModelEvent[]): v
     case "condenser-fouling": {
       const i = s.params.chillers.findIndex((c) => c.tag === cmd.equipment);
       if (i >= 0) s.chillers = s.chillers.map((c, j) => (j === i ? { ...c, condFouling: cmd.factor } : c));
+      return;
+    }
+    case "flow-restriction": {
+      const i = s.params.chillers.findIndex((c) => c.tag === cmd.equipment);
+      if (i < 0) return;
+      const share = Math.min(1, Math.max(0, cmd.share));
+      const key = cmd.loop === "chilled_water" ? "chwFlowShare" : "cwFlowShare";
+      s.chillers = s.chillers.map((c, j) => (j === i ? { ...c, [key]: share } : c));
+      events.push({
+        tS,
+        kind: share < 1 ? "fault" : "scenario",
+        equipment: cmd.equipment,
+        message: `${cmd.reason}: ${cmd.loop === "chilled_water" ? "chilled" : "condenser"} water flow ${Math.round(share * 100)} % of design with the pump running`,
+      });
       return;
     }
     case "note":

@@ -75,6 +75,9 @@ export interface ChillerState {
   migration: number;
   pressuresInverted: boolean;
   condFouling: number;
+  /** Share of design flow through each barrel while its pump runs (a clogging strainer or part-shut valve lowers it). */
+  chwFlowShare: number;
+  cwFlowShare: number;
   cwFlowLowS: number;
   chwFlowLowS: number;
   lowEvapS: number;
@@ -181,6 +184,14 @@ export type PlantCommand =
   | { kind: "pump-trip"; equipment: string; reason: string }
   | { kind: "pump-reset"; equipment: string }
   | { kind: "condenser-fouling"; equipment: string; factor: number }
+  | {
+      kind: "flow-restriction";
+      equipment: string;
+      loop: "chilled_water" | "condenser_water";
+      /** Share of design flow left with the pump running, 0…1. */
+      share: number;
+      reason: string;
+    }
   | { kind: "note"; message: string };
 
 export interface StepResult {

@@ -57,6 +57,16 @@ const known: Record<string, [string, Format]> = {
   condenserApproachK: ["Condenser approach", delta],
   baselineCondenserApproachK: ["Baseline approach", delta],
   coverage: ["Data coverage", percent],
+  evaporatorFlowShare: ["Evaporator flow, share of design", percent],
+  condenserFlowShare: ["Condenser flow, share of design", percent],
+  evaporatorWaterDpKPa: ["Evaporator water ΔP", pressureDelta],
+  condenserWaterDpKPa: ["Condenser water ΔP", pressureDelta],
+  evaporatorDesignDpKPa: ["Evaporator ΔP at design flow", pressureDelta],
+  condenserDesignDpKPa: ["Condenser ΔP at design flow", pressureDelta],
+  running: ["Compressor running", yesNo],
+  commanded: ["Commanded on", yesNo],
+  proven: ["Run proven", yesNo],
+  faulted: ["Drive fault", yesNo],
 };
 
 function describe(key: string): [string, Format] {

@@ -311,6 +311,7 @@ export function siteEquipment(db: Db, siteId: string): Site {
       refrigerant: e.refrigerant ?? undefined,
       serves: e.serves ?? undefined,
     };
+    if (e.kind === "pump") return { ...out, loop: pumpLoopOf(e.record) ?? undefined };
     if (e.kind !== "chiller") return out;
     const compressorType = compressorTypeOf(e.record);
     const limits = effectiveChillerLimits(
@@ -320,8 +321,21 @@ export function siteEquipment(db: Db, siteId: string): Site {
         .filter((l) => l.equipmentId === e.id)
         .map((l) => ({ key: l.key as ChillerLimitKey, value: l.value, setBy: l.setBy, setAtMs: l.setAt.getTime() })),
     );
-    return { ...out, compressorType: compressorType ?? undefined, limits: limitValues(limits) };
+    return {
+      ...out,
+      cwDesignFlowLps: positiveOf(e.record, "cwDesignFlowLps"),
+      evapDesignDpKPa: positiveOf(e.record, "evapDesignDpKPa"),
+      condDesignDpKPa: positiveOf(e.record, "condDesignDpKPa"),
+      compressorType: compressorType ?? undefined,
+      limits: limitValues(limits),
+    };
   });
+}
+
+/** A positive number stored in an equipment record's field, else undefined (absent in an older record). */
+function positiveOf(record: Record<string, unknown>, field: string): number | undefined {
+  const v = record[field];
+  return typeof v === "number" && Number.isFinite(v) && v > 0 ? v : undefined;
 }
 
 /** The compressor type stored in an equipment record, or null when absent or unknown. */

@@ -71,6 +71,9 @@ function plant(layout: SiteLayout): DemoEquipment[] {
       chwLeavingDesignC: round1(fToC(d.chwSupplyF)),
       cwEnteringDesignC: round1(fToC(d.cwEnteringF)),
       cwLeavingDesignC: round1(fToC(d.cwEnteringF) + cwRangeK),
+      // Barrel pressure drops at design flow, as on the chiller's rating sheet.
+      evapDesignDpKPa: round1(p.evapDpDesignKPa),
+      condDesignDpKPa: round1(p.condDpDesignKPa),
       highCondTripKPa: p.highCondTripKPa,
     });
     list.push({

@@ -138,5 +138,6 @@ export function trendQuantitiesFor(ruleIds: readonly string[]): {
   ];
   const tower: QuantityKey[] = ["fan_drive_mode", "fan_speed", "fan_status"];
   if (ruleIds.includes("pump_not_proven")) chiller.push("compressor_power");
+  if (ruleIds.includes("barrel_flow_lost")) chiller.push("evaporator_water_dp", "condenser_water_dp");
   return { chiller, tower };
 }

@@ -62,6 +62,20 @@ export function equipmentFields(kind: EquipmentKindName, system: UnitSystem): Eq
         { name: "cwDesignFlowLps", label: "Design condenser-water flow", type: "number", measure: "flowLps" },
         { name: "cwEnteringDesignC", label: "Design condenser water entering", type: "number", measure: "tempC" },
         { name: "cwLeavingDesignC", label: "Design condenser water leaving", type: "number", measure: "tempC" },
+        {
+          name: "evapDesignDpKPa",
+          label: "Evaporator water pressure drop at design flow",
+          type: "number",
+          measure: "headKPa",
+          hint: "From the chiller's rating sheet; without it a barrel losing flow is not seen",
+        },
+        {
+          name: "condDesignDpKPa",
+          label: "Condenser water pressure drop at design flow",
+          type: "number",
+          measure: "headKPa",
+          hint: "From the chiller's rating sheet; without it a barrel losing flow is not seen",
+        },
         ...nameplate,
       ];
     case "cooling_tower":

@@ -9,6 +9,13 @@ export interface Equipment {
   capacityTons?: number;
   /** Design chilled-water (evaporator) flow, L/s (chillers); used while the pumps serving it are proven. */
   designFlowLps?: number;
+  /** Chillers: design condenser-water flow, L/s. */
+  cwDesignFlowLps?: number;
+  /** Chillers: water pressure drop across each barrel at design flow, kPa (the AHRI rating sheet's figures). */
+  evapDesignDpKPa?: number;
+  condDesignDpKPa?: number;
+  /** Pumps: the loop they move. */
+  loop?: "chilled_water" | "condenser_water";
   refrigerant?: string;
   /** Tag of the equipment this one serves (a pump or tower serving a chiller). */
   serves?: string;

@@ -15,6 +15,7 @@ export const ruleIds = [
   "tower_fan_not_in_auto",
   "starts_per_hour",
   "pump_not_proven",
+  "barrel_flow_lost",
   "chilled_water_not_made",
   "sensor_implausible",
 ] as const;

@@ -22,6 +22,7 @@ import { towerFanNotRunning } from "./tower-fan";
 import { towerFanNotInAuto } from "./fan-mode";
 import { startsPerHour } from "./starts-per-hour";
 import { pumpNotProven } from "./pump-proof";
+import { barrelFlowLost } from "./barrel-flow";
 import { chilledWaterNotMade } from "./chilled-water-not-made";
 import { sensorFaults, sensorImplausible, suppressOnFailedSensors } from "./plausibility";
 
@@ -41,6 +42,7 @@ export const rules: Record<Exclude<RuleId, "sensor_implausible">, Rule> = {
   tower_fan_not_in_auto: towerFanNotInAuto,
   starts_per_hour: startsPerHour,
   pump_not_proven: pumpNotProven,
+  barrel_flow_lost: barrelFlowLost,
   chilled_water_not_made: chilledWaterNotMade,
 };
 

@@ -28,6 +28,7 @@ const ruleSettingKey: Record<Condition["ruleId"], keyof RuleSettings> = {
   tower_fan_not_in_auto: "towerFanMode",
   starts_per_hour: "startsPerHour",
   pump_not_proven: "pumpProof",
+  barrel_flow_lost: "barrelFlow",
   chilled_water_not_made: "chilledWaterNotMade",
   sensor_implausible: "sensorPlausibility",
 };

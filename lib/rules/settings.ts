@@ -125,6 +125,20 @@ export const ruleSettingsSchema = z.strictObject({
     .prefault({}),
   /** Pump commanded on but not proven; the 30 s on-delay is a flow-proof delay (common practice). */
   pumpProof: z.strictObject({ ...common(2, 30, 30) }).prefault({}),
+  /** Flow through a chiller's barrel below a share of design while its pump is proven. */
+  barrelFlow: z
+    .strictObject({
+      // 30 s: the same flow-proof delay, so a pump starting or a valve stroking is not a loss.
+      ...common(2, 30, 60),
+      /**
+       * Below half the design flow (a quarter of the design ΔP): under most chillers' published minimum
+       * barrel flow, and far under what a plant varying its flow runs at (common practice; the
+       * manufacturer's minimum governs).
+       */
+      minFlowShare: z.number().min(0).max(1).default(0.5),
+      deadBandShare: z.number().min(0).max(1).default(0.05),
+    })
+    .prefault({}),
   headPressure: z
     .strictObject({
       ...common(2, 15, 60),

@@ -41,6 +41,9 @@ const chiller = z.strictObject({
   chwLeavingDesignC: tempC(-10, 25).nullish(),
   cwEnteringDesignC: tempC(5, 45).nullish(),
   cwLeavingDesignC: tempC(5, 55).nullish(),
+  /** Water pressure drop across each barrel at its design flow (kPa), as the selection states it. */
+  evapDesignDpKPa: positive(500).nullish(),
+  condDesignDpKPa: positive(500).nullish(),
   model: nameplate,
   serial: nameplate,
   year: nameplate,

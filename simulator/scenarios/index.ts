@@ -6,6 +6,7 @@ import { mildDay } from "./mild-day";
 import { normalDay } from "./normal-day";
 import { powerBlip } from "./power-blip";
 import { slowCrossover } from "./slow-crossover";
+import { strainerClogging } from "./strainer-clogging";
 import type { Scenario } from "./types";
 
 export const scenarios: Record<string, Scenario> = {
@@ -14,6 +15,7 @@ export const scenarios: Record<string, Scenario> = {
   [powerBlip.name]: powerBlip,
   [slowCrossover.name]: slowCrossover,
   [condenserPumpLoss.name]: condenserPumpLoss,
+  [strainerClogging.name]: strainerClogging,
   [fouledCondenser.name]: fouledCondenser,
   [designSteady.name]: designSteady,
 };

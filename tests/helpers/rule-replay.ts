@@ -6,18 +6,41 @@ import type { Site } from "@/lib/plant";
 import { createSiteMonitor, defaultRuleSettings, type Condition, type RuleSettings } from "@/lib/rules";
 import type { TransitionRecord } from "@/lib/alarms";
 import { limitsOf } from "@/lib/plant/equipment-limits";
+import { chillerParamsOf } from "@/simulator/params";
 
 export const REPLAY_START_MS = Date.UTC(2025, 6, 1, 14, 0, 0);
 
-/** The rules' view of a simulated site: chillers with capacity and refrigerant, pumps serving their chiller. */
+/**
+ * The rules' view of a simulated site, as the demo's equipment records give it: chillers with capacity,
+ * refrigerant, design flows and barrel pressure drops; pumps serving their chiller on their loop.
+ */
 export function siteOfLayout(layout: SiteLayout): Site {
+  const params = chillerParamsOf(layout);
   return equipmentOf(layout).map((e) => {
-    const chiller = layout.chillers.find((c) => c.tag === e.tag);
-    if (chiller)
-      return { tag: e.tag, kind: e.kind, capacityTons: chiller.capacityTons, refrigerant: chiller.refrigerant };
+    const i = layout.chillers.findIndex((c) => c.tag === e.tag);
+    if (i >= 0) {
+      const { capacityTons, refrigerant } = layout.chillers[i];
+      const p = params[i];
+      return {
+        tag: e.tag,
+        kind: e.kind,
+        capacityTons,
+        refrigerant,
+        designFlowLps: p.chwDesignLps,
+        cwDesignFlowLps: p.cwDesignLps,
+        evapDesignDpKPa: p.evapDpDesignKPa,
+        condDesignDpKPa: p.condDpDesignKPa,
+      };
+    }
     // Pumps are dedicated: CHWP-n and CWP-n serve CH-n.
-    const pump = /^C(?:H)?WP-(\d+)$/.exec(e.tag);
-    if (pump) return { tag: e.tag, kind: e.kind, serves: `CH-${pump[1]}` };
+    const pump = /^C(H)?WP-(\d+)$/.exec(e.tag);
+    if (pump)
+      return {
+        tag: e.tag,
+        kind: e.kind,
+        serves: `CH-${pump[2]}`,
+        loop: pump[1] ? ("chilled_water" as const) : ("condenser_water" as const),
+      };
     return { tag: e.tag, kind: e.kind };
   });
 }

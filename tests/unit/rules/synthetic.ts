@@ -11,10 +11,20 @@ import { effectiveChillerLimits, limitValues, type ChillerLimitValues } from "@/
 export const T0 = Date.UTC(2025, 6, 1, 14, 0, 0);
 
 export const site: Site = [
-  { tag: "CH-1", kind: "chiller", capacityTons: 400, designFlowLps: 60.6, refrigerant: "R-134a" },
+  // Design flows 2.4 and 3 gpm/ton (AHRI 550/590 rating flows); barrel drops as a rating sheet might state them.
+  {
+    tag: "CH-1",
+    kind: "chiller",
+    capacityTons: 400,
+    designFlowLps: 60.6,
+    cwDesignFlowLps: 75.7,
+    evapDesignDpKPa: 60,
+    condDesignDpKPa: 50,
+    refrigerant: "R-134a",
+  },
   { tag: "CT-1", kind: "cooling_tower" },
-  { tag: "CHWP-1", kind: "pump", serves: "CH-1" },
-  { tag: "CWP-1", kind: "pump", serves: "CH-1" },
+  { tag: "CHWP-1", kind: "pump", serves: "CH-1", loop: "chilled_water" },
+  { tag: "CWP-1", kind: "pump", serves: "CH-1", loop: "condenser_water" },
   { tag: "AHU-1", kind: "air_handler" },
   { tag: "WS-1", kind: "weather_station" },
 ];
@@ -61,6 +71,11 @@ export interface Frame {
   cwPumpStatus: boolean;
   cwPumpCommand: boolean | null;
   cwPumpFault: boolean | null;
+  /** Barrel water pressure drops and flows (null: the site has no such point). */
+  evapDpKPa: number | null;
+  condDpKPa: number | null;
+  chwFlowLps: number | null;
+  cwFlowLps: number | null;
   /** Equipment that sends nothing this step. */
   silent: string[];
 }
@@ -94,6 +109,10 @@ export const normalFrame: Frame = {
   towerSetpointC: 29.4,
   towerInC: 34.6,
   wetBulbC: 25.5,
+  evapDpKPa: null,
+  condDpKPa: null,
+  chwFlowLps: null,
+  cwFlowLps: null,
   silent: [],
 };
 
@@ -126,6 +145,10 @@ export function readingsOf(tsMs: number, f: Frame): Reading[] {
   add("CT-1", "fan_drive_fault", f.towerFault);
   add("CT-1", "fan_speed", f.fanSpeedPct);
   add("CT-1", "fan_status", f.fanRunning);
+  add("CH-1", "evaporator_water_dp", f.evapDpKPa);
+  add("CH-1", "condenser_water_dp", f.condDpKPa);
+  add("CH-1", "chilled_water_flow", f.chwFlowLps);
+  add("CH-1", "condenser_water_flow", f.cwFlowLps);
   add("CHWP-1", "pump_status", true);
   add("CWP-1", "pump_status", f.cwPumpStatus);
   add("CWP-1", "pump_run_command", f.cwPumpCommand);
