@@ -25,12 +25,15 @@ export function AlarmCard({
   unitSystem,
   timeZone,
   onChanged,
+  showNumbers = true,
 }: {
   alarm: AlarmDto;
   canAct: boolean;
   unitSystem: UnitSystem;
   timeZone: string;
   onChanged?: () => void;
+  /** False where the page sets the numbers beside their values when raised instead (the alarm page). */
+  showNumbers?: boolean;
 }) {
   const router = useRouter();
   const { data, mutate } = useSWR<{ alarm: AlarmWithHistoryDto }>(`/api/alarms/${alarm.id}`, fetchJson);
@@ -59,9 +62,11 @@ export function AlarmCard({
       </h3>
       {canAct ? (
         <>
-          <div className="mt-3">
-            <AlarmNumbers numbers={d.numbers} unitSystem={unitSystem} timeZone={timeZone} />
-          </div>
+          {showNumbers ? (
+            <div className="mt-3">
+              <AlarmNumbers numbers={d.numbers} unitSystem={unitSystem} timeZone={timeZone} />
+            </div>
+          ) : null}
           {d.advice.length ? (
             <div className="mt-3">
               <h4 className="text-sm font-semibold">What to consider</h4>

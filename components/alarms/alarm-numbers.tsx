@@ -57,6 +57,17 @@ const known: Record<string, [string, Format]> = {
   condenserApproachK: ["Condenser approach", delta],
   baselineCondenserApproachK: ["Baseline approach", delta],
   coverage: ["Data coverage", percent],
+  startMarginK: ["Start margin needed", delta],
+  refrigerantBasis: ["Judged on", (v) => (v ? "shell pressures" : "water temperatures")],
+  compressorLoadS: ["Time to load after a start", duration],
+  restartNeedsS: ["Back on load in", duration],
+  restartInS: ["Restart possible in", duration],
+  leavingC: ["Chilled water leaving", temp],
+  cutoutC: ["Cut-out", temp],
+  fallKPerMin: ["Falling at", deltaPerMin],
+  driveInOff: ["Fan drive in off", yesNo],
+  driveInHand: ["Fan drive in hand", yesNo],
+  failedSensors: ["Failed sensors", plain],
   evaporatorFlowShare: ["Evaporator flow, share of design", percent],
   condenserFlowShare: ["Condenser flow, share of design", percent],
   evaporatorWaterDpKPa: ["Evaporator water ΔP", pressureDelta],
@@ -77,6 +88,11 @@ function describe(key: string): [string, Format] {
   if (key.endsWith("K")) return [label, delta];
   if (key.endsWith("C")) return [label, temp];
   return [label, plain];
+}
+
+/** A rule number's label in words ("marginK" → "Crossover margin"). */
+export function numberLabel(key: string): string {
+  return describe(key)[0];
 }
 
 export function formatNumber(key: string, value: number | null, system: UnitSystem, timeZone?: string): string {

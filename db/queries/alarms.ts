@@ -97,12 +97,13 @@ export function listAlarms(db: Db, viewer: Viewer, filter: AlarmFilter = {}): Al
 
 export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHistoryDto | null {
   const row = db
-    .select(dtoColumns)
+    .select({ ...dtoColumns, raisedDetailJson: alarms.raisedDetailJson })
     .from(alarms)
     .innerJoin(sites, eq(sites.id, alarms.siteId))
     .where(and(eq(alarms.id, alarmId), siteScope(viewer)))
     .get();
   if (!row) return null;
+  const { raisedDetailJson, ...dtoRow } = row;
   const staff = seesAllSites(viewer);
   const events = db
     .select({
@@ -128,7 +129,10 @@ export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHist
     .where(and(eq(alarmNotes.alarmId, alarmId), staff ? undefined : eq(alarmNotes.visibility, "customer")))
     .orderBy(asc(alarmNotes.id))
     .all();
-  return { ...toDto(row, staff, viewer.unitSystem), events, notes };
+  const raisedDetail = raisedDetailJson
+    ? renderedDetail(JSON.parse(raisedDetailJson) as AlarmDetail, viewer.unitSystem)
+    : null;
+  return { ...toDto(dtoRow, staff, viewer.unitSystem), raisedDetail, events, notes };
 }
 
 /** The alarm's site and key, when the viewer may see it (for commands). */
@@ -215,6 +219,8 @@ export function saveAlarmChanges(
             : (existing?.activeSinceMs ?? null),
           updatedAt: Date.now(),
           ...(detail ? { detailJson: JSON.stringify(detail) } : {}),
+          // Kept beside the latest words, so the alarm can show what it read when raised and what it reads now.
+          ...(detail && becameActive ? { raisedDetailJson: JSON.stringify(detail) } : {}),
         };
         if (existing) {
           tx.update(alarms)

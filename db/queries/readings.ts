@@ -438,3 +438,38 @@ export function pointRuleNameLookup(db: Db): (pointId: number) => { tag: string;
     .prepare();
   return (pointId) => statement.get({ pointId });
 }
+
+/**
+ * Each point's reading at `atMs` (the newest at or before it, no older than `withinMs`), as screens
+ * get values (booleans as booleans); points of sites the viewer may not see are left out.
+ */
+export function valuesAt(
+  db: Db,
+  viewer: Viewer,
+  pointIds: readonly number[],
+  atMs: number,
+  withinMs = 15 * MINUTE_MS,
+): Map<number, { tsMs: number; value: number | boolean | string }> {
+  const out = new Map<number, { tsMs: number; value: number | boolean | string }>();
+  for (const pointId of pointIds) {
+    const p = db
+      .select({ siteId: equipment.siteId, quantity: points.quantity })
+      .from(points)
+      .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+      .where(eq(points.id, pointId))
+      .get();
+    if (!p || !canSeeSite(db, viewer, p.siteId)) continue;
+    // The primary key (point_id, ts) makes this one index step back from `atMs`.
+    const row = db
+      .select({ ts: readings.ts, value: readings.value, text: readings.text })
+      .from(readings)
+      .where(and(eq(readings.pointId, pointId), lt(readings.ts, atMs + 1), gte(readings.ts, atMs - withinMs)))
+      .orderBy(sql`${readings.ts} desc`)
+      .limit(1)
+      .get();
+    if (!row) continue;
+    const value = liveValue(quantities[p.quantity as QuantityKey]?.measure ?? "text", row.value, row.text);
+    if (value !== null) out.set(pointId, { tsMs: row.ts, value });
+  }
+  return out;
+}

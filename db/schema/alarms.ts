@@ -26,6 +26,8 @@ export const alarms = sqliteTable(
     machineJson: text("machine_json").notNull(),
     /** The latest condition's words and numbers (technician and owner messages, advice, caution). */
     detailJson: text("detail_json").notNull(),
+    /** The words and numbers when the current activation was raised (null before the first, or on older rows). */
+    raisedDetailJson: text("raised_detail_json"),
     /** Event time the current activation began, ms. */
     activeSinceMs: integer("active_since_ms"),
     lastTransitionMs: integer("last_transition_ms"),

@@ -48,6 +48,8 @@ export interface AlarmNoteDto {
 }
 
 export interface AlarmWithHistoryDto extends AlarmDto {
+  /** The words and numbers when the current (or last) activation was raised; null on rows stored before they were kept. */
+  raisedDetail: AlarmDetail | null;
   events: AlarmEventDto[];
   notes: AlarmNoteDto[];
 }

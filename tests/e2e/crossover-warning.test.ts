@@ -107,5 +107,25 @@ describe.skipIf(!hasChromium)("crossover warning from a simulated incident", () 
     );
     expect(refused).toBe(403);
     await owner.close();
+
+    // The technician opens the alarm: each reading it rests on, when raised beside now (live), at phone width in the dark.
+    const again = await env.browser.newContext({ viewport: viewports.phone, colorScheme: "dark" });
+    const alarmPage = await again.newPage();
+    const alarmProblems = watchConsole(alarmPage);
+    await signInAs(alarmPage, env.server.url, "luis@tallgrass.example");
+    await alarmPage.goto(`${env.server.url}/alarms/${alarmId}`);
+    const rows = alarmPage.getByTestId("then-now-reading");
+    await rows.first().waitFor({ timeout: 15_000 });
+    expect(await rows.count()).toBeGreaterThanOrEqual(2);
+    await expect
+      .poll(async () => (await rows.getByTestId("now-value").allTextContents()).every((t) => /\d/.test(t)), {
+        timeout: 15_000,
+      })
+      .toBe(true);
+    expect((await rows.getByTestId("raised-value").allTextContents()).some((t) => /\d/.test(t))).toBe(true);
+    expect(await alarmPage.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth)).toBe(true);
+    await screenshot(alarmPage, "alarm-then-and-now-technician-phone-dark");
+    expect(alarmProblems.filter((p) => !p.includes("WebSocket"))).toEqual([]);
+    await again.close();
   }, 240_000);
 });

@@ -99,8 +99,23 @@ interface SiteState {
   ingestWallMs: number;
   snapshot: SiteSnapshot | null;
   details: Map<string, AlarmDetail>;
+  /** Per alarm key, the words last written and their event time: numbers that move are rewritten at most every DETAIL_REFRESH_MS. */
+  savedDetails: Map<string, { atMs: number; words: string }>;
   /** Changes the rule checks made that could not be saved yet (a full disk); saved with the next ones. */
   unsaved: { alarms: Map<string, Alarm>; transitions: TransitionRecord[] };
+}
+
+/** An active alarm's moving numbers are rewritten at most this often (event time); changed words at once. */
+const DETAIL_REFRESH_MS = 30_000;
+
+const wordsOf = (d: AlarmDetail) => JSON.stringify([d.technicianMessage, d.ownerMessage, d.advice, d.caution]);
+
+/** True when the alarm's latest words differ from those stored, or its numbers are older than DETAIL_REFRESH_MS. */
+function detailMoved(s: SiteState, key: string): boolean {
+  const d = s.details.get(key);
+  if (!d) return false;
+  const saved = s.savedDetails.get(key);
+  return !saved || saved.words !== wordsOf(d) || d.atMs - saved.atMs >= DETAIL_REFRESH_MS;
 }
 
 /** Transitions kept for a later save at most, per site, while the database cannot be written. */
@@ -148,6 +163,7 @@ export function createAlarmService(deps: {
         ingestWallMs: deps.clock(),
         snapshot: null,
         details: new Map(),
+        savedDetails: new Map(),
         unsaved: { alarms: new Map(), transitions: [] },
       };
       sites.set(siteId, s);
@@ -171,11 +187,8 @@ export function createAlarmService(deps: {
     const changed = new Map(s.unsaved.alarms);
     for (const [key, a] of after) {
       // Rows exist for alarms that ever left normal; keep their words fresh while active.
-      if (
-        before.get(key) !== a &&
-        (transitions.some((t) => t.alarmKey === key) || a.conditionActive || a.state !== "normal")
-      )
-        changed.set(key, a);
+      if (!(transitions.some((t) => t.alarmKey === key) || a.conditionActive || a.state !== "normal")) continue;
+      if (before.get(key) !== a || detailMoved(s, key)) changed.set(key, a);
     }
     const all = s.unsaved.transitions.length ? [...s.unsaved.transitions, ...transitions] : transitions;
     if (!changed.size && !all.length) return;
@@ -189,6 +202,10 @@ export function createAlarmService(deps: {
       return;
     }
     s.unsaved = { alarms: new Map(), transitions: [] };
+    for (const key of changed.keys()) {
+      const d = s.details.get(key);
+      if (d) s.savedDetails.set(key, { atMs: d.atMs, words: wordsOf(d) });
+    }
     deps.storage?.ok();
     deps.incidents?.saved(siteId, stored);
     if (all.length) deps.onAlarmsChanged?.(siteId, all);

@@ -9,7 +9,11 @@ import { AlarmDeliveries } from "@/components/alarms/alarm-deliveries";
 import { listDeliveries } from "@/db/queries/notify";
 import { AlarmTimeline } from "@/components/alarms/alarm-timeline";
 import { TrendChart } from "@/components/charts/trend-chart";
-import { isQuantityKey, quantities, type QuantityKey } from "@/lib/quantities";
+import { isQuantityKey, quantities } from "@/lib/quantities";
+import type { EquipmentKind } from "@/lib/quantities";
+import { evidencePoints } from "@/lib/rules/evidence";
+import { valuesAt } from "@/db/queries/readings";
+import { ThenAndNow, type EvidenceReading } from "@/components/alarms/then-and-now";
 import { canAct } from "@/lib/auth/viewer";
 import { TemporaryChangeBanner } from "@/components/service/change-banner";
 import { OpenVisitButton } from "@/components/service/open-visit-button";
@@ -19,19 +23,6 @@ import { requirePageViewer } from "../../../(auth)/auth";
 export const metadata: Metadata = { title: "Alarm" };
 export const dynamic = "force-dynamic";
 
-// The readings each rule rests on, shown under the alarm's history.
-const evidence: Record<string, QuantityKey[]> = {
-  crossover_risk: ["chilled_water_entering_temp", "condenser_water_entering_temp"],
-  restart_race: ["chilled_water_entering_temp", "condenser_water_entering_temp"],
-  loops_crossed: ["chilled_water_entering_temp", "condenser_water_entering_temp"],
-  tower_fan_not_running: ["condenser_water_leaving_temp", "fan_speed"],
-  head_pressure_near_trip: ["condenser_refrigerant_pressure"],
-  drive_temp_toward_trip: ["drive_temp"],
-  chiller_tripped: ["compressor_power"],
-  efficiency_drift: ["compressor_power", "condenser_water_entering_temp"],
-  low_evaporator_pressure: ["evaporator_saturated_temp"],
-};
-
 export default async function AlarmPage({ params }: { params: Promise<{ alarmId: string }> }) {
   const viewer = await requirePageViewer();
   const db = getDb();
@@ -40,13 +31,39 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
   const site = getSite(db, viewer, alarm.siteId)!;
   const staff = canAct(viewer);
   const visits = staff ? openVisitsForAlarm(db, viewer, alarm.id) : [];
-  const equipment = site.equipment.find((e) => e.tag === alarm.equipment);
-  const charts = (evidence[alarm.ruleId] ?? []).flatMap((q) => {
-    const point = equipment?.points.find((p) => p.quantity === q);
-    return point && isQuantityKey(point.quantity)
-      ? [{ id: point.id, label: quantities[point.quantity].label, measure: quantities[point.quantity].measure }]
-      : [];
+  // The rule's readings, on the alarm's equipment or a tower serving its chiller.
+  const pointOf = (tag: string, q: string) =>
+    site.equipment.find((e) => e.tag === tag)?.points.find((p) => p.quantity === q);
+  const found = evidencePoints(
+    site.equipment.map((e) => ({ tag: e.tag, kind: e.kind as EquipmentKind, serves: e.serves ?? undefined })),
+    alarm.ruleId,
+    alarm.equipment,
+    (tag, q) => pointOf(tag, q) !== undefined,
+  ).flatMap(({ tag, quantity }) => {
+    const point = pointOf(tag, quantity);
+    if (!point || !isQuantityKey(point.quantity)) return [];
+    const q = quantities[point.quantity];
+    const label = tag === alarm.equipment ? q.label : `${tag} ${q.label.toLowerCase()}`;
+    return [{ id: point.id, tag, label, measure: q.measure }];
   });
+  // A text, mode or on/off reading has no trend line; it still reads in the table.
+  const charts = found.filter((c) => !["text", "state", "boolean"].includes(c.measure));
+  const raisedAtMs = alarm.activeSinceMs ?? alarm.raisedDetail?.atMs ?? null;
+  const then =
+    staff && raisedAtMs !== null
+      ? valuesAt(
+          db,
+          viewer,
+          found.map((c) => c.id),
+          raisedAtMs,
+        )
+      : new Map<number, { tsMs: number; value: number | boolean | string }>();
+  const readings: EvidenceReading[] = found.map((c) => ({
+    pointId: c.id,
+    label: c.label,
+    measure: c.measure,
+    raised: then.get(c.id) ?? null,
+  }));
   return (
     <article className="flex flex-col gap-6">
       <p className="text-sm">
@@ -69,7 +86,33 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
           <OpenVisitButton alarmId={alarm.id} />
         )
       ) : null}
-      <AlarmCard alarm={alarm} canAct={staff} unitSystem={viewer.unitSystem} timeZone={site.timeZone} />
+      <AlarmCard
+        alarm={alarm}
+        canAct={staff}
+        unitSystem={viewer.unitSystem}
+        timeZone={site.timeZone}
+        showNumbers={false}
+      />
+      {staff ? (
+        <ThenAndNow
+          siteId={site.id}
+          raisedAtMs={raisedAtMs}
+          raised={
+            alarm.raisedDetail
+              ? {
+                  atMs: alarm.raisedDetail.atMs,
+                  message: alarm.raisedDetail.technicianMessage,
+                  numbers: alarm.raisedDetail.numbers,
+                }
+              : null
+          }
+          latest={{ atMs: alarm.detail.atMs, message: alarm.detail.technicianMessage, numbers: alarm.detail.numbers }}
+          active={alarm.conditionActive}
+          readings={readings}
+          unitSystem={viewer.unitSystem}
+          timeZone={site.timeZone}
+        />
+      ) : null}
       <section>
         <h2 className="mb-2 text-lg font-semibold">History</h2>
         <AlarmTimeline events={alarm.events} staff={staff} timeZone={site.timeZone} />
@@ -86,7 +129,7 @@ export default async function AlarmPage({ params }: { params: Promise<{ alarmId:
           {charts.map((c) => (
             <div key={c.id}>
               <h3 className="mb-1 text-sm font-semibold">
-                {alarm.equipment} {c.label}
+                {c.tag === alarm.equipment ? `${alarm.equipment} ${c.label}` : c.label}
               </h3>
               <TrendChart
                 siteId={site.id}

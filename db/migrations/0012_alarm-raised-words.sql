@@ -1,0 +1,1 @@
+ALTER TABLE `alarms` ADD `raised_detail_json` text;
