@@ -1,6 +1,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import type { Browser, Page } from "playwright-core";
+import { wcagContrast } from "culori";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { hasChromium, launchBrowser, screenshot, signInAs, viewports } from "../helpers/browser";
 import { adminCookie, api, raiseChillerTrip, waitFor } from "../helpers/mqtt";
@@ -234,6 +235,29 @@ describe.skipIf(!hasChromium)(
       if (role === "admin") expect(reached.length).toBe(urls.length);
       await context.close();
       expect(serious.filter((s) => s.startsWith(role))).toEqual([]);
+    });
+
+    it("text fields show their border at 3:1 or more against the panel, light and dark (SC 1.4.11)", async () => {
+      for (const colorScheme of ["light", "dark"] as const) {
+        const context = await browser.newContext({ viewport: viewports.phone, colorScheme });
+        const page = await context.newPage();
+        await page.goto(`${server.url}/sign-in`);
+        const field = page.getByLabel("E-mail");
+        await field.waitFor();
+        const [border, behind] = await field.evaluate((el) => {
+          const panel = (node: Element | null): string => {
+            for (let n = node; n; n = n.parentElement) {
+              const bg = getComputedStyle(n).backgroundColor;
+              if (bg && bg !== "rgba(0, 0, 0, 0)" && bg !== "transparent") return bg;
+            }
+            return "rgb(255, 255, 255)";
+          };
+          return [getComputedStyle(el).borderTopColor, panel(el.parentElement)];
+        });
+        // culori's WCAG 2.2 contrast ratio of the computed colours.
+        expect(wcagContrast(border, behind), `${colorScheme}: ${border} on ${behind}`).toBeGreaterThanOrEqual(3);
+        await context.close();
+      }
     });
 
     it("the server renders the remembered theme: a dark cookie gives a dark first paint", async () => {

@@ -7,7 +7,7 @@ import { describe, expect, it } from "vitest";
 // `wcagContrast` (the WCAG 2.2 relative-luminance formula, "contrast ratio" definition).
 //   SC 1.4.3 Contrast (Minimum), AA: 4.5:1 for text.
 //   SC 1.4.6 Contrast (Enhanced), AAA: 7:1 — held here for live values and alarm text.
-//   SC 1.4.11 Non-text Contrast, AA: 3:1 for the focus ring against what it sits on.
+//   SC 1.4.11 Non-text Contrast, AA: 3:1 for the focus ring and form controls' borders against what they sit on.
 
 const css = readFileSync(path.resolve(import.meta.dirname, "../../app/globals.css"), "utf8");
 
@@ -55,6 +55,8 @@ function pairs(t: Record<string, string>) {
   const focus: Pair[] = [
     [t.advisory, t.panel, "focus ring on a panel"],
     [t.advisory, t.surface, "focus ring on the page"],
+    [t.control, t.panel, "a text field's or select's border on a panel"],
+    [t.control, t.surface, "a text field's or select's border on the page"],
   ];
   return { aaa, aa, focus };
 }
