@@ -95,15 +95,29 @@ export function listAlarms(db: Db, viewer: Viewer, filter: AlarmFilter = {}): Al
     .map((row) => toDto(row, seesAllSites(viewer), filter.keepTokens ? "tokens" : viewer.unitSystem));
 }
 
-export function getAlarm(db: Db, viewer: Viewer, alarmId: string): AlarmWithHistoryDto | null {
-  const row = db
-    .select({ ...dtoColumns, raisedDetailJson: alarms.raisedDetailJson })
+/** Live words newer than the stored ones, from the running alarm service (by site and alarm key). */
+export type LatestDetail = (siteId: string, key: string) => AlarmDetail | undefined;
+
+export function getAlarm(
+  db: Db,
+  viewer: Viewer,
+  alarmId: string,
+  latestDetail?: LatestDetail,
+): AlarmWithHistoryDto | null {
+  const stored = db
+    .select({ ...dtoColumns, key: alarms.key, raisedDetailJson: alarms.raisedDetailJson })
     .from(alarms)
     .innerJoin(sites, eq(sites.id, alarms.siteId))
     .where(and(eq(alarms.id, alarmId), siteScope(viewer)))
     .get();
-  if (!row) return null;
-  const { raisedDetailJson, ...dtoRow } = row;
+  if (!stored) return null;
+  const { raisedDetailJson, key, ...row } = stored;
+  // The stored words refresh their numbers every few minutes; the rules in memory have this evaluation's.
+  const live = latestDetail?.(row.siteId, key);
+  const dtoRow =
+    live && live.atMs > (JSON.parse(row.detailJson) as AlarmDetail).atMs
+      ? { ...row, detailJson: JSON.stringify(live) }
+      : row;
   const staff = seesAllSites(viewer);
   const events = db
     .select({

@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { getDb } from "@/lib/server/runtime";
+import { getDb, getRuntime } from "@/lib/server/runtime";
 import { getAlarm } from "@/db/queries/alarms";
 import { getSite } from "@/db/queries/sites";
 import { AlarmCard } from "@/components/alarms/alarm-card";
@@ -26,7 +26,7 @@ export const dynamic = "force-dynamic";
 export default async function AlarmPage({ params }: { params: Promise<{ alarmId: string }> }) {
   const viewer = await requirePageViewer();
   const db = getDb();
-  const alarm = getAlarm(db, viewer, (await params).alarmId);
+  const alarm = getAlarm(db, viewer, (await params).alarmId, getRuntime()?.alarms.latestDetail);
   if (!alarm) notFound();
   const site = getSite(db, viewer, alarm.siteId)!;
   const staff = canAct(viewer);
