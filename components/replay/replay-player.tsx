@@ -1,5 +1,6 @@
 "use client";
 
+import { fromSiteWallInput, toSiteWallInput } from "@/lib/client/site-wall-time";
 import { useEffect, useMemo, useState } from "react";
 import { useRouter } from "next/navigation";
 import useSWR from "swr";
@@ -21,12 +22,6 @@ const STEP_MS = 10_000;
 const TREND_WINDOW_S = 3600;
 
 const ruleWords = (ruleId: string) => ruleId.replaceAll("_", " ");
-
-/** `YYYY-MM-DDTHH:mm` in this device's time zone, for a datetime-local input. */
-function localInput(ms: number): string {
-  const d = new Date(ms - new Date(ms).getTimezoneOffset() * 60_000);
-  return d.toISOString().slice(0, 16);
-}
 
 function buildHistory(data: ReplayWindowDto): ReadingHistory {
   const readings: Reading[] = [];
@@ -64,7 +59,7 @@ export function ReplayPlayer({
   const [atMs, setAtMs] = useState(fromMs);
   const [playing, setPlaying] = useState(false);
   const [speed, setSpeed] = useState<(typeof SPEEDS)[number]>(60);
-  const [pickFrom, setPickFrom] = useState(() => localInput(fromMs));
+  const [pickFrom, setPickFrom] = useState(() => toSiteWallInput(fromMs, timeZone));
   const [pickHours, setPickHours] = useState(() => String(Math.max(1, Math.round((toMs - fromMs) / 3_600_000))));
   // Playing stops by itself at the window's end.
   const running = playing && atMs < toMs;
@@ -102,7 +97,7 @@ export function ReplayPlayer({
 
   const pickWindow = (e: React.FormEvent) => {
     e.preventDefault();
-    const from = new Date(pickFrom).getTime();
+    const from = fromSiteWallInput(pickFrom, timeZone);
     if (!Number.isFinite(from)) return;
     const to = from + Number(pickHours) * 3_600_000;
     router.push(`/sites/${encodeURIComponent(siteId)}/replay?from=${from}&to=${to}`);
@@ -273,7 +268,7 @@ export function ReplayPlayer({
 
       <form onSubmit={pickWindow} className="flex flex-wrap items-end gap-3 rounded border border-line bg-panel p-3">
         <label className="flex flex-col text-sm">
-          From (this device&apos;s clock)
+          From (site time)
           <input
             type="datetime-local"
             className="rounded border border-line bg-panel p-2"

@@ -4,6 +4,7 @@ import { getLayout, pointMapCsv } from "@/simulator";
 import { startSimulatedGateway, type SimulatedGateway } from "@/simulator/gateway-client";
 import { hasChromium, screenshot, signInAs, useServerAndBrowser, viewports, watchConsole } from "../helpers/browser";
 import { adminCookie, provisionGateway, putPointMap } from "../helpers/mqtt";
+import { toSiteWallInput } from "@/lib/client/site-wall-time";
 
 // The replay page on a recorded incident: the first hour of the power-blip scenario
 // (simulator/scenarios/power-blip.ts: a blip at 10 min drops the tower fan drive into OFF and the
@@ -131,5 +132,19 @@ describe.skipIf(!hasChromium)("replay page", () => {
     await screenshot(page, "replay-next-event-desktop");
     expect(problems).toEqual([]);
     await context.close();
+
+    // A phone set to Tokyo time picks a window: "From" reads and is read on the site's clock (New York).
+    const away = await env.browser.newContext({ viewport: viewports.phone, timezoneId: "Asia/Tokyo" });
+    const awayPage = await away.newPage();
+    awayPage.setDefaultTimeout(120_000);
+    await signInAs(awayPage, server.url, "luis@tallgrass.example");
+    await awayPage.goto(`${server.url}/sites/${SITE}/replay?from=${fromMs}&to=${toMs}`);
+    const from = awayPage.getByLabel("From (site time)");
+    await expect.poll(() => from.inputValue()).toBe(toSiteWallInput(fromMs, "America/New_York"));
+    await from.fill("2026-07-01T14:00");
+    await awayPage.getByRole("button", { name: "Replay this window" }).click();
+    // 14:00 EDT is 18:00 UTC (IANA rules for America/New_York).
+    await awayPage.waitForURL(new RegExp(`from=${Date.UTC(2026, 6, 1, 18, 0)}&`));
+    await away.close();
   }, 480_000);
 });
