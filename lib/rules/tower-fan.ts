@@ -2,8 +2,10 @@
 // in "off"; the condenser water then climbs and the chiller trips on high head pressure.
 
 import { fitTrend } from "@/lib/plant/trend";
+import { towersServing } from "@/lib/plant/site";
+import { FAN_LOCKOUT_CHECK } from "./advice";
 import { QUALIFIED_CAUTION, type Condition } from "./condition";
-import { bool, num, str, type RuleContext } from "./context";
+import { bool, chillersOf, num, str, type RuleContext } from "./context";
 import { fmtDelta, fmtRate, fmtTemp } from "./format";
 import { makeCondition } from "./make-condition";
 
@@ -39,6 +41,12 @@ export function towerFanNotRunning(ctx: RuleContext): Condition[] {
       // "Rising above setpoint": above it and not falling (once raised, the dead band holds it).
       const hot = was ? aboveK > s.aboveSetpointK - s.deadBandK : aboveK > s.aboveSetpointK && (riseKPerMin ?? 0) >= 0;
       const active = problem !== null && hot;
+      // A chiller it serves held off is better with the fan off: the fan would only cool the condenser
+      // water toward the chilled water (the crossover rules' advice says when to bring it back).
+      const served = chillersOf(ctx.site).filter((c) =>
+        towersServing(ctx.site, c.tag).some((t) => t.tag === tower.tag),
+      );
+      const chillerRuns = !served.length || served.some((c) => bool(ctx, c.tag, "run_status") !== false);
       return [
         makeCondition({
           ruleId: "tower_fan_not_running",
@@ -52,14 +60,23 @@ export function towerFanNotRunning(ctx: RuleContext): Condition[] {
           ownerMessage: active
             ? "A cooling-tower fan is not running when it is needed; the chiller may shut down on high pressure."
             : "Cooling-tower fans are working as needed.",
-          advice: active
-            ? [
-                mode === "off"
-                  ? "Return the fan drive to auto at the drive or from the building controls."
-                  : "Check the fan drive for a fault and reset it if the cause is understood.",
-                "Confirm the fan runs and the condenser water starts to fall.",
-              ]
-            : [],
+          advice: !active
+            ? []
+            : !chillerRuns
+              ? [
+                  "The chiller it serves is off: leave the fan off for now — running it would cool the condenser water toward the chilled water and bring a crossover closer. Restore it as the restart nears, so the head pressure holds once the compressor loads.",
+                  FAN_LOCKOUT_CHECK,
+                ]
+              : mode === "off"
+                ? [
+                    FAN_LOCKOUT_CHECK,
+                    "When it is safe and the reason is known, return the fan drive to auto at the drive or from the building controls: the running chiller needs the heat rejection now.",
+                    "Confirm the fan runs and the condenser water starts to fall.",
+                  ]
+                : [
+                    "Check the fan drive for a fault and reset it only once the cause is understood.",
+                    "Confirm the fan runs and the condenser water starts to fall.",
+                  ],
           caution: active ? QUALIFIED_CAUTION : null,
           numbers: { condenserWaterC: waterC, setpointC, aboveSetpointK: aboveK, riseKPerMin, fanSpeedPct: speedPct },
         }),

@@ -279,7 +279,28 @@ describe("tower fan not running when needed (rule 4)", () => {
     expect(first).toBeLessThanOrEqual(230);
     const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "tower_fan_not_running")!;
     expect(c.technicianMessage).toMatch(/in off/);
-    expect(c.advice[0]).toMatch(/auto/);
+    // The chiller runs: find out why the drive is off, then back to auto.
+    expect(c.advice[0]).toMatch(/find out why it is off/);
+    expect(c.advice[1]).toMatch(/return the fan drive to auto/);
+  });
+
+  it("with the chiller it serves held off, the first advice is to leave the fan off (it would close the loops)", () => {
+    const r = runFrames({
+      durationS: 600,
+      frame: (tS) => ({
+        ...tripped,
+        running: false,
+        towerMode: "off",
+        fanRunning: false,
+        fanSpeedPct: 0,
+        cwInC: rising(tS),
+      }),
+      keep: true,
+    });
+    expect(r.firstActivation("tower_fan_not_running:CT-1")).not.toBeNull();
+    const c = r.evaluations.at(-1)!.conditions.find((x) => x.ruleId === "tower_fan_not_running")!;
+    expect(c.advice[0]).toMatch(/leave the fan off/);
+    expect(c.advice.join(" ")).not.toMatch(/return the fan drive to auto/);
   });
 
   it("commanded but not running, and a faulted drive", () => {
