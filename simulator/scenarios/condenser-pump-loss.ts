@@ -2,7 +2,7 @@
 // pressure spikes, it trips on flow loss and the standby chiller is called in.
 import { cwPumpTag } from "../layout";
 import type { Scenario } from "./types";
-import { buildingLoadFraction, coilAirC, diurnalWeather, hourOf } from "./profiles";
+import { warmAfternoon } from "./profiles";
 
 export const pumpTripAtS = 20 * 60;
 
@@ -14,12 +14,7 @@ export const condenserPumpLoss: Scenario = {
   defaultDurationS: 2 * 3600,
   startHour: 13,
   initial: () => ({}),
-  conditions(tS, layout) {
-    const h = hourOf(this.startHour, tS);
-    const w = diurnalWeather(h, 72, 88, 75, 50);
-    const { loadFraction, ahus } = buildingLoadFraction(layout, h, w.dryBulbC);
-    return { ...w, loadFraction: loadFraction * 0.7, ahusScheduled: ahus, coilAirC: coilAirC(w.dryBulbC) };
-  },
+  conditions: warmAfternoon(13),
   script: (layout) => [
     { atS: 0, command: { kind: "note", message: "Warm afternoon, lead chiller carrying the load" } },
     { atS: pumpTripAtS, command: { kind: "pump-trip", equipment: cwPumpTag(0), reason: "motor overload" } },

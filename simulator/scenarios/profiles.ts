@@ -1,5 +1,6 @@
 // Daily weather and occupancy shapes shared by the scenarios.
 import type { SiteLayout } from "../layout";
+import type { ScenarioConditions } from "./types";
 import { fToC } from "@/lib/plant/units";
 
 export const hourOf = (startHour: number, tS: number): number => (((startHour + tS / 3600) % 24) + 24) % 24;
@@ -53,4 +54,13 @@ export function buildingLoadFraction(
 /** Mixed air entering the coils: 75 % return air at 75 °F, 25 % outdoor air (minimum outdoor air, common practice). */
 export function coilAirC(dryBulbC: number): number {
   return 0.75 * fToC(75) + 0.25 * dryBulbC;
+}
+
+/** A warm afternoon (72–88 °F) with the building at 70 % of its usual load: the scene of the plant-fault scenarios. */
+export function warmAfternoon(startHour: number): (tS: number, layout: SiteLayout) => ScenarioConditions {
+  return (tS, layout) => {
+    const w = diurnalWeather(hourOf(startHour, tS), 72, 88, 75, 50);
+    const { loadFraction, ahus } = buildingLoadFraction(layout, hourOf(startHour, tS), w.dryBulbC);
+    return { ...w, loadFraction: loadFraction * 0.7, ahusScheduled: ahus, coilAirC: coilAirC(w.dryBulbC) };
+  };
 }

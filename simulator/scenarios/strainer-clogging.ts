@@ -2,7 +2,7 @@
 // but the flow through CH-1's condenser falls step by step. Nothing at the pump is wrong, so only
 // the barrel's pressure drop (or a flow meter) tells; head pressure climbs as the flow falls.
 import type { Scenario, ScriptedEvent } from "./types";
-import { buildingLoadFraction, coilAirC, diurnalWeather, hourOf } from "./profiles";
+import { warmAfternoon } from "./profiles";
 
 /** Share of design condenser-water flow left at each step (min after the start). */
 export const strainerSteps: readonly { atMin: number; share: number }[] = [
@@ -20,12 +20,7 @@ export const strainerClogging: Scenario = {
   defaultDurationS: 2 * 3600,
   startHour: 13,
   initial: () => ({}),
-  conditions(tS, layout) {
-    const h = hourOf(this.startHour, tS);
-    const w = diurnalWeather(h, 72, 88, 75, 50);
-    const { loadFraction, ahus } = buildingLoadFraction(layout, h, w.dryBulbC);
-    return { ...w, loadFraction: loadFraction * 0.7, ahusScheduled: ahus, coilAirC: coilAirC(w.dryBulbC) };
-  },
+  conditions: warmAfternoon(13),
   script(layout) {
     const tag = layout.chillers[0].tag;
     return strainerSteps.map(({ atMin, share }): ScriptedEvent => ({
