@@ -1,14 +1,9 @@
 "use client";
 
-import { useState } from "react";
-import useSWR from "swr";
-import type { SiteLatestDto } from "@/lib/dto/readings";
-import type { SiteValues } from "@/lib/realtime/events";
 import type { Measure } from "@/lib/quantities";
-import { fetchJson } from "@/lib/client/fetcher";
 import { formatClock } from "@/lib/client/format";
 import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
-import { useSiteEvents } from "@/components/realtime/use-site-events";
+import { useSiteValues } from "@/components/realtime/use-site-values";
 import { useNow } from "@/components/service/use-now";
 import { formatNumber, numberLabel } from "./alarm-numbers";
 
@@ -51,31 +46,12 @@ export function ThenAndNow({
   unitSystem: UnitSystem;
   timeZone: string;
 }) {
-  const { data, mutate } = useSWR<{ latest: SiteLatestDto }>(
-    readings.length ? `/api/sites/${encodeURIComponent(siteId)}/latest` : null,
-    fetchJson,
-    { refreshInterval: 60_000 },
-  );
-  const [pushed, setPushed] = useState<Record<number, { tsMs: number; value: Value }>>({});
+  const { latest: stored, pushed } = useSiteValues(siteId, 60_000, readings.length > 0);
   const nowMs = useNow(5_000);
-  useSiteEvents(
-    { siteId },
-    {
-      onValues: (v: SiteValues) =>
-        setPushed((prev) => {
-          const next = { ...prev };
-          for (const p of v.values)
-            if (p.value !== null && (next[p.pointId]?.tsMs ?? 0) <= p.tsMs)
-              next[p.pointId] = { tsMs: p.tsMs, value: p.value };
-          return next;
-        }),
-      onReconnect: () => void mutate(),
-    },
-  );
-  const stored = new Map((data?.latest.points ?? []).map((p) => [p.pointId, p]));
+  const byId = new Map((stored?.points ?? []).map((p) => [p.pointId, p]));
   const nowOf = (pointId: number): { tsMs: number; value: Value } | null => {
     const live = pushed[pointId];
-    const s = stored.get(pointId);
+    const s = byId.get(pointId);
     const fromStore = s && s.tsMs !== null && s.value !== null ? { tsMs: s.tsMs, value: s.value } : null;
     if (live && (!fromStore || live.tsMs >= fromStore.tsMs)) return live;
     return fromStore;

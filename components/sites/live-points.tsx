@@ -2,17 +2,11 @@
 
 import Link from "next/link";
 import { useEffect, useState, useSyncExternalStore } from "react";
-import useSWR from "swr";
-import type { SiteLatestDto } from "@/lib/dto/readings";
 import type { EquipmentPointsView } from "@/lib/dto/sites";
-import type { SiteValues } from "@/lib/realtime/events";
-import { fetchJson } from "@/lib/client/fetcher";
 import { formatDuration, formatValue, type UnitSystem } from "@/lib/units";
-import { useSiteEvents } from "@/components/realtime/use-site-events";
+import { useSiteValues } from "@/components/realtime/use-site-values";
 import { isStale } from "@/lib/freshness";
 import { tonsToKw } from "@/lib/plant/units";
-
-type Live = Record<number, { value: number | boolean | string | null; tsMs: number | null; quality: string | null }>;
 
 const kindLabel: Record<string, string> = {
   chiller: "Chiller",
@@ -60,12 +54,7 @@ export function LivePoints({
   /** Staff only: offers the toggle for point keys and Brick classes. */
   showIdentifiers: boolean;
 }) {
-  const { data, mutate } = useSWR<{ latest: SiteLatestDto }>(
-    `/api/sites/${encodeURIComponent(siteId)}/latest`,
-    fetchJson,
-    { refreshInterval: 30_000 },
-  );
-  const [live, setLive] = useState<Live>({});
+  const { latest, pushed: live } = useSiteValues(siteId, 30_000);
   const [nowMs, setNowMs] = useState(() => Date.now());
   const [identifiers, setIdentifiers] = useState(false);
   const wide = useWide();
@@ -73,23 +62,9 @@ export function LivePoints({
     const t = setInterval(() => setNowMs(Date.now()), 5000);
     return () => clearInterval(t);
   }, []);
-  useSiteEvents(
-    { siteId },
-    {
-      onValues: (v: SiteValues) =>
-        setLive((prev) => {
-          const next = { ...prev };
-          for (const p of v.values)
-            if (!next[p.pointId]?.tsMs || (next[p.pointId].tsMs ?? 0) <= p.tsMs)
-              next[p.pointId] = { value: p.value, tsMs: p.tsMs, quality: p.quality };
-          return next;
-        }),
-      onReconnect: () => void mutate(),
-    },
-  );
 
-  const byId = new Map((data?.latest.points ?? []).map((p) => [p.pointId, p]));
-  const status = data?.latest.data;
+  const byId = new Map((latest?.points ?? []).map((p) => [p.pointId, p]));
+  const status = latest?.data;
   return (
     <div className="flex flex-col gap-3">
       <div className="flex flex-wrap items-center justify-between gap-2">

@@ -112,12 +112,6 @@ export function getAlarm(
     .get();
   if (!stored) return null;
   const { raisedDetailJson, key, ...row } = stored;
-  // The stored words refresh their numbers every few minutes; the rules in memory have this evaluation's.
-  const live = latestDetail?.(row.siteId, key);
-  const dtoRow =
-    live && live.atMs > (JSON.parse(row.detailJson) as AlarmDetail).atMs
-      ? { ...row, detailJson: JSON.stringify(live) }
-      : row;
   const staff = seesAllSites(viewer);
   const events = db
     .select({
@@ -146,7 +140,11 @@ export function getAlarm(
   const raisedDetail = raisedDetailJson
     ? renderedDetail(JSON.parse(raisedDetailJson) as AlarmDetail, viewer.unitSystem)
     : null;
-  return { ...toDto(dtoRow, staff, viewer.unitSystem), raisedDetail, events, notes };
+  const dto = toDto(row, staff, viewer.unitSystem);
+  // The stored words refresh their numbers every few minutes; the rules in memory have this evaluation's.
+  const live = latestDetail?.(row.siteId, key);
+  if (live && live.atMs > dto.detail.atMs) dto.detail = renderedDetail(live, viewer.unitSystem);
+  return { ...dto, raisedDetail, events, notes };
 }
 
 /** The alarm's site and key, when the viewer may see it (for commands). */

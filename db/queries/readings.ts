@@ -1,6 +1,6 @@
 import "server-only";
 import type Database from "better-sqlite3";
-import { and, asc, eq, gte, lt, sql } from "drizzle-orm";
+import { and, asc, eq, gte, inArray, lt, sql } from "drizzle-orm";
 import type { Db } from "../client";
 import { equipment, gatewayPointMaps, gateways, latestValues, points, readings, sites } from "../schema";
 import { canSeeSite } from "./sites";
@@ -451,25 +451,28 @@ export function valuesAt(
   withinMs = 15 * MINUTE_MS,
 ): Map<number, { tsMs: number; value: number | boolean | string }> {
   const out = new Map<number, { tsMs: number; value: number | boolean | string }>();
-  for (const pointId of pointIds) {
-    const p = db
-      .select({ siteId: equipment.siteId, quantity: points.quantity })
-      .from(points)
-      .innerJoin(equipment, eq(equipment.id, points.equipmentId))
-      .where(eq(points.id, pointId))
-      .get();
-    if (!p || !canSeeSite(db, viewer, p.siteId)) continue;
+  if (!pointIds.length) return out;
+  const found = db
+    .select({ pointId: points.id, siteId: equipment.siteId, quantity: points.quantity })
+    .from(points)
+    .innerJoin(equipment, eq(equipment.id, points.equipmentId))
+    .where(inArray(points.id, [...pointIds]))
+    .all();
+  const visible = new Map<string, boolean>();
+  for (const p of found) {
+    if (!visible.has(p.siteId)) visible.set(p.siteId, canSeeSite(db, viewer, p.siteId));
+    if (!visible.get(p.siteId)) continue;
     // The primary key (point_id, ts) makes this one index step back from `atMs`.
     const row = db
       .select({ ts: readings.ts, value: readings.value, text: readings.text })
       .from(readings)
-      .where(and(eq(readings.pointId, pointId), lt(readings.ts, atMs + 1), gte(readings.ts, atMs - withinMs)))
+      .where(and(eq(readings.pointId, p.pointId), lt(readings.ts, atMs + 1), gte(readings.ts, atMs - withinMs)))
       .orderBy(sql`${readings.ts} desc`)
       .limit(1)
       .get();
     if (!row) continue;
     const value = liveValue(quantities[p.quantity as QuantityKey]?.measure ?? "text", row.value, row.text);
-    if (value !== null) out.set(pointId, { tsMs: row.ts, value });
+    if (value !== null) out.set(p.pointId, { tsMs: row.ts, value });
   }
   return out;
 }

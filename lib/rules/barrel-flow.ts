@@ -10,6 +10,7 @@ import type { Condition } from "./condition";
 import { bool, chillersOf, num, type RuleContext } from "./context";
 import { fmtPressure } from "./format";
 import { makeCondition } from "./make-condition";
+import { pumpFailedToProve } from "./pump-proof";
 
 type Loop = "chilled_water" | "condenser_water";
 
@@ -71,11 +72,7 @@ export function barrelFlowLost(ctx: RuleContext): Condition[] {
       // Flow is due while the compressor runs, or while a pump serving this barrel is commanded on.
       const due = running || served.some((p) => bool(ctx, p.tag, "pump_run_command") === true);
       // A pump commanded on and not proven already has its own alarm; the barrel follows from it.
-      const pumpFailed = served.some(
-        (p) =>
-          bool(ctx, p.tag, "pump_run_command") === true &&
-          (bool(ctx, p.tag, "pump_status") === false || bool(ctx, p.tag, "pump_fault") === true),
-      );
+      const pumpFailed = served.some((p) => pumpFailedToProve(ctx, p.tag));
       const limit = s.minFlowShare + (ctx.wasActive("barrel_flow_lost", chiller.tag) ? s.deadBandShare : 0);
       if (due && !pumpFailed && share.share < limit)
         low.push(

@@ -6,6 +6,12 @@ import type { Condition } from "./condition";
 import { bool, type RuleContext } from "./context";
 import { makeCondition } from "./make-condition";
 
+/** Commanded on and not proven: its run status is off or its drive faulted (false without a command point). */
+export function pumpFailedToProve(ctx: RuleContext, tag: string): boolean {
+  if (bool(ctx, tag, "pump_run_command") !== true) return false;
+  return bool(ctx, tag, "pump_fault") === true || bool(ctx, tag, "pump_status") === false;
+}
+
 export function pumpNotProven(ctx: RuleContext): Condition[] {
   const s = ctx.settings.pumpProof;
   if (!s.enabled) return [];
@@ -17,7 +23,7 @@ export function pumpNotProven(ctx: RuleContext): Condition[] {
       if (commanded === null) return [];
       const status = bool(ctx, pump.tag, "pump_status");
       const faulted = bool(ctx, pump.tag, "pump_fault") === true;
-      const active = commanded && (faulted || status === false);
+      const active = pumpFailedToProve(ctx, pump.tag);
       const served = pump.serves ? ` (serves ${pump.serves})` : "";
       const why = faulted ? "its drive reports a fault" : "its run status is not proven";
       return [
